@@ -1,0 +1,102 @@
+// Data intake and correlation matrices: missing values, Pearson and Spearman coefficients, matrices
+// given directly, positive-definiteness checks and smoothing, eigenvalues and squared multiple
+// correlations.
+#pragma once
+
+#include "lode/common.hpp"
+
+#include <string>
+#include <vector>
+
+namespace lode {
+
+using IndexMatrix = Eigen::Matrix<Index, Eigen::Dynamic, Eigen::Dynamic>;
+
+enum class MissingPolicy { pairwise, listwise };
+enum class CorrelationKind { pearson, spearman, polychoric };
+
+const char* to_string(MissingPolicy policy) noexcept;
+const char* to_string(CorrelationKind kind) noexcept;
+
+// How a correlation matrix was turned into a positive-definite one (Higham 2002).
+struct SmoothingReport {
+  bool applied = false;
+  double smallest_eigenvalue_before = 0.0;
+  double max_abs_change = 0.0;  // largest change of any correlation
+  double rms_change = 0.0;      // root mean square change over the off-diagonal entries
+  Convergence convergence;
+};
+
+// What the data contributed.
+struct DataReport {
+  Index rows_total = 0;     // rows in the input
+  Index rows_complete = 0;  // rows with no missing item
+  Index rows_used = 0;      // listwise: rows_complete; pairwise: rows with at least one answered item
+  IndexMatrix pair_counts;  // observations behind each correlation (items x items)
+  Index min_pair_count = 0;
+  double missing_fraction = 0.0;  // share of missing cells in the input
+};
+
+struct CorrelationOptions {
+  CorrelationKind kind = CorrelationKind::pearson;
+  MissingPolicy missing = MissingPolicy::pairwise;
+  // Replace a matrix that is not positive definite by the nearest correlation matrix whose
+  // eigenvalues are at least `min_eigenvalue` (reported in CorrelationResult::smoothing). When off,
+  // such a matrix is returned as it is and flagged.
+  bool smooth_if_not_positive_definite = false;
+  double min_eigenvalue = 1e-6;
+  Index min_pair_observations = 3;  // fewer behind any correlation is an error
+  std::vector<std::string> item_names;  // optional, used in messages; else "column 1", "column 2", ...
+  int threads = 0;                      // for the ordinal path; 0 = hardware
+};
+
+struct CorrelationResult {
+  Matrix matrix;  // items x items
+  // Sample size for tests and fit indices: listwise, the rows used; pairwise, the smallest pair
+  // count (the conservative choice; common practice varies).
+  Index n_obs = 0;
+  CorrelationKind kind = CorrelationKind::pearson;
+  MissingPolicy missing = MissingPolicy::pairwise;
+  DataReport report;
+  bool positive_definite = true;
+  SmoothingReport smoothing;
+  std::vector<std::string> notes;  // plain-language remarks for the report (e.g. smoothing applied)
+};
+
+// The label of item j in messages: "item 'name'" when its name is known, else "column j+1".
+std::string item_label(const std::vector<std::string>& names, Index j);
+
+// Checks raw data (rows = respondents, columns = items, NaN = missing) and fails with a message that
+// names the problem: fewer than 3 items, an infinite value, an item with too few answers, a constant
+// item, too few complete rows for listwise deletion.
+void validate_data(const Matrix& data, const CorrelationOptions& options);
+
+// The correlation matrix of raw data. Pearson and Spearman (average ranks for ties, ranked within
+// the rows each pair uses) are computed here; polychoric is delegated to polychoric.hpp.
+CorrelationResult correlation(const Matrix& data, const CorrelationOptions& options = {});
+
+// A correlation matrix computed elsewhere, with its sample size (0 = unknown: tests and fit indices
+// then refuse). Checks symmetry, unit diagonal, entries in [-1, 1], finiteness.
+CorrelationResult correlation_from_matrix(const Matrix& r, Index n_obs, const CorrelationOptions& options = {});
+
+// A covariance matrix computed elsewhere, turned into correlations (variances must be positive).
+CorrelationResult correlation_from_covariance(const Matrix& s, Index n_obs, const CorrelationOptions& options = {});
+
+// Nearest correlation matrix with eigenvalues >= min_eigenvalue, by alternating projections with
+// Dykstra's correction (Higham 2002, "Computing the nearest correlation matrix").
+Matrix nearest_correlation(const Matrix& r, double min_eigenvalue, SmoothingReport* report = nullptr,
+                           int max_iterations = 1000, double tolerance = 1e-10);
+
+// Eigenvalues of a symmetric matrix, largest first.
+Vector eigenvalues_descending(const Matrix& symmetric);
+
+// Squared multiple correlation of each item with all the others: 1 - 1 / diag(R^-1).
+// Throws not_positive_definite (naming the smallest eigenvalue) when R cannot be inverted.
+Vector squared_multiple_correlations(const Matrix& r);
+
+// Eigenvalues of the reduced correlation matrix (SMCs on the diagonal), largest first.
+Vector reduced_eigenvalues(const Matrix& r);
+
+bool is_positive_definite(const Matrix& symmetric);
+
+}  // namespace lode

@@ -1,0 +1,408 @@
+#include "lode/correlation.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <numeric>
+
+namespace lode {
+
+const char* to_string(MissingPolicy policy) noexcept {
+  return policy == MissingPolicy::pairwise ? "pairwise" : "listwise";
+}
+
+const char* to_string(CorrelationKind kind) noexcept {
+  switch (kind) {
+    case CorrelationKind::pearson: return "pearson";
+    case CorrelationKind::spearman: return "spearman";
+    case CorrelationKind::polychoric: return "polychoric";
+  }
+  return "unknown";
+}
+
+std::string item_label(const std::vector<std::string>& names, Index j) {
+  if (j >= 0 && static_cast<std::size_t>(j) < names.size() && !names[static_cast<std::size_t>(j)].empty())
+    return fmt::format("item '{}'", names[static_cast<std::size_t>(j)]);
+  return fmt::format("column {}", j + 1);
+}
+
+namespace {
+
+using Mask = Eigen::Array<bool, Eigen::Dynamic, Eigen::Dynamic>;
+
+Mask present_mask(const Matrix& data) { return data.array().isNaN() == false; }
+
+std::vector<Index> complete_rows(const Mask& present) {
+  std::vector<Index> rows;
+  for (Index i = 0; i < present.rows(); ++i)
+    if (present.row(i).all()) rows.push_back(i);
+  return rows;
+}
+
+// Average ranks (ties share the mean of their positions), 1-based.
+Vector average_ranks(const Vector& x) {
+  const Index n = x.size();
+  std::vector<Index> order(static_cast<std::size_t>(n));
+  std::iota(order.begin(), order.end(), Index{0});
+  std::stable_sort(order.begin(), order.end(), [&](Index a, Index b) { return x(a) < x(b); });
+  Vector ranks(n);
+  Index i = 0;
+  while (i < n) {
+    Index j = i;
+    while (j + 1 < n && x(order[static_cast<std::size_t>(j + 1)]) == x(order[static_cast<std::size_t>(i)])) ++j;
+    const double r = 0.5 * static_cast<double>(i + j) + 1.0;
+    for (Index k = i; k <= j; ++k) ranks(order[static_cast<std::size_t>(k)]) = r;
+    i = j + 1;
+  }
+  return ranks;
+}
+
+double pearson_of(const Vector& x, const Vector& y) {
+  const double mx = x.mean(), my = y.mean();
+  const Vector dx = x.array() - mx, dy = y.array() - my;
+  const double sxx = dx.squaredNorm(), syy = dy.squaredNorm();
+  if (sxx <= 0.0 || syy <= 0.0) return std::numeric_limits<double>::quiet_NaN();
+  return dx.dot(dy) / std::sqrt(sxx * syy);
+}
+
+// Pearson correlations of complete data: centre, cross-product, scale.
+Matrix pearson_complete(const Matrix& x) {
+  Matrix centred = x.rowwise() - x.colwise().mean();
+  Matrix s = Matrix::Zero(x.cols(), x.cols());
+  s.selfadjointView<Eigen::Lower>().rankUpdate(centred.transpose());
+  s = s.selfadjointView<Eigen::Lower>();
+  const Vector inv_sd = s.diagonal().cwiseSqrt().cwiseInverse();
+  Matrix r = inv_sd.asDiagonal() * s * inv_sd.asDiagonal();
+  r.diagonal().setOnes();
+  return r;
+}
+
+// Exact pairwise-complete Pearson correlations by matrix products over the presence mask: for each
+// pair, means and sums of squares use only the rows where both items are present.
+Matrix pearson_pairwise(const Matrix& data, const Mask& present) {
+  const Index p = data.cols();
+  Matrix m = present.cast<double>();
+  // Centre each column by its own mean first, to keep the sums small (less cancellation).
+  Matrix z = Matrix::Zero(data.rows(), p);
+  for (Index j = 0; j < p; ++j) {
+    double sum = 0.0;
+    Index count = 0;
+    for (Index i = 0; i < data.rows(); ++i)
+      if (present(i, j)) {
+        sum += data(i, j);
+        ++count;
+      }
+    const double mean = count > 0 ? sum / static_cast<double>(count) : 0.0;
+    for (Index i = 0; i < data.rows(); ++i)
+      if (present(i, j)) z(i, j) = data(i, j) - mean;
+  }
+  const Matrix n = m.transpose() * m;                          // pair counts
+  const Matrix sx = z.transpose() * m;                         // sx(i,j): sum of item i over rows where j present
+  const Matrix sxx = z.array().square().matrix().transpose() * m;  // sums of squares, same rows
+  const Matrix sxy = z.transpose() * z;                        // cross-products over rows with both
+  Matrix r(p, p);
+  for (Index j = 0; j < p; ++j) {
+    r(j, j) = 1.0;
+    for (Index i = j + 1; i < p; ++i) {
+      const double nij = n(i, j);
+      const double cov = sxy(i, j) - sx(i, j) * sx(j, i) / nij;
+      const double vi = sxx(i, j) - sx(i, j) * sx(i, j) / nij;
+      const double vj = sxx(j, i) - sx(j, i) * sx(j, i) / nij;
+      const double v = (vi > 0.0 && vj > 0.0) ? cov / std::sqrt(vi * vj) : std::numeric_limits<double>::quiet_NaN();
+      r(i, j) = r(j, i) = std::clamp(v, -1.0, 1.0);
+    }
+  }
+  return r;
+}
+
+Matrix spearman(const Matrix& data, const Mask& present, MissingPolicy missing, const std::vector<Index>& complete) {
+  const Index p = data.cols();
+  if (missing == MissingPolicy::listwise || complete.size() == static_cast<std::size_t>(data.rows())) {
+    Matrix ranks(static_cast<Index>(complete.size()), p);
+    for (Index j = 0; j < p; ++j) {
+      Vector col(ranks.rows());
+      for (Index k = 0; k < ranks.rows(); ++k) col(k) = data(complete[static_cast<std::size_t>(k)], j);
+      ranks.col(j) = average_ranks(col);
+    }
+    return pearson_complete(ranks);
+  }
+  // Pairwise: each pair is ranked within the rows where both items are present.
+  Matrix r = Matrix::Identity(p, p);
+  for (Index a = 0; a < p; ++a)
+    for (Index b = a + 1; b < p; ++b) {
+      std::vector<Index> rows;
+      for (Index i = 0; i < data.rows(); ++i)
+        if (present(i, a) && present(i, b)) rows.push_back(i);
+      Vector x(static_cast<Index>(rows.size())), y(static_cast<Index>(rows.size()));
+      for (std::size_t k = 0; k < rows.size(); ++k) {
+        x(static_cast<Index>(k)) = data(rows[k], a);
+        y(static_cast<Index>(k)) = data(rows[k], b);
+      }
+      r(a, b) = r(b, a) = pearson_of(average_ranks(x), average_ranks(y));
+    }
+  return r;
+}
+
+void check_pairs(const Matrix& r, const IndexMatrix& counts, const CorrelationOptions& options) {
+  const Index p = r.cols();
+  for (Index j = 0; j < p; ++j)
+    for (Index i = j + 1; i < p; ++i) {
+      if (counts(i, j) < options.min_pair_observations)
+        throw Error(ErrorCode::insufficient_data,
+                    fmt::format("{} and {} are both answered in only {} rows; at least {} are needed "
+                                "for their correlation (try listwise deletion or drop one of them)",
+                                item_label(options.item_names, j), item_label(options.item_names, i), counts(i, j),
+                                options.min_pair_observations));
+      if (!std::isfinite(r(i, j)))
+        throw Error(ErrorCode::insufficient_data,
+                    fmt::format("{} and {} have no variation in the rows where both are answered, so "
+                                "their correlation is undefined",
+                                item_label(options.item_names, j), item_label(options.item_names, i)));
+    }
+}
+
+void finish(CorrelationResult& result, const CorrelationOptions& options) {
+  result.positive_definite = is_positive_definite(result.matrix);
+  if (!result.positive_definite) {
+    const Vector ev = eigenvalues_descending(result.matrix);
+    result.smoothing.smallest_eigenvalue_before = ev(ev.size() - 1);
+    if (options.smooth_if_not_positive_definite) {
+      result.matrix = nearest_correlation(result.matrix, options.min_eigenvalue, &result.smoothing);
+      result.positive_definite = is_positive_definite(result.matrix);
+      result.notes.push_back(fmt::format(
+          "the correlation matrix was not positive definite (smallest eigenvalue {:.3g}); it was replaced by the "
+          "nearest correlation matrix (largest change {:.3g})",
+          result.smoothing.smallest_eigenvalue_before, result.smoothing.max_abs_change));
+    } else {
+      result.notes.push_back(fmt::format(
+          "the correlation matrix is not positive definite (smallest eigenvalue {:.3g}); maximum likelihood "
+          "cannot use it until it is smoothed",
+          result.smoothing.smallest_eigenvalue_before));
+    }
+  }
+}
+
+}  // namespace
+
+void validate_data(const Matrix& data, const CorrelationOptions& options) {
+  const Index n = data.rows(), p = data.cols();
+  if (p < 3)
+    throw Error(ErrorCode::insufficient_data,
+                fmt::format("factor analysis needs at least 3 items (columns); the data have {}", p));
+  if (n < 3)
+    throw Error(ErrorCode::insufficient_data, fmt::format("the data have {} rows; at least 3 are needed", n));
+  for (Index j = 0; j < p; ++j) {
+    Index answered = 0;
+    double first = std::numeric_limits<double>::quiet_NaN();
+    bool constant = true;
+    for (Index i = 0; i < n; ++i) {
+      const double v = data(i, j);
+      if (std::isnan(v)) continue;
+      if (!std::isfinite(v))
+        throw Error(ErrorCode::invalid_argument,
+                    fmt::format("{} holds an infinite value in row {}", item_label(options.item_names, j), i + 1));
+      if (answered == 0) first = v;
+      else if (v != first) constant = false;
+      ++answered;
+    }
+    if (answered < options.min_pair_observations)
+      throw Error(ErrorCode::insufficient_data,
+                  fmt::format("{} is answered in only {} of {} rows; at least {} are needed",
+                              item_label(options.item_names, j), answered, n, options.min_pair_observations));
+    if (constant)
+      throw Error(ErrorCode::insufficient_data,
+                  fmt::format("{} is constant (every answer is {}); remove it, it carries no information",
+                              item_label(options.item_names, j), first));
+  }
+  if (options.missing == MissingPolicy::listwise) {
+    const Index complete = static_cast<Index>(complete_rows(present_mask(data)).size());
+    if (complete < options.min_pair_observations)
+      throw Error(ErrorCode::insufficient_data,
+                  fmt::format("only {} of {} rows survive listwise deletion (rows with every item answered); at "
+                              "least {} are needed: use pairwise deletion or fewer items",
+                              complete, n, options.min_pair_observations));
+  }
+}
+
+CorrelationResult correlation(const Matrix& data, const CorrelationOptions& options) {
+  if (options.kind == CorrelationKind::polychoric)
+    throw Error(ErrorCode::invalid_argument, "polychoric correlations are not available in this build");
+  validate_data(data, options);
+  const Index n = data.rows(), p = data.cols();
+  const Mask present = present_mask(data);
+  const std::vector<Index> complete = complete_rows(present);
+
+  CorrelationResult result;
+  result.kind = options.kind;
+  result.missing = options.missing;
+  result.report.rows_total = n;
+  result.report.rows_complete = static_cast<Index>(complete.size());
+  result.report.missing_fraction = 1.0 - present.cast<double>().mean();
+
+  const bool all_complete = complete.size() == static_cast<std::size_t>(n);
+  if (options.missing == MissingPolicy::listwise || all_complete) {
+    result.report.rows_used = static_cast<Index>(complete.size());
+    result.report.pair_counts = IndexMatrix::Constant(p, p, result.report.rows_used);
+    if (options.kind == CorrelationKind::pearson) {
+      if (all_complete) {
+        result.matrix = pearson_complete(data);
+      } else {
+        Matrix kept(static_cast<Index>(complete.size()), p);
+        for (std::size_t k = 0; k < complete.size(); ++k) kept.row(static_cast<Index>(k)) = data.row(complete[k]);
+        // Listwise deletion can leave an item constant.
+        CorrelationOptions check = options;
+        check.missing = MissingPolicy::pairwise;
+        validate_data(kept, check);
+        result.matrix = pearson_complete(kept);
+      }
+    } else {
+      result.matrix = spearman(data, present, MissingPolicy::listwise, complete);
+    }
+  } else {
+    Index used = 0;
+    for (Index i = 0; i < n; ++i)
+      if (present.row(i).any()) ++used;
+    result.report.rows_used = used;
+    const Matrix m = present.cast<double>();
+    result.report.pair_counts = (m.transpose() * m).array().round().cast<Index>();
+    result.matrix = options.kind == CorrelationKind::pearson ? pearson_pairwise(data, present)
+                                                             : spearman(data, present, MissingPolicy::pairwise, complete);
+  }
+  result.report.min_pair_count = result.report.pair_counts.minCoeff();
+  check_pairs(result.matrix, result.report.pair_counts, options);
+  result.n_obs = options.missing == MissingPolicy::listwise ? result.report.rows_used : result.report.min_pair_count;
+  finish(result, options);
+  return result;
+}
+
+CorrelationResult correlation_from_matrix(const Matrix& r, Index n_obs, const CorrelationOptions& options) {
+  const Index p = r.rows();
+  if (r.rows() != r.cols())
+    throw Error(ErrorCode::invalid_argument,
+                fmt::format("a correlation matrix must be square; this one is {} x {}", r.rows(), r.cols()));
+  if (p < 3)
+    throw Error(ErrorCode::insufficient_data,
+                fmt::format("factor analysis needs at least 3 items; the matrix has {}", p));
+  if (n_obs < 0) throw Error(ErrorCode::invalid_argument, fmt::format("the number of observations is negative ({})", n_obs));
+  for (Index j = 0; j < p; ++j)
+    for (Index i = 0; i < p; ++i) {
+      if (!std::isfinite(r(i, j)))
+        throw Error(ErrorCode::invalid_argument,
+                    fmt::format("the correlation matrix holds a missing or infinite value at row {}, column {}", i + 1, j + 1));
+      if (std::abs(r(i, j) - r(j, i)) > 1e-8)
+        throw Error(ErrorCode::invalid_argument,
+                    fmt::format("the correlation matrix is not symmetric: entry ({}, {}) is {} but ({}, {}) is {}", i + 1,
+                                j + 1, r(i, j), j + 1, i + 1, r(j, i)));
+      if (i == j && std::abs(r(i, i) - 1.0) > 1e-8)
+        throw Error(ErrorCode::invalid_argument,
+                    fmt::format("the diagonal of a correlation matrix must be 1; {} has {}",
+                                item_label(options.item_names, i), r(i, i)));
+      if (std::abs(r(i, j)) > 1.0 + 1e-8)
+        throw Error(ErrorCode::invalid_argument,
+                    fmt::format("correlation ({}, {}) is {}, outside [-1, 1]", i + 1, j + 1, r(i, j)));
+    }
+  CorrelationResult result;
+  result.matrix = 0.5 * (r + r.transpose());
+  result.matrix.diagonal().setOnes();
+  result.n_obs = n_obs;
+  result.kind = options.kind;
+  result.missing = options.missing;
+  result.report.rows_total = result.report.rows_used = result.report.rows_complete = n_obs;
+  result.report.pair_counts = IndexMatrix::Constant(p, p, n_obs);
+  result.report.min_pair_count = n_obs;
+  finish(result, options);
+  return result;
+}
+
+CorrelationResult correlation_from_covariance(const Matrix& s, Index n_obs, const CorrelationOptions& options) {
+  if (s.rows() != s.cols())
+    throw Error(ErrorCode::invalid_argument,
+                fmt::format("a covariance matrix must be square; this one is {} x {}", s.rows(), s.cols()));
+  for (Index j = 0; j < s.cols(); ++j)
+    if (!(s(j, j) > 0.0) || !std::isfinite(s(j, j)))
+      throw Error(ErrorCode::invalid_argument,
+                  fmt::format("{} has variance {} in the covariance matrix; variances must be positive",
+                              item_label(options.item_names, j), s(j, j)));
+  const Vector inv_sd = s.diagonal().cwiseSqrt().cwiseInverse();
+  Matrix r = inv_sd.asDiagonal() * s * inv_sd.asDiagonal();
+  r.diagonal().setOnes();
+  return correlation_from_matrix(r, n_obs, options);
+}
+
+Matrix nearest_correlation(const Matrix& r, double min_eigenvalue, SmoothingReport* report, int max_iterations,
+                           double tolerance) {
+  const Index p = r.rows();
+  Matrix y = r, x = r, ds = Matrix::Zero(p, p);
+  Convergence conv;
+  conv.max_iterations = max_iterations;
+  conv.tolerance = tolerance;
+  Eigen::SelfAdjointEigenSolver<Matrix> eig;
+  for (int it = 1; it <= max_iterations; ++it) {
+    const Matrix rk = y - ds;
+    eig.compute(rk);
+    const Vector d = eig.eigenvalues().cwiseMax(min_eigenvalue);
+    x = eig.eigenvectors() * d.asDiagonal() * eig.eigenvectors().transpose();
+    ds = x - rk;
+    Matrix y_next = x;
+    y_next.diagonal().setOnes();
+    const double change = (y_next - y).norm() / std::max(1.0, y.norm());
+    y = y_next;
+    conv.iterations = it;
+    conv.final_change = change;
+    if (change < tolerance) {
+      conv.converged = true;
+      break;
+    }
+  }
+  // Final projection: clip the spectrum and rescale to a unit diagonal, so the result is a
+  // correlation matrix with eigenvalues essentially at or above the floor.
+  eig.compute(y);
+  const Vector d = eig.eigenvalues().cwiseMax(min_eigenvalue);
+  Matrix z = eig.eigenvectors() * d.asDiagonal() * eig.eigenvectors().transpose();
+  const Vector inv_sd = z.diagonal().cwiseSqrt().cwiseInverse();
+  z = inv_sd.asDiagonal() * z * inv_sd.asDiagonal();
+  z = 0.5 * (z + z.transpose());
+  z.diagonal().setOnes();
+  if (report) {
+    report->applied = true;
+    const Matrix diff = z - r;
+    report->max_abs_change = diff.cwiseAbs().maxCoeff();
+    report->rms_change = p > 1 ? std::sqrt(diff.squaredNorm() / static_cast<double>(p * (p - 1))) : 0.0;
+    report->convergence = conv;
+  }
+  return z;
+}
+
+Vector eigenvalues_descending(const Matrix& symmetric) {
+  Eigen::SelfAdjointEigenSolver<Matrix> eig(symmetric, Eigen::EigenvaluesOnly);
+  return eig.eigenvalues().reverse();
+}
+
+bool is_positive_definite(const Matrix& symmetric) {
+  Eigen::LLT<Matrix> llt(symmetric);
+  if (llt.info() != Eigen::Success) return false;
+  return eigenvalues_descending(symmetric).minCoeff() > 0.0;
+}
+
+Vector squared_multiple_correlations(const Matrix& r) {
+  Eigen::LLT<Matrix> llt(r);
+  if (llt.info() != Eigen::Success) {
+    const Vector ev = eigenvalues_descending(r);
+    throw Error(ErrorCode::not_positive_definite,
+                fmt::format("the correlation matrix is not positive definite (smallest eigenvalue {:.3g}), so squared "
+                            "multiple correlations are undefined; some items may be exact combinations of others",
+                            ev(ev.size() - 1)));
+  }
+  const Matrix inv = llt.solve(Matrix::Identity(r.rows(), r.cols()));
+  return (1.0 - inv.diagonal().cwiseInverse().array()).matrix();
+}
+
+Vector reduced_eigenvalues(const Matrix& r) {
+  Matrix reduced = r;
+  reduced.diagonal() = squared_multiple_correlations(r);
+  return eigenvalues_descending(reduced);
+}
+
+}  // namespace lode

@@ -1,0 +1,142 @@
+// Correlation matrices and data intake, checked against R's base stats::cor and numpy.
+#include "lode/correlation.hpp"
+#include "lode/random.hpp"
+#include "support/external.hpp"
+
+#include <gtest/gtest.h>
+
+#include <cmath>
+
+using namespace lode;
+using lode::testing::run_python;
+using lode::testing::run_r;
+
+namespace {
+
+Matrix survey_like(Index n, Index p, std::uint64_t seed, double missing_share) {
+  auto rng = random_stream(seed, 0);
+  Matrix f = standard_normal_matrix(n, 2, rng);
+  Matrix e = standard_normal_matrix(n, p, rng);
+  Matrix x(n, p);
+  for (Index j = 0; j < p; ++j) x.col(j) = 0.7 * f.col(j % 2) + 0.6 * e.col(j);
+  // Five-point items: rounding makes ties, which Spearman must average.
+  x = (x.array() * 1.2 + 3.0).round().max(1.0).min(5.0).matrix();
+  std::uniform_real_distribution<double> u(0.0, 1.0);
+  for (Index i = 0; i < n; ++i)
+    for (Index j = 0; j < p; ++j)
+      if (u(rng) < missing_share) x(i, j) = std::nan("");
+  return x;
+}
+
+}  // namespace
+
+TEST(Correlation, PearsonAndSpearmanMatchRCor) {
+  const Matrix x = survey_like(300, 6, 11, 0.08);
+  // Reference: R's base stats::cor with use="pairwise.complete.obs" and "complete.obs".
+  const auto ref = run_r(R"(
+    emit("pp", cor(X, use = "pairwise.complete.obs"))
+    emit("pl", cor(X, use = "complete.obs"))
+    emit("sp", cor(X, use = "pairwise.complete.obs", method = "spearman"))
+    emit("sl", cor(X, use = "complete.obs", method = "spearman"))
+    emit("nc", sum(complete.cases(X)))
+  )", {{"X", x}});
+  CorrelationOptions o;
+  o.missing = MissingPolicy::pairwise;
+  EXPECT_LT((correlation(x, o).matrix - ref.at("pp")).cwiseAbs().maxCoeff(), 1e-12);
+  o.kind = CorrelationKind::spearman;
+  EXPECT_LT((correlation(x, o).matrix - ref.at("sp")).cwiseAbs().maxCoeff(), 1e-12);
+  o.missing = MissingPolicy::listwise;
+  const auto sl = correlation(x, o);
+  EXPECT_LT((sl.matrix - ref.at("sl")).cwiseAbs().maxCoeff(), 1e-12);
+  EXPECT_EQ(sl.n_obs, static_cast<Index>(ref.at("nc")(0, 0)));
+  o.kind = CorrelationKind::pearson;
+  EXPECT_LT((correlation(x, o).matrix - ref.at("pl")).cwiseAbs().maxCoeff(), 1e-12);
+}
+
+TEST(Correlation, CompleteDataMatchesNumpyCorrcoef) {
+  const Matrix x = survey_like(500, 8, 5, 0.0);
+  // Reference: numpy.corrcoef (columns as variables).
+  const auto ref = run_python("emit('r', np.corrcoef(X, rowvar=False))", {{"X", x}});
+  const auto r = correlation(x);
+  EXPECT_LT((r.matrix - ref.at("r")).cwiseAbs().maxCoeff(), 1e-12);
+  EXPECT_EQ(r.n_obs, 500);
+  EXPECT_TRUE(r.positive_definite);
+}
+
+TEST(Correlation, NearestCorrelationMatchesHighamExample) {
+  // Higham (2002), section 4 example: A = [[1,1,0],[1,1,1],[0,1,1]] has nearest correlation matrix
+  // with off-diagonal entries 0.7607 (1,2 and 2,3) and 0.1573 (1,3), to four decimals.
+  Matrix a(3, 3);
+  a << 1, 1, 0, 1, 1, 1, 0, 1, 1;
+  SmoothingReport rep;
+  const Matrix x = nearest_correlation(a, 0.0, &rep, 10000, 1e-12);
+  EXPECT_NEAR(x(0, 1), 0.7607, 5e-5);
+  EXPECT_NEAR(x(1, 2), 0.7607, 5e-5);
+  EXPECT_NEAR(x(0, 2), 0.1573, 5e-5);
+  EXPECT_TRUE(rep.convergence.converged);
+}
+
+TEST(Correlation, PairwiseIndefiniteMatrixIsFlaggedAndSmoothedOnRequest) {
+  Matrix r(3, 3);
+  r << 1, 0.9, -0.9, 0.9, 1, 0.9, -0.9, 0.9, 1;  // not positive semidefinite
+  auto flagged = correlation_from_matrix(r, 100);
+  EXPECT_FALSE(flagged.positive_definite);
+  EXPECT_FALSE(flagged.notes.empty());
+  CorrelationOptions o;
+  o.smooth_if_not_positive_definite = true;
+  auto smoothed = correlation_from_matrix(r, 100, o);
+  EXPECT_TRUE(smoothed.positive_definite);
+  EXPECT_TRUE(smoothed.smoothing.applied);
+  EXPECT_GT(smoothed.smoothing.max_abs_change, 0.1);
+  EXPECT_GE(eigenvalues_descending(smoothed.matrix).minCoeff(), 0.9e-6);
+}
+
+TEST(Correlation, SmcAndReducedEigenvaluesMatchNumpy) {
+  const Matrix x = survey_like(400, 7, 3, 0.0);
+  const Matrix r = correlation(x).matrix;
+  // Reference: numpy.linalg.inv and numpy.linalg.eigvalsh.
+  const auto ref = run_python(R"(
+smc = 1 - 1 / np.diag(np.linalg.inv(R))
+emit('smc', smc)
+emit('ev', np.sort(np.linalg.eigvalsh(R))[::-1])
+Rr = R.copy(); np.fill_diagonal(Rr, smc)
+emit('rev', np.sort(np.linalg.eigvalsh(Rr))[::-1])
+)", {{"R", r}});
+  EXPECT_LT((squared_multiple_correlations(r) - ref.at("smc")).cwiseAbs().maxCoeff(), 1e-12);
+  EXPECT_LT((eigenvalues_descending(r) - ref.at("ev")).cwiseAbs().maxCoeff(), 1e-12);
+  EXPECT_LT((reduced_eigenvalues(r) - ref.at("rev")).cwiseAbs().maxCoeff(), 1e-12);
+}
+
+TEST(CorrelationErrors, MessagesNameTheProblem) {
+  Matrix x = survey_like(50, 4, 1, 0.0);
+  auto message_of = [](auto&& f) {
+    try {
+      f();
+    } catch (const Error& e) {
+      return std::string(e.what());
+    }
+    return std::string("no error");
+  };
+  Matrix two = x.leftCols(2);
+  EXPECT_NE(message_of([&] { correlation(two); }).find("at least 3 items"), std::string::npos);
+  Matrix constant = x;
+  constant.col(2).setConstant(4.0);
+  CorrelationOptions named;
+  named.item_names = {"q1", "q2", "q3", "q4"};
+  EXPECT_NE(message_of([&] { correlation(constant, named); }).find("'q3' is constant"), std::string::npos);
+  Matrix inf = x;
+  inf(7, 1) = INFINITY;
+  EXPECT_NE(message_of([&] { correlation(inf); }).find("column 2 holds an infinite value in row 8"), std::string::npos);
+  Matrix sparse = x;
+  for (Index i = 0; i < 48; ++i) sparse(i, 3) = std::nan("");
+  EXPECT_NE(message_of([&] { correlation(sparse); }).find("answered in only 2 of 50 rows"), std::string::npos);
+  Matrix holes = x;
+  for (Index i = 0; i < 49; ++i) holes(i, i % 4) = std::nan("");
+  CorrelationOptions listwise;
+  listwise.missing = MissingPolicy::listwise;
+  EXPECT_NE(message_of([&] { correlation(holes, listwise); }).find("only 1 of 50 rows survive listwise deletion"),
+            std::string::npos);
+  Matrix asym = Matrix::Identity(3, 3);
+  asym(0, 1) = 0.5;
+  EXPECT_NE(message_of([&] { correlation_from_matrix(asym, 10); }).find("not symmetric"), std::string::npos);
+}
