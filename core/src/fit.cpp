@@ -11,6 +11,7 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <cmath>
 #include <limits>
 
@@ -114,7 +115,8 @@ FitResult assess_fit(const Matrix& r_in, const Matrix& loadings, const Vector& u
                             "matrix, but this one's smallest eigenvalue is {}; smooth it first",
                             smallest_eigenvalue_text(r)));
   out.residual = residual_fit(r, loadings, uniquenesses);
-  out.discrepancy = ml_discrepancy(r, implied_correlation(loadings, uniquenesses));
+  // F >= 0 mathematically; rounding can leave a tiny negative value at an exact fit.
+  out.discrepancy = std::max(ml_discrepancy(r, implied_correlation(loadings, uniquenesses)), 0.0);
   out.chi_square = multiplier * out.discrepancy;
   out.null_df = 0.5 * static_cast<double>(p) * static_cast<double>(p - 1);
   out.null_chi_square = -(n - 1.0 - (2.0 * p + 5.0) / 6.0) * log_determinant(r);
