@@ -256,7 +256,7 @@ def truth_document(seed, lam, psi, latent_corr, thresholds, design, responses):
 # timestamps so that regenerating it does not change the file.
 
 ABOUT_LINES = [
-    "Tarnlow Trails Trust: annual volunteer experience survey (invented demo data)",
+    "Tarnlow Trails Trust volunteer survey (invented demo data)",
     "",
     "The trust, its volunteers and every response in this workbook are invented. They were generated "
     "from a known factor model so that an analysis can be checked against the structure put in.",
@@ -277,7 +277,8 @@ ABOUT_LINES = [
 
 def write_ods(path, responses_table, items_table, seed):
     from odf.opendocument import OpenDocumentSpreadsheet
-    from odf.style import ParagraphProperties, Style, TableColumnProperties, TextProperties
+    from odf.style import (ParagraphProperties, Style, TableCellProperties, TableColumnProperties,
+                           TextProperties)
     from odf.table import Table, TableCell, TableColumn, TableRow
     from odf.text import P
 
@@ -289,6 +290,9 @@ def write_ods(path, responses_table, items_table, seed):
     title = Style(name="LodeTitle", family="table-cell")
     title.addElement(TextProperties(fontweight="bold", fontsize="13pt"))
     doc.automaticstyles.addElement(title)
+    wrapped = Style(name="LodeWrapped", family="table-cell")
+    wrapped.addElement(TableCellProperties(wrapoption="wrap", verticalalign="top"))
+    doc.automaticstyles.addElement(wrapped)
     widths = {}
 
     def column_style(width):
@@ -299,7 +303,7 @@ def write_ods(path, responses_table, items_table, seed):
             widths[width] = st
         return widths[width]
 
-    def add_sheet(name, rows, col_widths, header=True, numeric_from=None):
+    def add_sheet(name, rows, col_widths, header=True, numeric_from=None, wrap_columns=()):
         table = Table(name=name)
         for w in col_widths:
             table.addElement(TableColumn(stylename=column_style(w)))
@@ -315,7 +319,8 @@ def write_ods(path, responses_table, items_table, seed):
                     cell.addElement(P(text=value))
                     tr.addElement(cell)
                 else:
-                    cell = TableCell(valuetype="string", stylename=bold if is_head else None)
+                    style = bold if is_head else (wrapped if c in wrap_columns else None)
+                    cell = TableCell(valuetype="string", stylename=style)
                     cell.addElement(P(text=value))
                     tr.addElement(cell)
             table.addElement(tr)
@@ -326,15 +331,15 @@ def write_ods(path, responses_table, items_table, seed):
     section_name = {letter: f"{letter} {name}" for letter, name, _ in SECTIONS}
     for row in items_table[1:]:
         items_sheet.append([row[0], section_name[row[1]], row[2], row[3], row[4]])
-    add_sheet("Items", items_sheet, ["1.6cm", "5.5cm", "13cm", "5cm", "2.6cm"])
+    add_sheet("Items", items_sheet, ["1.6cm", "6.6cm", "12.5cm", "5.4cm", "2.6cm"], wrap_columns=(2,))
 
     about = Table(name="About")
-    about.addElement(TableColumn(stylename=column_style("24cm")))
+    about.addElement(TableColumn(stylename=column_style("17cm")))
     for k, line in enumerate(ABOUT_LINES):
         tr = TableRow()
         text = line.format(seed=seed)
         if text:
-            cell = TableCell(valuetype="string", stylename=title if k == 0 else None)
+            cell = TableCell(valuetype="string", stylename=title if k == 0 else wrapped)
             cell.addElement(P(text=text))
         else:
             cell = TableCell()
