@@ -155,20 +155,31 @@ Fit maximise(const Matrix& weights, const Vector& a, const Vector& b, const Poly
   Fit fit;
   fit.convergence.max_iterations = o.max_iterations;
   fit.convergence.tolerance = o.tolerance;
+  LogLikelihood last;
+  bool last_is_current = false;  // `last` was evaluated at the final rho (or within tolerance of it)
   for (int it = 1; it <= o.max_iterations; ++it) {
     const LogLikelihood l = loglik(rho);
+    last = l;
     fit.convergence.iterations = it;
     if (l.d1 == 0.0) {
       fit.convergence.final_change = 0.0;
       fit.convergence.converged = true;
+      last_is_current = true;
       break;
     }
     if (l.d1 > 0.0) lo = rho;
     else hi = rho;
     double next = 0.5 * (lo + hi);
     if (l.d2 < 0.0 && std::isfinite(l.d2)) {
-      const double newton = rho - l.d1 / l.d2;
-      if (newton > lo && newton < hi) next = newton;
+      const double step = -l.d1 / l.d2;
+      if (std::abs(step) < o.tolerance) {  // converged; the step may be below rounding of rho
+        fit.convergence.final_change = std::abs(step);
+        fit.convergence.converged = true;
+        rho = std::clamp(rho + step, -bound, bound);
+        last_is_current = true;
+        break;
+      }
+      if (rho + step > lo && rho + step < hi) next = rho + step;
     }
     const double change = std::abs(next - rho);
     rho = next;
@@ -178,7 +189,7 @@ Fit maximise(const Matrix& weights, const Vector& a, const Vector& b, const Poly
       break;
     }
   }
-  const LogLikelihood l = loglik(rho);
+  const LogLikelihood l = last_is_current ? last : loglik(rho);
   // A maximum on the edge: the score still points outward there, or (empty cells that a perfect
   // correlation fits exactly leave the likelihood flat near the edge) the edge is as likely.
   bool edge = std::abs(rho) >= bound - 1e-6 && l.d1 * rho > 0.0;
