@@ -22,9 +22,9 @@ constexpr double kInf = std::numeric_limits<double>::infinity();
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
 void check_options(const PolychoricOptions& o) {
-  if (o.max_categories < 2)
+  if (o.max_categories < 2 || o.max_categories > 100)
     throw Error(ErrorCode::invalid_argument,
-                fmt::format("max_categories must be at least 2 (it is {})", o.max_categories));
+                fmt::format("max_categories must be between 2 and 100 (it is {})", o.max_categories));
   if (!(o.max_abs_correlation > 0.0 && o.max_abs_correlation < 1.0))
     throw Error(ErrorCode::invalid_argument,
                 fmt::format("max_abs_correlation must lie strictly between 0 and 1 (it is {})", o.max_abs_correlation));

@@ -494,7 +494,7 @@ TEST(PolychoricErrors, MessagesNameTheProblem) {
   EXPECT_NE(message_of([&] { correlation(single, o); }).find("item 'q2' is constant"), std::string::npos);
   CorrelationOptions bad = o;
   bad.polychoric.max_categories = 1;
-  EXPECT_NE(message_of([&] { correlation(x, bad); }).find("max_categories must be at least 2"), std::string::npos);
+  EXPECT_NE(message_of([&] { correlation(x, bad); }).find("max_categories must be between 2 and 100 (it is 1)"), std::string::npos);
   bad = o;
   bad.polychoric.max_abs_correlation = 1.0;
   EXPECT_NE(message_of([&] { correlation(x, bad); }).find("max_abs_correlation must lie strictly between 0 and 1"),

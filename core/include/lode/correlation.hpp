@@ -45,9 +45,11 @@ enum class ZeroCellPolicy { none, at_bound, always };
 
 // Options of the ordinal path (polychoric.hpp): category checks, zero cells, the 1-D maximisation.
 struct PolychoricOptions {
-  int max_categories = 10;  // an item with more distinct codes is refused (use Pearson for it)
+  int max_categories = 10;  // an item with more distinct codes is refused (use Pearson for it); 2..100
   ZeroCellPolicy zero_cells = ZeroCellPolicy::at_bound;
-  double zero_cell_add = 0.5;            // added to each empty cell, for the estimate of rho only
+  // Added to each empty cell for the estimate of rho and its standard error only; the thresholds
+  // stay the normal quantiles of the observed margins.
+  double zero_cell_add = 0.5;
   double max_abs_correlation = 0.9999;   // estimates are kept inside [-bound, bound]
   double tolerance = 1e-10;              // on the change of rho between Newton steps
   int max_iterations = 100;              // per pair
