@@ -172,28 +172,6 @@ double gamma_q(double a, double x) {
   return std::min(1.0, gamma_q_fraction(a, x));
 }
 
-double normal_cdf(double x) {
-  if (std::isnan(x)) return kNaN;
-  return 0.5 * std::erfc(-x / std::numbers::sqrt2);
-}
-
-double normal_quantile(double p) {
-  if (!(p > 0.0 && p < 1.0))
-    throw Error(ErrorCode::invalid_argument, fmt::format("a normal quantile needs a probability in (0, 1); got {}", p));
-  if (p > 0.5) return -normal_quantile(1.0 - p);
-  // Start: Abramowitz & Stegun (1964) 26.2.23 (error < 4.5e-4); then Halley steps on the exact cdf.
-  const double t = std::sqrt(-2.0 * std::log(p));
-  double x = -(t - (2.515517 + 0.802853 * t + 0.010328 * t * t) / (1.0 + 1.432788 * t + 0.189269 * t * t + 0.001308 * t * t * t));
-  for (int i = 0; i < 6; ++i) {
-    const double e = normal_cdf(x) - p;
-    const double u = e * std::sqrt(2.0 * std::numbers::pi) * std::exp(0.5 * x * x);
-    const double step = u / (1.0 + 0.5 * x * u);
-    x -= step;
-    if (std::abs(step) <= 1e-16 * std::max(1.0, std::abs(x))) break;
-  }
-  return x;
-}
-
 double chi_square_cdf(double x, double df) {
   check_df(df);
   if (std::isnan(x)) return kNaN;

@@ -117,7 +117,6 @@ TEST(Distributions, RejectsArgumentsOutsideTheirDomain) {
     }
     return std::string("no error");
   };
-  EXPECT_EQ(message([] { return normal_quantile(1.0); }), "a normal quantile needs a probability in (0, 1); got 1");
   EXPECT_EQ(message([] { return gamma_p(-1.0, 1.0); }), "the incomplete gamma function needs a > 0; got -1");
   EXPECT_EQ(message([] { return noncentral_chi_square_cdf(1.0, 2.0, -0.5); }),
             "the noncentrality parameter must be finite and non-negative; got -0.5");

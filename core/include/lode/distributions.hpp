@@ -2,6 +2,8 @@
 // chi-square and noncentral chi-square. Pure functions, thread-safe (no lgamma/signgam).
 #pragma once
 
+#include "lode/bivariate_normal.hpp"  // normal_cdf and normal_quantile live there
+
 namespace lode {
 
 // log Gamma(x) for x > 0.
@@ -10,9 +12,6 @@ double log_gamma(double x);
 // Regularised lower / upper incomplete gamma P(a, x), Q(a, x) = 1 - P(a, x), a > 0, x >= 0.
 double gamma_p(double a, double x);
 double gamma_q(double a, double x);
-
-double normal_cdf(double x);
-double normal_quantile(double p);  // p in (0, 1)
 
 double chi_square_cdf(double x, double df);
 double chi_square_sf(double x, double df);  // upper tail, accurate when small
