@@ -1,4 +1,4 @@
-// Distribution functions for tests and intervals: log-gamma, regularised incomplete gamma, normal,
+// Distribution functions for tests and intervals: log-gamma, regularised incomplete gamma,
 // chi-square and noncentral chi-square. Pure functions, thread-safe (no lgamma/signgam).
 #pragma once
 
