@@ -4,6 +4,7 @@
 //
 //   lode_addin_gen idl <out.idl>
 //   lode_addin_gen cpp <out.inc>
+//   lode_addin_gen md <out.md>     (the README's table of cell functions)
 #include "table.hpp"
 
 #include <fstream>
@@ -53,11 +54,27 @@ int write_cpp(std::ostream& out) {
   return 0;
 }
 
+// The README's table of cell functions (README.md embeds it between markers; a test compares).
+int write_markdown(std::ostream& out) {
+  out << "| function | arguments | result | errors |\n| --- | --- | --- | --- |\n";
+  for (const auto& f : function_table()) {
+    out << "| `" << f.display << "` | ";
+    bool first = true;
+    for (const auto& a : f.args) {
+      out << (first ? "" : "; ") << (a.kind == ArgKind::value ? "[" : "") << "`" << a.name << "`"
+          << (a.kind == ArgKind::value ? "]" : "");
+      first = false;
+    }
+    out << " | " << f.result << " | " << f.errors << " |\n";
+  }
+  return 0;
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
   if (argc != 3) {
-    std::cerr << "usage: lode_addin_gen idl|cpp <output file>\n";
+    std::cerr << "usage: lode_addin_gen idl|cpp|md <output file>\n";
     return 2;
   }
   std::ofstream out(argv[2]);
@@ -66,7 +83,7 @@ int main(int argc, char** argv) {
     return 1;
   }
   const std::string what = argv[1];
-  int rc = what == "idl" ? write_idl(out) : what == "cpp" ? write_cpp(out) : 2;
+  int rc = what == "idl" ? write_idl(out) : what == "cpp" ? write_cpp(out) : what == "md" ? write_markdown(out) : 2;
   out.close();
   if (!out) return 1;
   return rc;

@@ -15,7 +15,8 @@ constexpr std::string_view kDataHelp =
     "used as item names), or a square correlation matrix with ones on the diagonal";
 
 const std::vector<FunctionSpec> kTable = {
-    {"version", "LODE.VERSION", "The version of Lode and of its C library, as text.", {}, fn_version},
+    {"version", "LODE.VERSION", "The version of Lode and of its C library, as text.", {},
+     "text, e.g. `Lode 0.1.0 (C ABI 1.0)`", "none", fn_version},
     {"corr",
      "LODE.CORR",
      "The correlation matrix of the items (items x items; an array formula).",
@@ -23,7 +24,7 @@ const std::vector<FunctionSpec> kTable = {
       {"kind", ArgKind::value, "\"pearson\" (default) or \"spearman\""},
       {"missing", ArgKind::value, "\"pairwise\" (default: each correlation uses the rows answering both items) or "
                                   "\"listwise\" (only rows answering every item)"}},
-     fn_corr},
+     "items x items", "none beyond Err:502", fn_corr},
     {"eigen",
      "LODE.EIGEN",
      "The eigenvalues of the correlation matrix, largest first (one column).",
@@ -31,7 +32,7 @@ const std::vector<FunctionSpec> kTable = {
       {"reduced", ArgKind::value,
        "TRUE: eigenvalues of the reduced matrix (squared multiple correlations on the diagonal); FALSE or "
        "left out: of the full correlation matrix"}},
-     fn_eigen},
+     "items x 1", "#NUM!: `reduced` on a matrix that is not positive definite", fn_eigen},
 };
 
 bool iequal(std::string_view a, std::string_view b) {

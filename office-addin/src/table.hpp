@@ -36,6 +36,8 @@ struct FunctionSpec {
   std::string_view display;      // the name users type, e.g. LODE.CORR
   std::string_view description;  // one sentence for the Function Wizard
   std::vector<ArgSpec> args;
+  std::string_view result;  // what the cells hold (README table)
+  std::string_view errors;  // the error values it can show beyond Err:502 for bad input (README table)
   ComputeFn compute;
 };
 
