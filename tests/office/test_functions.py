@@ -114,3 +114,32 @@ def test_correlation_matrix_input_is_recognised(book):
     cells = book.numbers(f"=LODE.EIGEN({rng})", p, 1)[:, 0]
     # numpy.linalg.eigvalsh on Harman (1976)'s 24 psychological tests (R datasets::Harman74.cor)
     assert np.max(np.abs(cells - np.sort(np.linalg.eigvalsh(r))[::-1])) < 1e-10
+
+
+def test_formulas_survive_save_and_reload(office, book, attitude, tmp_path):
+    """A saved .ods stores the functions by their programmatic names; reloading recomputes them."""
+    import uno
+    from com.sun.star.beans import PropertyValue
+
+    names, x = attitude
+    rng = book.put(x, names)
+    p = x.shape[1]
+    before = book.numbers(f"=LODE.CORR({rng})", p, p)
+    url = uno.systemPathToFileUrl(str(tmp_path / "saved.ods"))
+    with office.watchdog(60):
+        book.doc.storeToURL(url, ())
+        hidden = PropertyValue()
+        hidden.Name, hidden.Value = "Hidden", True
+        doc = office.desktop.loadComponentFromURL(url, "_blank", 0, (hidden,))
+    try:
+        with office.watchdog(60):
+            doc.calculateAll()
+            out = doc.Sheets.getByName("Out")
+            top = book.next_row - p - 1
+            cell = out.getCellByPosition(0, top)
+            assert "LODE.CORR" in cell.getFormula().upper()
+            after = np.array([[out.getCellByPosition(j, top + i).getValue() for j in range(p)] for i in range(p)])
+        assert np.max(np.abs(after - before)) == 0.0
+    finally:
+        with office.watchdog(60):
+            doc.close(True)
