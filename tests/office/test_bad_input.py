@@ -127,8 +127,12 @@ def test_a_million_rows(office, book, functions, ranges):
             big.getCellRangeByPosition(col, 0, col, rows - 1).fillSeries(TO_BOTTOM, LINEAR, FILL_DATE_DAY, step, 1e12)
     assert big.getCellByPosition(0, rows - 1).getValue() == rows
     timings = {}
+    # LibreOffice spends ~10 s building the 3 million values for each such formula before the
+    # add-in sees them, and every function reads its ranges through the same code: a sample of
+    # functions with differing argument lists keeps the suite's run time reasonable.
+    sample = ["LODE.CORR", "LODE.EIGEN", "LODE.FIT", "LODE.ROTATE", "LODE.CONGRUENCE"]
     for name, args in sorted(functions.items()):
-        if not args:
+        if not args or name not in sample:
             continue
         t0 = time.monotonic()
         with office.watchdog(LONG_WAIT):
