@@ -16,8 +16,12 @@ namespace {
 struct Bytes {
   const uint8_t* p;
   size_t n;
+  uint32_t filler = 12345;  // once the input runs out, a fixed pseudo-random sequence fills in
   uint8_t byte() {
-    if (n == 0) return 0;
+    if (n == 0) {
+      filler = filler * 1103515245u + 12345u;
+      return static_cast<uint8_t>(filler >> 16);
+    }
     --n;
     return *p++;
   }
@@ -83,21 +87,23 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
 
   lode_data* d = nullptr;
   int status;
-  switch (mode % 3) {
-    case 0: status = lode_data_from_raw(values.data(), rows, cols, row_stride, col_stride, &d); break;
-    case 1: {
-      // A symmetric matrix with a unit diagonal, built from the values, so it passes the checks often.
-      const int64_t p = cols;
-      std::vector<double> r(static_cast<size_t>(p * p + 1));
-      for (int64_t i = 0; i < p; ++i)
-        for (int64_t j = 0; j <= i; ++j) {
-          const double v = i == j ? 1.0 : (likert ? (coded(in.byte()) - 3.0) / 2.5 : in.real());
-          r[static_cast<size_t>(i * p + j)] = r[static_cast<size_t>(j * p + i)] = v;
-        }
-      status = lode_data_from_correlation(r.data(), p, p, 1, rows, &d);
-      break;
-    }
-    default: status = lode_data_from_covariance(values.data(), cols, row_stride, col_stride, rows, &d); break;
+  if (mode % 3 == 0) {
+    status = lode_data_from_raw(values.data(), rows, cols, row_stride, col_stride, &d);
+  } else {
+    // A square matrix (correlation or covariance) of `cols` items in the same layout, symmetric with
+    // a unit (correlation) or coded (covariance) diagonal, so it often passes the checks.
+    const int64_t p = cols;
+    const int64_t rs = col_major ? 1 : p + pad, cs = col_major ? p + pad : 1;
+    std::vector<double> r(static_cast<size_t>((p + pad) * (p + pad) + 1), std::numeric_limits<double>::quiet_NaN());
+    for (int64_t i = 0; i < p; ++i)
+      for (int64_t j = 0; j <= i; ++j) {
+        double v;
+        if (i == j) v = mode % 3 == 1 ? 1.0 : (likert ? coded(in.byte()) : in.real());
+        else v = likert ? (coded(in.byte()) - 3.0) / 2.5 : in.real();
+        r[static_cast<size_t>(i * rs + j * cs)] = r[static_cast<size_t>(j * rs + i * cs)] = v;
+      }
+    status = mode % 3 == 1 ? lode_data_from_correlation(r.data(), p, rs, cs, rows, &d)
+                           : lode_data_from_covariance(r.data(), p, rs, cs, rows, &d);
   }
   if (status != LODE_OK) return 0;
 
