@@ -111,6 +111,15 @@ LODE_API const char* lode_status_name(int status);
 LODE_API const char* lode_last_error(void);
 
 /* ------------------------------------------------------------------------------------------- */
+/* Progress and cancellation of long calls                                                       */
+/* ------------------------------------------------------------------------------------------- */
+
+/* Called from the thread that made the call, about every 50 ms and once at the end, with the units
+ * of work done and their total. Return 0 to go on, nonzero to cancel: the call then returns
+ * LODE_E_CANCELLED and creates nothing. Must not call back into the same handle. */
+typedef int (*lode_progress_fn)(void* user, int64_t done, int64_t total);
+
+/* ------------------------------------------------------------------------------------------- */
 /* Data: raw responses, or a correlation or covariance matrix computed elsewhere                */
 /* ------------------------------------------------------------------------------------------- */
 
@@ -148,8 +157,18 @@ LODE_API void lode_data_free(lode_data* data);
 /* Correlations                                                                                  */
 /* ------------------------------------------------------------------------------------------- */
 
-enum lode_correlation_kind { LODE_PEARSON = 0, LODE_SPEARMAN = 1 };
+enum lode_correlation_kind {
+  LODE_PEARSON = 0,
+  LODE_SPEARMAN = 1,
+  LODE_POLYCHORIC = 2 /* ordinal items (Olsson 1979, two-step); tetrachoric for binary items */
+};
 enum lode_missing { LODE_PAIRWISE = 0, LODE_LISTWISE = 1 };
+/* Polychoric: what to do with empty cells of a pair's table (adding zero_cell_add to them). */
+enum lode_zero_cells {
+  LODE_ZERO_CELLS_NONE = 0,
+  LODE_ZERO_CELLS_AT_BOUND = 1, /* only where the uncorrected estimate runs to |rho| = 1 (default) */
+  LODE_ZERO_CELLS_ALWAYS = 2
+};
 
 typedef struct lode_correlation_options {
   size_t struct_size;            /* set by lode_correlation_options_init */
@@ -159,6 +178,12 @@ typedef struct lode_correlation_options {
                                     nearest correlation matrix (Higham 2002); default 0 (flag it) */
   double min_eigenvalue;         /* the smallest eigenvalue smoothing allows; default 1e-6 */
   int64_t min_pair_observations; /* fewer observations behind any correlation is an error; default 3 */
+  int threads;                   /* polychoric pairs in parallel; 0 (default) = all cores */
+  int max_categories;            /* polychoric: an item with more distinct codes is refused; default 10 */
+  int zero_cells;                /* polychoric: enum lode_zero_cells; default LODE_ZERO_CELLS_AT_BOUND */
+  double zero_cell_add;          /* polychoric: added to empty cells; default 0.5 */
+  lode_progress_fn progress;     /* polychoric: pairs done / all pairs; optional */
+  void* progress_user;           /* passed to progress */
 } lode_correlation_options;
 
 /* Fills `opts` with the defaults; pass sizeof(*opts). */
@@ -181,6 +206,10 @@ enum lode_correlation_key {
   LODE_CORRELATION_REDUCED_EIGENVALUES = 103, /* eigenvalues with SMCs on the diagonal (items x 1);
                                                  LODE_E_NOT_POSITIVE_DEFINITE when SMCs are undefined */
   LODE_CORRELATION_SMC = 104,              /* squared multiple correlations (items x 1); same error */
+  LODE_CORRELATION_STANDARD_ERRORS = 105,  /* polychoric only: standard error of each estimate (before
+                                              smoothing); 0 on the diagonal, NaN at the bound */
+  LODE_CORRELATION_THRESHOLDS = 106,       /* polychoric only: items x (most categories - 1), each item's
+                                              thresholds from the left, NaN-padded */
   /* numbers: lode_correlation_value */
   LODE_CORRELATION_ITEMS = 120,            /* number of items */
   LODE_CORRELATION_N_OBS = 121,            /* sample size for tests: listwise, rows used; pairwise, the
@@ -199,6 +228,9 @@ enum lode_correlation_key {
   LODE_CORRELATION_SMOOTHING_ITERATIONS = 133,
   LODE_CORRELATION_KIND = 134,             /* enum lode_correlation_kind */
   LODE_CORRELATION_MISSING = 135,          /* enum lode_missing */
+  LODE_CORRELATION_PAIRS_NOT_CONVERGED = 136, /* polychoric: pairs whose estimate did not converge */
+  LODE_CORRELATION_PAIRS_AT_BOUND = 137,      /* polychoric: pairs estimated at |rho| = bound */
+  LODE_CORRELATION_PAIRS_ZERO_CELL_CORRECTED = 138, /* polychoric: pairs with the zero-cell addition */
   /* text: lode_correlation_text */
   LODE_CORRELATION_NOTES = 150             /* plain-language remarks, one per line ("" when none) */
 };

@@ -2,8 +2,12 @@
 #include "boundary.hpp"
 #include "handles.hpp"
 
+#include "lode/polychoric.hpp"
+
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <limits>
 
 using namespace lode;
 using namespace lode::capi;
@@ -127,6 +131,12 @@ LODE_API int lode_correlation_options_init(lode_correlation_options* opts, size_
     d.smooth = 0;
     d.min_eigenvalue = 1e-6;
     d.min_pair_observations = 3;
+    d.threads = 0;
+    d.max_categories = 10;
+    d.zero_cells = LODE_ZERO_CELLS_AT_BOUND;
+    d.zero_cell_add = 0.5;
+    d.progress = nullptr;
+    d.progress_user = nullptr;
     init_options(opts, struct_size, d, "lode_correlation_options");
   });
 }
@@ -145,11 +155,18 @@ LODE_API int lode_correlate(const lode_data* data, const lode_correlation_option
       LODE_OPTION_FIELD(o, opts, smooth);
       LODE_OPTION_FIELD(o, opts, min_eigenvalue);
       LODE_OPTION_FIELD(o, opts, min_pair_observations);
+      LODE_OPTION_FIELD(o, opts, threads);
+      LODE_OPTION_FIELD(o, opts, max_categories);
+      LODE_OPTION_FIELD(o, opts, zero_cells);
+      LODE_OPTION_FIELD(o, opts, zero_cell_add);
+      LODE_OPTION_FIELD(o, opts, progress);
+      LODE_OPTION_FIELD(o, opts, progress_user);
     }
     CorrelationOptions co;
     switch (o.kind) {
       case LODE_PEARSON: co.kind = CorrelationKind::pearson; break;
       case LODE_SPEARMAN: co.kind = CorrelationKind::spearman; break;
+      case LODE_POLYCHORIC: co.kind = CorrelationKind::polychoric; break;
       default: fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown correlation kind {}", o.kind));
     }
     switch (o.missing) {
@@ -166,16 +183,54 @@ LODE_API int lode_correlate(const lode_data* data, const lode_correlation_option
       fail(LODE_E_INVALID_ARGUMENT,
            fmt::format("min_pair_observations must be at least 2; it is {}", o.min_pair_observations));
     co.min_pair_observations = static_cast<Index>(o.min_pair_observations);
+    if (o.threads < 0) fail(LODE_E_INVALID_ARGUMENT, fmt::format("threads must be 0 (all cores) or more; it is {}", o.threads));
+    co.threads = o.threads;
+    if (o.max_categories < 2 || o.max_categories > 100)
+      fail(LODE_E_INVALID_ARGUMENT, fmt::format("max_categories must be between 2 and 100; it is {}", o.max_categories));
+    co.polychoric.max_categories = o.max_categories;
+    switch (o.zero_cells) {
+      case LODE_ZERO_CELLS_NONE: co.polychoric.zero_cells = ZeroCellPolicy::none; break;
+      case LODE_ZERO_CELLS_AT_BOUND: co.polychoric.zero_cells = ZeroCellPolicy::at_bound; break;
+      case LODE_ZERO_CELLS_ALWAYS: co.polychoric.zero_cells = ZeroCellPolicy::always; break;
+      default: fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown zero-cell policy {}", o.zero_cells));
+    }
+    if (!(o.zero_cell_add > 0.0 && o.zero_cell_add <= 1.0))
+      fail(LODE_E_INVALID_ARGUMENT, fmt::format("zero_cell_add must be above 0 and at most 1; it is {}", o.zero_cell_add));
+    co.polychoric.zero_cell_add = o.zero_cell_add;
+    if (o.progress) {
+      const lode_progress_fn fn = o.progress;
+      void* user = o.progress_user;
+      co.polychoric.progress = [fn, user](std::int64_t done, std::int64_t total) { return fn(user, done, total) == 0; };
+    }
     const auto& content = data->content;
     co.item_names = content->item_names;
 
     auto c = std::make_unique<lode_correlation>();
     c->data = content;
     switch (content->source) {
-      case DataSource::raw: c->result = correlation(content->values, co); break;
+      case DataSource::raw:
+        if (co.kind == CorrelationKind::polychoric) {
+          PolychoricResult pr = polychoric_correlation(content->values, co);
+          c->result = std::move(pr.correlation);
+          c->polychoric = true;
+          c->standard_errors = std::move(pr.standard_errors);
+          Index most = 0;
+          for (const auto& t : pr.thresholds) most = std::max(most, t.size());
+          c->thresholds = Matrix::Constant(static_cast<Index>(pr.thresholds.size()), most,
+                                           std::numeric_limits<double>::quiet_NaN());
+          for (std::size_t j = 0; j < pr.thresholds.size(); ++j)
+            c->thresholds.row(static_cast<Index>(j)).head(pr.thresholds[j].size()) = pr.thresholds[j].transpose();
+          c->pairs_not_converged = pr.pairs_not_converged;
+          c->pairs_at_bound = pr.pairs_at_bound;
+          c->pairs_zero_cell_corrected = pr.pairs_zero_cell_corrected;
+        } else {
+          c->result = correlation(content->values, co);
+        }
+        break;
       case DataSource::correlation: c->result = correlation_from_matrix(content->values, content->n_obs, co); break;
       case DataSource::covariance: c->result = correlation_from_covariance(content->values, content->n_obs, co); break;
     }
+    co.polychoric.progress = {};  // the caller's callback and its user data are for this call only
     c->options = co;
     c->eigenvalues = eigenvalues_descending(c->result.matrix);
     try {
@@ -201,6 +256,13 @@ LODE_API int lode_correlation_matrix(const lode_correlation* corr, int key, doub
       case LODE_CORRELATION_MATRIX: write_matrix(r.matrix, out, capacity, rows, cols); break;
       case LODE_CORRELATION_PAIR_COUNTS: write_matrix(r.report.pair_counts.cast<double>(), out, capacity, rows, cols); break;
       case LODE_CORRELATION_EIGENVALUES: write_matrix(corr->eigenvalues, out, capacity, rows, cols); break;
+      case LODE_CORRELATION_STANDARD_ERRORS:
+      case LODE_CORRELATION_THRESHOLDS:
+        if (!corr->polychoric)
+          fail(LODE_E_INVALID_ARGUMENT, "standard errors and thresholds exist only for polychoric correlations of raw data");
+        write_matrix(key == LODE_CORRELATION_THRESHOLDS ? corr->thresholds : corr->standard_errors, out, capacity, rows,
+                     cols);
+        break;
       case LODE_CORRELATION_REDUCED_EIGENVALUES:
       case LODE_CORRELATION_SMC:
         if (corr->smc.size() == 0) fail(LODE_E_NOT_POSITIVE_DEFINITE, corr->smc_error);
@@ -234,7 +296,14 @@ LODE_API int lode_correlation_value(const lode_correlation* corr, int key, doubl
       case LODE_CORRELATION_SMOOTHING_RMS_CHANGE: v = s.rms_change; break;
       case LODE_CORRELATION_SMOOTHING_CONVERGED: v = s.convergence.converged ? 1.0 : 0.0; break;
       case LODE_CORRELATION_SMOOTHING_ITERATIONS: v = static_cast<double>(s.convergence.iterations); break;
-      case LODE_CORRELATION_KIND: v = r.kind == CorrelationKind::spearman ? LODE_SPEARMAN : LODE_PEARSON; break;
+      case LODE_CORRELATION_KIND:
+        v = r.kind == CorrelationKind::spearman     ? LODE_SPEARMAN
+            : r.kind == CorrelationKind::polychoric ? LODE_POLYCHORIC
+                                                    : LODE_PEARSON;
+        break;
+      case LODE_CORRELATION_PAIRS_NOT_CONVERGED: v = static_cast<double>(corr->pairs_not_converged); break;
+      case LODE_CORRELATION_PAIRS_AT_BOUND: v = static_cast<double>(corr->pairs_at_bound); break;
+      case LODE_CORRELATION_PAIRS_ZERO_CELL_CORRECTED: v = static_cast<double>(corr->pairs_zero_cell_corrected); break;
       case LODE_CORRELATION_MISSING: v = r.missing == MissingPolicy::listwise ? LODE_LISTWISE : LODE_PAIRWISE; break;
       default: fail(LODE_E_INVALID_ARGUMENT, key_text(key, "lode_correlation number (lode_correlation_value)"));
     }

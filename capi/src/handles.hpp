@@ -35,4 +35,8 @@ struct lode_correlation {
   lode::Vector smc;                  // empty when undefined (smc_error says why)
   lode::Vector reduced_eigenvalues;  // empty when undefined
   std::string smc_error;
+  bool polychoric = false;           // the next members are set for polychoric correlations of raw data
+  lode::Matrix standard_errors;
+  lode::Matrix thresholds;           // items x most thresholds, NaN-padded
+  lode::Index pairs_not_converged = 0, pairs_at_bound = 0, pairs_zero_cell_corrected = 0;
 };

@@ -435,6 +435,98 @@ static void test_correlation(void) {
   lode_correlation_free(NULL);
 }
 
+static int polychoric_progress_calls = 0;
+static int polychoric_progress(void* user, int64_t done, int64_t total) {
+  ++polychoric_progress_calls;
+  CHECK(done >= 0 && done <= total);
+  return user != NULL; /* a non-NULL user pointer asks to cancel */
+}
+
+static void test_polychoric(void) {
+  double x[N_ROWS * N_ITEMS], se[N_ITEMS * N_ITEMS], th[N_ITEMS * 4], v;
+  lode_data* d = NULL;
+  lode_correlation* c = NULL;
+  lode_correlation_options o;
+  int64_t rows, cols;
+  int i, j, dummy = 1;
+  make_data(x); /* five-point codes 1..5 (values outside are clipped below) */
+  for (i = 0; i < N_ROWS * N_ITEMS; ++i) x[i] = x[i] < 1 ? 1 : (x[i] > 5 ? 5 : x[i]);
+  OK(lode_data_from_raw(x, N_ROWS, N_ITEMS, N_ITEMS, 1, &d));
+  OK(lode_correlation_options_init(&o, sizeof o));
+  CHECK(o.threads == 0 && o.max_categories == 10 && o.zero_cells == LODE_ZERO_CELLS_AT_BOUND && o.zero_cell_add == 0.5);
+  o.kind = LODE_POLYCHORIC;
+  o.smooth = 1;
+  o.threads = 1;
+  o.progress = polychoric_progress;
+  OK(lode_correlate(d, &o, &c));
+  CHECK(polychoric_progress_calls > 0);
+  OK(lode_correlation_value(c, LODE_CORRELATION_KIND, &v));
+  CHECK(v == LODE_POLYCHORIC);
+  OK(lode_correlation_matrix(c, LODE_CORRELATION_STANDARD_ERRORS, se, N_ITEMS * N_ITEMS, &rows, &cols));
+  CHECK(rows == N_ITEMS && cols == N_ITEMS && se[0] == 0.0 && se[1] > 0.0 && se[1] < 0.5);
+  OK(lode_correlation_matrix(c, LODE_CORRELATION_THRESHOLDS, NULL, 0, &rows, &cols));
+  CHECK(rows == N_ITEMS && cols >= 1 && cols <= 4);
+  OK(lode_correlation_matrix(c, LODE_CORRELATION_THRESHOLDS, th, (size_t)(rows * cols), NULL, NULL));
+  for (i = 0; i < rows; ++i)
+    for (j = 1; j < cols; ++j)
+      if (th[i * cols + j] == th[i * cols + j]) CHECK(th[i * cols + j] > th[i * cols + j - 1]); /* ascending */
+  OK(lode_correlation_value(c, LODE_CORRELATION_PAIRS_NOT_CONVERGED, &v));
+  CHECK(v == 0.0);
+  OK(lode_correlation_value(c, LODE_CORRELATION_PAIRS_AT_BOUND, &v));
+  OK(lode_correlation_value(c, LODE_CORRELATION_PAIRS_ZERO_CELL_CORRECTED, &v));
+  lode_correlation_free(c);
+  c = NULL;
+
+  /* standard errors exist only for polychoric correlations */
+  OK(lode_correlate(d, NULL, &c));
+  EXPECT(lode_correlation_matrix(c, LODE_CORRELATION_STANDARD_ERRORS, se, 36, NULL, NULL), LODE_E_INVALID_ARGUMENT,
+         "only for polychoric");
+  OK(lode_correlation_value(c, LODE_CORRELATION_PAIRS_AT_BOUND, &v));
+  CHECK(v == 0.0);
+  lode_correlation_free(c);
+  c = NULL;
+
+  /* cancelled through the callback: 60 five-point items of 2000 rows take far longer than the 50 ms
+   * after which progress is first reported */
+  {
+    enum { BIG_N = 2000, BIG_P = 60 };
+    double* big = (double*)malloc(sizeof(double) * BIG_N * BIG_P);
+    lode_data* db = NULL;
+    CHECK(big != NULL);
+    for (i = 0; i < BIG_N; ++i)
+      for (j = 0; j < BIG_P; ++j) big[i * BIG_P + j] = (double)(1 + (int)fabs(floor(2.5 + 2.0 * sin(0.7 * i + 0.3 * j * j) + sin(1.3 * i * (j + 1)))) % 5);
+    OK(lode_data_from_raw(big, BIG_N, BIG_P, BIG_P, 1, &db));
+    free(big);
+    o.progress_user = &dummy;
+    EXPECT(lode_correlate(db, &o, &c), LODE_E_CANCELLED, "cancel");
+    CHECK(c == NULL);
+    lode_data_free(db);
+  }
+  o.progress_user = NULL;
+  o.threads = -1;
+  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "threads");
+  o.threads = 1;
+  o.max_categories = 1;
+  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "max_categories");
+  o.max_categories = 3;
+  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "column 1");
+  o.max_categories = 10;
+  o.zero_cells = 5;
+  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "zero-cell policy 5");
+  o.zero_cells = LODE_ZERO_CELLS_ALWAYS;
+  o.zero_cell_add = 0.0;
+  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "zero_cell_add");
+  CHECK(c == NULL);
+  lode_data_free(d);
+  /* non-integer codes are refused, naming the item */
+  x[4 * N_ITEMS + 3] = 2.5;
+  OK(lode_data_from_raw(x, N_ROWS, N_ITEMS, N_ITEMS, 1, &d));
+  OK(lode_correlation_options_init(&o, sizeof o));
+  o.kind = LODE_POLYCHORIC;
+  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "column 4");
+  lode_data_free(d);
+}
+
 static void test_last_error_is_cleared(void) {
   lode_data* d = NULL;
   EXPECT(lode_data_from_raw(NULL, 1, 1, 1, 1, &d), LODE_E_INVALID_ARGUMENT, "NULL");
@@ -452,6 +544,7 @@ int main(void) {
   test_data();
   test_matrix_input();
   test_correlation();
+  test_polychoric();
   test_last_error_is_cleared();
   printf("%d checks, %d failures\n", checks, failures);
   return failures == 0 ? 0 : 1;

@@ -107,3 +107,33 @@ def test_errors_carry_the_library_message():
         lode.correlation(np.ones(5))
     with pytest.raises(lode.LodeError, match="empty"):
         lode.correlation(np.ones((0, 4)))
+
+
+def test_polychoric_matches_polycor():
+    rng = np.random.default_rng(21)
+    z = rng.multivariate_normal(np.zeros(3), [[1, 0.5, 0.3], [0.5, 1, 0.4], [0.3, 0.4, 1]], size=800)
+    cuts = [-1.0, -0.2, 0.5, 1.3]
+    x = np.digitize(z, cuts).astype(float) + 1  # five categories
+    r = lode.correlation(x, method="polychoric", threads=1)
+    # Reference: r-cran-polycor's polychor (two-step estimate, ML = FALSE, with its standard error).
+    ref = run_r("""
+        library(polycor)
+        e <- matrix(0, 3, 3); s <- matrix(0, 3, 3)
+        for (i in 1:3) for (j in 1:3) if (i != j) {
+          p <- polychor(X[, i], X[, j], ML = FALSE, std.err = TRUE)
+          e[i, j] <- p$rho; s[i, j] <- sqrt(p$var[1, 1])
+        }
+        emit("rho", e); emit("se", s)
+    """, X=x)
+    off = ~np.eye(3, dtype=bool)
+    assert np.max(np.abs(r.matrix[off] - ref["rho"][off])) < 1e-4
+    assert np.max(np.abs(r.standard_errors[off] - ref["se"][off])) < 1e-3
+    # Thresholds are the normal quantiles of the cumulative margins (scipy.stats.norm.ppf).
+    for j in range(3):
+        cum = np.cumsum(np.bincount(x[:, j].astype(int))[1:])[:-1] / len(x)
+        assert np.max(np.abs(r.thresholds[j] - scipy.stats.norm.ppf(cum))) < 1e-10
+    assert r.polychoric["not_converged"] == 0
+    with pytest.raises(lode.LodeError, match="column 2"):
+        y = x.copy()
+        y[0, 1] = 2.5
+        lode.correlation(y, method="polychoric")

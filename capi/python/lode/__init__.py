@@ -21,15 +21,19 @@ _CORRELATION_PAIR_COUNTS = 101
 _CORRELATION_EIGENVALUES = 102
 _CORRELATION_REDUCED_EIGENVALUES = 103
 _CORRELATION_SMC = 104
+_CORRELATION_STANDARD_ERRORS = 105
+_CORRELATION_THRESHOLDS = 106
 _CORRELATION_VALUES = {
     "items": 120, "n_obs": 121, "rows_total": 122, "rows_complete": 123, "rows_used": 124,
     "min_pair_count": 125, "missing_fraction": 126, "positive_definite": 127, "smoothed": 128,
     "smallest_eigenvalue_before": 129, "smoothing_max_change": 130, "smoothing_rms_change": 131,
-    "smoothing_converged": 132, "smoothing_iterations": 133,
+    "smoothing_converged": 132, "smoothing_iterations": 133, "pairs_not_converged": 136, "pairs_at_bound": 137,
+    "pairs_zero_cell_corrected": 138,
 }
 _CORRELATION_NOTES = 150
 
-_KINDS = {"pearson": 0, "spearman": 1}
+_KINDS = {"pearson": 0, "spearman": 1, "polychoric": 2}
+_ZERO_CELLS = {"none": 0, "at_bound": 1, "always": 2}
 _MISSING = {"pairwise": 0, "listwise": 1}
 
 
@@ -95,7 +99,10 @@ class Correlation(_native.Handle):
     likewise), ``n_obs`` (the sample size for tests: listwise, rows used; pairwise, the smallest pair
     count), ``rows_total``, ``rows_complete``, ``rows_used``, ``min_pair_count``,
     ``missing_fraction``, ``positive_definite``, ``smoothed`` and ``smoothing`` (a dict describing
-    the Higham smoothing when it was applied), ``notes`` (plain-language remarks).
+    the Higham smoothing when it was applied), ``notes`` (plain-language remarks). For polychoric
+    correlations of raw data also ``standard_errors`` (items x items, before smoothing),
+    ``thresholds`` (a list with each item's thresholds) and ``polychoric`` (a dict counting pairs
+    ``not_converged``, ``at_bound`` and ``zero_cell_corrected``); otherwise these are None.
     ``numpy.asarray(result)`` gives the matrix.
     """
 
@@ -130,8 +137,23 @@ class Correlation(_native.Handle):
             "converged": bool(v["smoothing_converged"]),
             "iterations": int(v["smoothing_iterations"]),
         }
+        self.standard_errors = self.thresholds = self.polychoric = None
+        if v["pairs_not_converged"] or self._kind(pointer) == _KINDS["polychoric"]:
+            try:
+                self.standard_errors = _native.get_matrix(fm, pointer, _CORRELATION_STANDARD_ERRORS)
+                th = _native.get_matrix(fm, pointer, _CORRELATION_THRESHOLDS)
+                self.thresholds = [row[~np.isnan(row)] for row in th]
+                self.polychoric = {"not_converged": int(v["pairs_not_converged"]),
+                                   "at_bound": int(v["pairs_at_bound"]),
+                                   "zero_cell_corrected": int(v["pairs_zero_cell_corrected"])}
+            except LodeError:  # a polychoric kind given with a matrix: no per-pair estimates
+                pass
         text = _native.get_text(lib.lode_correlation_text, pointer, _CORRELATION_NOTES)
         self.notes = text.split("\n") if text else []
+
+    @staticmethod
+    def _kind(pointer):
+        return int(_native.get_value(lib.lode_correlation_value, pointer, 134))
 
     def __array__(self, dtype=None, copy=None):
         return self.matrix if dtype is None else self.matrix.astype(dtype)
@@ -140,27 +162,39 @@ class Correlation(_native.Handle):
         return f"<lode.Correlation {self.matrix.shape[0]} items, n_obs={self.n_obs}>"
 
 
-def _correlate(data, method, missing, smooth, min_eigenvalue, min_pair_observations):
+def _correlate(data, method, missing, smooth, min_eigenvalue=1e-6, min_pair_observations=3, threads=0,
+               max_categories=10, zero_cells="at_bound", zero_cell_add=0.5, progress=None):
     o = _native.options(_native.CorrelationOptions, "lode_correlation_options_init",
                         kind=_choice(method, _KINDS, "correlation method"),
                         missing=_choice(missing, _MISSING, "missing-value policy"),
                         smooth=1 if smooth else 0, min_eigenvalue=float(min_eigenvalue),
-                        min_pair_observations=int(min_pair_observations))
+                        min_pair_observations=int(min_pair_observations), threads=int(threads),
+                        max_categories=int(max_categories), zero_cells=_choice(zero_cells, _ZERO_CELLS, "zero-cell policy"),
+                        zero_cell_add=float(zero_cell_add))
+    callback = _native.make_progress(progress)
+    if callback is not None:
+        o.progress = callback
     ptr = ctypes.c_void_p()
     check(lib.lode_correlate(data.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    del callback
     return Correlation(ptr.value)
 
 
 def correlation(X=None, *, corr=None, cov=None, n_obs=None, method="pearson", missing="pairwise", smooth=False,
-                min_eigenvalue=1e-6, min_pair_observations=3, item_names=None):
+                min_eigenvalue=1e-6, min_pair_observations=3, item_names=None, threads=0, max_categories=10,
+                zero_cells="at_bound", zero_cell_add=0.5, progress=None):
     """The correlation matrix of raw data ``X`` (rows are respondents, columns items, NaN missing),
     or a given correlation matrix ``corr`` / covariance matrix ``cov`` with its ``n_obs``, checked.
 
-    ``method`` is "pearson" or "spearman"; ``missing`` is "pairwise" or "listwise"; ``smooth``
+    ``method`` is "pearson", "spearman" or "polychoric" (ordinal items, Olsson's two-step
+    estimate; tetrachoric for binary items; ``max_categories``, ``zero_cells`` "none", "at_bound"
+    or "always" with ``zero_cell_add``, ``threads``, and ``progress(done, total)`` returning False
+    to cancel); ``missing`` is "pairwise" or "listwise"; ``smooth``
     replaces a matrix that is not positive definite by the nearest correlation matrix with
     eigenvalues at least ``min_eigenvalue`` (Higham 2002) and reports the change. ``item_names``
     (or the columns of a data frame) name the items in error messages. Returns a
     :class:`Correlation`.
     """
     data = _make_data(X, corr, cov, n_obs, item_names)
-    return _correlate(data, method, missing, smooth, min_eigenvalue, min_pair_observations)
+    return _correlate(data, method, missing, smooth, min_eigenvalue, min_pair_observations, threads, max_categories,
+                      zero_cells, zero_cell_add, progress)
