@@ -24,3 +24,6 @@ add_dependencies(lode_calc lode_report_types)
 
 list(APPEND LODE_OXT_EXTRA ${GEN}/lode_report.rdb ${PKG}/Addons.xcu ${PKG}/ProtocolHandler.xcu ${PKG}/lode-16.png
      ${PKG}/lode-26.png)
+
+# For the office tests: the service's type library (their Python needs it) and the program folder.
+set_property(GLOBAL PROPERTY LODE_REPORT_RDB ${GEN}/lode_report.rdb)
