@@ -322,8 +322,10 @@ class Writer {
     css::awt::Point pos;
     anchor->getPropertyValue("Position") >>= pos;
     css::awt::Rectangle rect(pos.X, pos.Y, 16000, 9000);
-    charts->addNewByName(ustr(ch.name), rect, Sequence<css::table::CellRangeAddress>(&range, 1), true, true);
-    Reference<css::document::XEmbeddedObjectSupplier> emb(charts->getByName(ustr(ch.name)), UNO_QUERY_THROW);
+    // Chart names are unique in the whole document: the sheet's (unique) name makes them so.
+    const OUString chart_name = ustr(ch.name + " on " + utf8(named->getName()));
+    charts->addNewByName(chart_name, rect, Sequence<css::table::CellRangeAddress>(&range, 1), true, true);
+    Reference<css::document::XEmbeddedObjectSupplier> emb(charts->getByName(chart_name), UNO_QUERY_THROW);
     Reference<css::chart::XChartDocument> cd(emb->getEmbeddedObject(), UNO_QUERY_THROW);
     Reference<css::lang::XMultiServiceFactory> cf(cd, UNO_QUERY_THROW);
     cd->setDiagram(Reference<css::chart::XDiagram>(cf->createInstance("com.sun.star.chart.LineDiagram"), UNO_QUERY_THROW));

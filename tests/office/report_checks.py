@@ -274,11 +274,11 @@ def test_second_run_does_not_overwrite_the_first(office, survey, service):
 def test_cancelled_run_leaves_the_workbook_as_it_was(office, survey, service):
     before = snapshot(survey)
     styles = cell_styles(survey)
-    survey.setModified(False)
     with office.watchdog(300), pytest.raises(IllegalArgumentException) as e:
         service.run(survey, source(survey), props(CancelAfterSheets=2))
     assert "cancelled" in e.value.Message
-    assert snapshot(survey) == before and cell_styles(survey) == styles and not survey.isModified()
+    assert snapshot(survey) == before
+    assert cell_styles(survey) == styles
     assert service.lastOutcome().startswith("stopped")
 
 
