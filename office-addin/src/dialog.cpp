@@ -87,8 +87,8 @@ struct Choice {
 };
 const std::vector<Choice> kCorrelations = {
     {"Pearson", "pearson"}, {"Spearman (ranks)", "spearman"}, {"Polychoric (ordered answers)", "polychoric"}};
-const std::vector<Choice> kMissing = {{"Pairwise: each pair uses all who answered both", "pairwise"},
-                                      {"Listwise: only complete respondents", "listwise"}};
+const std::vector<Choice> kMissing = {{"Pairwise: all who answered both", "pairwise"},
+                                      {"Listwise: complete answers only", "listwise"}};
 const std::vector<Choice> kExtraction = {
     {"Minimum residual", "minres"}, {"Maximum likelihood", "ml"}, {"Principal axis", "paf"}};
 const std::vector<Choice> kRotation = {{"Oblimin (factors may correlate)", "oblimin"},
@@ -96,7 +96,7 @@ const std::vector<Choice> kRotation = {{"Oblimin (factors may correlate)", "obli
                                        {"Varimax (factors kept apart)", "varimax"},
                                        {"None", "none"}};
 const std::vector<Choice> kScores = {{"None", "none"}, {"Regression", "regression"}, {"Bartlett", "bartlett"}};
-const std::vector<Choice> kPlace = {{"Beside the data, if those columns are empty", "beside"},
+const std::vector<Choice> kPlace = {{"Beside the data, if empty", "beside"},
                                     {"On a sheet of their own", "sheet"}};
 
 std::vector<std::string> shown(const std::vector<Choice>& c) {
@@ -339,8 +339,8 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     DialogBuilder b(ctx_);
     auto d = b.dialog_props();
     d->setPropertyValue("Title", Any(A("Lode: find the factors behind a set of items")));
-    d->setPropertyValue("Width", Any(sal_Int32(330)));
-    d->setPropertyValue("Height", Any(sal_Int32(252)));
+    d->setPropertyValue("Width", Any(sal_Int32(392)));
+    d->setPropertyValue("Height", Any(sal_Int32(250)));
     d->setPropertyValue("Name", Any(A("LodeAnalysisDialog")));
     d->setPropertyValue("BackgroundColor", Any(sal_Int32(0xF4F7F1)));  // Lode's pale sage
 
@@ -354,48 +354,48 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     b.add("com.sun.star.awt.UnoControlListBoxModel", "Items", 6, 62, 150, 128,
           {{"MultiSelection", Any(true)}, {"StringItemList", Any(strings(items))},
            {"SelectedItems", Any(Sequence<sal_Int16>(preselected.data(), static_cast<sal_Int32>(preselected.size())))}});
-    b.add("com.sun.star.awt.UnoControlFixedTextModel", "Hint", 6, 196, 150, 30,
+    b.add("com.sun.star.awt.UnoControlFixedTextModel", "Hint", 6, 196, 150, 46,
           {{"MultiLine", Any(true)},
            {"Label", Any(A("The report goes into new sheets; nothing in the workbook is overwritten. "
-                           "Progress shows in the status bar; Tools > Lode: stop the analysis ends a run."))}});
+                           "Progress shows in the status bar; Lode > Stop the running analysis ends a run."))}});
 
     // Right: the analysis.
-    const sal_Int32 L = 164, F = 240, W = 84;
-    b.heading("AnalysisHeading", "The analysis", L, 4, 160);
-    b.label("CorrelationLabel", "Correlations", L, 18, 74);
+    const sal_Int32 L = 166, F = 250, W = 136;
+    b.heading("AnalysisHeading", "The analysis", L, 4, 220);
+    b.label("CorrelationLabel", "Correlations", L, 18, 82);
     b.dropdown("Correlation", kCorrelations, F, 18, W);
-    b.label("MissingLabel", "Missing answers", L, 33, 74);
+    b.label("MissingLabel", "Missing answers", L, 33, 82);
     b.dropdown("Missing", kMissing, F, 33, W);
-    b.label("FactorsLabel", "Number of factors", L, 48, 74);
+    b.label("FactorsLabel", "Number of factors", L, 48, 82);
     b.add("com.sun.star.awt.UnoControlRadioButtonModel", "FactorsSuggest", F, 48, W, 10,
           {{"Label", Any(A("Suggest from the data"))}, {"State", Any(sal_Int16(1))}});
     b.add("com.sun.star.awt.UnoControlRadioButtonModel", "FactorsFixed", F, 60, 40, 10,
           {{"Label", Any(A("Fixed:"))}, {"State", Any(sal_Int16(0))}});
     b.number("FactorCount", 3, 1, 100, 0, F + 42, 59, W - 42);
-    b.label("ExtractionLabel", "Extraction", L, 74, 74);
+    b.label("ExtractionLabel", "Extraction", L, 74, 82);
     b.dropdown("Extraction", kExtraction, F, 74, W);
-    b.label("RotationLabel", "Rotation", L, 89, 74);
+    b.label("RotationLabel", "Rotation", L, 89, 82);
     b.dropdown("Rotation", kRotation, F, 89, W);
-    b.label("RotationParameterLabel", "Rotation setting (0 = usual)", L, 104, 74);
+    b.label("RotationParameterLabel", "Rotation setting (0: usual)", L, 104, 82);
     b.number("RotationParameter", 0, -10, 10, 2, F, 104, W);
 
-    b.heading("ExtrasHeading", "Extras", L, 120, 160);
-    b.label("ScoresLabel", "Factor scores", L, 134, 74);
+    b.heading("ExtrasHeading", "Extras", L, 120, 220);
+    b.label("ScoresLabel", "Factor scores", L, 134, 82);
     b.dropdown("Scores", kScores, F, 134, W);
-    b.label("PlaceLabel", "Put the scores", L, 149, 74);
+    b.label("PlaceLabel", "Put the scores", L, 149, 82);
     b.dropdown("ScoresPlace", kPlace, F, 149, W);
-    b.add("com.sun.star.awt.UnoControlCheckBoxModel", "Bootstrap", L, 165, 74, 10,
+    b.add("com.sun.star.awt.UnoControlCheckBoxModel", "Bootstrap", L, 165, 82, 10,
           {{"Label", Any(A("Bootstrap intervals"))}, {"State", Any(sal_Int16(0))}});
     b.label("ReplicatesLabel", "Resamples", F, 164, 40);
     b.number("Replicates", 500, 50, 100000, 0, F + 42, 164, W - 42);
-    b.label("SalientLabel", "Strong loading from", L, 180, 74);
+    b.label("SalientLabel", "Strong loading from", L, 180, 82);
     b.number("Salient", 0.30, 0.05, 0.95, 2, F, 180, W);
-    b.label("SeedLabel", "Random seed", L, 195, 74);
+    b.label("SeedLabel", "Random seed", L, 195, 82);
     b.number("Seed", 20261201, 0, 9007199254740991.0, 0, F, 195, W);
 
-    b.add("com.sun.star.awt.UnoControlButtonModel", "Run", 214, 232, 54, 14,
+    b.add("com.sun.star.awt.UnoControlButtonModel", "Run", 276, 230, 54, 14,
           {{"Label", Any(A("Run"))}, {"PushButtonType", Any(sal_Int16(1))}, {"DefaultButton", Any(true)}});
-    b.add("com.sun.star.awt.UnoControlButtonModel", "Cancel", 270, 232, 54, 14,
+    b.add("com.sun.star.awt.UnoControlButtonModel", "Cancel", 332, 230, 54, 14,
           {{"Label", Any(A("Cancel"))}, {"PushButtonType", Any(sal_Int16(2))}});
 
     Reference<css::awt::XWindowPeer> parent(frame_->getContainerWindow(), UNO_QUERY);
