@@ -1,0 +1,248 @@
+/*
+ * lode.h - the stable C interface of Lode (liblode), exploratory factor analysis.
+ *
+ * One header, usable from C99 and C++. Every exported name starts with `lode_` (types, functions)
+ * or `LODE_` (macros, constants). The ABI major version is in the shared object's name
+ * (liblode.so.1); within a major version the ABI only grows. DEVELOPERS.md states the rules.
+ *
+ * Conventions, the same for every function:
+ *
+ * - Status. Every function that can fail returns an `int` status: LODE_OK (0) or one of the
+ *   LODE_E_* codes below. The text of the most recent failure on the calling thread, naming the
+ *   problem in the analyst's terms (which item, which value, how many rows survive), is returned
+ *   by lode_last_error(). No C++ exception ever leaves the library.
+ *
+ * - Handles. Results live in opaque handles (lode_data, lode_correlation, ...) created by one
+ *   function and released by its `_free` partner; `_free(NULL)` does nothing. A handle is
+ *   immutable once created, except where a function says it changes one; any number of threads may
+ *   read the same handle at once, and independent handles may be used from any threads. The
+ *   library keeps no global mutable state.
+ *
+ * - Options. Option structs begin with `size_t struct_size` and are filled with their defaults by
+ *   `lode_*_options_init(&opts, sizeof opts)` before the caller changes fields. The library reads
+ *   only the fields that lie within `struct_size`, so a program built against an older header (a
+ *   smaller struct) keeps working: the fields it does not know take their defaults. Passing NULL
+ *   for an options pointer means "all defaults".
+ *
+ * - Input matrices are given as (values, rows, cols, row_stride, col_stride), strides counted in
+ *   doubles: element (i, j) is values[i * row_stride + j * col_stride]. A row-major block (a
+ *   spreadsheet range) has row_stride = cols, col_stride = 1; a column-major one (Fortran, numpy
+ *   order='F', R) has row_stride = 1, col_stride = rows. Strides must be positive. The caller's
+ *   memory is read during the call only and never kept. NaN marks a missing value; infinities are
+ *   errors.
+ *
+ * - Outputs go into buffers the caller owns. Matrix getters write row-major and report the shape
+ *   through `rows`/`cols` (either may be NULL); with `out == NULL` and `capacity == 0` they only
+ *   report the shape (a size query). A buffer smaller than rows * cols gives
+ *   LODE_E_BUFFER_TOO_SMALL and writes nothing. Text getters write UTF-8 with a terminating NUL,
+ *   report the length without the NUL through `length`, and follow the same size-query rule
+ *   (capacity must be at least length + 1). Nothing the library returns must be freed by the
+ *   caller except through a lode_*_free function.
+ *
+ * - Results are read through keys: lode_correlation_matrix(c, LODE_CORRELATION_MATRIX, ...),
+ *   lode_correlation_value(c, LODE_CORRELATION_N_OBS, &x). Each kind of handle has its own key
+ *   range, so a key given to the wrong kind of handle is reported as such. New results are added
+ *   as new keys, never by changing an existing one.
+ */
+#ifndef LODE_H
+#define LODE_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+/* Export macro: the library is built with hidden visibility and exports exactly these. */
+#if defined(_WIN32) || defined(__CYGWIN__)
+#  if defined(LODE_BUILDING_LIBRARY)
+#    define LODE_API __declspec(dllexport)
+#  else
+#    define LODE_API __declspec(dllimport)
+#  endif
+#elif defined(__GNUC__) && __GNUC__ >= 4
+#  define LODE_API __attribute__((visibility("default")))
+#else
+#  define LODE_API
+#endif
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+/* ABI version of this header. The major version is the shared object's SONAME suffix
+ * (liblode.so.LODE_ABI_VERSION_MAJOR); the minor version counts compatible additions. */
+#define LODE_ABI_VERSION_MAJOR 1
+#define LODE_ABI_VERSION_MINOR 0
+
+/* ------------------------------------------------------------------------------------------- */
+/* Status codes, version, errors                                                                */
+/* ------------------------------------------------------------------------------------------- */
+
+enum lode_status {
+  LODE_OK = 0,
+  LODE_E_INVALID_ARGUMENT = 1,      /* NULL pointer, bad size or stride, unknown key, bad option */
+  LODE_E_INSUFFICIENT_DATA = 2,     /* too few rows or items, a constant item, an empty pair */
+  LODE_E_NOT_POSITIVE_DEFINITE = 3, /* a matrix that must be positive definite is not */
+  LODE_E_TOO_MANY_FACTORS = 4,      /* more factors than the data can identify */
+  LODE_E_NOT_CONVERGED = 5,         /* only where the caller asked for strictness */
+  LODE_E_CANCELLED = 6,             /* a progress callback returned nonzero */
+  LODE_E_INTERNAL = 7,              /* a bug in Lode; the message says where */
+  LODE_E_NOMEM = 8,                 /* memory ran out */
+  LODE_E_BUFFER_TOO_SMALL = 9,      /* an output buffer is smaller than the result */
+  LODE_E_UNSUPPORTED = 10           /* options from a newer header set fields this library lacks */
+};
+
+/* What lode_version() returns. The library owns it; it lives as long as the library is loaded.
+ * Fields may be appended in later minor versions (the caller never allocates this struct). */
+typedef struct lode_version_info {
+  int major, minor, patch; /* the library's release version */
+  int abi_major;           /* the ABI major version (SONAME) the library implements */
+  int abi_minor;           /* the ABI minor version: compatible additions */
+  const char* string;      /* the release version as text, e.g. "0.1.0" */
+} lode_version_info;
+
+/* The library's release and ABI versions. Compare abi_major with LODE_ABI_VERSION_MAJOR and
+ * abi_minor >= LODE_ABI_VERSION_MINOR to check that the loaded library offers this header. */
+LODE_API const lode_version_info* lode_version(void);
+
+/* The name of a status code, e.g. "invalid argument"; "unknown status" for an unknown code. */
+LODE_API const char* lode_status_name(int status);
+
+/* The message of the most recent call on this thread that returned a status: "" after LODE_OK,
+ * else the reason of the failure. The text stays valid until the next lode_ call on this thread. */
+LODE_API const char* lode_last_error(void);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Progress and cancellation of long calls                                                       */
+/* ------------------------------------------------------------------------------------------- */
+
+/* Called from the thread that made the call, about every 50 ms and once at the end, with the units
+ * of work done and their total. Return 0 to go on, nonzero to cancel: the call then returns
+ * LODE_E_CANCELLED and creates nothing. Must not call back into the same handle. */
+typedef int (*lode_progress_fn)(void* user, int64_t done, int64_t total);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Data: raw responses, or a correlation or covariance matrix computed elsewhere                */
+/* ------------------------------------------------------------------------------------------- */
+
+typedef struct lode_data lode_data;
+
+/* Raw data: rows are respondents, columns are items, NaN is a missing answer. The values are
+ * copied; checks on content (constant items, too few answers) happen when correlations are
+ * computed, where the options (listwise or pairwise) are known. Infinite values are rejected here,
+ * naming the item and the row. */
+LODE_API int lode_data_from_raw(const double* values, int64_t rows, int64_t cols, int64_t row_stride,
+                                int64_t col_stride, lode_data** out);
+
+/* A correlation matrix (items x items: symmetric, unit diagonal, entries in [-1, 1], no missing
+ * values) with the number of observations behind it (0 = unknown; tests and fit indices that need
+ * it then refuse). */
+LODE_API int lode_data_from_correlation(const double* values, int64_t items, int64_t row_stride, int64_t col_stride,
+                                        int64_t n_obs, lode_data** out);
+
+/* A covariance matrix (positive variances), turned into correlations; n_obs as above. */
+LODE_API int lode_data_from_covariance(const double* values, int64_t items, int64_t row_stride, int64_t col_stride,
+                                       int64_t n_obs, lode_data** out);
+
+/* Names the items (UTF-8, copied) for messages: `count` must equal the number of items; a NULL or
+ * empty name leaves that item as "column j". `names == NULL` with count 0 removes all names.
+ * Changes the handle: do not call it while another thread uses the same handle. Correlations
+ * already computed keep the names they were computed with. */
+LODE_API int lode_data_set_item_names(lode_data* data, const char* const* names, int64_t count);
+
+/* The shape of the data: respondents (rows; for a matrix, its n_obs) and items. Either may be NULL. */
+LODE_API int lode_data_shape(const lode_data* data, int64_t* rows, int64_t* items);
+
+LODE_API void lode_data_free(lode_data* data);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Correlations                                                                                  */
+/* ------------------------------------------------------------------------------------------- */
+
+enum lode_correlation_kind {
+  LODE_PEARSON = 0,
+  LODE_SPEARMAN = 1,
+  LODE_POLYCHORIC = 2 /* ordinal items (Olsson 1979, two-step); tetrachoric for binary items */
+};
+enum lode_missing { LODE_PAIRWISE = 0, LODE_LISTWISE = 1 };
+/* Polychoric: what to do with empty cells of a pair's table (adding zero_cell_add to them). */
+enum lode_zero_cells {
+  LODE_ZERO_CELLS_NONE = 0,
+  LODE_ZERO_CELLS_AT_BOUND = 1, /* only where the uncorrected estimate runs to |rho| = 1 (default) */
+  LODE_ZERO_CELLS_ALWAYS = 2
+};
+
+typedef struct lode_correlation_options {
+  size_t struct_size;            /* set by lode_correlation_options_init */
+  int kind;                      /* enum lode_correlation_kind; default LODE_PEARSON */
+  int missing;                   /* enum lode_missing; default LODE_PAIRWISE */
+  int smooth;                    /* nonzero: replace a matrix that is not positive definite by the
+                                    nearest correlation matrix (Higham 2002); default 0 (flag it) */
+  double min_eigenvalue;         /* the smallest eigenvalue smoothing allows; default 1e-6 */
+  int64_t min_pair_observations; /* fewer observations behind any correlation is an error; default 3 */
+  int threads;                   /* polychoric pairs in parallel; 0 (default) = all cores */
+  int max_categories;            /* polychoric: an item with more distinct codes is refused; default 10 */
+  int zero_cells;                /* polychoric: enum lode_zero_cells; default LODE_ZERO_CELLS_AT_BOUND */
+  double zero_cell_add;          /* polychoric: added to empty cells; default 0.5 */
+  lode_progress_fn progress;     /* polychoric: pairs done / all pairs; optional */
+  void* progress_user;           /* passed to progress */
+} lode_correlation_options;
+
+/* Fills `opts` with the defaults; pass sizeof(*opts). */
+LODE_API int lode_correlation_options_init(lode_correlation_options* opts, size_t struct_size);
+
+typedef struct lode_correlation lode_correlation;
+
+/* The correlation matrix of `data` (for matrix input: the matrix as given, checked, and smoothed
+ * on request). The result keeps what it needs of `data`; `data` may be freed at once. */
+LODE_API int lode_correlate(const lode_data* data, const lode_correlation_options* opts, lode_correlation** out);
+
+LODE_API void lode_correlation_free(lode_correlation* corr);
+
+/* Keys of a lode_correlation. Matrices are items x items, vectors items x 1. */
+enum lode_correlation_key {
+  /* matrices: lode_correlation_matrix */
+  LODE_CORRELATION_MATRIX = 100,           /* the correlation matrix (smoothed when smoothing applied) */
+  LODE_CORRELATION_PAIR_COUNTS = 101,      /* observations behind each correlation */
+  LODE_CORRELATION_EIGENVALUES = 102,      /* eigenvalues, largest first (items x 1) */
+  LODE_CORRELATION_REDUCED_EIGENVALUES = 103, /* eigenvalues with SMCs on the diagonal (items x 1);
+                                                 LODE_E_NOT_POSITIVE_DEFINITE when SMCs are undefined */
+  LODE_CORRELATION_SMC = 104,              /* squared multiple correlations (items x 1); same error */
+  LODE_CORRELATION_STANDARD_ERRORS = 105,  /* polychoric only: standard error of each estimate (before
+                                              smoothing); 0 on the diagonal, NaN at the bound */
+  LODE_CORRELATION_THRESHOLDS = 106,       /* polychoric only: items x (most categories - 1), each item's
+                                              thresholds from the left, NaN-padded */
+  /* numbers: lode_correlation_value */
+  LODE_CORRELATION_ITEMS = 120,            /* number of items */
+  LODE_CORRELATION_N_OBS = 121,            /* sample size for tests: listwise, rows used; pairwise, the
+                                              smallest pair count; matrix input, as given */
+  LODE_CORRELATION_ROWS_TOTAL = 122,       /* rows in the input */
+  LODE_CORRELATION_ROWS_COMPLETE = 123,    /* rows with every item answered */
+  LODE_CORRELATION_ROWS_USED = 124,        /* rows that contributed */
+  LODE_CORRELATION_MIN_PAIR_COUNT = 125,   /* the smallest number of observations behind a correlation */
+  LODE_CORRELATION_MISSING_FRACTION = 126, /* share of missing cells in the input */
+  LODE_CORRELATION_POSITIVE_DEFINITE = 127,/* 1 when the (returned) matrix is positive definite, else 0 */
+  LODE_CORRELATION_SMOOTHED = 128,         /* 1 when smoothing replaced the matrix, else 0 */
+  LODE_CORRELATION_SMALLEST_EIGENVALUE_BEFORE = 129, /* before smoothing (0 when it was not needed) */
+  LODE_CORRELATION_SMOOTHING_MAX_CHANGE = 130,       /* largest change of a correlation by smoothing */
+  LODE_CORRELATION_SMOOTHING_RMS_CHANGE = 131,       /* root mean square change off the diagonal */
+  LODE_CORRELATION_SMOOTHING_CONVERGED = 132,        /* 1 when the smoothing iteration converged */
+  LODE_CORRELATION_SMOOTHING_ITERATIONS = 133,
+  LODE_CORRELATION_KIND = 134,             /* enum lode_correlation_kind */
+  LODE_CORRELATION_MISSING = 135,          /* enum lode_missing */
+  LODE_CORRELATION_PAIRS_NOT_CONVERGED = 136, /* polychoric: pairs whose estimate did not converge */
+  LODE_CORRELATION_PAIRS_AT_BOUND = 137,      /* polychoric: pairs estimated at |rho| = bound */
+  LODE_CORRELATION_PAIRS_ZERO_CELL_CORRECTED = 138, /* polychoric: pairs with the zero-cell addition */
+  /* text: lode_correlation_text */
+  LODE_CORRELATION_NOTES = 150             /* plain-language remarks, one per line ("" when none) */
+};
+
+LODE_API int lode_correlation_matrix(const lode_correlation* corr, int key, double* out, size_t capacity,
+                                     int64_t* rows, int64_t* cols);
+LODE_API int lode_correlation_value(const lode_correlation* corr, int key, double* value);
+LODE_API int lode_correlation_text(const lode_correlation* corr, int key, char* out, size_t capacity,
+                                   size_t* length);
+
+#ifdef __cplusplus
+} /* extern "C" */
+#endif
+
+#endif /* LODE_H */

@@ -1,0 +1,200 @@
+"""Lode from Python: exploratory factor analysis over liblode's stable C interface.
+
+The package is pure Python (ctypes and numpy). It loads liblode from the path in the
+``LODE_LIBRARY`` environment variable, else from beside the package, else through the system
+loader. Data are 2-D arrays with respondents in rows and items in columns; NaN is a missing
+answer. Every error of the library is raised as :class:`LodeError` with the library's message.
+"""
+
+import ctypes
+
+import numpy as np
+
+from . import _native
+from ._native import LodeError, lib, check
+
+__all__ = ["LodeError", "version", "correlation", "Correlation"]
+
+# Keys of lode.h (enum lode_correlation_key).
+_CORRELATION_MATRIX = 100
+_CORRELATION_PAIR_COUNTS = 101
+_CORRELATION_EIGENVALUES = 102
+_CORRELATION_REDUCED_EIGENVALUES = 103
+_CORRELATION_SMC = 104
+_CORRELATION_STANDARD_ERRORS = 105
+_CORRELATION_THRESHOLDS = 106
+_CORRELATION_VALUES = {
+    "items": 120, "n_obs": 121, "rows_total": 122, "rows_complete": 123, "rows_used": 124,
+    "min_pair_count": 125, "missing_fraction": 126, "positive_definite": 127, "smoothed": 128,
+    "smallest_eigenvalue_before": 129, "smoothing_max_change": 130, "smoothing_rms_change": 131,
+    "smoothing_converged": 132, "smoothing_iterations": 133, "pairs_not_converged": 136, "pairs_at_bound": 137,
+    "pairs_zero_cell_corrected": 138,
+}
+_CORRELATION_NOTES = 150
+
+_KINDS = {"pearson": 0, "spearman": 1, "polychoric": 2}
+_ZERO_CELLS = {"none": 0, "at_bound": 1, "always": 2}
+_MISSING = {"pairwise": 0, "listwise": 1}
+
+
+def version():
+    """The library's versions as a dict: ``version`` (release, e.g. "0.1.0") and ``abi``
+    (major, minor) of the C interface."""
+    v = lib.lode_version().contents
+    return {"version": v.string.decode(), "release": (v.major, v.minor, v.patch), "abi": (v.abi_major, v.abi_minor)}
+
+
+def _choice(value, table, what):
+    try:
+        return table[value]
+    except KeyError:
+        raise ValueError(f"unknown {what} {value!r}; choose one of {', '.join(map(repr, table))}") from None
+
+
+class _Data(_native.Handle):
+    """A lode_data handle (raw responses or a correlation/covariance matrix)."""
+
+    _free = "lode_data_free"
+
+
+def _names_of(X, item_names):
+    if item_names is None and hasattr(X, "columns"):
+        item_names = [str(c) for c in X.columns]
+    return item_names
+
+
+def _make_data(X=None, corr=None, cov=None, n_obs=None, item_names=None):
+    given = [a is not None for a in (X, corr, cov)]
+    if sum(given) != 1:
+        raise ValueError("give exactly one of X (raw data), corr (a correlation matrix) or cov (a covariance matrix)")
+    ptr = ctypes.c_void_p()
+    names = _names_of(X, item_names)
+    if X is not None:
+        if n_obs is not None:
+            raise ValueError("n_obs is taken from the data when X is given; pass it only with corr= or cov=")
+        a, rows, cols, rs, cs = _native.as_strided_matrix(X, "X")
+        check(lib.lode_data_from_raw(_native.data_pointer(a), rows, cols, rs, cs, ctypes.byref(ptr)))
+    else:
+        m = corr if corr is not None else cov
+        a, rows, cols, rs, cs = _native.as_strided_matrix(m, "corr" if corr is not None else "cov")
+        if rows != cols:
+            raise ValueError(f"a correlation or covariance matrix must be square; this one is {rows} x {cols}")
+        fn = lib.lode_data_from_correlation if corr is not None else lib.lode_data_from_covariance
+        n = 0 if n_obs is None else int(n_obs)
+        check(fn(_native.data_pointer(a), rows, rs, cs, n, ctypes.byref(ptr)))
+    data = _Data(ptr.value)
+    if names is not None:
+        names = [None if s is None else str(s) for s in names]
+        arr = (ctypes.c_char_p * len(names))(*[None if s is None else s.encode() for s in names])
+        check(lib.lode_data_set_item_names(data.pointer, arr, len(names)))
+    return data
+
+
+class Correlation(_native.Handle):
+    """A correlation matrix computed by Lode, with what went into it.
+
+    Attributes: ``matrix`` (items x items), ``pair_counts`` (observations behind each
+    correlation), ``eigenvalues`` (largest first), ``smc`` (squared multiple correlations; None
+    when the matrix is not positive definite), ``reduced_eigenvalues`` (SMCs on the diagonal; None
+    likewise), ``n_obs`` (the sample size for tests: listwise, rows used; pairwise, the smallest pair
+    count), ``rows_total``, ``rows_complete``, ``rows_used``, ``min_pair_count``,
+    ``missing_fraction``, ``positive_definite``, ``smoothed`` and ``smoothing`` (a dict describing
+    the Higham smoothing when it was applied), ``notes`` (plain-language remarks). For polychoric
+    correlations of raw data also ``standard_errors`` (items x items, before smoothing),
+    ``thresholds`` (a list with each item's thresholds) and ``polychoric`` (a dict counting pairs
+    ``not_converged``, ``at_bound`` and ``zero_cell_corrected``); otherwise these are None.
+    ``numpy.asarray(result)`` gives the matrix.
+    """
+
+    _free = "lode_correlation_free"
+
+    def __init__(self, pointer):
+        super().__init__(pointer)
+        fm = lib.lode_correlation_matrix
+        self.matrix = _native.get_matrix(fm, pointer, _CORRELATION_MATRIX)
+        self.pair_counts = _native.get_matrix(fm, pointer, _CORRELATION_PAIR_COUNTS).astype(np.int64)
+        self.eigenvalues = _native.get_matrix(fm, pointer, _CORRELATION_EIGENVALUES)[:, 0]
+        v = {k: _native.get_value(lib.lode_correlation_value, pointer, key) for k, key in _CORRELATION_VALUES.items()}
+        self.positive_definite = bool(v["positive_definite"])
+        try:
+            self.smc = _native.get_matrix(fm, pointer, _CORRELATION_SMC)[:, 0]
+            self.reduced_eigenvalues = _native.get_matrix(fm, pointer, _CORRELATION_REDUCED_EIGENVALUES)[:, 0]
+        except LodeError:
+            self.smc = None
+            self.reduced_eigenvalues = None
+        self.n_obs = int(v["n_obs"])
+        self.rows_total = int(v["rows_total"])
+        self.rows_complete = int(v["rows_complete"])
+        self.rows_used = int(v["rows_used"])
+        self.min_pair_count = int(v["min_pair_count"])
+        self.missing_fraction = v["missing_fraction"]
+        self.smoothed = bool(v["smoothed"])
+        self.smoothing = {
+            "applied": self.smoothed,
+            "smallest_eigenvalue_before": v["smallest_eigenvalue_before"],
+            "max_change": v["smoothing_max_change"],
+            "rms_change": v["smoothing_rms_change"],
+            "converged": bool(v["smoothing_converged"]),
+            "iterations": int(v["smoothing_iterations"]),
+        }
+        self.standard_errors = self.thresholds = self.polychoric = None
+        if v["pairs_not_converged"] or self._kind(pointer) == _KINDS["polychoric"]:
+            try:
+                self.standard_errors = _native.get_matrix(fm, pointer, _CORRELATION_STANDARD_ERRORS)
+                th = _native.get_matrix(fm, pointer, _CORRELATION_THRESHOLDS)
+                self.thresholds = [row[~np.isnan(row)] for row in th]
+                self.polychoric = {"not_converged": int(v["pairs_not_converged"]),
+                                   "at_bound": int(v["pairs_at_bound"]),
+                                   "zero_cell_corrected": int(v["pairs_zero_cell_corrected"])}
+            except LodeError:  # a polychoric kind given with a matrix: no per-pair estimates
+                pass
+        text = _native.get_text(lib.lode_correlation_text, pointer, _CORRELATION_NOTES)
+        self.notes = text.split("\n") if text else []
+
+    @staticmethod
+    def _kind(pointer):
+        return int(_native.get_value(lib.lode_correlation_value, pointer, 134))
+
+    def __array__(self, dtype=None, copy=None):
+        return self.matrix if dtype is None else self.matrix.astype(dtype)
+
+    def __repr__(self):
+        return f"<lode.Correlation {self.matrix.shape[0]} items, n_obs={self.n_obs}>"
+
+
+def _correlate(data, method, missing, smooth, min_eigenvalue=1e-6, min_pair_observations=3, threads=0,
+               max_categories=10, zero_cells="at_bound", zero_cell_add=0.5, progress=None):
+    o = _native.options(_native.CorrelationOptions, "lode_correlation_options_init",
+                        kind=_choice(method, _KINDS, "correlation method"),
+                        missing=_choice(missing, _MISSING, "missing-value policy"),
+                        smooth=1 if smooth else 0, min_eigenvalue=float(min_eigenvalue),
+                        min_pair_observations=int(min_pair_observations), threads=int(threads),
+                        max_categories=int(max_categories), zero_cells=_choice(zero_cells, _ZERO_CELLS, "zero-cell policy"),
+                        zero_cell_add=float(zero_cell_add))
+    callback = _native.make_progress(progress)
+    if callback is not None:
+        o.progress = callback
+    ptr = ctypes.c_void_p()
+    check(lib.lode_correlate(data.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    del callback
+    return Correlation(ptr.value)
+
+
+def correlation(X=None, *, corr=None, cov=None, n_obs=None, method="pearson", missing="pairwise", smooth=False,
+                min_eigenvalue=1e-6, min_pair_observations=3, item_names=None, threads=0, max_categories=10,
+                zero_cells="at_bound", zero_cell_add=0.5, progress=None):
+    """The correlation matrix of raw data ``X`` (rows are respondents, columns items, NaN missing),
+    or a given correlation matrix ``corr`` / covariance matrix ``cov`` with its ``n_obs``, checked.
+
+    ``method`` is "pearson", "spearman" or "polychoric" (ordinal items, Olsson's two-step
+    estimate; tetrachoric for binary items; ``max_categories``, ``zero_cells`` "none", "at_bound"
+    or "always" with ``zero_cell_add``, ``threads``, and ``progress(done, total)`` returning False
+    to cancel); ``missing`` is "pairwise" or "listwise"; ``smooth``
+    replaces a matrix that is not positive definite by the nearest correlation matrix with
+    eigenvalues at least ``min_eigenvalue`` (Higham 2002) and reports the change. ``item_names``
+    (or the columns of a data frame) name the items in error messages. Returns a
+    :class:`Correlation`.
+    """
+    data = _make_data(X, corr, cov, n_obs, item_names)
+    return _correlate(data, method, missing, smooth, min_eigenvalue, min_pair_observations, threads, max_categories,
+                      zero_cells, zero_cell_add, progress)

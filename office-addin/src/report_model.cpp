@@ -1,0 +1,462 @@
+// The report's content: reads the items, runs what the C ABI offers, lays out the sheets.
+// Only lode.h is used (office-addin -> capi -> core).
+#include "report_model.hpp"
+
+#include <lode.h>
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <cstring>
+#include <limits>
+#include <memory>
+#include <stdexcept>
+
+namespace lode::addin::report {
+namespace {
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+bool one_of(const std::string& v, std::initializer_list<const char*> allowed) {
+  for (const char* a : allowed)
+    if (v == a) return true;
+  return false;
+}
+
+void require(const std::string& what, const std::string& v, std::initializer_list<const char*> allowed) {
+  if (one_of(v, allowed)) return;
+  std::string list;
+  for (const char* a : allowed) list += (list.empty() ? "" : ", ") + std::string(a);
+  throw std::invalid_argument("option " + what + " is \"" + v + "\"; it must be one of " + list);
+}
+
+std::string fmt_num(double v, int digits = 3) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*f", digits, v);
+  return buf;
+}
+
+struct DataFree {
+  void operator()(lode_data* p) const noexcept { lode_data_free(p); }
+};
+struct CorrFree {
+  void operator()(lode_correlation* p) const noexcept { lode_correlation_free(p); }
+};
+
+// A C ABI failure as the exception the service reports.
+[[noreturn]] void fail(int status, const std::string& what) {
+  if (status == LODE_E_CANCELLED) throw Cancelled{};
+  std::string msg = what + ": " + lode_last_error();
+  if (status == LODE_E_INVALID_ARGUMENT || status == LODE_E_INSUFFICIENT_DATA || status == LODE_E_TOO_MANY_FACTORS ||
+      status == LODE_E_NOT_POSITIVE_DEFINITE)
+    throw std::invalid_argument(msg);
+  throw std::runtime_error(msg + " (" + lode_status_name(status) + ")");
+}
+void check(int status, const std::string& what) {
+  if (status != LODE_OK) fail(status, what);
+}
+
+std::vector<double> read_corr_matrix(const lode_correlation* c, int key, std::int64_t* rows, std::int64_t* cols) {
+  check(lode_correlation_matrix(c, key, nullptr, 0, rows, cols), "reading a result");
+  std::vector<double> out(static_cast<std::size_t>(*rows * *cols));
+  check(lode_correlation_matrix(c, key, out.data(), out.size(), rows, cols), "reading a result");
+  return out;
+}
+double read_corr_value(const lode_correlation* c, int key) {
+  double v = kNaN;
+  check(lode_correlation_value(c, key, &v), "reading a result");
+  return v;
+}
+std::string read_corr_notes(const lode_correlation* c) {
+  size_t len = 0;
+  if (lode_correlation_text(c, LODE_CORRELATION_NOTES, nullptr, 0, &len) != LODE_OK) return {};
+  std::string s(len + 1, '\0');
+  if (lode_correlation_text(c, LODE_CORRELATION_NOTES, s.data(), s.size(), &len) != LODE_OK) return {};
+  s.resize(len);
+  return s;
+}
+
+// Progress from the C ABI into the run's callback (which may cancel).
+struct ProgressBridge {
+  const Progress* progress;
+  std::string phase;
+  double from, to;
+  static int call(void* user, std::int64_t done, std::int64_t total) {
+    auto* self = static_cast<ProgressBridge*>(user);
+    double share = total > 0 ? static_cast<double>(done) / static_cast<double>(total) : 0.0;
+    bool go_on = !*self->progress || (*self->progress)(self->phase, self->from + (self->to - self->from) * share);
+    return go_on ? 0 : 1;
+  }
+};
+
+const char* correlation_words(const std::string& kind) {
+  if (kind == "spearman") return "Spearman (rank order)";
+  if (kind == "polychoric") return "polychoric (ordered answer categories)";
+  return "Pearson (answers taken as numbers)";
+}
+const char* missing_words(const std::string& m) {
+  return m == "listwise" ? "only respondents who answered every item (listwise)"
+                         : "each pair of items uses everyone who answered both (pairwise)";
+}
+
+// What the C ABI of this build cannot compute yet; each line says so in the report.
+constexpr const char* kNotYet = "not in this liblode yet (C ABI ";
+
+std::string not_yet() {
+  const lode_version_info* v = lode_version();
+  return std::string(kNotYet) + std::to_string(v->abi_major) + "." + std::to_string(v->abi_minor) + ")";
+}
+
+}  // namespace
+
+void validate(const Options& o) {
+  if (o.header < -1 || o.header > 1) throw std::invalid_argument("option HeaderRow must be -1 (detect), 0 or 1");
+  require("Correlation", o.correlation, {"pearson", "spearman", "polychoric"});
+  require("Missing", o.missing, {"pairwise", "listwise"});
+  require("Extraction", o.extraction, {"minres", "ml", "paf"});
+  require("Rotation", o.rotation, {"oblimin", "promax", "varimax", "none"});
+  require("Scores", o.scores, {"none", "regression", "bartlett"});
+  require("ScoresPlace", o.scores_place, {"beside", "sheet"});
+  if (o.factors < 0 || o.factors > 100) throw std::invalid_argument("option Factors must be 0 (suggest) to 100");
+  if (o.bootstrap < 0 || o.bootstrap > 100000) throw std::invalid_argument("option Bootstrap must be 0 (off) to 100000 resamples");
+  if (!(o.salient > 0.0 && o.salient < 1.0)) throw std::invalid_argument("option Salient must lie between 0 and 1");
+  if (!std::isfinite(o.rotation_parameter)) throw std::invalid_argument("option RotationParameter must be a number");
+}
+
+bool detect_header(const SourceTable& t) {
+  if (t.rows < 2) return false;
+  bool any_text = false;
+  for (std::size_t c = 0; c < t.cols; ++c) {
+    const SourceCell& s = t.at(0, c);
+    if (s.kind == SourceCell::Kind::number) return false;
+    if (s.kind == SourceCell::Kind::text) any_text = true;
+  }
+  if (!any_text) return false;
+  for (std::size_t r = 1; r < t.rows; ++r)
+    for (std::size_t c = 0; c < t.cols; ++c)
+      if (t.at(r, c).kind == SourceCell::Kind::number) return true;
+  return false;
+}
+
+std::vector<Column> describe_columns(const SourceTable& t, bool header) {
+  std::vector<Column> out(t.cols);
+  for (std::size_t c = 0; c < t.cols; ++c) {
+    Column& col = out[c];
+    const std::string letter = c < t.column_letters.size() ? t.column_letters[c] : std::to_string(c + 1);
+    col.name = header && t.at(0, c).kind == SourceCell::Kind::text && !t.at(0, c).text.empty() ? t.at(0, c).text
+                                                                                              : "column " + letter;
+    for (std::size_t r = header ? 1 : 0; r < t.rows; ++r) {
+      const SourceCell& s = t.at(r, c);
+      if (s.kind == SourceCell::Kind::number) col.numeric = true;
+      else if (s.kind == SourceCell::Kind::text) ++col.text_cells;
+    }
+  }
+  return out;
+}
+
+std::uint64_t hash_values(const std::vector<double>& values, const std::vector<std::string>& names) {
+  std::uint64_t h = 0xcbf29ce484222325ULL;
+  auto byte = [&h](unsigned char b) {
+    h ^= b;
+    h *= 0x100000001b3ULL;
+  };
+  for (double v : values) {
+    std::uint64_t bits;
+    if (std::isnan(v)) bits = 0x7ff8000000000000ULL;
+    else std::memcpy(&bits, &v, sizeof bits);
+    for (int i = 0; i < 8; ++i) byte(static_cast<unsigned char>(bits >> (8 * i)));
+  }
+  for (const std::string& n : names) {
+    for (unsigned char ch : n) byte(ch);
+    byte(0);
+  }
+  return h;
+}
+
+Report build_report(const SourceTable& src, const Options& o, const std::string& timestamp, const Progress& progress) {
+  validate(o);
+  auto step = [&](const std::string& phase, double share) {
+    if (progress && !progress(phase, share)) throw Cancelled{};
+  };
+  step("reading the data", 0.0);
+
+  // ---- the items ----------------------------------------------------------------------------
+  const bool header = o.header == -1 ? detect_header(src) : o.header == 1;
+  const std::vector<Column> columns = describe_columns(src, header);
+  std::vector<std::size_t> chosen;
+  if (o.items.empty()) {
+    for (std::size_t c = 0; c < columns.size(); ++c)
+      if (columns[c].numeric) chosen.push_back(c);
+  } else {
+    for (const std::string& want : o.items) {
+      auto it = std::find_if(columns.begin(), columns.end(), [&](const Column& c) { return c.name == want; });
+      if (it == columns.end()) throw std::invalid_argument("item \"" + want + "\" is not a column of " + src.address);
+      std::size_t c = static_cast<std::size_t>(it - columns.begin());
+      if (!it->numeric) throw std::invalid_argument("item \"" + want + "\" holds no numbers");
+      if (std::find(chosen.begin(), chosen.end(), c) == chosen.end()) chosen.push_back(c);
+    }
+  }
+  if (chosen.size() < 3)
+    throw std::invalid_argument("only " + std::to_string(chosen.size()) + " columns with numbers in " + src.address +
+                                "; a factor analysis needs at least 3 items");
+  const std::size_t first = header ? 1 : 0;
+  const std::size_t n_rows = src.rows - first;
+  const std::size_t p = chosen.size();
+  std::vector<double> values(n_rows * p, kNaN);
+  std::vector<std::string> item_names;
+  std::size_t text_as_missing = 0;
+  for (std::size_t j = 0; j < p; ++j) {
+    item_names.push_back(columns[chosen[j]].name);
+    text_as_missing += columns[chosen[j]].text_cells;
+    for (std::size_t r = 0; r < n_rows; ++r) {
+      const SourceCell& s = src.at(first + r, chosen[j]);
+      if (s.kind == SourceCell::Kind::number) values[r * p + j] = s.number;
+    }
+  }
+
+  Report rep;
+  rep.values_hash = hash_values(values, item_names);
+
+  // ---- correlations through the C ABI -------------------------------------------------------
+  step("computing correlations", 0.05);
+  lode_data* raw_data = nullptr;
+  check(lode_data_from_raw(values.data(), static_cast<std::int64_t>(n_rows), static_cast<std::int64_t>(p),
+                           static_cast<std::int64_t>(p), 1, &raw_data),
+        "reading the items");
+  std::unique_ptr<lode_data, DataFree> data(raw_data);
+  std::vector<const char*> cnames;
+  for (const std::string& n : item_names) cnames.push_back(n.c_str());
+  check(lode_data_set_item_names(data.get(), cnames.data(), static_cast<std::int64_t>(p)), "naming the items");
+
+  lode_correlation_options copts;
+  lode_correlation_options_init(&copts, sizeof copts);
+  copts.kind = o.correlation == "spearman" ? LODE_SPEARMAN : o.correlation == "polychoric" ? LODE_POLYCHORIC : LODE_PEARSON;
+  copts.missing = o.missing == "listwise" ? LODE_LISTWISE : LODE_PAIRWISE;
+  copts.threads = 1;  // the office's other work keeps a core
+  ProgressBridge bridge{&progress, "computing correlations", 0.05, 0.85};
+  copts.progress = &ProgressBridge::call;
+  copts.progress_user = &bridge;
+  lode_correlation* raw_corr = nullptr;
+  check(lode_correlate(data.get(), &copts, &raw_corr), "computing the correlations");
+  std::unique_ptr<lode_correlation, CorrFree> corr(raw_corr);
+  step("laying out the report", 0.9);
+
+  std::int64_t r_rows = 0, r_cols = 0;
+  const std::vector<double> R = read_corr_matrix(corr.get(), LODE_CORRELATION_MATRIX, &r_rows, &r_cols);
+  const std::vector<double> eig = read_corr_matrix(corr.get(), LODE_CORRELATION_EIGENVALUES, &r_rows, &r_cols);
+  std::vector<double> smc;
+  std::string smc_problem;
+  {
+    std::int64_t a = 0, b = 0;
+    int st = lode_correlation_matrix(corr.get(), LODE_CORRELATION_SMC, nullptr, 0, &a, &b);
+    if (st == LODE_OK) smc = read_corr_matrix(corr.get(), LODE_CORRELATION_SMC, &a, &b);
+    else smc_problem = lode_last_error();
+  }
+  const double rows_total = read_corr_value(corr.get(), LODE_CORRELATION_ROWS_TOTAL);
+  const double rows_used = read_corr_value(corr.get(), LODE_CORRELATION_ROWS_USED);
+  const double rows_complete = read_corr_value(corr.get(), LODE_CORRELATION_ROWS_COMPLETE);
+  const double n_obs = read_corr_value(corr.get(), LODE_CORRELATION_N_OBS);
+  const double missing_share = read_corr_value(corr.get(), LODE_CORRELATION_MISSING_FRACTION);
+  const double pos_def = read_corr_value(corr.get(), LODE_CORRELATION_POSITIVE_DEFINITE);
+  const std::string notes = read_corr_notes(corr.get());
+
+  // Eigenvalues above 1: common practice (Kaiser 1960), known to over-count; shown as one piece of evidence.
+  std::size_t above_one = 0;
+  double total = 0.0;
+  for (double e : eig) {
+    total += e;
+    if (e > 1.0) ++above_one;
+  }
+  const std::string missing_feature = not_yet();
+  using namespace styles;
+
+  // ---- 1. overview --------------------------------------------------------------------------
+  Sheet ov;
+  ov.base_name = names::overview;
+  ov.column_widths = {7000, 4500, 4000, 4000, 4000};
+  ov.line({Cell::txt("Lode factor analysis report", title)});
+  ov.line({Cell::txt("Written " + timestamp + ". The sheets of this report:", note)});
+  for (const char* s : {names::overview, names::loadings, names::factors, names::scree, names::record})
+    ov.line({Cell::txt(s, label)});
+  ov.blank();
+  ov.line({Cell::txt("Data used", heading), Cell::txt("", heading)});
+  ov.line({Cell::txt("Source range", label), Cell::txt(src.address)});
+  ov.line({Cell::txt("First row holds item names", label), Cell::txt(header ? "yes" : "no")});
+  ov.line({Cell::txt("Items analysed", label), Cell::num(static_cast<double>(p))});
+  ov.line({Cell::txt("Respondents in the range", label), Cell::num(rows_total)});
+  ov.line({Cell::txt("Respondents used", label), Cell::num(rows_used)});
+  ov.line({Cell::txt("Respondents who answered every item", label), Cell::num(rows_complete)});
+  ov.line({Cell::txt("Sample size for tests", label), Cell::num(n_obs)});
+  ov.line({Cell::txt("Share of answers missing", label), Cell::num(missing_share, number)});
+  ov.line({Cell::txt("Missing answers", label), Cell::txt(missing_words(o.missing))});
+  ov.line({Cell::txt("Correlations", label), Cell::txt(correlation_words(o.correlation))});
+  if (text_as_missing > 0)
+    ov.line({Cell::txt("Text cells among the answers", label), Cell::num(static_cast<double>(text_as_missing)),
+             Cell::txt("read as missing answers", note)});
+  ov.blank();
+  ov.line({Cell::txt("Can these items be factored?", heading), Cell::txt("", heading)});
+  ov.line({Cell::txt("Correlation matrix positive definite", label), Cell::txt(pos_def > 0.5 ? "yes" : "no")});
+  ov.line({Cell::txt("KMO sampling adequacy", label), Cell::txt(missing_feature, note)});
+  ov.line({Cell::txt("Bartlett's test of sphericity", label), Cell::txt(missing_feature, note)});
+  ov.blank();
+  ov.line({Cell::txt("How many factors", heading), Cell::txt("", heading), Cell::txt("", heading), Cell::txt("", heading)});
+  ov.line({Cell::txt("Factor", label), Cell::txt("Eigenvalue", label), Cell::txt("Share of variance", label),
+           Cell::txt("Random data (parallel analysis)", label)});
+  {
+    double cum = 0.0;
+    (void)cum;
+    for (std::size_t k = 0; k < eig.size(); ++k)
+      ov.line({Cell::num(static_cast<double>(k + 1)), Cell::num(eig[k], number), Cell::num(eig[k] / total, number),
+               Cell::txt(k == 0 ? missing_feature : "", note)});
+  }
+  ov.line({Cell::txt("Eigenvalues above 1", label), Cell::num(static_cast<double>(above_one)),
+           Cell::txt("a rule of thumb that tends to suggest too many factors (common practice)", note)});
+  if (o.factors > 0)
+    ov.line({Cell::txt("Decision", label), Cell::num(o.factors), Cell::txt("factors, as you fixed them", note)});
+  else
+    ov.line({Cell::txt("Decision", label), Cell::txt("not made: parallel analysis is " + missing_feature, note)});
+  ov.blank();
+  ov.line({Cell::txt("How well the model fits", heading), Cell::txt("", heading)});
+  ov.line({Cell::txt("Fit statistics (RMSEA, TLI, SRMR)", label), Cell::txt(missing_feature, note)});
+  ov.blank();
+  ov.line({Cell::txt("Items to look at", heading), Cell::txt("", heading), Cell::txt("", heading)});
+  bool any_flag = false;
+  if (!smc.empty()) {
+    for (std::size_t j = 0; j < p; ++j)
+      if (smc[j] < 0.20) {  // common practice: an item sharing under a fifth of its variance with the rest
+        any_flag = true;
+        ov.line({Cell::txt(item_names[j], flag), Cell::num(smc[j], number),
+                 Cell::txt("shares little with the other items (squared multiple correlation under 0.20); "
+                           "check its wording and whether it belongs to this questionnaire",
+                           note)});
+      }
+  } else {
+    ov.line({Cell::txt("Squared multiple correlations", label), Cell::txt(smc_problem, note)});
+  }
+  if (!notes.empty()) {
+    std::size_t start = 0;
+    while (start < notes.size()) {
+      std::size_t end = notes.find('\n', start);
+      if (end == std::string::npos) end = notes.size();
+      if (end > start) {
+        any_flag = true;
+        ov.line({Cell::txt("Note on the correlations", flag), Cell::txt(notes.substr(start, end - start), note)});
+      }
+      start = end + 1;
+    }
+  }
+  if (!any_flag) ov.line({Cell::txt("No item stands out.", note)});
+  ov.blank();
+  ov.line({Cell::txt("Before using factor scores about people", heading), Cell::txt("", heading)});
+  for (const char* s :
+       {"Factor scores are estimates with error, not measurements of a person.",
+        "An instrument needs evidence of validity for the intended use before scores inform decisions about "
+        "individuals (selection, rating, diagnosis).",
+        "Professional testing standards and local law govern such use; follow them, and prefer group summaries "
+        "where a decision about one person is not needed."})
+    ov.line({Cell::txt(s, caution)});
+  if (o.scores != "none")
+    ov.line({Cell::txt("Factor scores were asked for: " + missing_feature + "; none were written.", note)});
+  if (o.bootstrap > 0)
+    ov.line({Cell::txt("Bootstrap intervals were asked for: " + missing_feature + "; none were written.", note)});
+  rep.sheets.push_back(std::move(ov));
+
+  // ---- 2. loadings --------------------------------------------------------------------------
+  Sheet ld;
+  ld.base_name = names::loadings;
+  ld.column_widths = {4500, 3500, 3500};
+  ld.line({Cell::txt("Loadings", title)});
+  ld.line({Cell::txt("Strong loadings (at least " + fmt_num(o.salient, 2) + ") are shaded; small ones are grey.", note)});
+  ld.line({Cell::txt("Factor loadings: " + missing_feature + ". Shown until then: each item's starting "
+                     "communality estimate.",
+                     note)});
+  ld.blank();
+  ld.line({Cell::txt("Item", heading), Cell::txt("Starting communality (SMC)", heading)});
+  for (std::size_t j = 0; j < p; ++j)
+    ld.line({Cell::txt(item_names[j], label), smc.empty() ? Cell::txt(smc_problem, note) : Cell::num(smc[j], number)});
+  rep.sheets.push_back(std::move(ld));
+
+  // ---- 3. factors, residuals, reliability ---------------------------------------------------
+  Sheet fc;
+  fc.base_name = names::factors;
+  fc.line({Cell::txt("Factors, residuals and reliability", title)});
+  fc.line({Cell::txt("Factor correlations and structure: " + missing_feature, note)});
+  fc.line({Cell::txt("Residual correlations: " + missing_feature, note)});
+  fc.line({Cell::txt("Reliability of each factor's scale (alpha, omega): " + missing_feature, note)});
+  fc.blank();
+  fc.line({Cell::txt("Item correlations used", heading)});
+  {
+    std::vector<Cell> hdr{Cell::txt("", heading)};
+    for (const std::string& n : item_names) hdr.push_back(Cell::txt(n, heading));
+    fc.line(std::move(hdr));
+    for (std::size_t i = 0; i < p; ++i) {
+      std::vector<Cell> row{Cell::txt(item_names[i], label)};
+      for (std::size_t j = 0; j < p; ++j) row.push_back(Cell::num(R[i * p + j], number));
+      fc.line(std::move(row));
+    }
+  }
+  rep.sheets.push_back(std::move(fc));
+
+  // ---- 4. scree -----------------------------------------------------------------------------
+  Sheet sc;
+  sc.base_name = names::scree;
+  sc.line({Cell::txt("Scree: eigenvalues of the item correlations", title)});
+  sc.line({Cell::txt("The random-data line of parallel analysis: " + missing_feature, note)});
+  sc.blank();
+  const std::size_t table_top = sc.rows.size();
+  sc.line({Cell::txt("Factor", heading), Cell::txt("Observed eigenvalue", heading)});
+  for (std::size_t k = 0; k < eig.size(); ++k) sc.line({Cell::num(static_cast<double>(k + 1)), Cell::num(eig[k], number)});
+  Chart ch;
+  ch.name = "LodeScree";
+  ch.title = "Scree";
+  ch.x_title = "Factor";
+  ch.y_title = "Eigenvalue";
+  ch.top = table_top;
+  ch.left = 0;
+  ch.rows = eig.size() + 1;
+  ch.cols = 2;
+  ch.anchor_row = table_top;
+  ch.anchor_col = 3;
+  sc.charts.push_back(ch);
+  sc.column_widths = {2500, 4000};
+  rep.sheets.push_back(std::move(sc));
+
+  // ---- 5. run record ------------------------------------------------------------------------
+  Sheet rr;
+  rr.base_name = names::record;
+  rr.column_widths = {6000, 9000};
+  const lode_version_info* v = lode_version();
+  char hash[32];
+  std::snprintf(hash, sizeof hash, "%016llx", static_cast<unsigned long long>(rep.values_hash));
+  std::string items_text;
+  for (const std::string& n : item_names) items_text += (items_text.empty() ? "" : ", ") + n;
+  rr.line({Cell::txt("Run record", title)});
+  rr.line({Cell::txt("Everything needed to repeat this analysis exactly.", note)});
+  auto rec = [&rr](const char* k, Cell val) { rr.line({Cell::txt(k, label), std::move(val)}); };
+  rec("Lode version", Cell::txt(std::string(v->string) + " (C ABI " + std::to_string(v->abi_major) + "." +
+                                std::to_string(v->abi_minor) + ")"));
+  rec("Written", Cell::txt(timestamp));
+  rec("Source range", Cell::txt(src.address));
+  rec("First row holds item names", Cell::txt(header ? "yes" : "no"));
+  rec("Items", Cell::txt(items_text));
+  rec("Values hash (FNV-1a 64)", Cell::txt(hash));
+  rec("Correlations", Cell::txt(o.correlation));
+  rec("Missing answers", Cell::txt(o.missing));
+  rec("Number of factors", o.factors > 0 ? Cell::num(o.factors) : Cell::txt("suggest"));
+  rec("Extraction", Cell::txt(o.extraction));
+  rec("Rotation", Cell::txt(o.rotation));
+  rec("Rotation parameter", Cell::num(o.rotation_parameter));
+  rec("Factor scores", Cell::txt(o.scores));
+  rec("Factor scores placed", Cell::txt(o.scores_place));
+  rec("Bootstrap resamples", Cell::num(o.bootstrap));
+  rec("Strong loading from", Cell::num(o.salient));
+  rec("Random seed", Cell::txt(std::to_string(o.seed)));
+  rep.sheets.push_back(std::move(rr));
+
+  rep.summary = "Lode analysed " + std::to_string(p) + " items of " + std::to_string(static_cast<long long>(rows_used)) +
+                " respondents";
+  step("writing the report", 1.0);
+  return rep;
+}
+
+}  // namespace lode::addin::report

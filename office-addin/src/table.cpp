@@ -1,0 +1,60 @@
+// The declarative table of Lode's cell functions (see table.hpp). One row per function.
+#include "table.hpp"
+
+#include "functions.hpp"
+
+#include <algorithm>
+#include <cctype>
+
+namespace lode::addin {
+namespace {
+
+// Argument help shared by several rows.
+constexpr std::string_view kDataHelp =
+    "Respondents in rows, items in columns (empty and text cells are missing; a first row of names is "
+    "used as item names), or a square correlation matrix with ones on the diagonal";
+
+const std::vector<FunctionSpec> kTable = {
+    {"version", "LODE.VERSION", "The version of Lode and of its C library, as text.", {},
+     "text, e.g. `Lode 0.1.0 (C ABI 1.0)`", "none", fn_version},
+    {"corr",
+     "LODE.CORR",
+     "The correlation matrix of the items (items x items; an array formula).",
+     {{"data", ArgKind::range, kDataHelp},
+      {"kind", ArgKind::value, "\"pearson\" (default) or \"spearman\""},
+      {"missing", ArgKind::value, "\"pairwise\" (default: each correlation uses the rows answering both items) or "
+                                  "\"listwise\" (only rows answering every item)"}},
+     "items x items", "none beyond Err:502", fn_corr},
+    {"eigen",
+     "LODE.EIGEN",
+     "The eigenvalues of the correlation matrix, largest first (one column).",
+     {{"data", ArgKind::range, kDataHelp},
+      {"reduced", ArgKind::value,
+       "TRUE: eigenvalues of the reduced matrix (squared multiple correlations on the diagonal); FALSE or "
+       "left out: of the full correlation matrix"}},
+     "items x 1", "#NUM!: `reduced` on a matrix that is not positive definite", fn_eigen},
+};
+
+bool iequal(std::string_view a, std::string_view b) {
+  return a.size() == b.size() && std::equal(a.begin(), a.end(), b.begin(), [](unsigned char x, unsigned char y) {
+           return std::tolower(x) == std::tolower(y);
+         });
+}
+
+}  // namespace
+
+const std::vector<FunctionSpec>& function_table() { return kTable; }
+
+const FunctionSpec* find_by_method(std::string_view method) {
+  for (const auto& f : kTable)
+    if (f.method == method) return &f;
+  return nullptr;
+}
+
+const FunctionSpec* find_by_display(std::string_view display) {
+  for (const auto& f : kTable)
+    if (iequal(f.display, display)) return &f;
+  return nullptr;
+}
+
+}  // namespace lode::addin
