@@ -155,11 +155,21 @@ def run_report(office, out_dir):
         if name not in report_sheets:
             doc.Sheets.removeByName(name)
     styles = doc.StyleFamilies.getByName("PageStyles")
-    for name in report_sheets:
-        style = styles.getByName(doc.Sheets.getByName(name).PageStyle)
+    for i, name in enumerate(report_sheets):
+        sheet = doc.Sheets.getByName(name)
+        cur = sheet.createCursor()
+        cur.gotoEndOfUsedArea(False)
+        style_name = f"Lode demo page {i + 1}"
+        style = doc.createInstance("com.sun.star.style.PageStyle")
+        styles.insertByName(style_name, style)
+        style = styles.getByName(style_name)
         style.ScaleToPagesX = 1
         style.ScaleToPagesY = 0  # as many pages down as needed
-        style.IsLandscape = False
+        if cur.RangeAddress.EndColumn > 8:  # a wide sheet (the item correlations) goes landscape
+            w, h = style.Width, style.Height
+            style.IsLandscape = True
+            style.Width, style.Height = max(w, h), min(w, h)
+        sheet.PageStyle = style_name
     report_only = os.path.join(out_dir, REPORT_ONLY)
     with office.watchdog(120):
         doc.storeToURL(uno.systemPathToFileUrl(os.path.abspath(report_only)), (prop("FilterName", "calc8"),))
@@ -230,7 +240,7 @@ def export_pdf_png(report_only, out_dir):
     stem = os.path.join(out_dir, "volunteer-survey-report-page")
     for old in glob.glob(stem + "-*.png"):
         os.remove(old)
-    subprocess.run(["pdftoppm", "-png", "-r", "80", pdf, stem], check=True, timeout=120)
+    subprocess.run(["pdftoppm", "-png", "-r", "110", pdf, stem], check=True, timeout=120)
     pngs = sorted(glob.glob(stem + "-*.png"))
     if not pngs:
         raise DemoError("pdftoppm wrote no pages")
