@@ -20,7 +20,6 @@ Exits non-zero on any failure, naming it.
 """
 
 import argparse
-import csv
 import glob
 import os
 import shutil
@@ -101,14 +100,15 @@ def show(value):
 
 
 def responses_values(doc):
-    """The Responses sheet as the report service read it: item names and answers (NaN = empty)."""
-    rows = used_rows(doc.Sheets.getByName("Responses"))
-    names = rows[0][1:]
-    x = np.full((len(rows) - 1, len(names)), np.nan)
-    for i, r in enumerate(rows[1:]):
-        for j, v in enumerate(r[1:len(names) + 1]):
-            if isinstance(v, float):
-                x[i, j] = v
+    """The Responses sheet's answers as the report service read them: item names and values (NaN = empty)."""
+    sheet = doc.Sheets.getByName("Responses")
+    cur = sheet.createCursor()
+    cur.gotoStartOfUsedArea(False)
+    cur.gotoEndOfUsedArea(True)
+    a = cur.RangeAddress
+    rows = sheet.getCellRangeByPosition(1, 0, a.EndColumn, a.EndRow).getDataArray()
+    names = list(rows[0])
+    x = np.array([[v if isinstance(v, float) else np.nan for v in r] for r in rows[1:]])
     return names, x
 
 
@@ -149,6 +149,7 @@ def run_report(office, out_dir):
     say(f"saved the workbook with the report: {os.path.relpath(result)}")
 
     summary = read_summary(doc, report_sheets)
+    summary["answers"] = responses_values(doc)
 
     # The report alone, each sheet fitted to the page width, for the PDF.
     for name in list(doc.Sheets.ElementNames):
@@ -205,12 +206,9 @@ def read_summary(doc, report_sheets):
             "sheets": report_sheets}
 
 
-def check_against_library(doc_path, summary):
+def check_against_library(summary):
     import lode  # the C library through its Python binding (LODE_LIBRARY)
-    with open(os.path.join(HERE, "volunteer-survey-responses.csv"), newline="") as f:
-        rows = list(csv.reader(f))
-    names = rows[0][1:]
-    x = np.array([[float(v) if v != "" else np.nan for v in r[1:]] for r in rows[1:]])
+    names, x = summary["answers"]
     ref = lode.correlation(x, method="pearson", missing="pairwise", item_names=names)
     got = summary["first_eigenvalue"]
     if got is None:
@@ -265,7 +263,7 @@ def main():
             f"and install, {office.timings.get('start_to_connect_s', 0):.0f} s to start)")
         result, report_only, summary = run_report(office, out_dir)
     say("stopped that LibreOffice; checking the report against the C library")
-    ref = check_against_library(result, summary)
+    ref = check_against_library(summary)
     pdf, pngs = export_pdf_png(report_only, out_dir)
 
     print()
