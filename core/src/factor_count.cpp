@@ -635,17 +635,21 @@ FactorCountResult assemble(const CorrelationResult& corr, ParallelAnalysisResult
         "no factor stands out from random data: even the largest eigenvalue of the reduced correlation matrix "
         "({:.3f}) does not exceed {} ({:.3f}); the items may not share a common factor",
         pa.observed_factor(0), against, pa.random_factor_threshold()(0));
+  } else if (out.suggested == p) {
+    out.reason = fmt::format(
+        "{} {}: parallel analysis on factor eigenvalues is the primary rule here (common practice), and all {} "
+        "eigenvalues of the reduced correlation matrix exceed {}",
+        out.suggested, plural(out.suggested), p, against);
   } else {
     out.reason = fmt::format(
-        "{} {}: parallel analysis on factor eigenvalues is the primary rule here (common practice), and the first {} "
-        "eigenvalues of the reduced correlation matrix exceed {}, the {}th does not ({:.3f} against {:.3f})",
+        "{} {}: parallel analysis on factor eigenvalues is the primary rule here (common practice); the first {} "
+        "eigenvalues of the reduced correlation matrix exceed {}, eigenvalue {} does not ({:.3f} against {:.3f})",
         out.suggested, plural(out.suggested), out.suggested, against, out.suggested + 1,
-        out.suggested < p ? pa.observed_factor(out.suggested) : std::numeric_limits<double>::quiet_NaN(),
-        out.suggested < p ? pa.random_factor_threshold()(out.suggested) : std::numeric_limits<double>::quiet_NaN());
+        pa.observed_factor(out.suggested), pa.random_factor_threshold()(out.suggested));
   }
   const Index map = out.map.suggested_squared;
   if (map == out.suggested)
-    out.reason += fmt::format("; the minimum average partial test agrees");
+    out.reason += "; the minimum average partial test agrees";
   else
     out.reason += fmt::format("; the minimum average partial test suggests {}", map);
   if (low != high)
