@@ -475,6 +475,8 @@ RandomEigenvalues permuted_eigenvalues(const Matrix& data, const CorrelationOpti
   // With missing values: each column's answers are shuffled among that column's answered rows (the
   // missing-value pattern stays exactly as observed), then correlated with the same options.
   const auto rows = answered_rows(data);
+  CorrelationOptions inner = copts;
+  inner.threads = 1;  // the replicates are already spread over the threads
   run_chunks(o.replicates, o, [&](Index begin, Index end) {
     Workspace w(p);
     Matrix shuffled = data;
@@ -488,7 +490,7 @@ RandomEigenvalues permuted_eigenvalues(const Matrix& data, const CorrelationOpti
         std::shuffle(values.begin(), values.end(), engine);
         for (std::size_t t = 0; t < rj.size(); ++t) shuffled(rj[t], j) = values[t];
       }
-      w.r = correlation(shuffled, copts).matrix;
+      w.r = correlation(shuffled, inner).matrix;
       generic_replicate(w, k, out.pc.col(k), out.factor.col(k));
     }
   });

@@ -69,11 +69,13 @@ TEST(FactorCount, WishartRouteMatchesBruteForceSimulation) {
   o.replicates = reps;
   o.seed = 101;
   const RandomEigenvalues w = random_eigenvalues(p, n, o);
+  CorrelationOptions one_thread;
+  one_thread.threads = 1;
   auto brute = [&](Index rows, std::uint64_t seed) {
     RandomEigenvalues b{Matrix(p, reps), Matrix(p, reps)};
     for (Index k = 0; k < reps; ++k) {
       auto rng = random_stream(seed, static_cast<std::uint64_t>(k));
-      const Matrix r = correlation(standard_normal_matrix(rows, p, rng)).matrix;
+      const Matrix r = correlation(standard_normal_matrix(rows, p, rng), one_thread).matrix;
       b.pc.col(k) = eigenvalues_descending(r);
       b.factor.col(k) = reduced_eigenvalues(r);
     }
