@@ -195,10 +195,10 @@ bool tridiagonal_eigenvalues_pair(QlState& a, QlState& b) {
 // Per-unit scratch space for one replicate's eigenvalues: allocated once per chunk.
 struct Workspace {
   explicit Workspace(Index p)
-      : a(Matrix::Zero(p, p)), r(p, p), inv(p, p), d(p), rinv(p), diag_pc(p), off_pc(p), diag_f(p), off_f(p), tri(p),
+      : a(Matrix::Zero(p, p)), r(p, p), inv(p, p), d(p), rinv(p), column(p), diag_pc(p), off_pc(p), diag_f(p), off_f(p), tri(p),
         llt(p) {}
   Matrix a, r, inv;
-  Vector d, rinv, diag_pc, off_pc, diag_f, off_f;
+  Vector d, rinv, column, diag_pc, off_pc, diag_f, off_f;
   Eigen::Tridiagonalization<Matrix> tri;
   Eigen::LLT<Matrix> llt;
 };
@@ -306,9 +306,14 @@ void wishart_into(Index p, Index n_obs, RandomEngine& engine, Workspace& w) {
 void normal_replicate(Index p, Index n_obs, RandomEngine& engine, Workspace& w, Eigen::Ref<Vector> pc,
                       Eigen::Ref<Vector> factor) {
   wishart_into(p, n_obs, engine, w);
-  w.inv.setIdentity();
-  w.a.triangularView<Eigen::Lower>().solveInPlace(w.inv);
-  w.rinv = (w.d.array() * w.inv.colwise().squaredNorm().transpose().array()).matrix();
+  // Column j of A^-1 is zero above row j; below, it solves the trailing triangle against e_1.
+  for (Index j = 0; j < p; ++j) {
+    auto column = w.column.head(p - j);
+    column.setZero();
+    column(0) = 1.0;
+    w.a.bottomRightCorner(p - j, p - j).triangularView<Eigen::Lower>().solveInPlace(column);
+    w.rinv(j) = w.d(j) * column.squaredNorm();
+  }
   eigen_pair(w, pc, factor);
 }
 
