@@ -437,14 +437,11 @@ RandomEigenvalues permuted_eigenvalues(const Matrix& data, const CorrelationOpti
                                        const ParallelAnalysisOptions& o) {
   check_options(o);
   validate_data(data, copts);
-  if (copts.kind == CorrelationKind::polychoric)
-    throw Error(ErrorCode::invalid_argument,
-                "permutation parallel analysis with polychoric correlations is not available in this build");
   const Index n = data.rows(), p = data.cols();
   const bool complete = !data.array().isNaN().any();
   RandomEigenvalues out{Matrix(p, o.replicates), Matrix(p, o.replicates)};
 
-  if (complete) {
+  if (complete && copts.kind != CorrelationKind::polychoric) {
     // Fast path. Pearson and Spearman coefficients of complete data are Z'Z for columns standardised
     // to unit length (of the ranks, for Spearman); permuting rows within a column permutes Z's column,
     // so Z is computed once.
@@ -477,8 +474,9 @@ RandomEigenvalues permuted_eigenvalues(const Matrix& data, const CorrelationOpti
     return out;
   }
 
-  // With missing values: each column's answers are shuffled among that column's answered rows (the
-  // missing-value pattern stays exactly as observed), then correlated with the same options.
+  // With missing values, or polychoric correlations: each column's answers are shuffled among that
+  // column's answered rows (the missing-value pattern and each item's category frequencies stay
+  // exactly as observed), then correlated with the same options.
   const auto rows = answered_rows(data);
   CorrelationOptions inner = copts;
   inner.threads = 1;  // the replicates are already spread over the threads
