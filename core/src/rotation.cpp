@@ -215,6 +215,13 @@ StartResult gpa(const Matrix& a, Matrix t, const RotationOptions& o, bool obliqu
       lt = rotated(a, tt, oblique);
       ct = detail::evaluate_criterion(lt, o);
       if (ct.value < cv.value - 0.5 * s * s * alpha) break;
+      // Near the optimum the decrease falls to the level of rounding noise in the criterion while
+      // the gradient is still accurate: there also accept a step that does not raise the criterion
+      // beyond that noise and shrinks the projected gradient.
+      const double noise = 64.0 * std::numeric_limits<double>::epsilon() * (1.0 + std::abs(cv.value));
+      if (ct.value <= cv.value + noise &&
+          project(tt, gradient_wrt_t(tt, lt, ct.gradient)).norm() < s)
+        break;
       alpha *= 0.5;
     }
     t = std::move(tt);

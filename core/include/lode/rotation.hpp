@@ -68,8 +68,8 @@ struct RotationOptions {
   int random_starts = -1;       // extra random starts besides the unrotated one; -1 = by method:
                                 // 10 for geomin, oblimin, quartimin and oblique CF, 0 otherwise
   std::uint64_t seed = 1;       // random start i draws from random_stream(seed, i)
-  int max_iterations = 10000;   // per start (sweeps for varimax_kaiser)
-  double tolerance = 1e-8;      // Frobenius norm of the projected gradient (GPA); largest planar
+  int max_iterations = 20000;   // per start (sweeps for varimax_kaiser)
+  double tolerance = 1e-6;      // Frobenius norm of the projected gradient (GPA); largest planar
                                 // angle in a sweep, in radians (varimax_kaiser)
   double best_tolerance = 1e-6; // a start "reached the best" when its criterion is within
                                 // best_tolerance * max(1, |best|) of the best value
