@@ -301,13 +301,15 @@ TEST(Rotation, RandomStartsAreDeterministicAndThreadIndependent) {
   EXPECT_EQ(one.pattern, two.pattern);
   EXPECT_EQ(one.starts.best_start, two.starts.best_start);
   EXPECT_EQ(one.starts.distinct_solutions, two.starts.distinct_solutions);
-  // Starts that converge to criteria clearly above the best are distinct local minima.
+  // With epsilon = 0.001 geomin has several local minima on these loadings (Browne 2001 warns of
+  // them for small epsilon): some starts end clearly above the best, and those are reported as
+  // distinct solutions and not counted as reaching the best.
   int above = 0;
   for (double c : one.starts.criteria) above += c > one.criterion + 1e-4 ? 1 : 0;
-  if (above > 0) {
-    EXPECT_GE(one.starts.distinct_solutions, 2);
-  }
-  EXPECT_EQ(one.starts.reached_best + above <= one.starts.starts, true);
+  EXPECT_GE(above, 1);
+  EXPECT_GE(one.starts.distinct_solutions, 2);
+  EXPECT_LE(one.starts.reached_best + above, one.starts.converged);
+  EXPECT_GE(one.starts.reached_best, 1);
   o.seed = 8;
   EXPECT_NE(rotate(a, o).starts.criteria, one.starts.criteria);
 }
