@@ -224,6 +224,8 @@ StartResult gpa(const Matrix& a, Matrix t, const RotationOptions& o, bool obliqu
         break;
       alpha *= 0.5;
     }
+    // A step that degenerates (an oblique T near singular) ends the start, reported unconverged.
+    if (!std::isfinite(ct.value) || !tt.allFinite()) break;
     t = std::move(tt);
     l = std::move(lt);
     cv = std::move(ct);
