@@ -6,6 +6,7 @@
 
 #include <lode.h>
 
+#include <chrono>
 #include <cstdint>
 #include <memory>
 #include <string>
@@ -15,6 +16,14 @@ namespace lode::addin {
 
 // Each C ABI status becomes the failure shown in the cell (README, "Cell functions", "Errors").
 Failure failure_of_status(int status) noexcept;
+
+// The time a single formula may compute: long calls are cancelled through the C ABI's progress
+// callback (deadline_progress with a Deadline as its user pointer) and show Err:502.
+inline constexpr std::chrono::seconds kTimeLimit{30};
+struct Deadline {
+  std::chrono::steady_clock::time_point until = std::chrono::steady_clock::now() + kTimeLimit;
+};
+int deadline_progress(void* user, std::int64_t done, std::int64_t total);
 
 // Throws CellError with lode_last_error()'s text when `status` is not LODE_OK.
 void check(int status, const char* what);

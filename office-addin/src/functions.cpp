@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <cctype>
+#include <chrono>
 #include <cmath>
 #include <initializer_list>
 #include <string>
@@ -34,6 +35,10 @@ Failure failure_of_status(int status) noexcept {
 
 void check(int status, const char* what) {
   if (status == LODE_OK) return;
+  if (status == LODE_E_CANCELLED)
+    throw CellError(Failure::too_large, std::string(what) + ": stopped after " + std::to_string(kTimeLimit.count()) +
+                                            " s, the time limit of a cell function; use fewer rows, items or "
+                                            "replicates");
   const char* detail = lode_last_error();
   throw CellError(failure_of_status(status),
                   std::string(what) + ": " + (detail && *detail ? detail : lode_status_name(status)));
@@ -47,6 +52,10 @@ Output to_output(const Matrix& m) {
     if (!std::isfinite(v)) out.cells[i].error = Failure::not_computable;
   }
   return out;
+}
+
+int deadline_progress(void* user, std::int64_t, std::int64_t) {
+  return std::chrono::steady_clock::now() > static_cast<const Deadline*>(user)->until ? 1 : 0;
 }
 
 namespace {
@@ -169,6 +178,9 @@ std::shared_ptr<const lode_correlation> correlation(const Call& call, const Inpu
         check(lode_correlation_options_init(&opts, sizeof opts), "correlation options");
         opts.kind = spec.kind;
         opts.missing = spec.missing;
+        Deadline deadline;
+        opts.progress = deadline_progress;
+        opts.progress_user = &deadline;
         lode_correlation* c = nullptr;
         check(lode_correlate(data.get(), &opts, &c), "correlation");
         return std::shared_ptr<const lode_correlation>(c, [](const lode_correlation* p) {
@@ -200,7 +212,8 @@ Output fn_version(const Call&) {
 Output fn_corr(const Call& call) {
   const Input in = read_input(call.args[0], "data");
   CorrelationSpec spec;
-  spec.kind = choice(call.args[1], "kind", {"pearson", "spearman"}) == 0 ? LODE_PEARSON : LODE_SPEARMAN;
+  const int kinds[] = {LODE_PEARSON, LODE_SPEARMAN, LODE_POLYCHORIC};
+  spec.kind = kinds[choice(call.args[1], "kind", {"pearson", "spearman", "polychoric"})];
   spec.missing = choice(call.args[2], "missing", {"pairwise", "listwise"}) == 0 ? LODE_PAIRWISE : LODE_LISTWISE;
   auto c = correlation(call, in, spec);
   return to_output(correlation_matrix(c.get(), LODE_CORRELATION_MATRIX, "correlation matrix"));

@@ -21,7 +21,9 @@ const std::vector<FunctionSpec> kTable = {
      "LODE.CORR",
      "The correlation matrix of the items (items x items; an array formula).",
      {{"data", ArgKind::range, kDataHelp},
-      {"kind", ArgKind::value, "\"pearson\" (default) or \"spearman\""},
+      {"kind", ArgKind::value,
+       "\"pearson\" (default), \"spearman\" or \"polychoric\" (ordinal items with at most 10 categories; "
+       "tetrachoric for two)"},
       {"missing", ArgKind::value, "\"pairwise\" (default: each correlation uses the rows answering both items) or "
                                   "\"listwise\" (only rows answering every item)"}},
      "items x items", "none beyond Err:502", fn_corr},

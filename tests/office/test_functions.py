@@ -137,9 +137,29 @@ def test_formulas_survive_save_and_reload(office, book, attitude, tmp_path):
             out = doc.Sheets.getByName("Out")
             top = book.next_row - p - 1
             cell = out.getCellByPosition(0, top)
-            assert "LODE.CORR" in cell.getFormula().upper()
+            assert "LODE.CORR(" in cell.FormulaLocal.upper()  # what the user sees after reloading
             after = np.array([[out.getCellByPosition(j, top + i).getValue() for j in range(p)] for i in range(p)])
         assert np.max(np.abs(after - before)) == 0.0
     finally:
         with office.watchdog(60):
             doc.close(True)
+
+
+def test_corr_polychoric_matches_polycor_and_c(book, attitude):
+    """Ordinal items: attitude's ratings cut at their quartiles into four ordered categories."""
+    names, x = attitude
+    cuts = np.percentile(x, [25, 50, 75], axis=0)
+    ordinal = np.array([[1 + np.searchsorted(cuts[:, j], x[i, j], side="right") for j in range(x.shape[1])]
+                        for i in range(x.shape[0])], dtype=float)
+    rng = book.put(ordinal, names)
+    p = x.shape[1]
+    cells = book.numbers(f'=LODE.CORR({rng};"polychoric")', p, p)
+    assert np.max(np.abs(cells - lode.correlation(ordinal, method="polychoric").matrix)) < TOL
+    # r-cran-polycor: polycor::polychor, two-step estimate (Olsson 1979), pair by pair
+    ref = run_r("""
+      library(polycor)
+      p <- ncol(X); R <- diag(p)
+      for (i in 1:(p - 1)) for (j in (i + 1):p) R[i, j] <- R[j, i] <- polychor(X[, i], X[, j])
+      emit("R", R)
+    """, {"X": ordinal})
+    assert np.max(np.abs(cells - ref["R"])) < 1e-3
