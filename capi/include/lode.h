@@ -241,6 +241,44 @@ LODE_API int lode_correlation_value(const lode_correlation* corr, int key, doubl
 LODE_API int lode_correlation_text(const lode_correlation* corr, int key, char* out, size_t capacity,
                                    size_t* length);
 
+/* ------------------------------------------------------------------------------------------- */
+/* Factorability: is the correlation matrix worth factoring?                                    */
+/* ------------------------------------------------------------------------------------------- */
+
+typedef struct lode_factorability lode_factorability;
+
+/* Kaiser-Meyer-Olkin overall and per item (MSA), Bartlett's (1950) test of sphericity, the
+ * determinant and the squared multiple correlations of `corr`'s matrix. Parts that cannot be
+ * computed (KMO of a matrix that is not positive definite, Bartlett's test without n_obs) are left
+ * out with a note; asking for them gives the status and the reason. */
+LODE_API int lode_assess_factorability(const lode_correlation* corr, lode_factorability** out);
+
+LODE_API void lode_factorability_free(lode_factorability* f);
+
+enum lode_factorability_key {
+  /* matrices: lode_factorability_matrix */
+  LODE_FACTORABILITY_MSA = 200,  /* items x 1: each item's measure of sampling adequacy
+                                    (LODE_E_NOT_POSITIVE_DEFINITE when unavailable) */
+  LODE_FACTORABILITY_SMC = 201,  /* items x 1: squared multiple correlations (same) */
+  /* numbers: lode_factorability_value */
+  LODE_FACTORABILITY_KMO = 220,  /* overall KMO (LODE_E_NOT_POSITIVE_DEFINITE when unavailable) */
+  LODE_FACTORABILITY_BARTLETT_CHI_SQUARE = 221, /* LODE_E_INSUFFICIENT_DATA without n_obs */
+  LODE_FACTORABILITY_BARTLETT_DF = 222,
+  LODE_FACTORABILITY_BARTLETT_P_VALUE = 223,
+  LODE_FACTORABILITY_BARTLETT_N_OBS = 224,
+  LODE_FACTORABILITY_DETERMINANT = 225,     /* of the correlation matrix */
+  LODE_FACTORABILITY_LOG_DETERMINANT = 226, /* NaN when the determinant is not positive */
+  /* text: lode_factorability_text */
+  LODE_FACTORABILITY_KMO_LABEL = 250,       /* Kaiser's (1974) verbal label of the overall KMO */
+  LODE_FACTORABILITY_NOTES = 251            /* remarks, one per line */
+};
+
+LODE_API int lode_factorability_matrix(const lode_factorability* f, int key, double* out, size_t capacity,
+                                       int64_t* rows, int64_t* cols);
+LODE_API int lode_factorability_value(const lode_factorability* f, int key, double* value);
+LODE_API int lode_factorability_text(const lode_factorability* f, int key, char* out, size_t capacity,
+                                     size_t* length);
+
 #ifdef __cplusplus
 } /* extern "C" */
 #endif

@@ -527,6 +527,90 @@ static void test_polychoric(void) {
   lode_data_free(d);
 }
 
+
+/* An exact two-factor population correlation matrix: items 1-3 load .8/.7/.6 on factor 1, items
+ * 4-6 load .7/.6/.5 on factor 2, uncorrelated factors. A two-factor model reproduces it exactly
+ * (common practice: the population check of an extraction). Its eigenvalues (numpy.linalg.eigvalsh)
+ * are 1.976, 1.716, 0.711, 0.593, 0.573, 0.431: two above one. */
+static void population_matrix(double* r) {
+  const double l[6] = {0.8, 0.7, 0.6, 0.7, 0.6, 0.5};
+  int i, j;
+  for (i = 0; i < 6; ++i)
+    for (j = 0; j < 6; ++j) r[i * 6 + j] = i == j ? 1.0 : ((i < 3) == (j < 3) ? l[i] * l[j] : 0.0);
+}
+
+static lode_correlation* population_correlation(int64_t n_obs) {
+  double r[36];
+  lode_data* d = NULL;
+  lode_correlation* c = NULL;
+  population_matrix(r);
+  OK(lode_data_from_correlation(r, 6, 6, 1, n_obs, &d));
+  OK(lode_correlate(d, NULL, &c));
+  lode_data_free(d);
+  return c;
+}
+
+static void test_factorability(void) {
+  lode_correlation* c = population_correlation(200);
+  lode_correlation* c0 = population_correlation(0);
+  lode_factorability* f = NULL;
+  double v, msa[6], smc[6];
+  char label[64];
+  size_t len = 0;
+  int64_t rows = 0, cols = 0;
+  int i;
+
+  EXPECT(lode_assess_factorability(NULL, &f), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
+  EXPECT(lode_assess_factorability(c, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  OK(lode_assess_factorability(c, &f));
+  OK(lode_factorability_value(f, LODE_FACTORABILITY_KMO, &v));
+  CHECK(v > 0.5 && v < 1.0);
+  OK(lode_factorability_matrix(f, LODE_FACTORABILITY_MSA, NULL, 0, &rows, &cols));
+  CHECK(rows == 6 && cols == 1);
+  OK(lode_factorability_matrix(f, LODE_FACTORABILITY_MSA, msa, 6, NULL, NULL));
+  for (i = 0; i < 6; ++i) CHECK(msa[i] > 0.0 && msa[i] < 1.0);
+  EXPECT(lode_factorability_matrix(f, LODE_FACTORABILITY_MSA, msa, 5, NULL, NULL), LODE_E_BUFFER_TOO_SMALL, "holds 5");
+  OK(lode_factorability_matrix(f, LODE_FACTORABILITY_SMC, smc, 6, NULL, NULL));
+  for (i = 0; i < 6; ++i) CHECK(smc[i] > 0.0 && smc[i] < 1.0);
+  OK(lode_factorability_value(f, LODE_FACTORABILITY_BARTLETT_CHI_SQUARE, &v));
+  CHECK(v > 0.0);
+  OK(lode_factorability_value(f, LODE_FACTORABILITY_BARTLETT_DF, &v));
+  CHECK(v == 15.0);
+  OK(lode_factorability_value(f, LODE_FACTORABILITY_BARTLETT_P_VALUE, &v));
+  CHECK(v >= 0.0 && v < 1e-6);
+  OK(lode_factorability_value(f, LODE_FACTORABILITY_BARTLETT_N_OBS, &v));
+  CHECK(v == 200.0);
+  OK(lode_factorability_value(f, LODE_FACTORABILITY_DETERMINANT, &v));
+  CHECK(v > 0.0 && v < 1.0);
+  OK(lode_factorability_value(f, LODE_FACTORABILITY_LOG_DETERMINANT, &v));
+  CHECK(v < 0.0);
+  OK(lode_factorability_text(f, LODE_FACTORABILITY_KMO_LABEL, NULL, 0, &len));
+  CHECK(len > 0 && len < sizeof label);
+  OK(lode_factorability_text(f, LODE_FACTORABILITY_KMO_LABEL, label, sizeof label, NULL));
+  CHECK(strlen(label) == len);
+  OK(lode_factorability_text(f, LODE_FACTORABILITY_NOTES, NULL, 0, &len));
+  EXPECT(lode_factorability_text(f, LODE_FACTORABILITY_KMO_LABEL, label, 2, NULL), LODE_E_BUFFER_TOO_SMALL, "buffer");
+  EXPECT(lode_factorability_value(f, LODE_FACTORABILITY_MSA, &v), LODE_E_INVALID_ARGUMENT, "key 200");
+  EXPECT(lode_factorability_value(f, LODE_FACTORABILITY_KMO, NULL), LODE_E_INVALID_ARGUMENT, "'value' is NULL");
+  EXPECT(lode_factorability_matrix(f, LODE_FACTORABILITY_KMO, msa, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "key 220");
+  EXPECT(lode_factorability_text(f, LODE_CORRELATION_NOTES, label, 64, NULL), LODE_E_INVALID_ARGUMENT, "key 150");
+  EXPECT(lode_factorability_value(NULL, LODE_FACTORABILITY_KMO, &v), LODE_E_INVALID_ARGUMENT, "'f' is NULL");
+  EXPECT(lode_factorability_matrix(NULL, LODE_FACTORABILITY_MSA, msa, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT(lode_factorability_text(NULL, LODE_FACTORABILITY_NOTES, label, 64, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  lode_factorability_free(f);
+  f = NULL;
+
+  /* without n_obs: Bartlett's test is unavailable, with the reason */
+  OK(lode_assess_factorability(c0, &f));
+  EXPECT(lode_factorability_value(f, LODE_FACTORABILITY_BARTLETT_CHI_SQUARE, &v), LODE_E_INSUFFICIENT_DATA, "n_obs");
+  OK(lode_factorability_value(f, LODE_FACTORABILITY_KMO, &v));
+  lode_factorability_free(f);
+  lode_factorability_free(NULL);
+  lode_correlation_free(c);
+  lode_correlation_free(c0);
+}
+
+
 static void test_last_error_is_cleared(void) {
   lode_data* d = NULL;
   EXPECT(lode_data_from_raw(NULL, 1, 1, 1, 1, &d), LODE_E_INVALID_ARGUMENT, "NULL");
@@ -545,6 +629,7 @@ int main(void) {
   test_matrix_input();
   test_correlation();
   test_polychoric();
+  test_factorability();
   test_last_error_is_cleared();
   printf("%d checks, %d failures\n", checks, failures);
   return failures == 0 ? 0 : 1;

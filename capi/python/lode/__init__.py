@@ -13,7 +13,7 @@ import numpy as np
 from . import _native
 from ._native import LodeError, lib, check
 
-__all__ = ["LodeError", "version", "correlation", "Correlation"]
+__all__ = ["LodeError", "version", "correlation", "Correlation", "factorability", "Factorability"]
 
 # Keys of lode.h (enum lode_correlation_key).
 _CORRELATION_MATRIX = 100
@@ -198,3 +198,67 @@ def correlation(X=None, *, corr=None, cov=None, n_obs=None, method="pearson", mi
     data = _make_data(X, corr, cov, n_obs, item_names)
     return _correlate(data, method, missing, smooth, min_eigenvalue, min_pair_observations, threads, max_categories,
                       zero_cells, zero_cell_add, progress)
+
+
+# ---- factorability ---------------------------------------------------------------------------------
+
+class Factorability(_native.Handle):
+    """Is the correlation matrix worth factoring?
+
+    Attributes: ``kmo`` (overall Kaiser-Meyer-Olkin; None when the matrix is not positive
+    definite), ``kmo_label`` (Kaiser's 1974 verbal label), ``msa`` (per item), ``bartlett`` (a dict
+    with ``chi_square``, ``df``, ``p_value``, ``n_obs``; None without n_obs), ``determinant``,
+    ``log_determinant``, ``smc`` (squared multiple correlations) and ``notes``.
+    """
+
+    _free = "lode_factorability_free"
+
+    def __init__(self, pointer):
+        super().__init__(pointer)
+        m, v, t = lib.lode_factorability_matrix, lib.lode_factorability_value, lib.lode_factorability_text
+        self.kmo = _optional(lambda: _native.get_value(v, pointer, 220))
+        self.kmo_label = _optional(lambda: _native.get_text(t, pointer, 250))
+        self.msa = _optional(lambda: _native.get_matrix(m, pointer, 200)[:, 0])
+        self.smc = _optional(lambda: _native.get_matrix(m, pointer, 201)[:, 0])
+        chi = _optional(lambda: _native.get_value(v, pointer, 221))
+        self.bartlett = None if chi is None else {
+            "chi_square": chi, "df": _native.get_value(v, pointer, 222), "p_value": _native.get_value(v, pointer, 223),
+            "n_obs": int(_native.get_value(v, pointer, 224))}
+        self.determinant = _native.get_value(v, pointer, 225)
+        self.log_determinant = _native.get_value(v, pointer, 226)
+        self.notes = _lines(_native.get_text(t, pointer, 251))
+
+    def __repr__(self):
+        return f"<lode.Factorability kmo={self.kmo}>"
+
+
+def _optional(get):
+    try:
+        return get()
+    except LodeError:
+        return None
+
+
+def _lines(text):
+    return text.split("\n") if text else []
+
+
+def _correlation_of(X, corr, cov, n_obs, correlation, missing, smooth, item_names):
+    if isinstance(X, Correlation):
+        return X
+    data = _make_data(X, corr, cov, n_obs, item_names)
+    return _correlate(data, correlation, missing, smooth, 1e-6, 3)
+
+
+def factorability(X=None, *, corr=None, cov=None, n_obs=None, correlation="pearson", missing="pairwise",
+                  smooth=False, item_names=None):
+    """Kaiser-Meyer-Olkin (overall and per item), Bartlett's test of sphericity, the determinant and
+    the squared multiple correlations of the data's correlation matrix (raw data ``X``, or ``corr``
+    / ``cov`` with ``n_obs``; ``X`` may also be a :class:`Correlation`). Returns a
+    :class:`Factorability`."""
+    c = _correlation_of(X, corr, cov, n_obs, correlation, missing, smooth, item_names)
+    ptr = ctypes.c_void_p()
+    check(lib.lode_assess_factorability(c.pointer, ctypes.byref(ptr)))
+    return Factorability(ptr.value)
+
+

@@ -109,6 +109,16 @@ if _info.abi_major != ABI_MAJOR:
     raise ImportError(f"liblode has ABI {_info.abi_major}.{_info.abi_minor}; this binding needs ABI {ABI_MAJOR}.x")
 
 
+_factorability_signatures = {
+    "lode_assess_factorability": (c_int, [c_void_p, P_void_p]),
+    "lode_factorability_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
+    "lode_factorability_value": (c_int, [c_void_p, c_int, P_double]),
+    "lode_factorability_text": (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t]),
+    "lode_factorability_free": (None, [c_void_p]),
+}
+declare(_factorability_signatures)
+
+
 def check(status):
     """Raises LodeError for a failing status, with the library's message."""
     if status != 0:
