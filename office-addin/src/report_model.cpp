@@ -76,6 +76,53 @@ std::string read_corr_notes(const lode_correlation* c) {
   return s;
 }
 
+struct FactFree {
+  void operator()(lode_factorability* p) const noexcept { lode_factorability_free(p); }
+};
+
+// A factorability result that may be unavailable: the value, or the C ABI's reason.
+struct Maybe {
+  double value = kNaN;
+  std::string reason;  // empty when the value is there
+};
+Maybe fact_value(const lode_factorability* f, int key) {
+  Maybe m;
+  if (lode_factorability_value(f, key, &m.value) != LODE_OK) m.reason = lode_last_error();
+  return m;
+}
+std::string fact_text(const lode_factorability* f, int key) {
+  size_t len = 0;
+  if (lode_factorability_text(f, key, nullptr, 0, &len) != LODE_OK) return {};
+  std::string s(len + 1, '\0');
+  if (lode_factorability_text(f, key, s.data(), s.size(), &len) != LODE_OK) return {};
+  s.resize(len);
+  return s;
+}
+std::vector<double> fact_vector(const lode_factorability* f, int key, std::string& reason) {
+  std::int64_t r = 0, c = 0;
+  if (lode_factorability_matrix(f, key, nullptr, 0, &r, &c) != LODE_OK) {
+    reason = lode_last_error();
+    return {};
+  }
+  std::vector<double> out(static_cast<std::size_t>(r * c));
+  if (lode_factorability_matrix(f, key, out.data(), out.size(), &r, &c) != LODE_OK) {
+    reason = lode_last_error();
+    return {};
+  }
+  return out;
+}
+std::vector<std::string> lines_of(const std::string& text) {
+  std::vector<std::string> out;
+  std::size_t start = 0;
+  while (start < text.size()) {
+    std::size_t end = text.find('\n', start);
+    if (end == std::string::npos) end = text.size();
+    if (end > start) out.push_back(text.substr(start, end - start));
+    start = end + 1;
+  }
+  return out;
+}
+
 // Progress from the C ABI into the run's callback (which may cancel).
 struct ProgressBridge {
   const Progress* progress;
@@ -260,6 +307,19 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   const double pos_def = read_corr_value(corr.get(), LODE_CORRELATION_POSITIVE_DEFINITE);
   const std::string notes = read_corr_notes(corr.get());
 
+  // Factorability (KMO, MSA, Bartlett) through the C ABI; parts it cannot compute come with a reason.
+  lode_factorability* raw_fact = nullptr;
+  check(lode_assess_factorability(corr.get(), &raw_fact), "assessing factorability");
+  std::unique_ptr<lode_factorability, FactFree> fact(raw_fact);
+  const Maybe kmo = fact_value(fact.get(), LODE_FACTORABILITY_KMO);
+  const std::string kmo_label = fact_text(fact.get(), LODE_FACTORABILITY_KMO_LABEL);
+  const Maybe chi2 = fact_value(fact.get(), LODE_FACTORABILITY_BARTLETT_CHI_SQUARE);
+  const Maybe chi2_df = fact_value(fact.get(), LODE_FACTORABILITY_BARTLETT_DF);
+  const Maybe chi2_p = fact_value(fact.get(), LODE_FACTORABILITY_BARTLETT_P_VALUE);
+  std::string msa_reason;
+  const std::vector<double> msa = fact_vector(fact.get(), LODE_FACTORABILITY_MSA, msa_reason);
+  const std::vector<std::string> fact_notes = lines_of(fact_text(fact.get(), LODE_FACTORABILITY_NOTES));
+
   // Eigenvalues above 1: common practice (Kaiser 1960), known to over-count; shown as one piece of evidence.
   std::size_t above_one = 0;
   double total = 0.0;
@@ -296,8 +356,22 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   ov.blank();
   ov.line({Cell::txt("Can these items be factored?", heading), Cell::txt("", heading)});
   ov.line({Cell::txt("Correlation matrix positive definite", label), Cell::txt(pos_def > 0.5 ? "yes" : "no")});
-  ov.line({Cell::txt("KMO sampling adequacy", label), Cell::txt(missing_feature, note)});
-  ov.line({Cell::txt("Bartlett's test of sphericity", label), Cell::txt(missing_feature, note)});
+  if (kmo.reason.empty())
+    ov.line({Cell::txt("KMO sampling adequacy", label), Cell::num(kmo.value, number),
+             Cell::txt(kmo_label + " (Kaiser 1974); under 0.50 the items share too little to factor", note)});
+  else
+    ov.line({Cell::txt("KMO sampling adequacy", label), Cell::txt("not available: " + kmo.reason, note)});
+  if (chi2.reason.empty()) {
+    ov.line({Cell::txt("Bartlett's test: chi-square", label), Cell::num(chi2.value, number)});
+    ov.line({Cell::txt("Bartlett's test: degrees of freedom", label), Cell::num(chi2_df.value)});
+    ov.line({Cell::txt("Bartlett's test: p-value", label), Cell::num(chi2_p.value),
+             Cell::txt(chi2_p.value < 0.05 ? "the items are correlated, not unrelated (p < 0.05; common practice)"
+                                          : "the items may be unrelated: p is 0.05 or more (common practice)",
+                       note)});
+  } else {
+    ov.line({Cell::txt("Bartlett's test of sphericity", label), Cell::txt("not available: " + chi2.reason, note)});
+  }
+  for (const std::string& n : fact_notes) ov.line({Cell::txt("Note on factorability", flag), Cell::txt(n, note)});
   ov.blank();
   ov.line({Cell::txt("How many factors", heading), Cell::txt("", heading), Cell::txt("", heading), Cell::txt("", heading)});
   ov.line({Cell::txt("Factor", label), Cell::txt("Eigenvalue", label), Cell::txt("Share of variance", label),
@@ -321,6 +395,14 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   ov.blank();
   ov.line({Cell::txt("Items to look at", heading), Cell::txt("", heading), Cell::txt("", heading)});
   bool any_flag = false;
+  for (std::size_t j = 0; j < msa.size() && j < p; ++j)
+    if (msa[j] < 0.50) {  // Kaiser (1974): a sampling adequacy under 0.50 is unacceptable
+      any_flag = true;
+      ov.line({Cell::txt(item_names[j], flag), Cell::num(msa[j], number),
+               Cell::txt("its sampling adequacy (MSA) is under 0.50: the other items say little about it; "
+                         "consider leaving it out",
+                         note)});
+    }
   if (!smc.empty()) {
     for (std::size_t j = 0; j < p; ++j)
       if (smc[j] < 0.20) {  // common practice: an item sharing under a fifth of its variance with the rest
@@ -364,16 +446,18 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   // ---- 2. loadings --------------------------------------------------------------------------
   Sheet ld;
   ld.base_name = names::loadings;
-  ld.column_widths = {4500, 3500, 3500};
+  ld.column_widths = {4500, 5000, 5000};
   ld.line({Cell::txt("Loadings", title)});
   ld.line({Cell::txt("Strong loadings (at least " + fmt_num(o.salient, 2) + ") are shaded; small ones are grey.", note)});
   ld.line({Cell::txt("Factor loadings: " + missing_feature + ". Shown until then: each item's starting "
                      "communality estimate.",
                      note)});
   ld.blank();
-  ld.line({Cell::txt("Item", heading), Cell::txt("Starting communality (SMC)", heading)});
+  ld.line({Cell::txt("Item", heading), Cell::txt("Starting communality (SMC)", heading),
+           Cell::txt("Sampling adequacy (MSA)", heading)});
   for (std::size_t j = 0; j < p; ++j)
-    ld.line({Cell::txt(item_names[j], label), smc.empty() ? Cell::txt(smc_problem, note) : Cell::num(smc[j], number)});
+    ld.line({Cell::txt(item_names[j], label), smc.empty() ? Cell::txt(smc_problem, note) : Cell::num(smc[j], number),
+             msa.empty() ? Cell::txt(msa_reason, note) : Cell::num(msa[j], number)});
   rep.sheets.push_back(std::move(ld));
 
   // ---- 3. factors, residuals, reliability ---------------------------------------------------

@@ -185,11 +185,35 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
     assert np.max(np.abs(eig - np.sort(np.linalg.eigvalsh(ref.matrix))[::-1])) < 1e-10
     assert np.max(np.abs(share - ref.eigenvalues / ref.eigenvalues.sum())) < TOL
     assert find_row(ov, "Eigenvalues above 1")[1] == int(np.sum(ref.eigenvalues > 1))
-    flagged = [r[0] for r in ov if r and r[0] in names]
-    assert flagged == [n for n, s in zip(names, ref.smc) if s < 0.20]
-    for r in ov:
-        if r and r[0] in names:
-            assert abs(r[1] - ref.smc[names.index(r[0])]) < TOL
+    # Factorability: the C library, and the textbook formulas in numpy/scipy (KMO: Kaiser 1974, from
+    # the anti-image partial correlations; Bartlett 1950: -(n - 1 - (2p + 5)/6) log det R on p(p-1)/2 df).
+    fa = lode.factorability(ref)
+    kmo_row = find_row(ov, "KMO sampling adequacy")
+    assert abs(kmo_row[1] - fa.kmo) < TOL and fa.kmo_label in kmo_row[2]
+    R = ref.matrix
+    Ri = np.linalg.inv(R)
+    partial = -Ri / np.sqrt(np.outer(np.diag(Ri), np.diag(Ri)))
+    off = ~np.eye(p, dtype=bool)
+    kmo_np = (R[off] ** 2).sum() / ((R[off] ** 2).sum() + (partial[off] ** 2).sum())
+    assert abs(kmo_row[1] - kmo_np) < 1e-10
+    chi = find_row(ov, "Bartlett's test: chi-square")[1]
+    df = find_row(ov, "Bartlett's test: degrees of freedom")[1]
+    pv = find_row(ov, "Bartlett's test: p-value")[1]
+    assert abs(chi - fa.bartlett["chi_square"]) < TOL and df == fa.bartlett["df"] and pv == fa.bartlett["p_value"]
+    n = fa.bartlett["n_obs"]
+    assert n == ref.n_obs
+    chi_np = -(n - 1 - (2 * p + 5) / 6) * np.linalg.slogdet(R)[1]
+    assert abs(chi - chi_np) < 1e-8 * chi_np and df == p * (p - 1) / 2
+    import scipy.stats
+    assert abs(pv - scipy.stats.chi2.sf(chi_np, df)) < 1e-12
+
+    # Items to look at: MSA under 0.50 (Kaiser 1974), then SMC under 0.20 (common practice).
+    flagged = [r for r in ov if r and r[0] in names]
+    expected = [(nm, m, "MSA") for nm, m in zip(names, fa.msa) if m < 0.50] + \
+               [(nm, s, "squared multiple") for nm, s in zip(names, ref.smc) if s < 0.20]
+    assert [r[0] for r in flagged] == [e[0] for e in expected]
+    for r, (nm, v, why) in zip(flagged, expected):
+        assert abs(r[1] - v) < TOL and why in r[2]
     text = " ".join(str(v) for r in ov for v in r if isinstance(v, str))
     assert "estimates" in text and "validity" in text and "local law" in text  # the cautions on scores
 
@@ -198,6 +222,8 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
     got = {r[0]: r[1] for r in ld[hdr + 1:hdr + 1 + p]}
     assert list(got) == names
     assert max(abs(got[n] - s) for n, s in zip(names, ref.smc)) < TOL
+    msa = [r[2] for r in ld[hdr + 1:hdr + 1 + p]]
+    assert np.max(np.abs(np.array(msa) - fa.msa)) < TOL
     assert "0.35" in ld[1][0]  # the threshold chosen is the one the sheet states
     heading = survey.Sheets.getByName("Lode loadings").getCellByPosition(0, hdr)
     assert heading.CellStyle == "Lode heading"
