@@ -183,6 +183,15 @@ def build(office, doc, available):
         w.row += 1
     w.line("A small p (say below .05) says the items are correlated; with hundreds of respondents it "
            "almost always is, so KMO says more.", italic=True)
+    w.row += 1
+    w.line("Each item's own sampling adequacy (MSA, read like KMO): an item below .50 shares too little "
+           "with the others and is a candidate to drop (Kaiser 1974).", italic=True)
+    if w.uses("LODE.MSA"):
+        w.line("Item", "MSA", bold=True)
+        for i in range(p):  # the item codes, read from the data's first row
+            sheet.getCellByPosition(0, w.row + i).setFormula(f"=$Responses.{col_name(i + 1)}$1")
+        w.array(1, f"=LODE.MSA({data})", p, 1, f3)
+        w.row += p
 
     # 2. Factor count
     w.heading("2. How many factors?")

@@ -178,6 +178,16 @@ def test_against_the_c_library(blocks):
         assert abs(m[0][0] - r2 / (r2 + a2)) < 1e-10
         assert abs(m[0][0] - binding("factorability")(x).kmo) < TOL
         checked.add("LODE.KMO")
+    for f, _, m in by_function(blocks, "LODE.MSA"):
+        # Kaiser (1970): per item, the same ratio over that item's row (numpy)
+        q = np.linalg.inv(ref.matrix)
+        a = -q / np.sqrt(np.outer(np.diag(q), np.diag(q)))
+        off = ~np.eye(p, dtype=bool)
+        r2, a2 = np.where(off, ref.matrix ** 2, 0).sum(axis=1), np.where(off, a ** 2, 0).sum(axis=1)
+        msa = numbers(m)[:, 0]
+        assert np.max(np.abs(msa - r2 / (r2 + a2))) < 1e-10
+        assert np.max(np.abs(msa - binding("factorability")(x).msa)) < TOL
+        checked.add("LODE.MSA")
     for f, _, m in by_function(blocks, "LODE.SPHERICITY"):
         chi2, df, pval = m[0]
         assert df == p * (p - 1) / 2  # Bartlett (1950): p(p-1)/2 degrees of freedom
