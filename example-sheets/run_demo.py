@@ -93,9 +93,13 @@ def sections(rows, headings):
     return out
 
 
-def show(value):
+def show(value, label=""):
     if isinstance(value, float):
-        return f"{value:g}" if value == int(value) else f"{value:.3f}"
+        if value == 0 and "p-value" in label:
+            return "below 1e-300"  # the chi-square's tail underflows a double
+        if value == int(value):
+            return f"{value:g}"
+        return f"{value:.2e}" if abs(value) < 0.001 else f"{value:.3f}"
     return str(value)
 
 
@@ -198,7 +202,7 @@ def read_summary(doc, report_sheets):
         for r in rows:
             if h == "How many factors" and (not isinstance(r[0], str) or r[0] in ("Factor",)):
                 continue  # the eigenvalue table itself is on the sheet; the summary keeps its reading
-            cells = [show(v) for v in r if v is not None]
+            cells = [show(v, str(r[0])) for v in r if v is not None]
             lines.append("    " + ": ".join([cells[0], "  ".join(cells[1:])]) if len(cells) > 1 else "    " + cells[0])
     # The first observed eigenvalue, read from the overview, against the C library on the same cells.
     factor_rows = [r for r in overview if len(r) > 1 and r[0] == 1.0 and isinstance(r[1], float)]
