@@ -27,3 +27,12 @@ list(APPEND LODE_OXT_EXTRA ${GEN}/lode_report.rdb ${PKG}/Addons.xcu ${PKG}/Proto
 
 # For the office tests: the service's type library (their Python needs it) and the program folder.
 set_property(GLOBAL PROPERTY LODE_REPORT_RDB ${GEN}/lode_report.rdb)
+
+# Sections that light up when the C ABI offers them: detected from lode.h at configure time.
+set(_lode_h ${PROJECT_SOURCE_DIR}/capi/include/lode.h)
+set_property(DIRECTORY APPEND PROPERTY CMAKE_CONFIGURE_DEPENDS ${_lode_h})
+file(READ ${_lode_h} _lode_h_text)
+string(FIND "${_lode_h_text}" "lode_count_factors(" _has_count)
+if(_has_count GREATER -1)
+  set_source_files_properties(src/report_model.cpp PROPERTIES COMPILE_DEFINITIONS LODE_REPORT_HAS_COUNT=1)
+endif()

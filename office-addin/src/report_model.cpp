@@ -154,6 +154,92 @@ std::string not_yet() {
   return std::string(kNotYet) + std::to_string(v->abi_major) + "." + std::to_string(v->abi_minor) + ")";
 }
 
+
+// How many factors, through the C ABI's factor count when this liblode has it (report.cmake sets
+// LODE_REPORT_HAS_COUNT from lode.h); otherwise `reason` says what is missing.
+struct CountResult {
+  bool available = false;
+  std::string reason;
+  std::vector<double> random_pc;  // 95th percentile of random-data component eigenvalues
+  double percentile = 95.0;
+  int replicates = 0;
+  int suggested = 0;
+  std::string why;
+  struct Rule {
+    std::string rule, factors, basis;
+    bool primary = false;
+  };
+  std::vector<Rule> rules;
+  std::vector<std::string> notes;
+};
+
+#if LODE_REPORT_HAS_COUNT
+struct CountFree {
+  void operator()(lode_factor_count* p) const noexcept { lode_factor_count_free(p); }
+};
+std::string count_text(const lode_factor_count* f, int key) {
+  size_t len = 0;
+  if (lode_factor_count_text(f, key, nullptr, 0, &len) != LODE_OK) return {};
+  std::string s(len + 1, '\0');
+  if (lode_factor_count_text(f, key, s.data(), s.size(), &len) != LODE_OK) return {};
+  s.resize(len);
+  return s;
+}
+#endif
+
+CountResult count_factors(const lode_correlation* corr, const Options& o, const Progress& progress,
+                          const std::string& missing_feature) {
+  CountResult r;
+#if LODE_REPORT_HAS_COUNT
+  lode_factor_count_options opts;
+  lode_factor_count_options_init(&opts, sizeof opts);
+  opts.seed = o.seed;
+  opts.threads = 1;  // the office's other work keeps a core
+  ProgressBridge bridge{&progress, "parallel analysis", 0.5, 0.9};
+  opts.progress = &ProgressBridge::call;
+  opts.progress_user = &bridge;
+  lode_factor_count* raw = nullptr;
+  const int st = lode_count_factors(corr, &opts, &raw);
+  if (st == LODE_E_CANCELLED) throw Cancelled{};
+  if (st != LODE_OK) {
+    r.reason = lode_last_error();
+    return r;
+  }
+  std::unique_ptr<lode_factor_count, CountFree> count(raw);
+  std::int64_t rows = 0, cols = 0;
+  check(lode_factor_count_matrix(count.get(), LODE_COUNT_RANDOM_PC_PERCENTILE, nullptr, 0, &rows, &cols), "parallel analysis");
+  r.random_pc.resize(static_cast<std::size_t>(rows * cols));
+  check(lode_factor_count_matrix(count.get(), LODE_COUNT_RANDOM_PC_PERCENTILE, r.random_pc.data(), r.random_pc.size(),
+                                 &rows, &cols),
+        "parallel analysis");
+  double v = 0;
+  check(lode_factor_count_value(count.get(), LODE_COUNT_SUGGESTED, &v), "the factor count");
+  r.suggested = static_cast<int>(v);
+  check(lode_factor_count_value(count.get(), LODE_COUNT_PERCENTILE, &r.percentile), "the factor count");
+  check(lode_factor_count_value(count.get(), LODE_COUNT_REPLICATES, &v), "the factor count");
+  r.replicates = static_cast<int>(v);
+  r.why = count_text(count.get(), LODE_COUNT_REASON);
+  for (const std::string& line : lines_of(count_text(count.get(), LODE_COUNT_TABLE))) {
+    CountResult::Rule rule;
+    std::size_t a = line.find('\t'), b = line.find('\t', a + 1), c = line.find('\t', b + 1);
+    if (a == std::string::npos || b == std::string::npos || c == std::string::npos) continue;
+    rule.rule = line.substr(0, a);
+    rule.factors = line.substr(a + 1, b - a - 1);
+    rule.primary = line.substr(b + 1, c - b - 1) == "1";
+    rule.basis = line.substr(c + 1);
+    r.rules.push_back(rule);
+  }
+  r.notes = lines_of(count_text(count.get(), LODE_COUNT_NOTES));
+  r.available = true;
+  (void)missing_feature;
+#else
+  (void)corr;
+  (void)o;
+  (void)progress;
+  r.reason = "parallel analysis is " + missing_feature;
+#endif
+  return r;
+}
 }  // namespace
 
 void validate(const Options& o) {
@@ -280,7 +366,7 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   copts.kind = o.correlation == "spearman" ? LODE_SPEARMAN : o.correlation == "polychoric" ? LODE_POLYCHORIC : LODE_PEARSON;
   copts.missing = o.missing == "listwise" ? LODE_LISTWISE : LODE_PAIRWISE;
   copts.threads = 1;  // the office's other work keeps a core
-  ProgressBridge bridge{&progress, "computing correlations", 0.05, 0.85};
+  ProgressBridge bridge{&progress, "computing correlations", 0.05, 0.5};
   copts.progress = &ProgressBridge::call;
   copts.progress_user = &bridge;
   lode_correlation* raw_corr = nullptr;
@@ -328,6 +414,7 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
     if (e > 1.0) ++above_one;
   }
   const std::string missing_feature = not_yet();
+  const CountResult count = count_factors(corr.get(), o, progress, missing_feature);
   using namespace styles;
 
   // ---- 1. overview --------------------------------------------------------------------------
@@ -374,21 +461,34 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   for (const std::string& n : fact_notes) ov.line({Cell::txt("Note on factorability", flag), Cell::txt(n, note)});
   ov.blank();
   ov.line({Cell::txt("How many factors", heading), Cell::txt("", heading), Cell::txt("", heading), Cell::txt("", heading)});
+  const std::string random_words =
+      count.available ? "Random data (" + fmt_num(count.percentile, 0) + "th percentile of " +
+                            std::to_string(count.replicates) + ")"
+                      : "Random data (parallel analysis)";
   ov.line({Cell::txt("Factor", label), Cell::txt("Eigenvalue", label), Cell::txt("Share of variance", label),
-           Cell::txt("Random data (parallel analysis)", label)});
-  {
-    double cum = 0.0;
-    (void)cum;
-    for (std::size_t k = 0; k < eig.size(); ++k)
-      ov.line({Cell::num(static_cast<double>(k + 1)), Cell::num(eig[k], number), Cell::num(eig[k] / total, number),
-               Cell::txt(k == 0 ? missing_feature : "", note)});
+           Cell::txt(random_words, label)});
+  for (std::size_t k = 0; k < eig.size(); ++k)
+    ov.line({Cell::num(static_cast<double>(k + 1)), Cell::num(eig[k], number), Cell::num(eig[k] / total, number),
+             count.available && k < count.random_pc.size() ? Cell::num(count.random_pc[k], number)
+                                                            : Cell::txt(k == 0 ? count.reason : "", note)});
+  if (count.available) {
+    ov.line({Cell::txt("Rule", label), Cell::txt("Factors", label), Cell::txt("Basis", label)});
+    for (const CountResult::Rule& r : count.rules)
+      ov.line({Cell::txt(r.rule, r.primary ? salient : label), Cell::txt(r.factors), Cell::txt(r.basis, note)});
+    for (const std::string& n : count.notes) ov.line({Cell::txt("Note on the count", flag), Cell::txt(n, note)});
+  } else {
+    ov.line({Cell::txt("Eigenvalues above 1", label), Cell::num(static_cast<double>(above_one)),
+             Cell::txt("a rule of thumb that tends to suggest too many factors (common practice)", note)});
   }
-  ov.line({Cell::txt("Eigenvalues above 1", label), Cell::num(static_cast<double>(above_one)),
-           Cell::txt("a rule of thumb that tends to suggest too many factors (common practice)", note)});
   if (o.factors > 0)
-    ov.line({Cell::txt("Decision", label), Cell::num(o.factors), Cell::txt("factors, as you fixed them", note)});
+    ov.line({Cell::txt("Decision", label), Cell::num(o.factors),
+             Cell::txt(count.available ? "factors, as you fixed them; the evidence suggests " + std::to_string(count.suggested)
+                                       : std::string("factors, as you fixed them"),
+                       note)});
+  else if (count.available)
+    ov.line({Cell::txt("Decision", label), Cell::num(count.suggested), Cell::txt(count.why, note)});
   else
-    ov.line({Cell::txt("Decision", label), Cell::txt("not made: parallel analysis is " + missing_feature, note)});
+    ov.line({Cell::txt("Decision", label), Cell::txt("not made: " + count.reason, note)});
   ov.blank();
   ov.line({Cell::txt("How well the model fits", heading), Cell::txt("", heading)});
   ov.line({Cell::txt("Fit statistics (RMSEA, TLI, SRMR)", label), Cell::txt(missing_feature, note)});
@@ -485,11 +585,21 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   Sheet sc;
   sc.base_name = names::scree;
   sc.line({Cell::txt("Scree: eigenvalues of the item correlations", title)});
-  sc.line({Cell::txt("The random-data line of parallel analysis: " + missing_feature, note)});
+  sc.line({Cell::txt(count.available ? "Where the observed line falls below the random-data line, the factors are no "
+                                        "stronger than chance (parallel analysis, Horn 1965)."
+                                      : "The random-data line of parallel analysis: " + count.reason,
+                    note)});
   sc.blank();
   const std::size_t table_top = sc.rows.size();
-  sc.line({Cell::txt("Factor", heading), Cell::txt("Observed eigenvalue", heading)});
-  for (std::size_t k = 0; k < eig.size(); ++k) sc.line({Cell::num(static_cast<double>(k + 1)), Cell::num(eig[k], number)});
+  if (count.available)
+    sc.line({Cell::txt("Factor", heading), Cell::txt("Observed eigenvalue", heading), Cell::txt(random_words, heading)});
+  else
+    sc.line({Cell::txt("Factor", heading), Cell::txt("Observed eigenvalue", heading)});
+  for (std::size_t k = 0; k < eig.size(); ++k) {
+    std::vector<Cell> row{Cell::num(static_cast<double>(k + 1)), Cell::num(eig[k], number)};
+    if (count.available && k < count.random_pc.size()) row.push_back(Cell::num(count.random_pc[k], number));
+    sc.line(std::move(row));
+  }
   Chart ch;
   ch.name = "LodeScree";
   ch.title = "Scree";
@@ -498,11 +608,11 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   ch.top = table_top;
   ch.left = 0;
   ch.rows = eig.size() + 1;
-  ch.cols = 2;
+  ch.cols = count.available ? 3 : 2;
   ch.anchor_row = table_top;
-  ch.anchor_col = 3;
+  ch.anchor_col = 4;
   sc.charts.push_back(ch);
-  sc.column_widths = {2500, 4000};
+  sc.column_widths = {2500, 4000, 6500};
   rep.sheets.push_back(std::move(sc));
 
   // ---- 5. run record ------------------------------------------------------------------------
