@@ -452,7 +452,8 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
     ov.line({Cell::txt("Bartlett's test: chi-square", label), Cell::num(chi2.value, number)});
     ov.line({Cell::txt("Bartlett's test: degrees of freedom", label), Cell::num(chi2_df.value)});
     ov.line({Cell::txt("Bartlett's test: p-value", label), Cell::num(chi2_p.value),
-             Cell::txt(chi2_p.value < 0.05 ? "the items are correlated, not unrelated (p < 0.05; common practice)"
+             Cell::txt(chi2_p.value < 0.001 ? "p < 0.001: the items are correlated, not unrelated (p < 0.05; common practice)"
+                       : chi2_p.value < 0.05 ? "the items are correlated, not unrelated (p < 0.05; common practice)"
                                           : "the items may be unrelated: p is 0.05 or more (common practice)",
                        note)});
   } else {
