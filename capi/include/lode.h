@@ -279,6 +279,74 @@ LODE_API int lode_factorability_value(const lode_factorability* f, int key, doub
 LODE_API int lode_factorability_text(const lode_factorability* f, int key, char* out, size_t capacity,
                                      size_t* length);
 
+/* ------------------------------------------------------------------------------------------- */
+/* How many factors: parallel analysis, the MAP test, eigenvalue rules, a consensus              */
+/* ------------------------------------------------------------------------------------------- */
+
+enum lode_random_source {
+  LODE_RANDOM_NORMAL = 0,      /* normal-theory random correlation matrices (Wishart, Bartlett decomposition) */
+  LODE_RANDOM_PERMUTATION = 1  /* each item's answers shuffled (needs raw data) */
+};
+enum lode_threshold { LODE_THRESHOLD_PERCENTILE = 0, LODE_THRESHOLD_MEAN = 1 };
+
+typedef struct lode_factor_count_options {
+  size_t struct_size;
+  int64_t replicates;         /* random data sets; default 500 */
+  int threshold;              /* enum lode_threshold; default LODE_THRESHOLD_PERCENTILE */
+  double percentile;          /* in (0, 100); default 95 */
+  int source;                 /* enum lode_random_source; default LODE_RANDOM_NORMAL */
+  uint64_t seed;              /* replicate i draws from stream i of this seed; default 20260101 */
+  int threads;                /* 0 = all cores; results do not depend on it */
+  lode_progress_fn progress;  /* optional; replicates done / total */
+  void* progress_user;        /* passed to progress */
+} lode_factor_count_options;
+
+LODE_API int lode_factor_count_options_init(lode_factor_count_options* opts, size_t struct_size);
+
+typedef struct lode_factor_count lode_factor_count;
+
+/* Parallel analysis (Horn 1965) on component and reduced-matrix eigenvalues, Velicer's (1976) MAP
+ * test (squared and fourth-power), eigenvalues above one, the empirical Kaiser criterion (Braeken &
+ * van Assen 2017), and the suggested count with its reason. Needs n_obs. */
+LODE_API int lode_count_factors(const lode_correlation* corr, const lode_factor_count_options* opts,
+                                lode_factor_count** out);
+
+LODE_API void lode_factor_count_free(lode_factor_count* count);
+
+enum lode_factor_count_key {
+  /* matrices (items x 1, by position, largest first): lode_factor_count_matrix */
+  LODE_COUNT_OBSERVED_PC = 300,              /* eigenvalues of the correlation matrix */
+  LODE_COUNT_OBSERVED_FACTOR = 301,          /* eigenvalues of the reduced matrix (SMC diagonal) */
+  LODE_COUNT_RANDOM_PC_MEAN = 302,
+  LODE_COUNT_RANDOM_PC_PERCENTILE = 303,
+  LODE_COUNT_RANDOM_FACTOR_MEAN = 304,
+  LODE_COUNT_RANDOM_FACTOR_PERCENTILE = 305,
+  LODE_COUNT_MAP_SQUARED = 306,              /* entry m: average squared partial correlation after m components */
+  LODE_COUNT_MAP_FOURTH = 307,
+  LODE_COUNT_EKC_REFERENCE = 308,            /* empirical Kaiser criterion reference values */
+  /* numbers: lode_factor_count_value */
+  LODE_COUNT_SUGGESTED = 320,                /* the suggested number of factors */
+  LODE_COUNT_PARALLEL_PC = 321,              /* parallel analysis, component eigenvalues */
+  LODE_COUNT_PARALLEL_FACTOR = 322,          /* parallel analysis, factor eigenvalues */
+  LODE_COUNT_MAP_SQUARED_SUGGESTED = 323,
+  LODE_COUNT_MAP_FOURTH_SUGGESTED = 324,
+  LODE_COUNT_KAISER = 325,                   /* eigenvalues above one */
+  LODE_COUNT_EMPIRICAL_KAISER = 326,
+  LODE_COUNT_REPLICATES = 327,
+  LODE_COUNT_N_OBS = 328,
+  LODE_COUNT_PERCENTILE = 329,
+  /* text: lode_factor_count_text */
+  LODE_COUNT_REASON = 350,                   /* why the suggested count */
+  LODE_COUNT_TABLE = 351,                    /* one line per rule: rule TAB count TAB primary(0/1) TAB basis */
+  LODE_COUNT_NOTES = 352
+};
+
+LODE_API int lode_factor_count_matrix(const lode_factor_count* count, int key, double* out, size_t capacity,
+                                      int64_t* rows, int64_t* cols);
+LODE_API int lode_factor_count_value(const lode_factor_count* count, int key, double* value);
+LODE_API int lode_factor_count_text(const lode_factor_count* count, int key, char* out, size_t capacity,
+                                    size_t* length);
+
 #ifdef __cplusplus
 } /* extern "C" */
 #endif

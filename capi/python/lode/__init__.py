@@ -13,7 +13,8 @@ import numpy as np
 from . import _native
 from ._native import LodeError, lib, check
 
-__all__ = ["LodeError", "version", "correlation", "Correlation", "factorability", "Factorability"]
+__all__ = ["LodeError", "version", "correlation", "Correlation", "factorability", "Factorability",
+           "n_factors", "parallel_analysis", "map_test", "FactorCount"]
 
 # Keys of lode.h (enum lode_correlation_key).
 _CORRELATION_MATRIX = 100
@@ -262,3 +263,102 @@ def factorability(X=None, *, corr=None, cov=None, n_obs=None, correlation="pears
     return Factorability(ptr.value)
 
 
+
+
+# ---- factor count ----------------------------------------------------------------------------------
+
+_SOURCES = {"normal": 0, "permutation": 1}
+_THRESHOLDS = {"percentile": 0, "mean": 1}
+
+
+class FactorCount(_native.Handle):
+    """How many factors: every rule side by side.
+
+    Attributes: ``suggested`` (int) and ``reason``; ``by_rule`` (dict from rule name to its
+    count); ``table`` (list of dicts: ``rule``, ``factors``, ``primary``, ``basis``); ``parallel``
+    (dict: ``observed_pc``, ``observed_factor``, ``random_pc_mean``, ``random_pc_percentile``,
+    ``random_factor_mean``, ``random_factor_percentile``, ``suggested_pc``, ``suggested_factor``,
+    ``replicates``, ``percentile``); ``map`` (dict: ``average_squared``, ``average_fourth``,
+    ``suggested_squared``, ``suggested_fourth``); ``kaiser``, ``empirical_kaiser``,
+    ``ekc_reference``; ``n_obs``; ``notes``.
+    """
+
+    _free = "lode_factor_count_free"
+
+    def __init__(self, pointer):
+        super().__init__(pointer)
+        m, v, t = lib.lode_factor_count_matrix, lib.lode_factor_count_value, lib.lode_factor_count_text
+        col = lambda key: _native.get_matrix(m, pointer, key)[:, 0]  # noqa: E731
+        num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
+        self.suggested = int(num(320))
+        self.reason = _native.get_text(t, pointer, 350)
+        self.notes = _lines(_native.get_text(t, pointer, 352))
+        self.table = []
+        for line in _lines(_native.get_text(t, pointer, 351)):
+            rule, count, primary, basis = line.split("\t", 3)
+            self.table.append({"rule": rule, "factors": int(count), "primary": primary == "1", "basis": basis})
+        self.by_rule = {row["rule"]: row["factors"] for row in self.table}
+        self.parallel = {
+            "observed_pc": col(300), "observed_factor": col(301), "random_pc_mean": col(302),
+            "random_pc_percentile": col(303), "random_factor_mean": col(304), "random_factor_percentile": col(305),
+            "suggested_pc": int(num(321)), "suggested_factor": int(num(322)), "replicates": int(num(327)),
+            "percentile": num(329)}
+        self.map = {"average_squared": col(306), "average_fourth": col(307), "suggested_squared": int(num(323)),
+                    "suggested_fourth": int(num(324))}
+        self.kaiser = int(num(325))
+        self.empirical_kaiser = int(num(326))
+        self.ekc_reference = col(308)
+        self.n_obs = int(num(328))
+
+    def __repr__(self):
+        return f"<lode.FactorCount suggested={self.suggested}>"
+
+
+def _count_options(replicates, seed, percentile, threshold, source, threads, progress):
+    o = _native.options(_native.FactorCountOptions, "lode_factor_count_options_init")
+    if replicates is not None:
+        o.replicates = int(replicates)
+    if seed is not None:
+        o.seed = int(seed) & 0xFFFFFFFFFFFFFFFF
+    o.percentile = float(percentile)
+    o.threshold = _choice(threshold, _THRESHOLDS, "threshold")
+    o.source = _choice(source, _SOURCES, "random data source")
+    o.threads = int(threads)
+    callback = _native.make_progress(progress)
+    if callback is not None:
+        o.progress = callback
+    return o, callback
+
+
+def n_factors(X=None, *, corr=None, cov=None, n_obs=None, replicates=1000, seed=None, percentile=95.0,
+              threshold="percentile", source="normal", correlation="pearson", missing="pairwise", smooth=False,
+              threads=0, progress=None, item_names=None):
+    """How many factors to extract: parallel analysis (Horn 1965; ``replicates`` random data sets,
+    ``source`` "normal" or "permutation", compared with the ``percentile`` or the mean), Velicer's
+    MAP test (squared and fourth power), eigenvalues above one and the empirical Kaiser criterion,
+    with a suggested count and its reason. ``seed`` None uses Lode's fixed default seed (results are
+    reproducible either way). ``progress(done, total)`` is called during the work; returning False
+    cancels (LodeError). Returns a :class:`FactorCount`."""
+    c = _correlation_of(X, corr, cov, n_obs, correlation, missing, smooth, item_names)
+    o, keep = _count_options(replicates, seed, percentile, threshold, source, threads, progress)
+    ptr = ctypes.c_void_p()
+    check(lib.lode_count_factors(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    del keep
+    return FactorCount(ptr.value)
+
+
+def parallel_analysis(X=None, *, corr=None, cov=None, n_obs=None, replicates=1000, seed=None, percentile=95.0,
+                      threshold="percentile", source="normal", **kwargs):
+    """Parallel analysis (Horn 1965) alone: a dict with the observed component and factor
+    (reduced-matrix) eigenvalues, the random-data means and percentiles by position, and the
+    suggested counts ``suggested_pc`` and ``suggested_factor``. Arguments as :func:`n_factors`."""
+    return n_factors(X, corr=corr, cov=cov, n_obs=n_obs, replicates=replicates, seed=seed, percentile=percentile,
+                     threshold=threshold, source=source, **kwargs).parallel
+
+
+def map_test(X=None, *, corr=None, cov=None, n_obs=None, **kwargs):
+    """Velicer's (1976) minimum average partial test and its fourth-power variant (Velicer, Eaton &
+    Fava 2000): a dict with ``average_squared`` and ``average_fourth`` (entry m: after removing m
+    components) and the suggested counts ``suggested_squared`` and ``suggested_fourth``."""
+    kwargs.setdefault("replicates", 1)
+    return n_factors(X, corr=corr, cov=cov, n_obs=n_obs, **kwargs).map

@@ -119,6 +119,23 @@ _factorability_signatures = {
 declare(_factorability_signatures)
 
 
+class FactorCountOptions(ctypes.Structure):
+    _fields_ = [("struct_size", c_size_t), ("replicates", c_int64), ("threshold", c_int), ("percentile", c_double),
+                ("source", c_int), ("seed", ctypes.c_uint64), ("threads", c_int), ("progress", PROGRESS_FN),
+                ("progress_user", c_void_p)]
+
+
+_count_signatures = {
+    "lode_factor_count_options_init": (c_int, [ctypes.POINTER(FactorCountOptions), c_size_t]),
+    "lode_count_factors": (c_int, [c_void_p, ctypes.POINTER(FactorCountOptions), P_void_p]),
+    "lode_factor_count_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
+    "lode_factor_count_value": (c_int, [c_void_p, c_int, P_double]),
+    "lode_factor_count_text": (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t]),
+    "lode_factor_count_free": (None, [c_void_p]),
+}
+declare(_count_signatures)
+
+
 def check(status):
     """Raises LodeError for a failing status, with the library's message."""
     if status != 0:
