@@ -66,12 +66,14 @@ OUString A(const char* s) { return OUString::createFromAscii(s); }
 
 // The one report service of this office: "stop" must reach the run "analyse" started.
 Reference<org::lode::calc::XAnalysisReport> shared_report(const Reference<css::uno::XComponentContext>& ctx) {
+  // Deliberately never destroyed: releasing a UNO object from a static destructor at exit can run
+  // after the office's service manager is gone.
   static std::mutex mutex;
-  static Reference<org::lode::calc::XAnalysisReport> report;
+  static auto* report = new Reference<org::lode::calc::XAnalysisReport>();
   std::lock_guard<std::mutex> lock(mutex);
-  if (!report.is())
-    report.set(ctx->getServiceManager()->createInstanceWithContext(A("org.lode.calc.AnalysisReport"), ctx), UNO_QUERY_THROW);
-  return report;
+  if (!report->is())
+    report->set(ctx->getServiceManager()->createInstanceWithContext(A("org.lode.calc.AnalysisReport"), ctx), UNO_QUERY_THROW);
+  return *report;
 }
 
 Sequence<OUString> strings(const std::vector<std::string>& v) {

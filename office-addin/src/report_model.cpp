@@ -154,6 +154,219 @@ std::string not_yet() {
   return std::string(kNotYet) + std::to_string(v->abi_major) + "." + std::to_string(v->abi_minor) + ")";
 }
 
+
+// How many factors, through the C ABI's factor count when this liblode has it (report.cmake sets
+// LODE_REPORT_HAS_COUNT from lode.h); otherwise `reason` says what is missing.
+struct CountResult {
+  bool available = false;
+  std::string reason;
+  std::vector<double> random_pc;  // 95th percentile of random-data component eigenvalues
+  double percentile = 95.0;
+  int replicates = 0;
+  int suggested = 0;
+  std::string why;
+  struct Rule {
+    std::string rule, factors, basis;
+    bool primary = false;
+  };
+  std::vector<Rule> rules;
+  std::vector<std::string> notes;
+};
+
+#if LODE_REPORT_HAS_COUNT
+struct CountFree {
+  void operator()(lode_factor_count* p) const noexcept { lode_factor_count_free(p); }
+};
+std::string count_text(const lode_factor_count* f, int key) {
+  size_t len = 0;
+  if (lode_factor_count_text(f, key, nullptr, 0, &len) != LODE_OK) return {};
+  std::string s(len + 1, '\0');
+  if (lode_factor_count_text(f, key, s.data(), s.size(), &len) != LODE_OK) return {};
+  s.resize(len);
+  return s;
+}
+#endif
+
+CountResult count_factors(const lode_correlation* corr, const Options& o, const Progress& progress,
+                          const std::string& missing_feature) {
+  CountResult r;
+#if LODE_REPORT_HAS_COUNT
+  lode_factor_count_options opts;
+  lode_factor_count_options_init(&opts, sizeof opts);
+  opts.seed = o.seed;
+  opts.threads = 1;  // the office's other work keeps a core
+  ProgressBridge bridge{&progress, "parallel analysis", 0.5, 0.9};
+  opts.progress = &ProgressBridge::call;
+  opts.progress_user = &bridge;
+  lode_factor_count* raw = nullptr;
+  const int st = lode_count_factors(corr, &opts, &raw);
+  if (st == LODE_E_CANCELLED) throw Cancelled{};
+  if (st != LODE_OK) {
+    r.reason = lode_last_error();
+    return r;
+  }
+  std::unique_ptr<lode_factor_count, CountFree> count(raw);
+  std::int64_t rows = 0, cols = 0;
+  check(lode_factor_count_matrix(count.get(), LODE_COUNT_RANDOM_PC_PERCENTILE, nullptr, 0, &rows, &cols), "parallel analysis");
+  r.random_pc.resize(static_cast<std::size_t>(rows * cols));
+  check(lode_factor_count_matrix(count.get(), LODE_COUNT_RANDOM_PC_PERCENTILE, r.random_pc.data(), r.random_pc.size(),
+                                 &rows, &cols),
+        "parallel analysis");
+  double v = 0;
+  check(lode_factor_count_value(count.get(), LODE_COUNT_SUGGESTED, &v), "the factor count");
+  r.suggested = static_cast<int>(v);
+  check(lode_factor_count_value(count.get(), LODE_COUNT_PERCENTILE, &r.percentile), "the factor count");
+  check(lode_factor_count_value(count.get(), LODE_COUNT_REPLICATES, &v), "the factor count");
+  r.replicates = static_cast<int>(v);
+  r.why = count_text(count.get(), LODE_COUNT_REASON);
+  for (const std::string& line : lines_of(count_text(count.get(), LODE_COUNT_TABLE))) {
+    CountResult::Rule rule;
+    std::size_t a = line.find('\t'), b = line.find('\t', a + 1), c = line.find('\t', b + 1);
+    if (a == std::string::npos || b == std::string::npos || c == std::string::npos) continue;
+    rule.rule = line.substr(0, a);
+    rule.factors = line.substr(a + 1, b - a - 1);
+    rule.primary = line.substr(b + 1, c - b - 1) == "1";
+    rule.basis = line.substr(c + 1);
+    r.rules.push_back(rule);
+  }
+  r.notes = lines_of(count_text(count.get(), LODE_COUNT_NOTES));
+  r.available = true;
+  (void)missing_feature;
+#else
+  (void)corr;
+  (void)o;
+  (void)progress;
+  r.reason = "parallel analysis is " + missing_feature;
+#endif
+  return r;
+}
+
+// The fitted model (extraction, rotation, fit, residuals) through the C ABI's lode_fit when this
+// liblode has it (report.cmake sets LODE_REPORT_HAS_FIT from lode.h); otherwise `reason` says why not.
+struct ModelResult {
+  bool available = false;
+  std::string reason;
+  int factors = 0;
+  bool oblique = false;
+  std::string rotation_used;
+  std::vector<double> loadings, structure, phi, communalities, uniquenesses, residuals, heywood, ss;
+  double rmsr = kNaN, max_residual = kNaN;
+  bool have_stats = false;
+  std::string stats_reason;
+  double chi2 = kNaN, df = kNaN, p = kNaN, rmsea = kNaN, rmsea_lo = kNaN, rmsea_hi = kNaN, tli = kNaN, bic = kNaN;
+  std::vector<std::string> notes;
+};
+
+#if LODE_REPORT_HAS_FIT
+struct ModelFree {
+  void operator()(lode_model* p) const noexcept { lode_model_free(p); }
+};
+std::vector<double> model_matrix(const lode_model* m, int key) {
+  std::int64_t r = 0, c = 0;
+  check(lode_model_matrix(m, key, nullptr, 0, &r, &c), "reading the model");
+  std::vector<double> out(static_cast<std::size_t>(r * c));
+  check(lode_model_matrix(m, key, out.data(), out.size(), &r, &c), "reading the model");
+  return out;
+}
+double model_value(const lode_model* m, int key) {
+  double v = kNaN;
+  check(lode_model_value(m, key, &v), "reading the model");
+  return v;
+}
+#endif
+
+ModelResult fit_model(const lode_correlation* corr, const Options& o, int factors, const std::string& missing_feature) {
+  ModelResult r;
+  r.factors = factors;
+#if LODE_REPORT_HAS_FIT
+  (void)missing_feature;
+  lode_fit_options fo;
+  lode_fit_options_init(&fo, sizeof fo);
+  fo.factors = factors;
+  fo.method = o.extraction == "ml" ? LODE_ML : o.extraction == "paf" ? LODE_PAF : LODE_MINRES;
+  lode_rotation_options ro;
+  lode_rotation_options_init(&ro, sizeof ro);
+  ro.seed = o.seed;
+  ro.threads = 1;
+  r.rotation_used = o.rotation;
+  if (o.rotation == "oblimin") {
+    ro.method = LODE_ROTATION_OBLIMIN;
+    ro.gamma = o.rotation_parameter;
+  } else if (o.rotation == "promax") {
+    ro.method = LODE_ROTATION_PROMAX;
+    if (o.rotation_parameter > 0) ro.power = o.rotation_parameter;
+  } else {
+    ro.method = LODE_ROTATION_VARIMAX;
+  }
+  if (o.rotation != "none" && factors >= 2) fo.rotation = &ro;
+  else if (o.rotation != "none") r.rotation_used = "none (one factor cannot be rotated)";
+  lode_model* raw = nullptr;
+  const int st = lode_fit(corr, &fo, &raw);
+  if (st == LODE_E_CANCELLED) throw Cancelled{};
+  if (st != LODE_OK) {
+    r.reason = lode_last_error();
+    return r;
+  }
+  std::unique_ptr<lode_model, ModelFree> m(raw);
+  r.loadings = model_matrix(m.get(), LODE_MODEL_LOADINGS);
+  r.structure = model_matrix(m.get(), LODE_MODEL_STRUCTURE);
+  r.phi = model_matrix(m.get(), LODE_MODEL_FACTOR_CORRELATIONS);
+  r.communalities = model_matrix(m.get(), LODE_MODEL_COMMUNALITIES);
+  r.uniquenesses = model_matrix(m.get(), LODE_MODEL_UNIQUENESSES);
+  r.residuals = model_matrix(m.get(), LODE_MODEL_RESIDUALS);
+  r.heywood = model_matrix(m.get(), LODE_MODEL_HEYWOOD);
+  r.ss = model_matrix(m.get(), LODE_MODEL_SS_LOADINGS);
+  r.oblique = model_value(m.get(), LODE_MODEL_OBLIQUE) > 0.5;
+  r.rmsr = model_value(m.get(), LODE_MODEL_RMSR);
+  r.max_residual = model_value(m.get(), LODE_MODEL_MAX_ABS_RESIDUAL);
+  double v = kNaN;
+  if (lode_model_value(m.get(), LODE_MODEL_CHI_SQUARE, &v) == LODE_OK) {
+    r.have_stats = true;
+    r.chi2 = v;
+    r.df = model_value(m.get(), LODE_MODEL_DF);
+    r.p = model_value(m.get(), LODE_MODEL_P_VALUE);
+    r.rmsea = model_value(m.get(), LODE_MODEL_RMSEA);
+    r.rmsea_lo = model_value(m.get(), LODE_MODEL_RMSEA_LOWER);
+    r.rmsea_hi = model_value(m.get(), LODE_MODEL_RMSEA_UPPER);
+    r.tli = model_value(m.get(), LODE_MODEL_TLI);
+    r.bic = model_value(m.get(), LODE_MODEL_BIC);
+  } else {
+    r.stats_reason = lode_last_error();
+  }
+  size_t len = 0;
+  if (lode_model_text(m.get(), LODE_MODEL_NOTES, nullptr, 0, &len) == LODE_OK) {
+    std::string t(len + 1, '\0');
+    if (lode_model_text(m.get(), LODE_MODEL_NOTES, t.data(), t.size(), &len) == LODE_OK) {
+      t.resize(len);
+      r.notes = lines_of(t);
+    }
+  }
+  r.available = true;
+#else
+  (void)corr;
+  (void)o;
+  r.reason = "factor extraction is " + missing_feature;
+#endif
+  return r;
+}
+
+// Items in reading order: grouped by the factor of their largest absolute loading (factor 1 first),
+// within a group by that loading's size, largest first.
+std::vector<std::size_t> loading_order(const std::vector<double>& L, std::size_t p, std::size_t k) {
+  std::vector<std::size_t> idx(p), home(p);
+  for (std::size_t j = 0; j < p; ++j) {
+    idx[j] = j;
+    std::size_t best = 0;
+    for (std::size_t f = 1; f < k; ++f)
+      if (std::fabs(L[j * k + f]) > std::fabs(L[j * k + best])) best = f;
+    home[j] = best;
+  }
+  std::stable_sort(idx.begin(), idx.end(), [&](std::size_t a, std::size_t b) {
+    if (home[a] != home[b]) return home[a] < home[b];
+    return std::fabs(L[a * k + home[a]]) > std::fabs(L[b * k + home[b]]);
+  });
+  return idx;
+}
 }  // namespace
 
 void validate(const Options& o) {
@@ -280,7 +493,7 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   copts.kind = o.correlation == "spearman" ? LODE_SPEARMAN : o.correlation == "polychoric" ? LODE_POLYCHORIC : LODE_PEARSON;
   copts.missing = o.missing == "listwise" ? LODE_LISTWISE : LODE_PAIRWISE;
   copts.threads = 1;  // the office's other work keeps a core
-  ProgressBridge bridge{&progress, "computing correlations", 0.05, 0.85};
+  ProgressBridge bridge{&progress, "computing correlations", 0.05, 0.5};
   copts.progress = &ProgressBridge::call;
   copts.progress_user = &bridge;
   lode_correlation* raw_corr = nullptr;
@@ -328,6 +541,13 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
     if (e > 1.0) ++above_one;
   }
   const std::string missing_feature = not_yet();
+  const CountResult count = count_factors(corr.get(), o, progress, missing_feature);
+  step("fitting the factor model", 0.92);
+  const int k_decided = o.factors > 0 ? o.factors : count.available ? count.suggested : 0;
+  ModelResult model;
+  if (k_decided > 0) model = fit_model(corr.get(), o, k_decided, missing_feature);
+  else model.reason = count.available ? "no factor stands out from random data" : count.reason;
+  const std::size_t k = model.available ? static_cast<std::size_t>(model.factors) : 0;
   using namespace styles;
 
   // ---- 1. overview --------------------------------------------------------------------------
@@ -365,7 +585,8 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
     ov.line({Cell::txt("Bartlett's test: chi-square", label), Cell::num(chi2.value, number)});
     ov.line({Cell::txt("Bartlett's test: degrees of freedom", label), Cell::num(chi2_df.value)});
     ov.line({Cell::txt("Bartlett's test: p-value", label), Cell::num(chi2_p.value),
-             Cell::txt(chi2_p.value < 0.05 ? "the items are correlated, not unrelated (p < 0.05; common practice)"
+             Cell::txt(chi2_p.value < 0.001 ? "p < 0.001: the items are correlated, not unrelated (p < 0.05; common practice)"
+                       : chi2_p.value < 0.05 ? "the items are correlated, not unrelated (p < 0.05; common practice)"
                                           : "the items may be unrelated: p is 0.05 or more (common practice)",
                        note)});
   } else {
@@ -374,27 +595,92 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   for (const std::string& n : fact_notes) ov.line({Cell::txt("Note on factorability", flag), Cell::txt(n, note)});
   ov.blank();
   ov.line({Cell::txt("How many factors", heading), Cell::txt("", heading), Cell::txt("", heading), Cell::txt("", heading)});
+  const std::string random_words =
+      count.available ? "Random data (" + fmt_num(count.percentile, 0) + "th percentile of " +
+                            std::to_string(count.replicates) + ")"
+                      : "Random data (parallel analysis)";
   ov.line({Cell::txt("Factor", label), Cell::txt("Eigenvalue", label), Cell::txt("Share of variance", label),
-           Cell::txt("Random data (parallel analysis)", label)});
-  {
-    double cum = 0.0;
-    (void)cum;
-    for (std::size_t k = 0; k < eig.size(); ++k)
-      ov.line({Cell::num(static_cast<double>(k + 1)), Cell::num(eig[k], number), Cell::num(eig[k] / total, number),
-               Cell::txt(k == 0 ? missing_feature : "", note)});
+           Cell::txt(random_words, label)});
+  for (std::size_t k = 0; k < eig.size(); ++k)
+    ov.line({Cell::num(static_cast<double>(k + 1)), Cell::num(eig[k], number), Cell::num(eig[k] / total, number),
+             count.available && k < count.random_pc.size() ? Cell::num(count.random_pc[k], number)
+                                                            : Cell::txt(k == 0 ? count.reason : "", note)});
+  if (count.available) {
+    ov.line({Cell::txt("Rule", label), Cell::txt("Factors", label), Cell::txt("Basis", label)});
+    for (const CountResult::Rule& r : count.rules)
+      ov.line({Cell::txt(r.rule, r.primary ? salient : label), Cell::txt(r.factors), Cell::txt(r.basis, note)});
+    for (const std::string& n : count.notes) ov.line({Cell::txt("Note on the count", flag), Cell::txt(n, note)});
+  } else {
+    ov.line({Cell::txt("Eigenvalues above 1", label), Cell::num(static_cast<double>(above_one)),
+             Cell::txt("a rule of thumb that tends to suggest too many factors (common practice)", note)});
   }
-  ov.line({Cell::txt("Eigenvalues above 1", label), Cell::num(static_cast<double>(above_one)),
-           Cell::txt("a rule of thumb that tends to suggest too many factors (common practice)", note)});
   if (o.factors > 0)
-    ov.line({Cell::txt("Decision", label), Cell::num(o.factors), Cell::txt("factors, as you fixed them", note)});
+    ov.line({Cell::txt("Decision", label), Cell::num(o.factors),
+             Cell::txt(count.available ? "factors, as you fixed them; the evidence suggests " + std::to_string(count.suggested)
+                                       : std::string("factors, as you fixed them"),
+                       note)});
+  else if (count.available)
+    ov.line({Cell::txt("Decision", label), Cell::num(count.suggested), Cell::txt(count.why, note)});
   else
-    ov.line({Cell::txt("Decision", label), Cell::txt("not made: parallel analysis is " + missing_feature, note)});
+    ov.line({Cell::txt("Decision", label), Cell::txt("not made: " + count.reason, note)});
   ov.blank();
   ov.line({Cell::txt("How well the model fits", heading), Cell::txt("", heading)});
-  ov.line({Cell::txt("Fit statistics (RMSEA, TLI, SRMR)", label), Cell::txt(missing_feature, note)});
+  if (!model.available) {
+    ov.line({Cell::txt("Fit statistics (RMSEA, TLI, RMSR)", label), Cell::txt("not available: " + model.reason, note)});
+  } else {
+    ov.line({Cell::txt("Factors in the model", label), Cell::num(static_cast<double>(k)),
+             Cell::txt(o.extraction + ", rotation " + model.rotation_used, note)});
+    ov.line({Cell::txt("Root mean square residual (RMSR)", label), Cell::num(model.rmsr, number),
+             Cell::txt(model.rmsr <= 0.05 ? "small: the model reproduces the correlations well (0.05 or less; common practice)"
+                                          : model.rmsr <= 0.08 ? "acceptable (0.08 or less; common practice)"
+                                                               : "large: correlations the factors do not explain (above 0.08; common practice)",
+                       note)});
+    if (model.have_stats) {
+      ov.line({Cell::txt("Chi-square", label), Cell::num(model.chi2, number), Cell::txt("degrees of freedom", note),
+               Cell::num(model.df)});
+      ov.line({Cell::txt("p-value", label), Cell::num(model.p),
+               Cell::txt("with a few hundred respondents even small misfit gives a small p; read RMSEA and TLI too "
+                         "(common practice)",
+                         note)});
+      ov.line({Cell::txt("RMSEA", label), Cell::num(model.rmsea, number),
+               Cell::txt(model.rmsea <= 0.05 ? "close fit (0.05 or less; Browne and Cudeck 1993)"
+                         : model.rmsea <= 0.08 ? "reasonable fit (0.08 or less; Browne and Cudeck 1993)"
+                         : model.rmsea <= 0.10 ? "mediocre fit (0.10 or less; MacCallum, Browne and Sugawara 1996)"
+                                               : "poor fit (above 0.10; MacCallum, Browne and Sugawara 1996)",
+                         note)});
+      ov.line({Cell::txt("RMSEA interval (90%)", label), Cell::num(model.rmsea_lo, number), Cell::txt("to", note),
+               Cell::num(model.rmsea_hi, number)});
+      ov.line({Cell::txt("TLI", label), Cell::num(model.tli, number),
+               Cell::txt(model.tli >= 0.95 ? "good (0.95 or more; Hu and Bentler 1999)"
+                                           : model.tli >= 0.90 ? "acceptable (0.90 or more; common practice)"
+                                                               : "weak (under 0.90; common practice)",
+                         note)});
+      ov.line({Cell::txt("BIC", label), Cell::num(model.bic, number), Cell::txt("lower is better when comparing models", note)});
+    } else {
+      ov.line({Cell::txt("Chi-square, RMSEA, TLI", label), Cell::txt("not available: " + model.stats_reason, note)});
+    }
+    for (const std::string& n : model.notes) ov.line({Cell::txt("Note on the model", flag), Cell::txt(n, note)});
+  }
   ov.blank();
   ov.line({Cell::txt("Items to look at", heading), Cell::txt("", heading), Cell::txt("", heading)});
   bool any_flag = false;
+  if (model.available)
+    for (std::size_t j = 0; j < p; ++j) {
+      std::size_t strong = 0;
+      for (std::size_t f = 0; f < k; ++f)
+        if (std::fabs(model.loadings[j * k + f]) >= o.salient) ++strong;
+      std::string why;
+      if (model.heywood[j] > 0.5)
+        why = "an improper solution for this item (communality at or above 1): the model cannot be trusted for it";
+      else if (strong == 0)
+        why = "no loading reaches " + fmt_num(o.salient, 2) + ": it does not clearly belong to any factor";
+      else if (strong > 1)
+        why = "loads on " + std::to_string(strong) + " factors at " + fmt_num(o.salient, 2) +
+              " or more: it measures more than one thing";
+      if (why.empty()) continue;
+      any_flag = true;
+      ov.line({Cell::txt(item_names[j], flag), Cell::num(model.communalities[j], number), Cell::txt(why, note)});
+    }
   for (std::size_t j = 0; j < msa.size() && j < p; ++j)
     if (msa[j] < 0.50) {  // Kaiser (1974): a sampling adequacy under 0.50 is unacceptable
       any_flag = true;
@@ -446,13 +732,37 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   // ---- 2. loadings --------------------------------------------------------------------------
   Sheet ld;
   ld.base_name = names::loadings;
-  ld.column_widths = {4500, 5000, 5000};
+  ld.column_widths = {5000, 3000, 3000, 3000, 3000, 3000, 3000, 3000};
   ld.line({Cell::txt("Loadings", title)});
   ld.line({Cell::txt("Strong loadings (at least " + fmt_num(o.salient, 2) + ") are shaded; small ones are grey.", note)});
-  ld.line({Cell::txt("Factor loadings: " + missing_feature + ". Shown until then: each item's starting "
-                     "communality estimate.",
-                     note)});
-  ld.blank();
+  if (!model.available) {
+    ld.line({Cell::txt("Factor loadings: " + model.reason + ". Shown until then: each item's starting "
+                       "communality estimate.",
+                       note)});
+  } else {
+    ld.line({Cell::txt("Items are grouped by the factor they load on most, largest loading first.", note)});
+    if (o.bootstrap > 0) ld.line({Cell::txt("Bootstrap intervals: " + missing_feature, note)});
+    ld.blank();
+    std::vector<Cell> hdr{Cell::txt("Item", heading)};
+    for (std::size_t f = 0; f < k; ++f) hdr.push_back(Cell::txt("Factor " + std::to_string(f + 1), heading));
+    hdr.push_back(Cell::txt("Communality", heading));
+    hdr.push_back(Cell::txt("Uniqueness", heading));
+    ld.line(std::move(hdr));
+    for (std::size_t j : loading_order(model.loadings, p, k)) {
+      std::vector<Cell> row{Cell::txt(item_names[j], label)};
+      for (std::size_t f = 0; f < k; ++f) {
+        const double v = model.loadings[j * k + f];
+        row.push_back(Cell::num(v, std::fabs(v) >= o.salient ? salient : faint));
+      }
+      row.push_back(Cell::num(model.communalities[j], number));
+      row.push_back(Cell::num(model.uniquenesses[j], number));
+      ld.line(std::move(row));
+    }
+    std::vector<Cell> ssrow{Cell::txt("Sum of squared loadings", label)};
+    for (std::size_t f = 0; f < k; ++f) ssrow.push_back(Cell::num(model.ss[f], number));
+    ld.line(std::move(ssrow));
+    ld.blank();
+  }
   ld.line({Cell::txt("Item", heading), Cell::txt("Starting communality (SMC)", heading),
            Cell::txt("Sampling adequacy (MSA)", heading)});
   for (std::size_t j = 0; j < p; ++j)
@@ -464,8 +774,47 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   Sheet fc;
   fc.base_name = names::factors;
   fc.line({Cell::txt("Factors, residuals and reliability", title)});
-  fc.line({Cell::txt("Factor correlations and structure: " + missing_feature, note)});
-  fc.line({Cell::txt("Residual correlations: " + missing_feature, note)});
+  if (!model.available) {
+    fc.line({Cell::txt("Factor correlations and structure: " + model.reason, note)});
+    fc.line({Cell::txt("Residual correlations: " + model.reason, note)});
+  } else {
+    if (model.oblique) {
+      fc.blank();
+      fc.line({Cell::txt("Factor correlations", heading)});
+      std::vector<Cell> hdr{Cell::txt("", heading)};
+      for (std::size_t f = 0; f < k; ++f) hdr.push_back(Cell::txt("Factor " + std::to_string(f + 1), heading));
+      fc.line(hdr);
+      for (std::size_t a = 0; a < k; ++a) {
+        std::vector<Cell> row{Cell::txt("Factor " + std::to_string(a + 1), label)};
+        for (std::size_t b = 0; b < k; ++b) row.push_back(Cell::num(model.phi[a * k + b], number));
+        fc.line(std::move(row));
+      }
+      fc.blank();
+      fc.line({Cell::txt("Structure: correlations of items with factors", heading)});
+      hdr[0] = Cell::txt("Item", heading);
+      fc.line(hdr);
+      for (std::size_t j = 0; j < p; ++j) {
+        std::vector<Cell> row{Cell::txt(item_names[j], label)};
+        for (std::size_t f = 0; f < k; ++f) row.push_back(Cell::num(model.structure[j * k + f], number));
+        fc.line(std::move(row));
+      }
+    } else {
+      fc.line({Cell::txt("The factors are kept uncorrelated (orthogonal rotation): no factor correlations.", note)});
+    }
+    fc.blank();
+    fc.line({Cell::txt("Residual correlations (observed minus model); above 0.10 in size is flagged (common practice)", heading)});
+    std::vector<Cell> rh{Cell::txt("", heading)};
+    for (const std::string& n : item_names) rh.push_back(Cell::txt(n, heading));
+    fc.line(std::move(rh));
+    for (std::size_t i = 0; i < p; ++i) {
+      std::vector<Cell> row{Cell::txt(item_names[i], label)};
+      for (std::size_t j = 0; j < p; ++j) {
+        const double v = model.residuals[i * p + j];
+        row.push_back(Cell::num(v, i != j && std::fabs(v) > 0.10 ? flag : number));
+      }
+      fc.line(std::move(row));
+    }
+  }
   fc.line({Cell::txt("Reliability of each factor's scale (alpha, omega): " + missing_feature, note)});
   fc.blank();
   fc.line({Cell::txt("Item correlations used", heading)});
@@ -485,11 +834,21 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   Sheet sc;
   sc.base_name = names::scree;
   sc.line({Cell::txt("Scree: eigenvalues of the item correlations", title)});
-  sc.line({Cell::txt("The random-data line of parallel analysis: " + missing_feature, note)});
+  sc.line({Cell::txt(count.available ? "Where the observed line falls below the random-data line, the factors are no "
+                                        "stronger than chance (parallel analysis, Horn 1965)."
+                                      : "The random-data line of parallel analysis: " + count.reason,
+                    note)});
   sc.blank();
   const std::size_t table_top = sc.rows.size();
-  sc.line({Cell::txt("Factor", heading), Cell::txt("Observed eigenvalue", heading)});
-  for (std::size_t k = 0; k < eig.size(); ++k) sc.line({Cell::num(static_cast<double>(k + 1)), Cell::num(eig[k], number)});
+  if (count.available)
+    sc.line({Cell::txt("Factor", heading), Cell::txt("Observed eigenvalue", heading), Cell::txt(random_words, heading)});
+  else
+    sc.line({Cell::txt("Factor", heading), Cell::txt("Observed eigenvalue", heading)});
+  for (std::size_t k = 0; k < eig.size(); ++k) {
+    std::vector<Cell> row{Cell::num(static_cast<double>(k + 1)), Cell::num(eig[k], number)};
+    if (count.available && k < count.random_pc.size()) row.push_back(Cell::num(count.random_pc[k], number));
+    sc.line(std::move(row));
+  }
   Chart ch;
   ch.name = "LodeScree";
   ch.title = "Scree";
@@ -498,11 +857,11 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   ch.top = table_top;
   ch.left = 0;
   ch.rows = eig.size() + 1;
-  ch.cols = 2;
+  ch.cols = count.available ? 3 : 2;
   ch.anchor_row = table_top;
-  ch.anchor_col = 3;
+  ch.anchor_col = 4;
   sc.charts.push_back(ch);
-  sc.column_widths = {2500, 4000};
+  sc.column_widths = {2500, 4000, 6500};
   rep.sheets.push_back(std::move(sc));
 
   // ---- 5. run record ------------------------------------------------------------------------
