@@ -279,6 +279,252 @@ LODE_API int lode_factorability_value(const lode_factorability* f, int key, doub
 LODE_API int lode_factorability_text(const lode_factorability* f, int key, char* out, size_t capacity,
                                      size_t* length);
 
+/* ------------------------------------------------------------------------------------------- */
+/* How many factors: parallel analysis, the MAP test, eigenvalue rules, a consensus              */
+/* ------------------------------------------------------------------------------------------- */
+
+enum lode_random_source {
+  LODE_RANDOM_NORMAL = 0,      /* normal-theory random correlation matrices (Wishart, Bartlett decomposition) */
+  LODE_RANDOM_PERMUTATION = 1  /* each item's answers shuffled (needs raw data) */
+};
+enum lode_threshold { LODE_THRESHOLD_PERCENTILE = 0, LODE_THRESHOLD_MEAN = 1 };
+
+typedef struct lode_factor_count_options {
+  size_t struct_size;
+  int64_t replicates;         /* random data sets; default 500 */
+  int threshold;              /* enum lode_threshold; default LODE_THRESHOLD_PERCENTILE */
+  double percentile;          /* in (0, 100); default 95 */
+  int source;                 /* enum lode_random_source; default LODE_RANDOM_NORMAL */
+  uint64_t seed;              /* replicate i draws from stream i of this seed; default 20260101 */
+  int threads;                /* 0 = all cores; results do not depend on it */
+  lode_progress_fn progress;  /* optional; replicates done / total */
+  void* progress_user;        /* passed to progress */
+} lode_factor_count_options;
+
+LODE_API int lode_factor_count_options_init(lode_factor_count_options* opts, size_t struct_size);
+
+typedef struct lode_factor_count lode_factor_count;
+
+/* Parallel analysis (Horn 1965) on component and reduced-matrix eigenvalues, Velicer's (1976) MAP
+ * test (squared and fourth-power), eigenvalues above one, the empirical Kaiser criterion (Braeken &
+ * van Assen 2017), and the suggested count with its reason. Needs n_obs. */
+LODE_API int lode_count_factors(const lode_correlation* corr, const lode_factor_count_options* opts,
+                                lode_factor_count** out);
+
+LODE_API void lode_factor_count_free(lode_factor_count* count);
+
+enum lode_factor_count_key {
+  /* matrices (items x 1, by position, largest first): lode_factor_count_matrix */
+  LODE_COUNT_OBSERVED_PC = 300,              /* eigenvalues of the correlation matrix */
+  LODE_COUNT_OBSERVED_FACTOR = 301,          /* eigenvalues of the reduced matrix (SMC diagonal) */
+  LODE_COUNT_RANDOM_PC_MEAN = 302,
+  LODE_COUNT_RANDOM_PC_PERCENTILE = 303,
+  LODE_COUNT_RANDOM_FACTOR_MEAN = 304,
+  LODE_COUNT_RANDOM_FACTOR_PERCENTILE = 305,
+  LODE_COUNT_MAP_SQUARED = 306,              /* entry m: average squared partial correlation after m components */
+  LODE_COUNT_MAP_FOURTH = 307,
+  LODE_COUNT_EKC_REFERENCE = 308,            /* empirical Kaiser criterion reference values */
+  /* numbers: lode_factor_count_value */
+  LODE_COUNT_SUGGESTED = 320,                /* the suggested number of factors */
+  LODE_COUNT_PARALLEL_PC = 321,              /* parallel analysis, component eigenvalues */
+  LODE_COUNT_PARALLEL_FACTOR = 322,          /* parallel analysis, factor eigenvalues */
+  LODE_COUNT_MAP_SQUARED_SUGGESTED = 323,
+  LODE_COUNT_MAP_FOURTH_SUGGESTED = 324,
+  LODE_COUNT_KAISER = 325,                   /* eigenvalues above one */
+  LODE_COUNT_EMPIRICAL_KAISER = 326,
+  LODE_COUNT_REPLICATES = 327,
+  LODE_COUNT_N_OBS = 328,
+  LODE_COUNT_PERCENTILE = 329,
+  /* text: lode_factor_count_text */
+  LODE_COUNT_REASON = 350,                   /* why the suggested count */
+  LODE_COUNT_TABLE = 351,                    /* one line per rule: rule TAB count TAB primary(0/1) TAB basis */
+  LODE_COUNT_NOTES = 352
+};
+
+LODE_API int lode_factor_count_matrix(const lode_factor_count* count, int key, double* out, size_t capacity,
+                                      int64_t* rows, int64_t* cols);
+LODE_API int lode_factor_count_value(const lode_factor_count* count, int key, double* value);
+LODE_API int lode_factor_count_text(const lode_factor_count* count, int key, char* out, size_t capacity,
+                                    size_t* length);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Rotation                                                                                      */
+/* ------------------------------------------------------------------------------------------- */
+
+enum lode_rotation_method {
+  LODE_ROTATION_NONE = 0,              /* unrotated (still ordered and reflected) */
+  LODE_ROTATION_VARIMAX = 1,           /* orthogonal, gradient projection */
+  LODE_ROTATION_VARIMAX_KAISER = 2,    /* varimax by Kaiser's (1958) pairwise algorithm */
+  LODE_ROTATION_QUARTIMAX = 3,
+  LODE_ROTATION_EQUAMAX = 4,
+  LODE_ROTATION_CRAWFORD_FERGUSON = 5, /* orthogonal, with kappa */
+  LODE_ROTATION_GEOMIN_ORTHOGONAL = 6, /* with epsilon */
+  LODE_ROTATION_TARGET_ORTHOGONAL = 7, /* toward target */
+  LODE_ROTATION_OBLIMIN = 8,           /* oblique, with gamma */
+  LODE_ROTATION_QUARTIMIN = 9,         /* oblimin with gamma 0 */
+  LODE_ROTATION_CRAWFORD_FERGUSON_OBLIQUE = 10,
+  LODE_ROTATION_GEOMIN = 11,           /* oblique, with epsilon */
+  LODE_ROTATION_TARGET_OBLIQUE = 12,
+  LODE_ROTATION_PROMAX = 13            /* oblique, with power */
+};
+
+/* The method of a name ("varimax", "oblimin", "geomin", "target", ...; case-insensitive, '-', ' '
+ * and '_' alike). An unknown name is LODE_E_INVALID_ARGUMENT with the valid names in the message. */
+LODE_API int lode_rotation_method_from_name(const char* name, int* method);
+/* The canonical name of a method; NULL for an unknown one. */
+LODE_API const char* lode_rotation_method_name(int method);
+
+typedef struct lode_rotation_options {
+  size_t struct_size;
+  int method;              /* enum lode_rotation_method; default LODE_ROTATION_VARIMAX */
+  int normalize;           /* Kaiser row normalisation; default 1 */
+  double gamma;            /* oblimin; default 0 */
+  double kappa;            /* Crawford-Ferguson, 0..1; default 0 */
+  double epsilon;          /* geomin; default 0.01 */
+  double power;            /* promax; default 4 */
+  const double* target;    /* items x factors target for the target methods (NaN = unspecified entry);
+                              read during the call only */
+  int64_t target_rows, target_cols, target_row_stride, target_col_stride;
+  int random_starts;       /* extra random starts; -1 (default) = 10 for geomin, oblimin, quartimin and
+                              oblique Crawford-Ferguson, 0 otherwise */
+  uint64_t seed;           /* for the random starts; default 1 */
+  int max_iterations;      /* per start; default 20000 */
+  double tolerance;        /* of the projected gradient (radians for varimax_kaiser); default 1e-6 */
+  int threads;             /* for the random starts (0 = all cores); default 1 */
+} lode_rotation_options;
+
+LODE_API int lode_rotation_options_init(lode_rotation_options* opts, size_t struct_size);
+
+typedef struct lode_rotation lode_rotation;
+
+/* Rotates a caller's loading matrix (items x factors, at least 2 factors, finite). Presentation:
+ * factors ordered by the variance they account for, each reflected to sum positive (target
+ * rotations keep the target's order). */
+LODE_API int lode_rotate(const double* loadings, int64_t items, int64_t factors, int64_t row_stride,
+                         int64_t col_stride, const lode_rotation_options* opts, lode_rotation** out);
+
+LODE_API void lode_rotation_free(lode_rotation* rotation);
+
+enum lode_rotation_key {
+  /* matrices: lode_rotation_matrix */
+  LODE_ROTATION_PATTERN = 500,             /* items x factors */
+  LODE_ROTATION_STRUCTURE = 501,           /* items x factors: pattern times factor correlations */
+  LODE_ROTATION_FACTOR_CORRELATIONS = 502, /* factors x factors (identity when orthogonal) */
+  LODE_ROTATION_TRANSFORM = 503,           /* the rotation matrix T: pattern = A T (orthogonal) or A inv(T)' (oblique) */
+  LODE_ROTATION_SS_PATTERN = 504,          /* factors x 1: sums of squared pattern loadings */
+  LODE_ROTATION_SS_STRUCTURE = 505,        /* factors x 1: sums of squared structure loadings */
+  LODE_ROTATION_START_CRITERIA = 506,      /* starts x 1: final criterion of every start */
+  /* numbers: lode_rotation_value */
+  LODE_ROTATION_CRITERION = 520,
+  LODE_ROTATION_CONVERGED = 521,           /* 1 or 0 */
+  LODE_ROTATION_ITERATIONS = 522,
+  LODE_ROTATION_OBLIQUE = 523,             /* 1 or 0 */
+  LODE_ROTATION_STARTS = 524,
+  LODE_ROTATION_STARTS_CONVERGED = 525,
+  LODE_ROTATION_REACHED_BEST = 526,        /* converged starts within tolerance of the best criterion */
+  LODE_ROTATION_DISTINCT_SOLUTIONS = 527,
+  LODE_ROTATION_METHOD = 528,              /* enum lode_rotation_method */
+  LODE_ROTATION_FINAL_CHANGE = 529,        /* the convergence criterion at the last iteration */
+  LODE_ROTATION_TOLERANCE = 530,           /* what it was tested against */
+  LODE_ROTATION_MAX_ITERATIONS = 531,
+  /* text: lode_rotation_text */
+  LODE_ROTATION_METHOD_NAME = 550
+};
+
+LODE_API int lode_rotation_matrix(const lode_rotation* rotation, int key, double* out, size_t capacity,
+                                  int64_t* rows, int64_t* cols);
+LODE_API int lode_rotation_value(const lode_rotation* rotation, int key, double* value);
+LODE_API int lode_rotation_text(const lode_rotation* rotation, int key, char* out, size_t capacity,
+                                size_t* length);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Fitting a factor model: extraction, rotation, fit statistics, residuals                      */
+/* ------------------------------------------------------------------------------------------- */
+
+enum lode_extraction_method {
+  LODE_ML = 0,     /* maximum likelihood (Joreskog 1967; Lawley & Maxwell 1971) */
+  LODE_PAF = 1,    /* iterated principal axis factoring from SMCs */
+  LODE_MINRES = 2, /* minimum residual (unweighted least squares) */
+  LODE_PCA = 3     /* principal components, a comparison method */
+};
+
+typedef struct lode_fit_options {
+  size_t struct_size;
+  int factors;              /* number of factors; 0 (default) = the count suggested by
+                               lode_count_factors with `factor_count`'s options */
+  int method;               /* enum lode_extraction_method; default LODE_ML */
+  int max_iterations;       /* extraction; default 1000 */
+  double tolerance;         /* extraction; default 1e-9 */
+  double min_uniqueness;    /* lower bound of uniquenesses (ML, MINRES); default 0.005 */
+  double interval_level;    /* of the RMSEA interval; default 0.90 */
+  const lode_rotation_options* rotation;         /* NULL (default) = unrotated */
+  const lode_factor_count_options* factor_count; /* used when factors == 0; NULL = defaults */
+} lode_fit_options;
+
+LODE_API int lode_fit_options_init(lode_fit_options* opts, size_t struct_size);
+
+typedef struct lode_model lode_model;
+
+/* Extracts, rotates and assesses a factor model of `corr`'s matrix. Non-convergence and Heywood
+ * cases are reported (LODE_MODEL_CONVERGED, LODE_MODEL_HEYWOOD, the notes), not errors. Fit
+ * statistics need n_obs: without it they are unavailable (their getters say why) while loadings and
+ * residuals are there. */
+LODE_API int lode_fit(const lode_correlation* corr, const lode_fit_options* opts, lode_model** out);
+
+LODE_API void lode_model_free(lode_model* model);
+
+enum lode_model_key {
+  /* matrices: lode_model_matrix */
+  LODE_MODEL_LOADINGS = 400,            /* items x factors: rotated pattern (unrotated without rotation) */
+  LODE_MODEL_STRUCTURE = 401,           /* items x factors */
+  LODE_MODEL_FACTOR_CORRELATIONS = 402, /* factors x factors */
+  LODE_MODEL_ROTATION_MATRIX = 403,     /* factors x factors */
+  LODE_MODEL_UNROTATED_LOADINGS = 404,  /* items x factors */
+  LODE_MODEL_UNIQUENESSES = 405,        /* items x 1 */
+  LODE_MODEL_COMMUNALITIES = 406,       /* items x 1 */
+  LODE_MODEL_RESIDUALS = 407,           /* items x items: observed minus implied correlations */
+  LODE_MODEL_HEYWOOD = 408,             /* items x 1: 1 for an improper item (communality >= 1 or
+                                           uniqueness at its bound), else 0 */
+  LODE_MODEL_SS_LOADINGS = 409,         /* factors x 1: sums of squared pattern loadings */
+  LODE_MODEL_SS_STRUCTURE = 410,        /* factors x 1: sums of squared structure loadings */
+  /* numbers: lode_model_value */
+  LODE_MODEL_FACTORS = 420,
+  LODE_MODEL_ITEMS = 421,
+  LODE_MODEL_N_OBS = 422,
+  LODE_MODEL_CONVERGED = 423,           /* extraction converged: 1 or 0 */
+  LODE_MODEL_ITERATIONS = 424,
+  LODE_MODEL_HEYWOOD_COUNT = 425,
+  LODE_MODEL_OBJECTIVE = 426,           /* the extraction's fitting function at the solution */
+  LODE_MODEL_RMSR = 427,                /* root mean square of off-diagonal residuals (no n_obs needed) */
+  LODE_MODEL_MAX_ABS_RESIDUAL = 428,
+  LODE_MODEL_CHI_SQUARE = 429,          /* with Bartlett's correction; the following need n_obs */
+  LODE_MODEL_DF = 430,
+  LODE_MODEL_P_VALUE = 431,             /* NaN when df = 0 */
+  LODE_MODEL_RMSEA = 432,
+  LODE_MODEL_RMSEA_LOWER = 433,
+  LODE_MODEL_RMSEA_UPPER = 434,
+  LODE_MODEL_TLI = 435,
+  LODE_MODEL_BIC = 436,
+  LODE_MODEL_NULL_CHI_SQUARE = 437,
+  LODE_MODEL_NULL_DF = 438,
+  LODE_MODEL_ROTATION_CRITERION = 439,
+  LODE_MODEL_ROTATION_CONVERGED = 440,
+  LODE_MODEL_OBLIQUE = 441,
+  LODE_MODEL_METHOD = 442,              /* enum lode_extraction_method */
+  LODE_MODEL_ROTATION_METHOD = 443,     /* enum lode_rotation_method */
+  LODE_MODEL_SUGGESTED_FACTORS = 444,   /* when factors was 0: the count used; else 0 */
+  LODE_MODEL_FINAL_CHANGE = 445,        /* extraction's convergence criterion at the last iteration */
+  LODE_MODEL_TOLERANCE = 446,           /* what it was tested against */
+  LODE_MODEL_MAX_ITERATIONS = 447,
+  /* text: lode_model_text */
+  LODE_MODEL_NOTES = 450                /* remarks (Heywood cases, non-convergence, fit caveats) */
+};
+
+LODE_API int lode_model_matrix(const lode_model* model, int key, double* out, size_t capacity, int64_t* rows,
+                               int64_t* cols);
+LODE_API int lode_model_value(const lode_model* model, int key, double* value);
+LODE_API int lode_model_text(const lode_model* model, int key, char* out, size_t capacity, size_t* length);
+
 #ifdef __cplusplus
 } /* extern "C" */
 #endif

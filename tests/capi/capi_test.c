@@ -611,6 +611,440 @@ static void test_factorability(void) {
 }
 
 
+static int progress_calls = 0;
+static int count_progress(void* user, int64_t done, int64_t total) {
+  ++progress_calls;
+  CHECK(done >= 0 && done <= total);
+  return user != NULL && *(const int*)user != 0; /* nonzero cancels */
+}
+
+static void test_factor_count(void) {
+  lode_correlation* c = population_correlation(300);
+  lode_correlation* c0 = population_correlation(0);
+  lode_factor_count* n = NULL;
+  lode_factor_count_options o;
+  double v, col[6];
+  char text[2048];
+  size_t len = 0;
+  int64_t rows, cols;
+  int cancel = 1, keep_going = 0;
+
+  EXPECT(lode_factor_count_options_init(NULL, sizeof o), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
+  OK(lode_factor_count_options_init(&o, sizeof o));
+  CHECK(o.replicates == 500 && o.percentile == 95.0 && o.threads == 0 && o.progress == NULL);
+  o.replicates = 200;
+  o.seed = 42;
+  o.progress = count_progress;
+  o.progress_user = &keep_going;
+  EXPECT(lode_count_factors(NULL, &o, &n), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
+  EXPECT(lode_count_factors(c, &o, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  OK(lode_count_factors(c, &o, &n));
+  CHECK(progress_calls > 0);
+  OK(lode_factor_count_value(n, LODE_COUNT_SUGGESTED, &v));
+  CHECK(v == 2.0);
+  OK(lode_factor_count_value(n, LODE_COUNT_PARALLEL_FACTOR, &v));
+  OK(lode_factor_count_value(n, LODE_COUNT_PARALLEL_PC, &v));
+  OK(lode_factor_count_value(n, LODE_COUNT_MAP_SQUARED_SUGGESTED, &v));
+  OK(lode_factor_count_value(n, LODE_COUNT_MAP_FOURTH_SUGGESTED, &v));
+  OK(lode_factor_count_value(n, LODE_COUNT_KAISER, &v));
+  CHECK(v == 2.0); /* two eigenvalues above one */
+  OK(lode_factor_count_value(n, LODE_COUNT_EMPIRICAL_KAISER, &v));
+  OK(lode_factor_count_value(n, LODE_COUNT_REPLICATES, &v));
+  CHECK(v == 200.0);
+  OK(lode_factor_count_value(n, LODE_COUNT_N_OBS, &v));
+  CHECK(v == 300.0);
+  OK(lode_factor_count_value(n, LODE_COUNT_PERCENTILE, &v));
+  CHECK(v == 95.0);
+  {
+    static const int keys[] = {LODE_COUNT_OBSERVED_PC, LODE_COUNT_OBSERVED_FACTOR, LODE_COUNT_RANDOM_PC_MEAN,
+                               LODE_COUNT_RANDOM_PC_PERCENTILE, LODE_COUNT_RANDOM_FACTOR_MEAN,
+                               LODE_COUNT_RANDOM_FACTOR_PERCENTILE, LODE_COUNT_MAP_SQUARED, LODE_COUNT_MAP_FOURTH,
+                               LODE_COUNT_EKC_REFERENCE};
+    size_t k;
+    for (k = 0; k < sizeof keys / sizeof keys[0]; ++k) {
+      OK(lode_factor_count_matrix(n, keys[k], NULL, 0, &rows, &cols));
+      CHECK(rows >= 1 && rows <= 6 && cols == 1);
+      OK(lode_factor_count_matrix(n, keys[k], col, 6, NULL, NULL));
+    }
+  }
+  OK(lode_factor_count_text(n, LODE_COUNT_REASON, text, sizeof text, &len));
+  CHECK(len > 0);
+  OK(lode_factor_count_text(n, LODE_COUNT_TABLE, text, sizeof text, &len));
+  CHECK(strchr(text, '\t') != NULL);
+  OK(lode_factor_count_text(n, LODE_COUNT_NOTES, NULL, 0, &len));
+  EXPECT(lode_factor_count_value(n, LODE_COUNT_TABLE, &v), LODE_E_INVALID_ARGUMENT, "key 351");
+  EXPECT(lode_factor_count_matrix(n, LODE_COUNT_SUGGESTED, col, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "key 320");
+  EXPECT(lode_factor_count_text(n, LODE_COUNT_SUGGESTED, text, 8, NULL), LODE_E_INVALID_ARGUMENT, "key 320");
+  EXPECT(lode_factor_count_value(NULL, LODE_COUNT_SUGGESTED, &v), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT(lode_factor_count_matrix(NULL, LODE_COUNT_MAP_SQUARED, col, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT(lode_factor_count_text(NULL, LODE_COUNT_REASON, text, 8, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  lode_factor_count_free(n);
+  n = NULL;
+
+  /* cancelled by the callback */
+  o.progress_user = &cancel;
+  o.replicates = 100000;
+  EXPECT(lode_count_factors(c, &o, &n), LODE_E_CANCELLED, NULL);
+  CHECK(n == NULL);
+  /* bad options; an older struct without the progress fields */
+  OK(lode_factor_count_options_init(&o, sizeof o));
+  o.replicates = 0;
+  EXPECT(lode_count_factors(c, &o, &n), LODE_E_INVALID_ARGUMENT, "replicates");
+  o.replicates = 100;
+  o.percentile = 100.0;
+  EXPECT(lode_count_factors(c, &o, &n), LODE_E_INVALID_ARGUMENT, "percentile");
+  o.percentile = 95.0;
+  o.threshold = 9;
+  EXPECT(lode_count_factors(c, &o, &n), LODE_E_INVALID_ARGUMENT, "threshold");
+  o.threshold = LODE_THRESHOLD_MEAN;
+  o.source = 9;
+  EXPECT(lode_count_factors(c, &o, &n), LODE_E_INVALID_ARGUMENT, "source");
+  o.source = LODE_RANDOM_PERMUTATION;
+  EXPECT(lode_count_factors(c, &o, &n), LODE_E_INVALID_ARGUMENT, "raw data");
+  o.source = LODE_RANDOM_NORMAL;
+  o.threads = -2;
+  EXPECT(lode_count_factors(c, &o, &n), LODE_E_INVALID_ARGUMENT, "threads");
+  o.threads = 0;
+  o.progress = count_progress;
+  o.progress_user = &cancel;
+  o.struct_size = offsetof(lode_factor_count_options, progress); /* older caller: no callback fields */
+  OK(lode_count_factors(c, &o, &n));
+  lode_factor_count_free(n);
+  n = NULL;
+  /* without n_obs parallel analysis cannot simulate data of the right size */
+  EXPECT(lode_count_factors(c0, NULL, &n), LODE_E_INSUFFICIENT_DATA, NULL);
+  CHECK(n == NULL);
+  lode_factor_count_free(NULL);
+  lode_correlation_free(c);
+  lode_correlation_free(c0);
+}
+
+
+/* the loadings behind population_matrix */
+static const double simple_loadings[12] = {0.8, 0, 0.7, 0, 0.6, 0, 0, 0.7, 0, 0.6, 0, 0.5};
+static void test_rotation(void) {
+  /* unrotated two-factor loadings: the simple structure of population_matrix turned by 30 degrees */
+  const double s = 0.5, co = 0.86602540378443865;
+  const double* simple = simple_loadings;
+  double a[12], a_cm[12], out[12], out2[12], phi[4], t[4], v;
+  char name[32];
+  int i, m = -1;
+  int64_t rows, cols;
+  lode_rotation *r = NULL, *r2 = NULL;
+  lode_rotation_options o;
+  for (i = 0; i < 6; ++i) {
+    a[i * 2] = simple[i * 2] * co - simple[i * 2 + 1] * s;
+    a[i * 2 + 1] = simple[i * 2] * s + simple[i * 2 + 1] * co;
+    a_cm[i] = a[i * 2];
+    a_cm[6 + i] = a[i * 2 + 1];
+  }
+
+  OK(lode_rotation_method_from_name("Oblimin", &m));
+  CHECK(m == LODE_ROTATION_OBLIMIN);
+  OK(lode_rotation_method_from_name("geomin", &m));
+  CHECK(m == LODE_ROTATION_GEOMIN);
+  EXPECT(lode_rotation_method_from_name("spin", &m), LODE_E_INVALID_ARGUMENT, "varimax");
+  EXPECT(lode_rotation_method_from_name(NULL, &m), LODE_E_INVALID_ARGUMENT, "'name' is NULL");
+  EXPECT(lode_rotation_method_from_name("varimax", NULL), LODE_E_INVALID_ARGUMENT, "'method' is NULL");
+  CHECK(strcmp(lode_rotation_method_name(LODE_ROTATION_PROMAX), "promax") == 0);
+  CHECK(lode_rotation_method_name(99) == NULL && lode_rotation_method_name(-1) == NULL);
+
+  EXPECT(lode_rotation_options_init(NULL, sizeof o), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
+  OK(lode_rotation_options_init(&o, sizeof o));
+  CHECK(o.method == LODE_ROTATION_VARIMAX && o.normalize == 1 && o.random_starts == -1 && o.target == NULL);
+  OK(lode_rotate(a, 6, 2, 2, 1, &o, &r));
+  OK(lode_rotate(a_cm, 6, 2, 1, 6, &o, &r2)); /* column-major: the same */
+  OK(lode_rotation_matrix(r, LODE_ROTATION_PATTERN, out, 12, &rows, &cols));
+  OK(lode_rotation_matrix(r2, LODE_ROTATION_PATTERN, out2, 12, NULL, NULL));
+  CHECK(rows == 6 && cols == 2);
+  CHECK(max_abs_diff(out, out2, 12) < 1e-12);
+  CHECK(max_abs_diff(out, simple, 12) < 1e-6); /* varimax finds the simple structure back */
+  OK(lode_rotation_value(r, LODE_ROTATION_FINAL_CHANGE, &v));
+  CHECK(v >= 0.0);
+  OK(lode_rotation_value(r, LODE_ROTATION_TOLERANCE, &v));
+  CHECK(v > 0.0 && v < 1e-3);
+  OK(lode_rotation_value(r, LODE_ROTATION_MAX_ITERATIONS, &v));
+  CHECK(v >= 1000.0);
+  lode_rotation_free(r2);
+  r2 = NULL;
+  OK(lode_rotation_matrix(r, LODE_ROTATION_STRUCTURE, out2, 12, NULL, NULL));
+  CHECK(max_abs_diff(out, out2, 12) < 1e-12);
+  OK(lode_rotation_matrix(r, LODE_ROTATION_FACTOR_CORRELATIONS, phi, 4, NULL, NULL));
+  CHECK(fabs(phi[0] - 1) < 1e-12 && fabs(phi[1]) < 1e-12);
+  OK(lode_rotation_matrix(r, LODE_ROTATION_TRANSFORM, t, 4, NULL, NULL));
+  CHECK(fabs(t[0] * t[0] + t[2] * t[2] - 1.0) < 1e-10);
+  OK(lode_rotation_matrix(r, LODE_ROTATION_SS_PATTERN, out2, 2, &rows, &cols));
+  CHECK(rows == 2 && cols == 1 && fabs(out2[0] - 1.49) < 1e-6);
+  OK(lode_rotation_matrix(r, LODE_ROTATION_SS_STRUCTURE, out2, 2, NULL, NULL));
+  OK(lode_rotation_matrix(r, LODE_ROTATION_START_CRITERIA, NULL, 0, &rows, &cols));
+  CHECK(rows >= 1);
+  OK(lode_rotation_value(r, LODE_ROTATION_CONVERGED, &v));
+  OK(lode_rotation_value(r, LODE_ROTATION_OBLIQUE, &v));
+  CHECK(v == 0.0);
+  OK(lode_rotation_value(r, LODE_ROTATION_METHOD, &v));
+  CHECK(v == LODE_ROTATION_VARIMAX);
+  {
+    static const int keys[] = {LODE_ROTATION_CRITERION, LODE_ROTATION_ITERATIONS, LODE_ROTATION_STARTS,
+                               LODE_ROTATION_STARTS_CONVERGED, LODE_ROTATION_REACHED_BEST,
+                               LODE_ROTATION_DISTINCT_SOLUTIONS};
+    size_t k;
+    for (k = 0; k < sizeof keys / sizeof keys[0]; ++k) OK(lode_rotation_value(r, keys[k], &v));
+  }
+  OK(lode_rotation_text(r, LODE_ROTATION_METHOD_NAME, name, sizeof name, NULL));
+  CHECK(strcmp(name, "varimax") == 0);
+  EXPECT(lode_rotation_value(r, LODE_ROTATION_PATTERN, &v), LODE_E_INVALID_ARGUMENT, "key 500");
+  EXPECT(lode_rotation_matrix(r, LODE_ROTATION_CRITERION, out, 12, NULL, NULL), LODE_E_INVALID_ARGUMENT, "key 520");
+  EXPECT(lode_rotation_text(r, LODE_ROTATION_CRITERION, name, 32, NULL), LODE_E_INVALID_ARGUMENT, "key 520");
+  EXPECT(lode_rotation_value(NULL, LODE_ROTATION_CRITERION, &v), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT(lode_rotation_matrix(NULL, LODE_ROTATION_PATTERN, out, 12, NULL, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT(lode_rotation_text(NULL, LODE_ROTATION_METHOD_NAME, name, 32, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  lode_rotation_free(r);
+  r = NULL;
+
+  /* Kaiser's pairwise varimax converges on it (the convergence flag comes through) */
+  o.method = LODE_ROTATION_VARIMAX_KAISER;
+  OK(lode_rotate(a, 6, 2, 2, 1, &o, &r));
+  OK(lode_rotation_value(r, LODE_ROTATION_CONVERGED, &v));
+  CHECK(v == 1.0);
+  OK(lode_rotation_matrix(r, LODE_ROTATION_PATTERN, out, 12, NULL, NULL));
+  CHECK(max_abs_diff(out, simple, 12) < 1e-6);
+  lode_rotation_free(r);
+  r = NULL;
+
+  /* oblique, with random starts; an older struct (only method and normalize) */
+  o.method = LODE_ROTATION_GEOMIN;
+  o.random_starts = 5;
+  o.seed = 7;
+  OK(lode_rotate(a, 6, 2, 2, 1, &o, &r));
+  OK(lode_rotation_value(r, LODE_ROTATION_STARTS, &v));
+  CHECK(v == 6.0);
+  OK(lode_rotation_value(r, LODE_ROTATION_OBLIQUE, &v));
+  CHECK(v == 1.0);
+  lode_rotation_free(r);
+  r = NULL;
+  o.struct_size = offsetof(lode_rotation_options, gamma);
+  o.method = LODE_ROTATION_QUARTIMAX;
+  o.tolerance = -1.0; /* beyond the old size: not read */
+  OK(lode_rotate(a, 6, 2, 2, 1, &o, &r));
+  lode_rotation_free(r);
+  r = NULL;
+
+  /* target rotation: a partial target (NaN = unspecified) */
+  {
+    double target[12];
+    for (i = 0; i < 12; ++i) target[i] = simple[i] > 0 ? nan_value() : 0.0;
+    OK(lode_rotation_options_init(&o, sizeof o));
+    o.method = LODE_ROTATION_TARGET_ORTHOGONAL;
+    o.target = target;
+    o.target_rows = 6;
+    o.target_cols = 2;
+    o.target_row_stride = 2;
+    o.target_col_stride = 1;
+    OK(lode_rotate(a, 6, 2, 2, 1, &o, &r));
+    OK(lode_rotation_matrix(r, LODE_ROTATION_PATTERN, out, 12, NULL, NULL));
+    CHECK(max_abs_diff(out, simple, 12) < 1e-6);
+    lode_rotation_free(r);
+    r = NULL;
+    o.target_rows = 3;
+    EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "target");
+    o.target_rows = 6;
+    target[3] = inf_value();
+    EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "infinite");
+    o.target = NULL;
+    EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "'target' is NULL");
+  }
+
+  /* bad input and options */
+  OK(lode_rotation_options_init(&o, sizeof o));
+  EXPECT(lode_rotate(NULL, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "'values' is NULL");
+  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  EXPECT(lode_rotate(a, 6, 1, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "factor");
+  EXPECT(lode_rotate(a, 6, 2, 0, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "strides");
+  a[3] = nan_value();
+  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, NULL);
+  a[3] = inf_value();
+  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, NULL);
+  a[3] = 0.5;
+  o.method = 99;
+  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "unknown rotation method 99");
+  o.method = LODE_ROTATION_OBLIMIN;
+  o.gamma = nan_value();
+  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "gamma");
+  o.gamma = 0.0;
+  o.random_starts = -5;
+  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "random_starts");
+  o.random_starts = 0;
+  o.max_iterations = 0;
+  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "max_iterations");
+  o.max_iterations = 100;
+  o.tolerance = 0.0;
+  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "tolerance");
+  o.tolerance = 1e-8;
+  o.threads = -1;
+  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "threads");
+  o.struct_size = 1;
+  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "struct_size is 1");
+  CHECK(r == NULL);
+  lode_rotation_free(NULL);
+}
+
+static void test_fit(void) {
+  lode_correlation* c = population_correlation(250);
+  lode_correlation* c0 = population_correlation(0);
+  lode_model* m = NULL;
+  lode_fit_options o;
+  lode_rotation_options ro;
+  lode_factor_count_options co;
+  double v, l[12], resid[36], col[6], phi[4];
+  char notes[2048];
+  size_t len;
+  int64_t rows, cols;
+  int i, keep_going = 0;
+  const double* simple = simple_loadings;
+
+  EXPECT(lode_fit_options_init(NULL, sizeof o), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
+  OK(lode_fit_options_init(&o, sizeof o));
+  CHECK(o.factors == 0 && o.method == LODE_ML && o.rotation == NULL && o.factor_count == NULL);
+  OK(lode_rotation_options_init(&ro, sizeof ro));
+  o.factors = 2;
+  o.rotation = &ro;
+  EXPECT(lode_fit(NULL, &o, &m), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
+  EXPECT(lode_fit(c, &o, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  OK(lode_fit(c, &o, &m));
+  /* the exact population structure is recovered: loadings, zero residuals, zero chi-square */
+  OK(lode_model_matrix(m, LODE_MODEL_LOADINGS, l, 12, &rows, &cols));
+  CHECK(rows == 6 && cols == 2);
+  CHECK(max_abs_diff(l, simple, 12) < 1e-4);
+  OK(lode_model_matrix(m, LODE_MODEL_RESIDUALS, resid, 36, &rows, &cols));
+  CHECK(rows == 6 && cols == 6);
+  for (i = 0; i < 36; ++i) CHECK(fabs(resid[i]) < 1e-4);
+  OK(lode_model_value(m, LODE_MODEL_CHI_SQUARE, &v));
+  CHECK(fabs(v) < 1e-3);
+  OK(lode_model_value(m, LODE_MODEL_DF, &v));
+  CHECK(v == 4.0); /* ((6 - 2)^2 - (6 + 2)) / 2 */
+  OK(lode_model_value(m, LODE_MODEL_RMSEA, &v));
+  CHECK(fabs(v) < 1e-6);
+  OK(lode_model_matrix(m, LODE_MODEL_UNIQUENESSES, col, 6, NULL, NULL));
+  CHECK(fabs(col[0] - 0.36) < 1e-4 && fabs(col[2] - 0.64) < 1e-4);
+  OK(lode_model_matrix(m, LODE_MODEL_COMMUNALITIES, col, 6, NULL, NULL));
+  CHECK(fabs(col[1] - 0.49) < 1e-4);
+  OK(lode_model_matrix(m, LODE_MODEL_HEYWOOD, col, 6, NULL, NULL));
+  for (i = 0; i < 6; ++i) CHECK(col[i] == 0.0);
+  OK(lode_model_matrix(m, LODE_MODEL_FACTOR_CORRELATIONS, phi, 4, NULL, NULL));
+  CHECK(fabs(phi[1]) < 1e-12);
+  {
+    static const int mkeys[] = {LODE_MODEL_STRUCTURE, LODE_MODEL_ROTATION_MATRIX, LODE_MODEL_UNROTATED_LOADINGS,
+                                LODE_MODEL_SS_LOADINGS, LODE_MODEL_SS_STRUCTURE};
+    static const int vkeys[] = {LODE_MODEL_FACTORS, LODE_MODEL_ITEMS, LODE_MODEL_N_OBS, LODE_MODEL_CONVERGED,
+                                LODE_MODEL_ITERATIONS, LODE_MODEL_HEYWOOD_COUNT, LODE_MODEL_OBJECTIVE,
+                                LODE_MODEL_RMSR, LODE_MODEL_MAX_ABS_RESIDUAL, LODE_MODEL_P_VALUE,
+                                LODE_MODEL_RMSEA_LOWER, LODE_MODEL_RMSEA_UPPER, LODE_MODEL_TLI, LODE_MODEL_BIC,
+                                LODE_MODEL_NULL_CHI_SQUARE, LODE_MODEL_NULL_DF, LODE_MODEL_ROTATION_CRITERION,
+                                LODE_MODEL_ROTATION_CONVERGED, LODE_MODEL_OBLIQUE, LODE_MODEL_METHOD,
+                                LODE_MODEL_ROTATION_METHOD, LODE_MODEL_SUGGESTED_FACTORS, LODE_MODEL_FINAL_CHANGE,
+                                LODE_MODEL_TOLERANCE, LODE_MODEL_MAX_ITERATIONS};
+    size_t k;
+    double big[36];
+    for (k = 0; k < sizeof mkeys / sizeof mkeys[0]; ++k) OK(lode_model_matrix(m, mkeys[k], big, 36, NULL, NULL));
+    for (k = 0; k < sizeof vkeys / sizeof vkeys[0]; ++k) OK(lode_model_value(m, vkeys[k], &v));
+  }
+  OK(lode_model_value(m, LODE_MODEL_CONVERGED, &v));
+  CHECK(v == 1.0);
+  OK(lode_model_value(m, LODE_MODEL_N_OBS, &v));
+  CHECK(v == 250.0);
+  OK(lode_model_value(m, LODE_MODEL_ROTATION_METHOD, &v));
+  CHECK(v == LODE_ROTATION_VARIMAX);
+  OK(lode_model_text(m, LODE_MODEL_NOTES, notes, sizeof notes, &len));
+  EXPECT(lode_model_matrix(m, LODE_MODEL_LOADINGS, l, 11, NULL, NULL), LODE_E_BUFFER_TOO_SMALL, "6 x 2");
+  EXPECT(lode_model_value(m, LODE_MODEL_LOADINGS, &v), LODE_E_INVALID_ARGUMENT, "key 400");
+  EXPECT(lode_model_matrix(m, LODE_MODEL_RMSEA, l, 12, NULL, NULL), LODE_E_INVALID_ARGUMENT, "key 432");
+  EXPECT(lode_model_text(m, LODE_MODEL_RMSEA, notes, 8, NULL), LODE_E_INVALID_ARGUMENT, "key 432");
+  EXPECT(lode_model_value(m, LODE_MODEL_RMSEA, NULL), LODE_E_INVALID_ARGUMENT, "'value' is NULL");
+  EXPECT(lode_model_value(NULL, LODE_MODEL_RMSEA, &v), LODE_E_INVALID_ARGUMENT, "'model' is NULL");
+  EXPECT(lode_model_matrix(NULL, LODE_MODEL_LOADINGS, l, 12, NULL, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT(lode_model_text(NULL, LODE_MODEL_NOTES, notes, 8, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  lode_model_free(m);
+  m = NULL;
+
+  /* each extraction method, unrotated; the count suggested when factors = 0 */
+  o.rotation = NULL;
+  for (i = LODE_ML; i <= LODE_PCA; ++i) {
+    o.method = i;
+    OK(lode_fit(c, &o, &m));
+    OK(lode_model_value(m, LODE_MODEL_METHOD, &v));
+    CHECK(v == i);
+    lode_model_free(m);
+    m = NULL;
+  }
+  OK(lode_factor_count_options_init(&co, sizeof co));
+  co.replicates = 100;
+  co.progress = count_progress;
+  co.progress_user = &keep_going;
+  o.method = LODE_PAF;
+  o.factors = 0;
+  o.factor_count = &co;
+  OK(lode_fit(c, &o, &m));
+  OK(lode_model_value(m, LODE_MODEL_SUGGESTED_FACTORS, &v));
+  CHECK(v == 2.0);
+  lode_model_free(m);
+  m = NULL;
+
+  /* without n_obs: loadings and residuals, but fit statistics say why they are missing */
+  o.factors = 2;
+  o.factor_count = NULL;
+  OK(lode_fit(c0, &o, &m));
+  EXPECT(lode_model_value(m, LODE_MODEL_CHI_SQUARE, &v), LODE_E_INSUFFICIENT_DATA, "n_obs");
+  OK(lode_model_value(m, LODE_MODEL_RMSR, &v));
+  lode_model_free(m);
+  m = NULL;
+
+  /* one factor with a rotation asked for: unrotated, with a note */
+  o.factors = 1;
+  o.rotation = &ro;
+  OK(lode_fit(c, &o, &m));
+  OK(lode_model_text(m, LODE_MODEL_NOTES, notes, sizeof notes, NULL));
+  CHECK(strstr(notes, "rotation does not apply") != NULL);
+  lode_model_free(m);
+  m = NULL;
+
+  /* errors: too many factors, bad options, an older struct */
+  o.factors = 5;
+  o.method = LODE_ML;
+  EXPECT(lode_fit(c, &o, &m), LODE_E_TOO_MANY_FACTORS, "3");
+  o.factors = -1;
+  EXPECT(lode_fit(c, &o, &m), LODE_E_INVALID_ARGUMENT, "factors");
+  o.factors = 2;
+  o.method = 17;
+  EXPECT(lode_fit(c, &o, &m), LODE_E_INVALID_ARGUMENT, "unknown extraction method 17");
+  o.method = LODE_ML;
+  o.max_iterations = 0;
+  EXPECT(lode_fit(c, &o, &m), LODE_E_INVALID_ARGUMENT, "max_iterations");
+  o.max_iterations = 1000;
+  o.tolerance = nan_value();
+  EXPECT(lode_fit(c, &o, &m), LODE_E_INVALID_ARGUMENT, "tolerance");
+  o.tolerance = 1e-9;
+  o.min_uniqueness = 1.0;
+  EXPECT(lode_fit(c, &o, &m), LODE_E_INVALID_ARGUMENT, "min_uniqueness");
+  o.min_uniqueness = 0.005;
+  o.interval_level = 1.5;
+  EXPECT(lode_fit(c, &o, &m), LODE_E_INVALID_ARGUMENT, "interval_level");
+  o.interval_level = 0.9;
+  ro.method = 77;
+  EXPECT(lode_fit(c, &o, &m), LODE_E_INVALID_ARGUMENT, "unknown rotation method 77");
+  ro.method = LODE_ROTATION_VARIMAX;
+  o.struct_size = offsetof(lode_fit_options, max_iterations); /* older: factors and method only */
+  o.rotation = NULL;
+  OK(lode_fit(c, &o, &m));
+  lode_model_free(m);
+  m = NULL;
+  o.struct_size = 0;
+  EXPECT(lode_fit(c, &o, &m), LODE_E_INVALID_ARGUMENT, "lode_fit_options_init");
+  CHECK(m == NULL);
+  lode_model_free(NULL);
+  lode_correlation_free(c);
+  lode_correlation_free(c0);
+}
+
 static void test_last_error_is_cleared(void) {
   lode_data* d = NULL;
   EXPECT(lode_data_from_raw(NULL, 1, 1, 1, 1, &d), LODE_E_INVALID_ARGUMENT, "NULL");
@@ -630,6 +1064,9 @@ int main(void) {
   test_correlation();
   test_polychoric();
   test_factorability();
+  test_factor_count();
+  test_rotation();
+  test_fit();
   test_last_error_is_cleared();
   printf("%d checks, %d failures\n", checks, failures);
   return failures == 0 ? 0 : 1;

@@ -119,6 +119,55 @@ _factorability_signatures = {
 declare(_factorability_signatures)
 
 
+class FactorCountOptions(ctypes.Structure):
+    _fields_ = [("struct_size", c_size_t), ("replicates", c_int64), ("threshold", c_int), ("percentile", c_double),
+                ("source", c_int), ("seed", ctypes.c_uint64), ("threads", c_int), ("progress", PROGRESS_FN),
+                ("progress_user", c_void_p)]
+
+
+_count_signatures = {
+    "lode_factor_count_options_init": (c_int, [ctypes.POINTER(FactorCountOptions), c_size_t]),
+    "lode_count_factors": (c_int, [c_void_p, ctypes.POINTER(FactorCountOptions), P_void_p]),
+    "lode_factor_count_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
+    "lode_factor_count_value": (c_int, [c_void_p, c_int, P_double]),
+    "lode_factor_count_text": (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t]),
+    "lode_factor_count_free": (None, [c_void_p]),
+}
+declare(_count_signatures)
+
+
+class RotationOptions(ctypes.Structure):
+    _fields_ = [("struct_size", c_size_t), ("method", c_int), ("normalize", c_int), ("gamma", c_double),
+                ("kappa", c_double), ("epsilon", c_double), ("power", c_double), ("target", P_double),
+                ("target_rows", c_int64), ("target_cols", c_int64), ("target_row_stride", c_int64),
+                ("target_col_stride", c_int64), ("random_starts", c_int), ("seed", ctypes.c_uint64),
+                ("max_iterations", c_int), ("tolerance", c_double), ("threads", c_int)]
+
+
+class FitOptions(ctypes.Structure):
+    _fields_ = [("struct_size", c_size_t), ("factors", c_int), ("method", c_int), ("max_iterations", c_int),
+                ("tolerance", c_double), ("min_uniqueness", c_double), ("interval_level", c_double),
+                ("rotation", ctypes.POINTER(RotationOptions)), ("factor_count", ctypes.POINTER(FactorCountOptions))]
+
+
+_getters = {}
+for _kind in ("rotation", "model"):
+    _getters[f"lode_{_kind}_matrix"] = (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64])
+    _getters[f"lode_{_kind}_value"] = (c_int, [c_void_p, c_int, P_double])
+    _getters[f"lode_{_kind}_text"] = (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t])
+    _getters[f"lode_{_kind}_free"] = (None, [c_void_p])
+_getters.update({
+    "lode_rotation_method_from_name": (c_int, [c_char_p, ctypes.POINTER(c_int)]),
+    "lode_rotation_method_name": (c_char_p, [c_int]),
+    "lode_rotation_options_init": (c_int, [ctypes.POINTER(RotationOptions), c_size_t]),
+    "lode_rotate": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, ctypes.POINTER(RotationOptions), P_void_p]),
+    "lode_fit_options_init": (c_int, [ctypes.POINTER(FitOptions), c_size_t]),
+    "lode_fit": (c_int, [c_void_p, ctypes.POINTER(FitOptions), P_void_p]),
+})
+declare(_getters)
+
+
+
 def check(status):
     """Raises LodeError for a failing status, with the library's message."""
     if status != 0:
