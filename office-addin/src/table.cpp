@@ -10,6 +10,20 @@ namespace lode::addin {
 namespace {
 
 // Argument help shared by several rows.
+constexpr std::string_view kFactorsHelp =
+    "Number of factors; left out or 0: the count parallel analysis suggests (see LODE.NFACTORS)";
+constexpr std::string_view kMethodHelp =
+    "Extraction: \"ml\" maximum likelihood (default), \"paf\" principal axis, \"minres\" minimum residual";
+constexpr std::string_view kRotationHelp =
+    "\"oblimin\" (default), \"none\", \"varimax\", \"quartimax\", \"equamax\", \"promax\", \"quartimin\" or "
+    "\"geomin\"";
+constexpr std::string_view kNobsHelp =
+    "Number of respondents behind a correlation matrix given as data (needed for tests and fit indices); "
+    "ignored for raw data";
+constexpr std::string_view kSeedHelp =
+    "Seed of the random data (a whole number); left out: Lode's fixed default, so results repeat";
+constexpr std::string_view kFitErrors =
+    "#NUM!: matrix not positive definite; Err:523: no convergence";
 constexpr std::string_view kDataHelp =
     "Respondents in rows, items in columns (empty and text cells are missing; a first row of names is "
     "used as item names), or a square correlation matrix with ones on the diagonal";
@@ -35,6 +49,22 @@ const std::vector<FunctionSpec> kTable = {
        "TRUE: eigenvalues of the reduced matrix (squared multiple correlations on the diagonal); FALSE or "
        "left out: of the full correlation matrix"}},
      "items x 1", "#NUM!: `reduced` on a matrix that is not positive definite", fn_eigen},
+    {"kmo",
+     "LODE.KMO",
+     "The overall Kaiser-Meyer-Olkin measure of sampling adequacy (0 to 1; higher: more worth factoring).",
+     {{"data", ArgKind::range, kDataHelp}},
+     "one number", "#NUM!: matrix not positive definite", fn_kmo},
+    {"msa",
+     "LODE.MSA",
+     "The measure of sampling adequacy of each item (Kaiser-Meyer-Olkin per item; one column).",
+     {{"data", ArgKind::range, kDataHelp}},
+     "items x 1", "#NUM!: matrix not positive definite", fn_msa},
+    {"sphericity",
+     "LODE.SPHERICITY",
+     "Bartlett's test that the items are uncorrelated: one row of chi-square, degrees of freedom, p-value.",
+     {{"data", ArgKind::range, kDataHelp}, {"n_obs", ArgKind::value, kNobsHelp}},
+     "1 x 3: chi-square, df, p", "#NUM!: matrix not positive definite; Err:502: a correlation matrix without `n_obs`",
+     fn_sphericity},
 };
 
 bool iequal(std::string_view a, std::string_view b) {

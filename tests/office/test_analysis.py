@@ -221,22 +221,25 @@ def test_residuals_and_fit_match_factanal(book, functions, harman, factanal_harm
     resid = book.numbers(f"=LODE.RESIDUALS({args})", p, p)
     # R - (L L' + diag(u)) from factanal's solution
     assert np.max(np.abs(resid - ref["resid"])) < 2e-3
-    fit = book.array(f"=LODE.FIT({args})", 9, 2)
-    labels = [row[0] for row in fit]
-    values = dict((row[0], row[1]) for row in fit)
+    fit = book.array(f"=LODE.FIT({args})", 12, 2)
+    values = {row[0]: row[1] for row in fit}
+    assert list(values) == ["factors", "chi-square", "df", "p", "RMSEA", "RMSEA lower (90%)", "RMSEA upper (90%)",
+                            "TLI", "BIC", "RMSR", "converged", "Heywood cases"], fit
     assert all(isinstance(v, float) for v in values.values()), fit
-    assert len(labels) == 9 and len(set(labels)) == 9
+    assert values["factors"] == K and values["converged"] == 1.0
     chi2, df, pval = ref["stat"][:, 0]
-    by_word = {w: next(v for k, v in values.items() if w in k.lower()) for w in ["chi", "df", "p", "rmsea", "tli", "bic", "rmsr"]}
     # factanal's STATISTIC (Bartlett's corrected likelihood ratio), dof and PVAL
-    assert abs(by_word["chi"] - chi2) < 1e-3 * chi2
-    assert by_word["df"] == df
+    assert abs(values["chi-square"] - chi2) < 1e-3 * chi2
+    assert values["df"] == df
+    assert abs(values["p"] - pval) < 1e-3
     # RMSEA (Steiger & Lind 1980) and BIC (Raftery 1995) from factanal's chi-square (numpy)
-    assert abs(by_word["rmsea"] - np.sqrt(max(chi2 - df, 0) / (df * (HARMAN_N - 1)))) < 1e-4
-    assert abs(by_word["bic"] - (chi2 - df * np.log(HARMAN_N))) < 1e-2 * abs(chi2)
+    assert abs(values["RMSEA"] - np.sqrt(max(chi2 - df, 0) / (df * (HARMAN_N - 1)))) < 1e-4
+    assert abs(values["BIC"] - (chi2 - df * np.log(HARMAN_N))) < 1e-3 * abs(chi2)
+    assert values["RMSEA lower (90%)"] <= values["RMSEA"] <= values["RMSEA upper (90%)"]
     # RMSR: root mean square of the off-diagonal residuals, each pair once
     off = ref["resid"][np.triu_indices(p, 1)]
-    assert abs(by_word["rmsr"] - np.sqrt(np.mean(off ** 2))) < 1e-4
+    assert abs(values["RMSR"] - np.sqrt(np.mean(off ** 2))) < 1e-4
+    by_word = {"chi": values["chi-square"], "tli": values["TLI"]}
     m = lode.fit(corr=r, n_obs=HARMAN_N, factors=K, method="ml", rotation="varimax")
     s = m.statistics
     assert abs(by_word["chi"] - s["chi_square"]) < 1e-9 and abs(by_word["tli"] - s["tli"]) < 1e-9
@@ -247,8 +250,9 @@ def test_fit_shows_its_error_as_text(book, functions, harman):
     _need(functions, "LODE.FIT")
     r, rng = harman
     # a correlation matrix without n_obs: the chi-square cannot be computed; the cells say why
-    fit = book.array(f'=LODE.FIT({rng};{K};"ml";"varimax")', 9, 2)
+    fit = book.array(f'=LODE.FIT({rng};{K};"ml";"varimax")', 12, 2)
     texts = [v for row in fit for v in row if isinstance(v, str)]
+    assert fit[0][0] == "factors" and fit[0][1] == K  # the fit itself needs no sample size
     assert any("observ" in t.lower() or "n_obs" in t.lower() or "sample" in t.lower() for t in texts), fit
 
 
