@@ -174,12 +174,38 @@ def run_report(office, out_dir):
             w, h = style.Width, style.Height
             style.IsLandscape = True
             style.Width, style.Height = max(w, h), min(w, h)
+        else:
+            wrap_long_notes(sheet, cur.RangeAddress, style.Width - style.LeftMargin - style.RightMargin)
         sheet.PageStyle = style_name
     report_only = os.path.join(out_dir, REPORT_ONLY)
     with office.watchdog(120):
         doc.storeToURL(uno.systemPathToFileUrl(os.path.abspath(report_only)), (prop("FilterName", "calc8"),))
         doc.close(True)
     return result, report_only, summary
+
+
+def wrap_long_notes(sheet, area, page_width):
+    """For the printed copy only: a long note that spills over empty cells to its right is wrapped in
+    a merged block that ends at the page's right edge, so fitting the page width does not shrink
+    the whole sheet to fit one long line."""
+    widths = [sheet.Columns.getByIndex(c).Width for c in range(area.EndColumn + 30)]
+    for r in range(area.EndRow + 1):
+        for c in range(area.EndColumn + 1):
+            cell = sheet.getCellByPosition(c, r)
+            if cell.Type.value != "TEXT" or len(cell.String) < 60:
+                continue
+            left = sum(widths[:c])
+            end, width = c, widths[c]
+            while (end + 1 < len(widths) and left + width + widths[end + 1] <= page_width
+                   and sheet.getCellByPosition(end + 1, r).Type.value == "EMPTY"):
+                end += 1
+                width += widths[end]
+            block = sheet.getCellRangeByPosition(c, r, end, r)
+            if end > c:
+                block.merge(True)
+            block.IsTextWrapped = True
+            sheet.Rows.getByIndex(r).OptimalHeight = True
+            break
 
 
 def read_summary(doc, report_sheets):
@@ -200,8 +226,8 @@ def read_summary(doc, report_sheets):
             continue
         lines.append(h)
         for r in rows:
-            if h == "How many factors" and (not isinstance(r[0], str) or r[0] in ("Factor",)):
-                continue  # the eigenvalue table itself is on the sheet; the summary keeps its reading
+            if h == "How many factors" and r[0] != "Decision":
+                continue  # the evidence (eigenvalues, each rule's count) is on the sheet; the summary keeps the decision
             cells = [show(v, str(r[0])) for v in r if v is not None]
             lines.append("    " + ": ".join([cells[0], "  ".join(cells[1:])]) if len(cells) > 1 else "    " + cells[0])
     # The first observed eigenvalue, read from the overview, against the C library on the same cells.
