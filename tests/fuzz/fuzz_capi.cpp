@@ -64,6 +64,78 @@ void read_correlation(const lode_correlation* c, Bytes& in) {
   }
 }
 
+
+// Factorability, a small factor count, a fit with the chosen method and rotation, and a rotation of
+// the fitted loadings, each read back in full.
+void analyse(const lode_correlation* c, Bytes& in) {
+  lode_factorability* f = nullptr;
+  if (lode_assess_factorability(c, &f) == LODE_OK) {
+    double v;
+    for (int key = 218; key < 228; ++key) lode_factorability_value(f, key, &v);
+    for (int key : {LODE_FACTORABILITY_MSA, LODE_FACTORABILITY_SMC}) {
+      double buf[16];
+      lode_factorability_matrix(f, key, buf, 16, nullptr, nullptr);
+    }
+    char text[256];
+    lode_factorability_text(f, LODE_FACTORABILITY_KMO_LABEL, text, sizeof text, nullptr);
+    lode_factorability_text(f, LODE_FACTORABILITY_NOTES, text, sizeof text, nullptr);
+    lode_factorability_free(f);
+  }
+  const uint8_t plan = in.byte();
+  lode_factor_count_options co;
+  lode_factor_count_options_init(&co, sizeof co);
+  co.replicates = 5 + in.byte() % 20;
+  co.threads = 1;
+  co.seed = in.byte();
+  co.source = (plan & 0x80) ? LODE_RANDOM_PERMUTATION : LODE_RANDOM_NORMAL;
+  if (plan & 1) {
+    lode_factor_count* n = nullptr;
+    if (lode_count_factors(c, &co, &n) == LODE_OK) {
+      double v, buf[16];
+      for (int key = 320; key < 330; ++key) lode_factor_count_value(n, key, &v);
+      for (int key = 300; key < 309; ++key) lode_factor_count_matrix(n, key, buf, 16, nullptr, nullptr);
+      char text[1024];
+      for (int key = 350; key < 353; ++key) lode_factor_count_text(n, key, text, sizeof text, nullptr);
+      lode_factor_count_free(n);
+    }
+  }
+  lode_rotation_options ro;
+  lode_rotation_options_init(&ro, sizeof ro);
+  ro.method = in.byte() % 15;  // includes one unknown method
+  ro.normalize = plan & 2;
+  ro.random_starts = in.byte() % 3;
+  ro.max_iterations = 200;
+  ro.threads = 1;
+  ro.gamma = (in.byte() % 5) / 4.0;
+  ro.kappa = (in.byte() % 5) / 4.0;
+  lode_fit_options fo;
+  lode_fit_options_init(&fo, sizeof fo);
+  fo.factors = in.byte() % 5;  // 0 = suggested
+  fo.method = in.byte() % 5;   // includes one unknown method
+  fo.max_iterations = 200;
+  fo.rotation = (plan & 4) ? &ro : nullptr;
+  fo.factor_count = &co;
+  lode_model* m = nullptr;
+  if (lode_fit(c, &fo, &m) != LODE_OK) return;
+  double buf[256], v;
+  for (int key = 400; key < 411; ++key) lode_model_matrix(m, key, buf, 256, nullptr, nullptr);
+  for (int key = 420; key < 445; ++key) lode_model_value(m, key, &v);
+  char text[2048];
+  lode_model_text(m, LODE_MODEL_NOTES, text, sizeof text, nullptr);
+  int64_t rows = 0, cols = 0;
+  if (lode_model_matrix(m, LODE_MODEL_UNROTATED_LOADINGS, buf, 256, &rows, &cols) == LODE_OK) {
+    lode_rotation* r = nullptr;
+    ro.struct_size = (plan & 8) ? offsetof(lode_rotation_options, target) : sizeof ro;
+    if (lode_rotate(buf, rows, cols, cols, 1, &ro, &r) == LODE_OK) {
+      for (int key = 500; key < 507; ++key) lode_rotation_matrix(r, key, buf, 256, nullptr, nullptr);
+      for (int key = 520; key < 529; ++key) lode_rotation_value(r, key, &v);
+      lode_rotation_text(r, LODE_ROTATION_METHOD_NAME, text, sizeof text, nullptr);
+      lode_rotation_free(r);
+    }
+  }
+  lode_model_free(m);
+}
+
 }  // namespace
 
 extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
@@ -119,9 +191,12 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
   o.smooth = (flags & 4) != 0;
   o.min_eigenvalue = (flags & 8) ? 0.0 : 1e-6;
   if (flags & 16) o.struct_size = offsetof(lode_correlation_options, smooth);
+  if (flags & 32) o.kind = LODE_POLYCHORIC;
+  o.threads = 1;
   lode_correlation* c = nullptr;
   if (lode_correlate(d, &o, &c) == LODE_OK) {
     read_correlation(c, in);
+    analyse(c, in);
     lode_correlation_free(c);
   }
   lode_data_free(d);
