@@ -7,6 +7,7 @@
 //   lode_addin_gen md <out.md>     (the README's table of cell functions)
 #include "table.hpp"
 
+#include <cctype>
 #include <fstream>
 #include <iostream>
 #include <string>
@@ -15,6 +16,21 @@ namespace {
 
 using lode::addin::ArgKind;
 using lode::addin::function_table;
+
+// UNO IDL identifiers take no underscores in these positions: n_obs -> nObs.
+std::string idl_identifier(std::string_view name) {
+  std::string out;
+  bool upper = false;
+  for (char c : name) {
+    if (c == '_') {
+      upper = true;
+      continue;
+    }
+    out += upper ? static_cast<char>(std::toupper(static_cast<unsigned char>(c))) : c;
+    upper = false;
+  }
+  return out;
+}
 
 int write_idl(std::ostream& out) {
   out << "// Generated from office-addin/src/table.cpp by lode_addin_gen. Do not edit.\n"
@@ -25,7 +41,7 @@ int write_idl(std::ostream& out) {
     bool first = true;
     for (const auto& a : f.args) {
       out << (first ? "" : ", ") << "[in] "
-          << (a.kind == ArgKind::range ? "sequence< sequence< any > >" : "any") << " " << a.name;
+          << (a.kind == ArgKind::range ? "sequence< sequence< any > >" : "any") << " " << idl_identifier(a.name);
       first = false;
     }
     out << ");\n";
