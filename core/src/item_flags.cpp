@@ -71,14 +71,14 @@ std::vector<ItemFlag> flag_items(const Matrix& loadings, const Matrix& phi_in, c
                                                   : fmt::format("within {:.2f} of each other", o.cross_loading_gap))});
     }
     const double h2 = communality(i);
-    const double psi = 1.0 - h2;
+    const double psi = uniquenesses.size() != 0 ? uniquenesses(i) : 1.0 - h2;
     if (psi < 0.0) {
       flags.push_back({i, ItemFlagKind::heywood_case, {}, psi,
                        fmt::format("{} has communality {:.3f}, above 1 (uniqueness {:.3f}): an improper solution "
                                    "(ultra-Heywood case). Too many factors, too few items per factor or a small sample "
                                    "are the usual causes; the solution should not be interpreted as it is.",
                                    item, h2, psi)});
-    } else if (psi <= o.heywood_uniqueness) {
+    } else if (psi <= o.heywood_uniqueness + 1e-12) {  // rounding of a value held at the bound
       flags.push_back({i, ItemFlagKind::heywood_case, {}, psi,
                        fmt::format("{} has uniqueness {:.3f}, at or below {:.3f} (a Heywood case): the item is "
                                    "treated as measured without error, which is rarely credible.",
