@@ -1,4 +1,5 @@
 #include "lode/correlation.hpp"
+#include "lode/parallel.hpp"
 
 #include <fmt/format.h>
 
@@ -67,11 +68,40 @@ double pearson_of(const Vector& x, const Vector& y) {
   return dx.dot(dy) / std::sqrt(sxx * syy);
 }
 
+// Rows are processed in fixed chunks whose partial sums are added in chunk order, so the result does
+// not depend on the number of threads, and no copy of the whole data set is made (peak memory stays
+// close to the size of the data).
+constexpr Index kChunkRows = 8192;
+
+Index chunk_count(Index rows) { return rows == 0 ? 0 : (rows + kChunkRows - 1) / kChunkRows; }
+
+Vector column_means(const Matrix& x, int threads) {
+  const Index chunks = chunk_count(x.rows());
+  std::vector<Vector> partial(static_cast<std::size_t>(chunks));
+  parallel_for(chunks, threads, [&](Index c) {
+    const Index begin = c * kChunkRows, rows = std::min(kChunkRows, x.rows() - begin);
+    partial[static_cast<std::size_t>(c)] = x.middleRows(begin, rows).colwise().sum().transpose();
+  });
+  Vector sum = Vector::Zero(x.cols());
+  for (const auto& v : partial) sum += v;
+  return sum / static_cast<double>(x.rows());
+}
+
 // Pearson correlations of complete data: centre, cross-product, scale.
-Matrix pearson_complete(const Matrix& x) {
-  Matrix centred = x.rowwise() - x.colwise().mean();
-  Matrix s = Matrix::Zero(x.cols(), x.cols());
-  s.selfadjointView<Eigen::Lower>().rankUpdate(centred.transpose());
+Matrix pearson_complete(const Matrix& x, int threads) {
+  const Index p = x.cols();
+  const Vector mean = column_means(x, threads);
+  const Index chunks = chunk_count(x.rows());
+  std::vector<Matrix> partial(static_cast<std::size_t>(chunks));
+  parallel_for(chunks, threads, [&](Index c) {
+    const Index begin = c * kChunkRows, rows = std::min(kChunkRows, x.rows() - begin);
+    const Matrix centred = x.middleRows(begin, rows).rowwise() - mean.transpose();
+    Matrix s = Matrix::Zero(p, p);
+    s.selfadjointView<Eigen::Lower>().rankUpdate(centred.transpose());
+    partial[static_cast<std::size_t>(c)] = std::move(s);
+  });
+  Matrix s = Matrix::Zero(p, p);
+  for (const auto& m : partial) s += m;
   s = s.selfadjointView<Eigen::Lower>();
   const Vector inv_sd = s.diagonal().cwiseSqrt().cwiseInverse();
   Matrix r = inv_sd.asDiagonal() * s * inv_sd.asDiagonal();
@@ -81,11 +111,10 @@ Matrix pearson_complete(const Matrix& x) {
 
 // Exact pairwise-complete Pearson correlations by matrix products over the presence mask: for each
 // pair, means and sums of squares use only the rows where both items are present.
-Matrix pearson_pairwise(const Matrix& data, const Mask& present) {
+Matrix pearson_pairwise(const Matrix& data, const Mask& present, int threads) {
   const Index p = data.cols();
-  Matrix m = present.cast<double>();
   // Centre each column by its own mean first, to keep the sums small (less cancellation).
-  Matrix z = Matrix::Zero(data.rows(), p);
+  Vector mean(p);
   for (Index j = 0; j < p; ++j) {
     double sum = 0.0;
     Index count = 0;
@@ -94,14 +123,33 @@ Matrix pearson_pairwise(const Matrix& data, const Mask& present) {
         sum += data(i, j);
         ++count;
       }
-    const double mean = count > 0 ? sum / static_cast<double>(count) : 0.0;
-    for (Index i = 0; i < data.rows(); ++i)
-      if (present(i, j)) z(i, j) = data(i, j) - mean;
+    mean(j) = count > 0 ? sum / static_cast<double>(count) : 0.0;
   }
-  const Matrix n = m.transpose() * m;                          // pair counts
-  const Matrix sx = z.transpose() * m;                         // sx(i,j): sum of item i over rows where j present
-  const Matrix sxx = z.array().square().matrix().transpose() * m;  // sums of squares, same rows
-  const Matrix sxy = z.transpose() * z;                        // cross-products over rows with both
+  struct Sums {
+    Matrix n, sx, sxx, sxy;
+  };
+  const Index chunks = chunk_count(data.rows());
+  std::vector<Sums> partial(static_cast<std::size_t>(chunks));
+  parallel_for(chunks, threads, [&](Index c) {
+    const Index begin = c * kChunkRows, rows = std::min(kChunkRows, data.rows() - begin);
+    const Matrix m = present.middleRows(begin, rows).cast<double>();
+    Matrix z = Matrix::Zero(rows, p);
+    for (Index j = 0; j < p; ++j)
+      for (Index i = 0; i < rows; ++i)
+        if (present(begin + i, j)) z(i, j) = data(begin + i, j) - mean(j);
+    Sums& s = partial[static_cast<std::size_t>(c)];
+    s.n = m.transpose() * m;                               // pair counts
+    s.sx = z.transpose() * m;                              // sx(i,j): sum of item i over rows where j present
+    s.sxx = z.array().square().matrix().transpose() * m;  // sums of squares, same rows
+    s.sxy = z.transpose() * z;                             // cross-products over rows with both
+  });
+  Matrix n = Matrix::Zero(p, p), sx = n, sxx = n, sxy = n;
+  for (const auto& s : partial) {
+    n += s.n;
+    sx += s.sx;
+    sxx += s.sxx;
+    sxy += s.sxy;
+  }
   Matrix r(p, p);
   for (Index j = 0; j < p; ++j) {
     r(j, j) = 1.0;
@@ -126,7 +174,7 @@ Matrix spearman(const Matrix& data, const Mask& present, MissingPolicy missing, 
       for (Index k = 0; k < ranks.rows(); ++k) col(k) = data(complete[static_cast<std::size_t>(k)], j);
       ranks.col(j) = average_ranks(col);
     }
-    return pearson_complete(ranks);
+    return pearson_complete(ranks, 1);
   }
   // Pairwise: each pair is ranked within the rows where both items are present.
   Matrix r = Matrix::Identity(p, p);
@@ -239,7 +287,7 @@ CorrelationResult correlation(const Matrix& data, const CorrelationOptions& opti
   result.missing = options.missing;
   result.report.rows_total = n;
   result.report.rows_complete = static_cast<Index>(complete.size());
-  result.report.missing_fraction = 1.0 - present.cast<double>().mean();
+  result.report.missing_fraction = 1.0 - static_cast<double>(present.count()) / static_cast<double>(n * p);
 
   const bool all_complete = complete.size() == static_cast<std::size_t>(n);
   if (options.missing == MissingPolicy::listwise || all_complete) {
@@ -247,7 +295,7 @@ CorrelationResult correlation(const Matrix& data, const CorrelationOptions& opti
     result.report.pair_counts = IndexMatrix::Constant(p, p, result.report.rows_used);
     if (options.kind == CorrelationKind::pearson) {
       if (all_complete) {
-        result.matrix = pearson_complete(data);
+        result.matrix = pearson_complete(data, options.threads);
       } else {
         Matrix kept(static_cast<Index>(complete.size()), p);
         for (std::size_t k = 0; k < complete.size(); ++k) kept.row(static_cast<Index>(k)) = data.row(complete[k]);
@@ -255,7 +303,7 @@ CorrelationResult correlation(const Matrix& data, const CorrelationOptions& opti
         CorrelationOptions check = options;
         check.missing = MissingPolicy::pairwise;
         validate_data(kept, check);
-        result.matrix = pearson_complete(kept);
+        result.matrix = pearson_complete(kept, options.threads);
       }
     } else {
       result.matrix = spearman(data, present, MissingPolicy::listwise, complete);
@@ -265,9 +313,11 @@ CorrelationResult correlation(const Matrix& data, const CorrelationOptions& opti
     for (Index i = 0; i < n; ++i)
       if (present.row(i).any()) ++used;
     result.report.rows_used = used;
-    const Matrix m = present.cast<double>();
-    result.report.pair_counts = (m.transpose() * m).array().round().cast<Index>();
-    result.matrix = options.kind == CorrelationKind::pearson ? pearson_pairwise(data, present)
+    result.report.pair_counts = IndexMatrix(p, p);
+    for (Index a = 0; a < p; ++a)
+      for (Index b = a; b < p; ++b)
+        result.report.pair_counts(a, b) = result.report.pair_counts(b, a) = (present.col(a) && present.col(b)).count();
+    result.matrix = options.kind == CorrelationKind::pearson ? pearson_pairwise(data, present, options.threads)
                                                              : spearman(data, present, MissingPolicy::pairwise, complete);
   }
   result.report.min_pair_count = result.report.pair_counts.minCoeff();

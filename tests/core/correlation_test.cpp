@@ -140,3 +140,23 @@ TEST(CorrelationErrors, MessagesNameTheProblem) {
   asym(0, 1) = 0.5;
   EXPECT_NE(message_of([&] { correlation_from_matrix(asym, 10); }).find("not symmetric"), std::string::npos);
 }
+
+TEST(Correlation, LargeDataAcrossChunksMatchesRAndIgnoresThreadCount) {
+  // More rows than one processing chunk (8192), with and without missing values.
+  const Matrix full = survey_like(20000, 5, 21, 0.0);
+  const Matrix holes = survey_like(20000, 5, 22, 0.05);
+  // Reference: R's base stats::cor.
+  const auto ref = run_r(R"(
+    emit("full", cor(A))
+    emit("holes", cor(B, use = "pairwise.complete.obs"))
+  )", {{"A", full}, {"B", holes}});
+  CorrelationOptions one, two;
+  one.threads = 1;
+  two.threads = 2;
+  const Matrix f1 = correlation(full, one).matrix, f2 = correlation(full, two).matrix;
+  const Matrix h1 = correlation(holes, one).matrix, h2 = correlation(holes, two).matrix;
+  EXPECT_LT((f1 - ref.at("full")).cwiseAbs().maxCoeff(), 1e-12);
+  EXPECT_LT((h1 - ref.at("holes")).cwiseAbs().maxCoeff(), 1e-12);
+  EXPECT_EQ(f1, f2);  // bitwise: chunks are summed in a fixed order
+  EXPECT_EQ(h1, h2);
+}

@@ -47,7 +47,7 @@ struct CorrelationOptions {
   double min_eigenvalue = 1e-6;
   Index min_pair_observations = 3;  // fewer behind any correlation is an error
   std::vector<std::string> item_names;  // optional, used in messages; else "column 1", "column 2", ...
-  int threads = 0;                      // for the ordinal path; 0 = hardware
+  int threads = 0;                      // 0 = all hardware threads
 };
 
 struct CorrelationResult {
