@@ -62,7 +62,8 @@ BootstrapResult bootstrap_solution(const Matrix& data, const FactorSolution& ful
   if (n < 3) throw Error(ErrorCode::insufficient_data, fmt::format("the data have {} rows; the bootstrap needs at least 3", n));
 
   CorrelationOptions corr = options.correlation;
-  corr.threads = 1;  // the replicates are the parallel units
+  corr.threads = 1;               // the replicates are the parallel units
+  corr.polychoric.progress = {};  // progress is reported per replicate, from the calling thread only
   const Matrix full_phi = phi_or_identity(full.factor_correlations, k);
 
   std::vector<Replicate> reps(static_cast<std::size_t>(b));
@@ -193,5 +194,63 @@ BootstrapResult bootstrap_solution(const Matrix& data, const FactorSolution& ful
                                     out.replicates_used));
   return out;
 }
+
+#ifdef LODE_BOOTSTRAP_HAS_ROTATION
+FactorSolution fit_factor_solution(const Matrix& correlation, int factors, const ExtractionOptions& extraction,
+                                   const RotationOptions& rotation) {
+  const ExtractionResult e = extract_factors(correlation, factors, extraction);
+  FactorSolution s;
+  s.uniquenesses = e.uniquenesses;
+  s.converged = e.convergence.converged;
+  if (!s.converged)
+    s.problem = fmt::format("{} extraction did not converge within {} iterations", to_string(e.method),
+                            e.convergence.max_iterations);
+  if (factors >= 2 && rotation.method != RotationMethod::none) {
+    const RotationResult r = rotate(e.loadings, rotation);
+    s.loadings = r.pattern;
+    s.factor_correlations = r.factor_correlations;
+    if (!r.convergence.converged) {
+      s.converged = false;
+      if (s.problem.empty())
+        s.problem = fmt::format("{} rotation did not converge within {} iterations", rotation_name(rotation.method),
+                                r.convergence.max_iterations);
+    }
+  } else {
+    s.loadings = e.loadings;
+    s.factor_correlations = Matrix::Identity(factors, factors);
+  }
+  return s;
+}
+
+BootstrapResult bootstrap_factor_solution(const Matrix& data, int factors, const ExtractionOptions& extraction,
+                                          const RotationOptions& rotation, const BootstrapOptions& options) {
+  const CorrelationResult r = correlation(data, options.correlation);
+  ExtractionOptions ext = extraction;
+  if (ext.n_obs == 0) ext.n_obs = r.n_obs;
+  const FactorSolution full = fit_factor_solution(r.matrix, factors, ext, rotation);
+  if (!full.converged)
+    throw Error(ErrorCode::not_converged,
+                fmt::format("the full-sample solution did not converge ({}); bootstrap intervals around it would mean "
+                            "nothing",
+                            full.problem));
+  RotationOptions rot = rotation;
+  rot.threads = 1;  // the replicates are the parallel units
+  if (options.replicate_random_starts >= 0) rot.random_starts = options.replicate_random_starts;
+  auto fit = [&](const Matrix& rr) { return fit_factor_solution(rr, factors, ext, rot); };
+  BootstrapResult out = bootstrap_solution(data, full, fit, options);
+  out.notes.insert(out.notes.begin() + 1,
+                   fmt::format("Each replicate: {} correlations, {} extraction of {} factor{}{}.",
+                               to_string(options.correlation.kind), to_string(extraction.method), factors,
+                               factors == 1 ? "" : "s",
+                               factors >= 2 && rotation.method != RotationMethod::none
+                                   ? fmt::format(", {} rotation ({} random start{})", rotation_name(rotation.method),
+                                                 rot.random_starts < 0 ? std::string("default")
+                                                                       : std::to_string(rot.random_starts),
+                                                 rot.random_starts == 1 ? "" : "s")
+                                   : std::string()));
+  return out;
+}
+
+#endif  // LODE_BOOTSTRAP_HAS_ROTATION
 
 }  // namespace lode

@@ -192,4 +192,29 @@ OmegaResult omega_from_loadings(const Matrix& loadings, const Vector& uniqueness
   return out;
 }
 
+SingleScaleOmega omega_single_scale(const Matrix& correlation, const ExtractionOptions& options) {
+  if (options.method == ExtractionMethod::principal_components)
+    throw Error(ErrorCode::invalid_argument,
+                "omega needs a common factor fit with uniquenesses; principal components estimate none");
+  const ExtractionResult e = extract_factors(correlation, 1, options);
+  SingleScaleOmega out;
+  out.loadings = e.loadings.col(0);
+  if (out.loadings.sum() < 0.0) out.loadings = -out.loadings;
+  out.uniquenesses = e.uniquenesses;
+  out.method = e.method;
+  out.convergence = e.convergence;
+  OmegaOptions oo;
+  oo.item_names = options.item_names;
+  const OmegaResult om = omega_from_loadings(out.loadings, out.uniquenesses, oo);
+  out.omega = om.scales.at(0).omega;
+  out.notes.push_back(fmt::format("Omega from a one-factor {} fit of {} items.", to_string(e.method), correlation.rows()));
+  if (!e.convergence.converged)
+    out.notes.push_back(fmt::format("The one-factor fit did not converge within {} iterations (last change {:.3g}); "
+                                    "omega is provisional.",
+                                    e.convergence.max_iterations, e.convergence.final_change));
+  for (const auto& n : e.notes) out.notes.push_back(n);
+  for (const auto& n : om.notes) out.notes.push_back(n);
+  return out;
+}
+
 }  // namespace lode

@@ -162,3 +162,26 @@ TEST(Reliability, ErrorsNameTheProblem) {
   EXPECT_EQ(error_message([&] { omega_from_loadings(Matrix::Constant(3, 1, 0.5), Vector::Constant(2, 0.5)); }),
             "there are 2 uniquenesses for 3 items");
 }
+
+TEST(Reliability, SingleScaleOmegaFromOneFactorFitMatchesFactanalAndNumpy) {
+  // Reference: R's stats::factanal one-factor ML fit of the scale's correlations, then omega computed in
+  // numpy from its loadings and uniquenesses (McDonald 1999). The tolerance allows for the two ML
+  // optimisers stopping at slightly different points.
+  const Matrix x = likert_scale(300, 36);
+  const auto fa = run_r(R"(
+    f <- factanal(covmat = cor(X), factors = 1, n.obs = nrow(X))
+    emit("L", unclass(f$loadings)); emit("u", f$uniquenesses); emit("R", cor(X))
+  )", {{"X", x}});
+  const auto py = run_python(R"(
+s = np.abs(L[:, 0]).sum(); emit('omega', [s * s / (s * s + u[:, 0].sum())])
+)", {{"L", fa.at("L")}, {"u", fa.at("u")}});
+  ExtractionOptions o;
+  o.n_obs = 300;
+  const auto om = omega_single_scale(fa.at("R"), o);
+  EXPECT_TRUE(om.convergence.converged);
+  EXPECT_NEAR(om.omega, py.at("omega")(0, 0), 1e-5);
+  EXPECT_LT((om.loadings - fa.at("L").col(0).cwiseAbs()).cwiseAbs().maxCoeff(), 1e-4);
+  o.method = ExtractionMethod::principal_components;
+  EXPECT_EQ(error_message([&] { omega_single_scale(fa.at("R"), o); }),
+            "omega needs a common factor fit with uniquenesses; principal components estimate none");
+}

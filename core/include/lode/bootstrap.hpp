@@ -12,6 +12,11 @@
 
 #include "lode/common.hpp"
 #include "lode/correlation.hpp"
+#include "lode/extraction.hpp"
+#if __has_include("lode/rotation.hpp")
+#include "lode/rotation.hpp"
+#define LODE_BOOTSTRAP_HAS_ROTATION 1
+#endif
 
 #include <cstdint>
 #include <functional>
@@ -42,6 +47,10 @@ struct BootstrapOptions {
   CorrelationOptions correlation;
   bool keep_replicates = false;  // keep every aligned replicate in the result (memory: B x items x factors)
   ProgressFn progress;           // replicates done / B; returning false cancels (Error cancelled)
+  // bootstrap_factor_solution only: random starts of the rotation in each replicate. 0 = start from the
+  // unrotated loadings only (fast; the alignment to the full-sample solution follows); -1 = as in the
+  // rotation options. The full-sample rotation always uses the rotation options as given.
+  int replicate_random_starts = 0;
 };
 
 struct BootstrapResult {
@@ -77,6 +86,21 @@ struct BootstrapResult {
 // whose shapes disagree with the data, every replicate failing (the message gives the commonest reason).
 BootstrapResult bootstrap_solution(const Matrix& data, const FactorSolution& full, const SolutionFitter& fit,
                                    const BootstrapOptions& options);
+
+#ifdef LODE_BOOTSTRAP_HAS_ROTATION
+// Extraction followed (two or more factors, a method other than none) by rotation, as one FactorSolution:
+// the rotated pattern, the factor correlations (identity when orthogonal) and the uniquenesses. Converged
+// only when both the extraction and the rotation converged; `problem` says which did not.
+FactorSolution fit_factor_solution(const Matrix& correlation, int factors, const ExtractionOptions& extraction,
+                                   const RotationOptions& rotation);
+
+// The bootstrap of an exploratory factor analysis: the full-sample correlations (options.correlation),
+// extraction and rotation, then `options.replicates` resamples fitted the same way (rotation threads 1,
+// random starts per options.replicate_random_starts). A full-sample fit that does not converge is an
+// error (not_converged): intervals around it would mean nothing.
+BootstrapResult bootstrap_factor_solution(const Matrix& data, int factors, const ExtractionOptions& extraction,
+                                          const RotationOptions& rotation, const BootstrapOptions& options);
+#endif
 
 // Quantile of type 7 (linear interpolation between order statistics; Hyndman & Fan 1996) of `values`
 // (sorted in place), q in [0, 1].

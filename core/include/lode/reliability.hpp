@@ -3,6 +3,7 @@
 #pragma once
 
 #include "lode/common.hpp"
+#include "lode/extraction.hpp"
 
 #include <string>
 #include <vector>
@@ -68,5 +69,19 @@ struct OmegaResult {
 // are summed as they are; the notes name such items (reverse-score them and refit).
 // With a one-factor fit this is omega for that single scale.
 OmegaResult omega_from_loadings(const Matrix& loadings, const Vector& uniquenesses, const OmegaOptions& options = {});
+
+// Omega for a single scale from a one-factor fit of its items' correlation matrix (maximum likelihood by
+// default; the extraction options choose). The fit's convergence and any Heywood case are reported, not
+// hidden: a scale whose one-factor fit did not converge gets its omega with a note saying so.
+struct SingleScaleOmega {
+  double omega = 0.0;
+  Vector loadings;      // items: the one-factor loadings (column sum made non-negative)
+  Vector uniquenesses;  // items
+  ExtractionMethod method = ExtractionMethod::maximum_likelihood;
+  Convergence convergence;
+  std::vector<std::string> notes;
+};
+
+SingleScaleOmega omega_single_scale(const Matrix& correlation, const ExtractionOptions& options = {});
 
 }  // namespace lode
