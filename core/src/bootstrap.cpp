@@ -195,7 +195,6 @@ BootstrapResult bootstrap_solution(const Matrix& data, const FactorSolution& ful
   return out;
 }
 
-#ifdef LODE_BOOTSTRAP_HAS_ROTATION
 FactorSolution fit_factor_solution(const Matrix& correlation, int factors, const ExtractionOptions& extraction,
                                    const RotationOptions& rotation) {
   const ExtractionResult e = extract_factors(correlation, factors, extraction);
@@ -250,7 +249,5 @@ BootstrapResult bootstrap_factor_solution(const Matrix& data, int factors, const
                                    : std::string()));
   return out;
 }
-
-#endif  // LODE_BOOTSTRAP_HAS_ROTATION
 
 }  // namespace lode

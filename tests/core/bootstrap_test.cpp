@@ -191,7 +191,6 @@ TEST(Bootstrap, ErrorsNameTheProblem) {
 }
 
 // ---- The bootstrap of a whole exploratory factor analysis (extraction + rotation) ----
-#ifdef LODE_BOOTSTRAP_HAS_ROTATION
 
 namespace {
 
@@ -284,4 +283,3 @@ TEST(Bootstrap, FactorSolutionReportsAndCountsNonConvergence) {
             "only 0 of 10 bootstrap replicates could be fitted; the commonest failure: oblimin rotation did not "
             "converge within 2 iterations");
 }
-#endif  // LODE_BOOTSTRAP_HAS_ROTATION

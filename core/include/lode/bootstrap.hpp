@@ -13,10 +13,7 @@
 #include "lode/common.hpp"
 #include "lode/correlation.hpp"
 #include "lode/extraction.hpp"
-#if __has_include("lode/rotation.hpp")
 #include "lode/rotation.hpp"
-#define LODE_BOOTSTRAP_HAS_ROTATION 1
-#endif
 
 #include <cstdint>
 #include <functional>
@@ -87,7 +84,6 @@ struct BootstrapResult {
 BootstrapResult bootstrap_solution(const Matrix& data, const FactorSolution& full, const SolutionFitter& fit,
                                    const BootstrapOptions& options);
 
-#ifdef LODE_BOOTSTRAP_HAS_ROTATION
 // Extraction followed (two or more factors, a method other than none) by rotation, as one FactorSolution:
 // the rotated pattern, the factor correlations (identity when orthogonal) and the uniquenesses. Converged
 // only when both the extraction and the rotation converged; `problem` says which did not.
@@ -100,7 +96,6 @@ FactorSolution fit_factor_solution(const Matrix& correlation, int factors, const
 // error (not_converged): intervals around it would mean nothing.
 BootstrapResult bootstrap_factor_solution(const Matrix& data, int factors, const ExtractionOptions& extraction,
                                           const RotationOptions& rotation, const BootstrapOptions& options);
-#endif
 
 // Quantile of type 7 (linear interpolation between order statistics; Hyndman & Fan 1996) of `values`
 // (sorted in place), q in [0, 1].
