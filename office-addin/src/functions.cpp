@@ -349,19 +349,138 @@ double factorability_value(const lode_factorability* f, int key, const char* wha
   return v;
 }
 
-// Pending: the C ABI does not offer these computations yet; their table rows are absent, so no
-// cell reaches them.
-std::shared_ptr<const FitOutputs> run_fit(const lode_correlation*, const FitSpec&) {
-  throw CellError(Failure::internal, "factor extraction is not in this C library yet");
+template <class T, void (*Free)(T*)>
+std::shared_ptr<const T> shared_handle(T* h) {
+  return std::shared_ptr<const T>(h, [](const T* p) { Free(const_cast<T*>(p)); });
 }
-std::shared_ptr<const ParallelOutputs> run_parallel(const lode_correlation*, std::int64_t, double, std::int64_t) {
-  throw CellError(Failure::internal, "parallel analysis is not in this C library yet");
+
+const int kRotationMethods[] = {LODE_ROTATION_OBLIMIN, LODE_ROTATION_NONE,    LODE_ROTATION_VARIMAX,
+                                LODE_ROTATION_QUARTIMAX, LODE_ROTATION_EQUAMAX, LODE_ROTATION_PROMAX,
+                                LODE_ROTATION_QUARTIMIN, LODE_ROTATION_GEOMIN};
+const int kExtractionMethods[] = {LODE_ML, LODE_PAF, LODE_MINRES};
+
+double model_value(const lode_model* m, int key, const char* what) {
+  double v = 0.0;
+  check(lode_model_value(m, key, &v), what);
+  return v;
 }
-std::int64_t run_nfactors(const lode_correlation*, int, std::int64_t) {
-  throw CellError(Failure::internal, "factor counts are not in this C library yet");
+
+std::shared_ptr<const FitOutputs> run_fit(const lode_correlation* corr, const FitSpec& spec) {
+  lode_rotation_options ro;
+  check(lode_rotation_options_init(&ro, sizeof ro), "rotation options");
+  ro.method = kRotationMethods[spec.rotation];
+  lode_fit_options fo;
+  check(lode_fit_options_init(&fo, sizeof fo), "fit options");
+  fo.factors = spec.factors;
+  fo.method = kExtractionMethods[spec.method];
+  fo.rotation = &ro;
+  lode_model* raw = nullptr;
+  check(lode_fit(corr, &fo, &raw), "factor analysis");
+  auto model = shared_handle<lode_model, lode_model_free>(raw);
+  const lode_model* m = model.get();
+  auto out = std::make_shared<FitOutputs>();
+  out->factors = static_cast<int>(model_value(m, LODE_MODEL_FACTORS, "factors"));
+  out->pattern = read_matrix(m, LODE_MODEL_LOADINGS, lode_model_matrix, "loadings");
+  out->structure = read_matrix(m, LODE_MODEL_STRUCTURE, lode_model_matrix, "structure");
+  out->phi = read_matrix(m, LODE_MODEL_FACTOR_CORRELATIONS, lode_model_matrix, "factor correlations");
+  out->uniquenesses = read_matrix(m, LODE_MODEL_UNIQUENESSES, lode_model_matrix, "uniquenesses");
+  out->communalities = read_matrix(m, LODE_MODEL_COMMUNALITIES, lode_model_matrix, "communalities");
+  out->residuals = read_matrix(m, LODE_MODEL_RESIDUALS, lode_model_matrix, "residuals");
+  out->heywood = static_cast<std::int64_t>(model_value(m, LODE_MODEL_HEYWOOD_COUNT, "Heywood cases"));
+  const bool extraction_ok = model_value(m, LODE_MODEL_CONVERGED, "convergence") == 1.0;
+  const bool rotation_ok = model_value(m, LODE_MODEL_ROTATION_CONVERGED, "rotation convergence") == 1.0;
+  out->converged = extraction_ok && rotation_ok;
+  if (!extraction_ok)
+    out->convergence_note = "the extraction did not converge in " +
+                            std::to_string(static_cast<long long>(model_value(m, LODE_MODEL_ITERATIONS, "iterations"))) +
+                            " iterations";
+  else if (!rotation_ok)
+    out->convergence_note = "the rotation did not converge";
+  // Statistics: RMSR needs no sample size; the others do and report why when they cannot be had.
+  const std::pair<const char*, int> keys[] = {
+      {"chi-square", LODE_MODEL_CHI_SQUARE}, {"df", LODE_MODEL_DF},   {"p", LODE_MODEL_P_VALUE},
+      {"RMSEA", LODE_MODEL_RMSEA},           {"RMSEA lower (90%)", LODE_MODEL_RMSEA_LOWER},
+      {"RMSEA upper (90%)", LODE_MODEL_RMSEA_UPPER}, {"TLI", LODE_MODEL_TLI}, {"BIC", LODE_MODEL_BIC}};
+  for (const auto& [label, key] : keys) {
+    double v = 0.0;
+    const int status = lode_model_value(m, key, &v);
+    if (status != LODE_OK) {
+      out->statistics_error = lode_last_error();
+      if (out->statistics_error.empty()) out->statistics_error = lode_status_name(status);
+      out->statistics.clear();
+      break;
+    }
+    out->statistics.emplace_back(label, v);
+  }
+  out->statistics.emplace_back("RMSR", model_value(m, LODE_MODEL_RMSR, "RMSR"));
+  return out;
 }
-Matrix run_rotate(const Grid&, int, const Arg&) {
-  throw CellError(Failure::internal, "rotation is not in this C library yet");
+
+std::shared_ptr<const lode_factor_count> run_count(const lode_correlation* corr, std::int64_t replicates,
+                                                   double percentile, std::int64_t seed) {
+  lode_factor_count_options o;
+  check(lode_factor_count_options_init(&o, sizeof o), "factor count options");
+  if (replicates > 0) o.replicates = replicates;
+  if (percentile > 0) o.percentile = percentile;
+  if (seed >= 0) o.seed = static_cast<std::uint64_t>(seed);
+  Deadline deadline;
+  o.progress = deadline_progress;
+  o.progress_user = &deadline;
+  lode_factor_count* raw = nullptr;
+  check(lode_count_factors(corr, &o, &raw), "factor count");
+  return shared_handle<lode_factor_count, lode_factor_count_free>(raw);
+}
+
+std::shared_ptr<const ParallelOutputs> run_parallel(const lode_correlation* corr, std::int64_t replicates,
+                                                    double percentile, std::int64_t seed) {
+  auto c = run_count(corr, replicates, percentile, seed);
+  const Matrix observed = read_matrix(c.get(), LODE_COUNT_OBSERVED_PC, lode_factor_count_matrix, "eigenvalues");
+  const Matrix mean = read_matrix(c.get(), LODE_COUNT_RANDOM_PC_MEAN, lode_factor_count_matrix, "random eigenvalues");
+  const Matrix pct =
+      read_matrix(c.get(), LODE_COUNT_RANDOM_PC_PERCENTILE, lode_factor_count_matrix, "random eigenvalues");
+  auto out = std::make_shared<ParallelOutputs>();
+  out->table.rows = observed.rows;
+  out->table.cols = 3;
+  for (std::int64_t i = 0; i < observed.rows; ++i) {
+    out->table.values.push_back(observed.values[static_cast<std::size_t>(i)]);
+    out->table.values.push_back(mean.values[static_cast<std::size_t>(i)]);
+    out->table.values.push_back(pct.values[static_cast<std::size_t>(i)]);
+  }
+  return out;
+}
+
+std::int64_t run_nfactors(const lode_correlation* corr, int rule, std::int64_t seed) {
+  auto c = run_count(corr, 0, 0.0, seed);
+  const int keys[] = {LODE_COUNT_PARALLEL_PC, LODE_COUNT_MAP_SQUARED_SUGGESTED, LODE_COUNT_KAISER,
+                      LODE_COUNT_EMPIRICAL_KAISER};
+  double v = 0.0;
+  check(lode_factor_count_value(c.get(), keys[rule], &v), "factor count");
+  return static_cast<std::int64_t>(v);
+}
+
+Matrix run_rotate(const Grid& loadings, int rotation, const Arg& parameter) {
+  lode_rotation_options ro;
+  check(lode_rotation_options_init(&ro, sizeof ro), "rotation options");
+  ro.method = kRotationMethods[rotation];
+  if (parameter.kind != Arg::Kind::missing) {
+    if (parameter.kind != Arg::Kind::number)
+      throw CellError(Failure::bad_argument, "'parameter' must be a number");
+    switch (ro.method) {
+      case LODE_ROTATION_OBLIMIN: ro.gamma = parameter.number; break;
+      case LODE_ROTATION_PROMAX: ro.power = parameter.number; break;
+      case LODE_ROTATION_GEOMIN: ro.epsilon = parameter.number; break;
+      default: break;  // the other rotations take no parameter
+    }
+  }
+  lode_rotation* raw = nullptr;
+  check(lode_rotate(loadings.values.data(), static_cast<std::int64_t>(loadings.rows),
+                    static_cast<std::int64_t>(loadings.cols), static_cast<std::int64_t>(loadings.cols), 1, &ro, &raw),
+        "rotation");
+  auto r = shared_handle<lode_rotation, lode_rotation_free>(raw);
+  double converged = 0.0;
+  check(lode_rotation_value(r.get(), LODE_ROTATION_CONVERGED, &converged), "rotation");
+  if (converged != 1.0) throw CellError(Failure::not_converged, "the rotation did not converge");
+  return read_matrix(r.get(), LODE_ROTATION_PATTERN, lode_rotation_matrix, "rotated loadings");
 }
 
 std::int64_t seed_arg(const Arg& a) { return whole(a, "seed", -1, 0, std::int64_t{1} << 52); }

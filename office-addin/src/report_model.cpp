@@ -859,7 +859,7 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   ch.rows = eig.size() + 1;
   ch.cols = count.available ? 3 : 2;
   ch.anchor_row = table_top;
-  ch.anchor_col = 4;
+  ch.anchor_col = 3;
   sc.charts.push_back(ch);
   sc.column_widths = {2500, 4000, 6500};
   rep.sheets.push_back(std::move(sc));

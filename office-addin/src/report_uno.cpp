@@ -333,6 +333,7 @@ class Writer {
     diagram->setPropertyValue("SymbolType", Any(sal_Int32(-2)));  // css::chart::ChartSymbolType::AUTO
     Reference<css::beans::XPropertySet> cdp(cd, UNO_QUERY_THROW);
     cdp->setPropertyValue("HasMainTitle", Any(true));
+    cdp->setPropertyValue("HasLegend", Any(true));
     Reference<css::beans::XPropertySet>(cd->getTitle(), UNO_QUERY_THROW)->setPropertyValue("String", Any(ustr(ch.title)));
     diagram->setPropertyValue("HasXAxisTitle", Any(true));
     diagram->setPropertyValue("HasYAxisTitle", Any(true));

@@ -207,6 +207,10 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
         ctrl.setActiveSheet(doc.Sheets.getByName("Lode scree"))
     time.sleep(2)
     screenshot("lode-report-scree.png")
+    with windowed.watchdog(60):
+        ctrl.setActiveSheet(doc.Sheets.getByName("Lode loadings"))
+    time.sleep(2)
+    screenshot("lode-report-loadings.png")
 
     # The service called directly writes a second report beside the first.
     svc = windowed.smgr.createInstanceWithContext("org.lode.calc.AnalysisReport", windowed.ctx)

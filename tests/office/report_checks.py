@@ -230,7 +230,7 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
     assert "estimates" in text and "validity" in text and "local law" in text  # the cautions on scores
 
     ld = read_sheet(survey.Sheets.getByName("Lode loadings"))
-    hdr = [i for i, r in enumerate(ld) if r[:1] == ["Item"]][0]
+    hdr = [i for i, r in enumerate(ld) if r[:2] == ["Item", "Starting communality (SMC)"]][0]
     got = {r[0]: r[1] for r in ld[hdr + 1:hdr + 1 + p]}
     assert list(got) == names
     assert max(abs(got[n] - s) for n, s in zip(names, ref.smc)) < TOL

@@ -72,7 +72,12 @@ def test_bad_data_gives_an_error_value(book, functions, ranges, bad):
     for name, args in sorted(functions.items()):
         if not args:
             continue
-        result = book.value(_formula(name, args, ranges[bad]))
+        formula = _formula(name, args, ranges[bad])
+        result = book.value(formula)
+        if name == "LODE.FIT" and result == "error":  # LODE.FIT writes the reason into its cells
+            reason = book.array(formula, 1, 2)[0][1]
+            assert isinstance(reason, str) and len(reason) > 10, reason
+            continue
         assert isinstance(result, tuple) and result[0] == "error", f"{name} on {bad} data gave {result!r}"
     _still_answers(book)
 
