@@ -205,9 +205,12 @@ def test_against_the_c_library(blocks):
     for f, _, m in par:
         cells = numbers(m)
         assert np.max(np.abs(cells[:, 0] - ref.eigenvalues)) < TOL
+        # numpy.linalg.eigvalsh: the observed column
+        assert np.max(np.abs(cells[:, 0] - np.sort(np.linalg.eigvalsh(ref.matrix))[::-1])) < 1e-10
         pa = binding("parallel_analysis")(x, replicates=500, percentile=95, seed=SEED)
-        assert np.max(np.abs(cells[:, 1] - pa.random_pc_mean)) < 1e-10
-        assert np.max(np.abs(cells[:, 2] - pa.random_pc_percentile)) < 1e-10
+        assert np.max(np.abs(cells[:, 1] - pa["random_pc_mean"])) < 1e-10
+        assert np.max(np.abs(cells[:, 2] - pa["random_pc_percentile"])) < 1e-10
+        assert np.all(cells[:, 2] >= cells[:, 1] - 1e-12)  # a 95th percentile lies above the mean
         checked.add("LODE.PARALLEL")
     k = None
     for f, _, m in by_function(blocks, "LODE.NFACTORS"):
@@ -216,8 +219,10 @@ def test_against_the_c_library(blocks):
             cells = numbers(par[0][2])
             above = cells[:, 0] > cells[:, 2]
             assert k == (int(np.argmin(above)) if not above.all() else len(above))
-        nf = binding("n_factors")(x, seed=SEED)
-        assert k in [int(v) for name, v in nf.by_rule.items() if "parallel" in name.lower()]
+        nf = binding("n_factors")(x, replicates=500, seed=SEED)  # the cells' replicates and seed
+        assert k == nf.parallel["suggested_pc"]
+        # the generator built five factors (volunteer-survey-truth.json); parallel analysis finds them
+        assert k == len(json.load(open(os.path.join(SHEETS, "volunteer-survey-truth.json")))["factors"])
         checked.add("LODE.NFACTORS")
     fit_fns = ["LODE.LOADINGS", "LODE.UNIQUENESS", "LODE.COMMUNALITY", "LODE.FIT"]
     if any(by_function(blocks, n) for n in fit_fns):
@@ -234,13 +239,16 @@ def test_against_the_c_library(blocks):
             assert np.max(np.abs(numbers(m)[:, 0] - model.uniquenesses)) < 1e-9
             checked.add("LODE.UNIQUENESS")
         for f, _, m in by_function(blocks, "LODE.COMMUNALITY"):
-            assert np.max(np.abs(numbers(m)[:, 0] - (1 - model.uniquenesses))) < 1e-9
+            assert np.max(np.abs(numbers(m)[:, 0] - model.communalities)) < 1e-9
             checked.add("LODE.COMMUNALITY")
         for f, _, m in by_function(blocks, "LODE.FIT"):
             labels = [row[0] for row in m]
             assert "error" not in labels, m
-            rmsea = [row[1] for row in m if str(row[0]).lower().startswith("rmsea")][0]
-            assert abs(rmsea - model.rmsea) < 1e-9
+            values = {str(row[0]).lower(): row[1] for row in m}
+            rmsea = [v for label, v in values.items() if label.startswith("rmsea") and isinstance(v, float)][0]
+            assert abs(rmsea - model.statistics["rmsea"]) < 1e-9
+            rmsr = [v for label, v in values.items() if "rmsr" in label or "root mean square residual" in label][0]
+            assert abs(rmsr - model.statistics["rmsr"]) < 1e-9
             checked.add("LODE.FIT")
     for name in ["LODE.ALPHA", "LODE.OMEGA"]:
         for f, _, m in by_function(blocks, name):
