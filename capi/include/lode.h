@@ -1,0 +1,532 @@
+/*
+ * lode.h - the stable C interface of Lode (liblode), exploratory factor analysis.
+ *
+ * One header, usable from C99 and C++. Every exported name starts with `lode_` (types, functions)
+ * or `LODE_` (macros, constants). The ABI major version is in the shared object's name
+ * (liblode.so.1); within a major version the ABI only grows. DEVELOPERS.md states the rules.
+ *
+ * Conventions, the same for every function:
+ *
+ * - Status. Every function that can fail returns an `int` status: LODE_OK (0) or one of the
+ *   LODE_E_* codes below. The text of the most recent failure on the calling thread, naming the
+ *   problem in the analyst's terms (which item, which value, how many rows survive), is returned
+ *   by lode_last_error(). No C++ exception ever leaves the library.
+ *
+ * - Handles. Results live in opaque handles (lode_data, lode_correlation, ...) created by one
+ *   function and released by its `_free` partner; `_free(NULL)` does nothing. A handle is
+ *   immutable once created, except where a function says it changes one; any number of threads may
+ *   read the same handle at once, and independent handles may be used from any threads. The
+ *   library keeps no global mutable state.
+ *
+ * - Options. Option structs begin with `size_t struct_size` and are filled with their defaults by
+ *   `lode_*_options_init(&opts, sizeof opts)` before the caller changes fields. The library reads
+ *   only the fields that lie within `struct_size`, so a program built against an older header (a
+ *   smaller struct) keeps working: the fields it does not know take their defaults. Passing NULL
+ *   for an options pointer means "all defaults".
+ *
+ * - Input matrices are given as (values, rows, cols, row_stride, col_stride), strides counted in
+ *   doubles: element (i, j) is values[i * row_stride + j * col_stride]. A row-major block (a
+ *   spreadsheet range) has row_stride = cols, col_stride = 1; a column-major one (Fortran, numpy
+ *   order='F', R) has row_stride = 1, col_stride = rows. Strides must be positive. The caller's
+ *   memory is read during the call only and never kept. NaN marks a missing value; infinities are
+ *   errors.
+ *
+ * - Outputs go into buffers the caller owns. Matrix getters write row-major and report the shape
+ *   through `rows`/`cols` (either may be NULL); with `out == NULL` and `capacity == 0` they only
+ *   report the shape (a size query). A buffer smaller than rows * cols gives
+ *   LODE_E_BUFFER_TOO_SMALL and writes nothing. Text getters write UTF-8 with a terminating NUL,
+ *   report the length without the NUL through `length`, and follow the same size-query rule
+ *   (capacity must be at least length + 1). Nothing the library returns must be freed by the
+ *   caller except through a lode_*_free function.
+ *
+ * - Results are read through keys: lode_correlation_matrix(c, LODE_CORRELATION_MATRIX, ...),
+ *   lode_correlation_value(c, LODE_CORRELATION_N_OBS, &x). Each kind of handle has its own key
+ *   range, so a key given to the wrong kind of handle is reported as such. New results are added
+ *   as new keys, never by changing an existing one.
+ */
+#ifndef LODE_H
+#define LODE_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+/* Export macro: the library is built with hidden visibility and exports exactly these. */
+#if defined(_WIN32) || defined(__CYGWIN__)
+#  if defined(LODE_BUILDING_LIBRARY)
+#    define LODE_API __declspec(dllexport)
+#  else
+#    define LODE_API __declspec(dllimport)
+#  endif
+#elif defined(__GNUC__) && __GNUC__ >= 4
+#  define LODE_API __attribute__((visibility("default")))
+#else
+#  define LODE_API
+#endif
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+/* ABI version of this header. The major version is the shared object's SONAME suffix
+ * (liblode.so.LODE_ABI_VERSION_MAJOR); the minor version counts compatible additions. */
+#define LODE_ABI_VERSION_MAJOR 1
+#define LODE_ABI_VERSION_MINOR 0
+
+/* ------------------------------------------------------------------------------------------- */
+/* Status codes, version, errors                                                                */
+/* ------------------------------------------------------------------------------------------- */
+
+enum lode_status {
+  LODE_OK = 0,
+  LODE_E_INVALID_ARGUMENT = 1,      /* NULL pointer, bad size or stride, unknown key, bad option */
+  LODE_E_INSUFFICIENT_DATA = 2,     /* too few rows or items, a constant item, an empty pair */
+  LODE_E_NOT_POSITIVE_DEFINITE = 3, /* a matrix that must be positive definite is not */
+  LODE_E_TOO_MANY_FACTORS = 4,      /* more factors than the data can identify */
+  LODE_E_NOT_CONVERGED = 5,         /* only where the caller asked for strictness */
+  LODE_E_CANCELLED = 6,             /* a progress callback returned nonzero */
+  LODE_E_INTERNAL = 7,              /* a bug in Lode; the message says where */
+  LODE_E_NOMEM = 8,                 /* memory ran out */
+  LODE_E_BUFFER_TOO_SMALL = 9,      /* an output buffer is smaller than the result */
+  LODE_E_UNSUPPORTED = 10           /* options from a newer header set fields this library lacks */
+};
+
+/* What lode_version() returns. The library owns it; it lives as long as the library is loaded.
+ * Fields may be appended in later minor versions (the caller never allocates this struct). */
+typedef struct lode_version_info {
+  int major, minor, patch; /* the library's release version */
+  int abi_major;           /* the ABI major version (SONAME) the library implements */
+  int abi_minor;           /* the ABI minor version: compatible additions */
+  const char* string;      /* the release version as text, e.g. "0.1.0" */
+} lode_version_info;
+
+/* The library's release and ABI versions. Compare abi_major with LODE_ABI_VERSION_MAJOR and
+ * abi_minor >= LODE_ABI_VERSION_MINOR to check that the loaded library offers this header. */
+LODE_API const lode_version_info* lode_version(void);
+
+/* The name of a status code, e.g. "invalid argument"; "unknown status" for an unknown code. */
+LODE_API const char* lode_status_name(int status);
+
+/* The message of the most recent call on this thread that returned a status: "" after LODE_OK,
+ * else the reason of the failure. The text stays valid until the next lode_ call on this thread. */
+LODE_API const char* lode_last_error(void);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Progress and cancellation of long calls                                                       */
+/* ------------------------------------------------------------------------------------------- */
+
+/* Called from the thread that made the call, about every 50 ms and once at the end, with the units
+ * of work done and their total. Return 0 to go on, nonzero to cancel: the call then returns
+ * LODE_E_CANCELLED and creates nothing. Must not call back into the same handle. */
+typedef int (*lode_progress_fn)(void* user, int64_t done, int64_t total);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Data: raw responses, or a correlation or covariance matrix computed elsewhere                */
+/* ------------------------------------------------------------------------------------------- */
+
+typedef struct lode_data lode_data;
+
+/* Raw data: rows are respondents, columns are items, NaN is a missing answer. The values are
+ * copied; checks on content (constant items, too few answers) happen when correlations are
+ * computed, where the options (listwise or pairwise) are known. Infinite values are rejected here,
+ * naming the item and the row. */
+LODE_API int lode_data_from_raw(const double* values, int64_t rows, int64_t cols, int64_t row_stride,
+                                int64_t col_stride, lode_data** out);
+
+/* A correlation matrix (items x items: symmetric, unit diagonal, entries in [-1, 1], no missing
+ * values) with the number of observations behind it (0 = unknown; tests and fit indices that need
+ * it then refuse). */
+LODE_API int lode_data_from_correlation(const double* values, int64_t items, int64_t row_stride, int64_t col_stride,
+                                        int64_t n_obs, lode_data** out);
+
+/* A covariance matrix (positive variances), turned into correlations; n_obs as above. */
+LODE_API int lode_data_from_covariance(const double* values, int64_t items, int64_t row_stride, int64_t col_stride,
+                                       int64_t n_obs, lode_data** out);
+
+/* Names the items (UTF-8, copied) for messages: `count` must equal the number of items; a NULL or
+ * empty name leaves that item as "column j". `names == NULL` with count 0 removes all names.
+ * Changes the handle: do not call it while another thread uses the same handle. Correlations
+ * already computed keep the names they were computed with. */
+LODE_API int lode_data_set_item_names(lode_data* data, const char* const* names, int64_t count);
+
+/* The shape of the data: respondents (rows; for a matrix, its n_obs) and items. Either may be NULL. */
+LODE_API int lode_data_shape(const lode_data* data, int64_t* rows, int64_t* items);
+
+LODE_API void lode_data_free(lode_data* data);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Correlations                                                                                  */
+/* ------------------------------------------------------------------------------------------- */
+
+enum lode_correlation_kind {
+  LODE_PEARSON = 0,
+  LODE_SPEARMAN = 1,
+  LODE_POLYCHORIC = 2 /* ordinal items (Olsson 1979, two-step); tetrachoric for binary items */
+};
+enum lode_missing { LODE_PAIRWISE = 0, LODE_LISTWISE = 1 };
+/* Polychoric: what to do with empty cells of a pair's table (adding zero_cell_add to them). */
+enum lode_zero_cells {
+  LODE_ZERO_CELLS_NONE = 0,
+  LODE_ZERO_CELLS_AT_BOUND = 1, /* only where the uncorrected estimate runs to |rho| = 1 (default) */
+  LODE_ZERO_CELLS_ALWAYS = 2
+};
+
+typedef struct lode_correlation_options {
+  size_t struct_size;            /* set by lode_correlation_options_init */
+  int kind;                      /* enum lode_correlation_kind; default LODE_PEARSON */
+  int missing;                   /* enum lode_missing; default LODE_PAIRWISE */
+  int smooth;                    /* nonzero: replace a matrix that is not positive definite by the
+                                    nearest correlation matrix (Higham 2002); default 0 (flag it) */
+  double min_eigenvalue;         /* the smallest eigenvalue smoothing allows; default 1e-6 */
+  int64_t min_pair_observations; /* fewer observations behind any correlation is an error; default 3 */
+  int threads;                   /* polychoric pairs in parallel; 0 (default) = all cores */
+  int max_categories;            /* polychoric: an item with more distinct codes is refused; default 10 */
+  int zero_cells;                /* polychoric: enum lode_zero_cells; default LODE_ZERO_CELLS_AT_BOUND */
+  double zero_cell_add;          /* polychoric: added to empty cells; default 0.5 */
+  lode_progress_fn progress;     /* polychoric: pairs done / all pairs; optional */
+  void* progress_user;           /* passed to progress */
+} lode_correlation_options;
+
+/* Fills `opts` with the defaults; pass sizeof(*opts). */
+LODE_API int lode_correlation_options_init(lode_correlation_options* opts, size_t struct_size);
+
+typedef struct lode_correlation lode_correlation;
+
+/* The correlation matrix of `data` (for matrix input: the matrix as given, checked, and smoothed
+ * on request). The result keeps what it needs of `data`; `data` may be freed at once. */
+LODE_API int lode_correlate(const lode_data* data, const lode_correlation_options* opts, lode_correlation** out);
+
+LODE_API void lode_correlation_free(lode_correlation* corr);
+
+/* Keys of a lode_correlation. Matrices are items x items, vectors items x 1. */
+enum lode_correlation_key {
+  /* matrices: lode_correlation_matrix */
+  LODE_CORRELATION_MATRIX = 100,           /* the correlation matrix (smoothed when smoothing applied) */
+  LODE_CORRELATION_PAIR_COUNTS = 101,      /* observations behind each correlation */
+  LODE_CORRELATION_EIGENVALUES = 102,      /* eigenvalues, largest first (items x 1) */
+  LODE_CORRELATION_REDUCED_EIGENVALUES = 103, /* eigenvalues with SMCs on the diagonal (items x 1);
+                                                 LODE_E_NOT_POSITIVE_DEFINITE when SMCs are undefined */
+  LODE_CORRELATION_SMC = 104,              /* squared multiple correlations (items x 1); same error */
+  LODE_CORRELATION_STANDARD_ERRORS = 105,  /* polychoric only: standard error of each estimate (before
+                                              smoothing); 0 on the diagonal, NaN at the bound */
+  LODE_CORRELATION_THRESHOLDS = 106,       /* polychoric only: items x (most categories - 1), each item's
+                                              thresholds from the left, NaN-padded */
+  /* numbers: lode_correlation_value */
+  LODE_CORRELATION_ITEMS = 120,            /* number of items */
+  LODE_CORRELATION_N_OBS = 121,            /* sample size for tests: listwise, rows used; pairwise, the
+                                              smallest pair count; matrix input, as given */
+  LODE_CORRELATION_ROWS_TOTAL = 122,       /* rows in the input */
+  LODE_CORRELATION_ROWS_COMPLETE = 123,    /* rows with every item answered */
+  LODE_CORRELATION_ROWS_USED = 124,        /* rows that contributed */
+  LODE_CORRELATION_MIN_PAIR_COUNT = 125,   /* the smallest number of observations behind a correlation */
+  LODE_CORRELATION_MISSING_FRACTION = 126, /* share of missing cells in the input */
+  LODE_CORRELATION_POSITIVE_DEFINITE = 127,/* 1 when the (returned) matrix is positive definite, else 0 */
+  LODE_CORRELATION_SMOOTHED = 128,         /* 1 when smoothing replaced the matrix, else 0 */
+  LODE_CORRELATION_SMALLEST_EIGENVALUE_BEFORE = 129, /* before smoothing (0 when it was not needed) */
+  LODE_CORRELATION_SMOOTHING_MAX_CHANGE = 130,       /* largest change of a correlation by smoothing */
+  LODE_CORRELATION_SMOOTHING_RMS_CHANGE = 131,       /* root mean square change off the diagonal */
+  LODE_CORRELATION_SMOOTHING_CONVERGED = 132,        /* 1 when the smoothing iteration converged */
+  LODE_CORRELATION_SMOOTHING_ITERATIONS = 133,
+  LODE_CORRELATION_KIND = 134,             /* enum lode_correlation_kind */
+  LODE_CORRELATION_MISSING = 135,          /* enum lode_missing */
+  LODE_CORRELATION_PAIRS_NOT_CONVERGED = 136, /* polychoric: pairs whose estimate did not converge */
+  LODE_CORRELATION_PAIRS_AT_BOUND = 137,      /* polychoric: pairs estimated at |rho| = bound */
+  LODE_CORRELATION_PAIRS_ZERO_CELL_CORRECTED = 138, /* polychoric: pairs with the zero-cell addition */
+  /* text: lode_correlation_text */
+  LODE_CORRELATION_NOTES = 150             /* plain-language remarks, one per line ("" when none) */
+};
+
+LODE_API int lode_correlation_matrix(const lode_correlation* corr, int key, double* out, size_t capacity,
+                                     int64_t* rows, int64_t* cols);
+LODE_API int lode_correlation_value(const lode_correlation* corr, int key, double* value);
+LODE_API int lode_correlation_text(const lode_correlation* corr, int key, char* out, size_t capacity,
+                                   size_t* length);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Factorability: is the correlation matrix worth factoring?                                    */
+/* ------------------------------------------------------------------------------------------- */
+
+typedef struct lode_factorability lode_factorability;
+
+/* Kaiser-Meyer-Olkin overall and per item (MSA), Bartlett's (1950) test of sphericity, the
+ * determinant and the squared multiple correlations of `corr`'s matrix. Parts that cannot be
+ * computed (KMO of a matrix that is not positive definite, Bartlett's test without n_obs) are left
+ * out with a note; asking for them gives the status and the reason. */
+LODE_API int lode_assess_factorability(const lode_correlation* corr, lode_factorability** out);
+
+LODE_API void lode_factorability_free(lode_factorability* f);
+
+enum lode_factorability_key {
+  /* matrices: lode_factorability_matrix */
+  LODE_FACTORABILITY_MSA = 200,  /* items x 1: each item's measure of sampling adequacy
+                                    (LODE_E_NOT_POSITIVE_DEFINITE when unavailable) */
+  LODE_FACTORABILITY_SMC = 201,  /* items x 1: squared multiple correlations (same) */
+  /* numbers: lode_factorability_value */
+  LODE_FACTORABILITY_KMO = 220,  /* overall KMO (LODE_E_NOT_POSITIVE_DEFINITE when unavailable) */
+  LODE_FACTORABILITY_BARTLETT_CHI_SQUARE = 221, /* LODE_E_INSUFFICIENT_DATA without n_obs */
+  LODE_FACTORABILITY_BARTLETT_DF = 222,
+  LODE_FACTORABILITY_BARTLETT_P_VALUE = 223,
+  LODE_FACTORABILITY_BARTLETT_N_OBS = 224,
+  LODE_FACTORABILITY_DETERMINANT = 225,     /* of the correlation matrix */
+  LODE_FACTORABILITY_LOG_DETERMINANT = 226, /* NaN when the determinant is not positive */
+  /* text: lode_factorability_text */
+  LODE_FACTORABILITY_KMO_LABEL = 250,       /* Kaiser's (1974) verbal label of the overall KMO */
+  LODE_FACTORABILITY_NOTES = 251            /* remarks, one per line */
+};
+
+LODE_API int lode_factorability_matrix(const lode_factorability* f, int key, double* out, size_t capacity,
+                                       int64_t* rows, int64_t* cols);
+LODE_API int lode_factorability_value(const lode_factorability* f, int key, double* value);
+LODE_API int lode_factorability_text(const lode_factorability* f, int key, char* out, size_t capacity,
+                                     size_t* length);
+
+/* ------------------------------------------------------------------------------------------- */
+/* How many factors: parallel analysis, the MAP test, eigenvalue rules, a consensus              */
+/* ------------------------------------------------------------------------------------------- */
+
+enum lode_random_source {
+  LODE_RANDOM_NORMAL = 0,      /* normal-theory random correlation matrices (Wishart, Bartlett decomposition) */
+  LODE_RANDOM_PERMUTATION = 1  /* each item's answers shuffled (needs raw data) */
+};
+enum lode_threshold { LODE_THRESHOLD_PERCENTILE = 0, LODE_THRESHOLD_MEAN = 1 };
+
+typedef struct lode_factor_count_options {
+  size_t struct_size;
+  int64_t replicates;         /* random data sets; default 500 */
+  int threshold;              /* enum lode_threshold; default LODE_THRESHOLD_PERCENTILE */
+  double percentile;          /* in (0, 100); default 95 */
+  int source;                 /* enum lode_random_source; default LODE_RANDOM_NORMAL */
+  uint64_t seed;              /* replicate i draws from stream i of this seed; default 20260101 */
+  int threads;                /* 0 = all cores; results do not depend on it */
+  lode_progress_fn progress;  /* optional; replicates done / total */
+  void* progress_user;        /* passed to progress */
+} lode_factor_count_options;
+
+LODE_API int lode_factor_count_options_init(lode_factor_count_options* opts, size_t struct_size);
+
+typedef struct lode_factor_count lode_factor_count;
+
+/* Parallel analysis (Horn 1965) on component and reduced-matrix eigenvalues, Velicer's (1976) MAP
+ * test (squared and fourth-power), eigenvalues above one, the empirical Kaiser criterion (Braeken &
+ * van Assen 2017), and the suggested count with its reason. Needs n_obs. */
+LODE_API int lode_count_factors(const lode_correlation* corr, const lode_factor_count_options* opts,
+                                lode_factor_count** out);
+
+LODE_API void lode_factor_count_free(lode_factor_count* count);
+
+enum lode_factor_count_key {
+  /* matrices (items x 1, by position, largest first): lode_factor_count_matrix */
+  LODE_COUNT_OBSERVED_PC = 300,              /* eigenvalues of the correlation matrix */
+  LODE_COUNT_OBSERVED_FACTOR = 301,          /* eigenvalues of the reduced matrix (SMC diagonal) */
+  LODE_COUNT_RANDOM_PC_MEAN = 302,
+  LODE_COUNT_RANDOM_PC_PERCENTILE = 303,
+  LODE_COUNT_RANDOM_FACTOR_MEAN = 304,
+  LODE_COUNT_RANDOM_FACTOR_PERCENTILE = 305,
+  LODE_COUNT_MAP_SQUARED = 306,              /* entry m: average squared partial correlation after m components */
+  LODE_COUNT_MAP_FOURTH = 307,
+  LODE_COUNT_EKC_REFERENCE = 308,            /* empirical Kaiser criterion reference values */
+  /* numbers: lode_factor_count_value */
+  LODE_COUNT_SUGGESTED = 320,                /* the suggested number of factors */
+  LODE_COUNT_PARALLEL_PC = 321,              /* parallel analysis, component eigenvalues */
+  LODE_COUNT_PARALLEL_FACTOR = 322,          /* parallel analysis, factor eigenvalues */
+  LODE_COUNT_MAP_SQUARED_SUGGESTED = 323,
+  LODE_COUNT_MAP_FOURTH_SUGGESTED = 324,
+  LODE_COUNT_KAISER = 325,                   /* eigenvalues above one */
+  LODE_COUNT_EMPIRICAL_KAISER = 326,
+  LODE_COUNT_REPLICATES = 327,
+  LODE_COUNT_N_OBS = 328,
+  LODE_COUNT_PERCENTILE = 329,
+  /* text: lode_factor_count_text */
+  LODE_COUNT_REASON = 350,                   /* why the suggested count */
+  LODE_COUNT_TABLE = 351,                    /* one line per rule: rule TAB count TAB primary(0/1) TAB basis */
+  LODE_COUNT_NOTES = 352
+};
+
+LODE_API int lode_factor_count_matrix(const lode_factor_count* count, int key, double* out, size_t capacity,
+                                      int64_t* rows, int64_t* cols);
+LODE_API int lode_factor_count_value(const lode_factor_count* count, int key, double* value);
+LODE_API int lode_factor_count_text(const lode_factor_count* count, int key, char* out, size_t capacity,
+                                    size_t* length);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Rotation                                                                                      */
+/* ------------------------------------------------------------------------------------------- */
+
+enum lode_rotation_method {
+  LODE_ROTATION_NONE = 0,              /* unrotated (still ordered and reflected) */
+  LODE_ROTATION_VARIMAX = 1,           /* orthogonal, gradient projection */
+  LODE_ROTATION_VARIMAX_KAISER = 2,    /* varimax by Kaiser's (1958) pairwise algorithm */
+  LODE_ROTATION_QUARTIMAX = 3,
+  LODE_ROTATION_EQUAMAX = 4,
+  LODE_ROTATION_CRAWFORD_FERGUSON = 5, /* orthogonal, with kappa */
+  LODE_ROTATION_GEOMIN_ORTHOGONAL = 6, /* with epsilon */
+  LODE_ROTATION_TARGET_ORTHOGONAL = 7, /* toward target */
+  LODE_ROTATION_OBLIMIN = 8,           /* oblique, with gamma */
+  LODE_ROTATION_QUARTIMIN = 9,         /* oblimin with gamma 0 */
+  LODE_ROTATION_CRAWFORD_FERGUSON_OBLIQUE = 10,
+  LODE_ROTATION_GEOMIN = 11,           /* oblique, with epsilon */
+  LODE_ROTATION_TARGET_OBLIQUE = 12,
+  LODE_ROTATION_PROMAX = 13            /* oblique, with power */
+};
+
+/* The method of a name ("varimax", "oblimin", "geomin", "target", ...; case-insensitive, '-', ' '
+ * and '_' alike). An unknown name is LODE_E_INVALID_ARGUMENT with the valid names in the message. */
+LODE_API int lode_rotation_method_from_name(const char* name, int* method);
+/* The canonical name of a method; NULL for an unknown one. */
+LODE_API const char* lode_rotation_method_name(int method);
+
+typedef struct lode_rotation_options {
+  size_t struct_size;
+  int method;              /* enum lode_rotation_method; default LODE_ROTATION_VARIMAX */
+  int normalize;           /* Kaiser row normalisation; default 1 */
+  double gamma;            /* oblimin; default 0 */
+  double kappa;            /* Crawford-Ferguson, 0..1; default 0 */
+  double epsilon;          /* geomin; default 0.01 */
+  double power;            /* promax; default 4 */
+  const double* target;    /* items x factors target for the target methods (NaN = unspecified entry);
+                              read during the call only */
+  int64_t target_rows, target_cols, target_row_stride, target_col_stride;
+  int random_starts;       /* extra random starts; -1 (default) = 10 for geomin, oblimin, quartimin and
+                              oblique Crawford-Ferguson, 0 otherwise */
+  uint64_t seed;           /* for the random starts; default 1 */
+  int max_iterations;      /* per start; default 20000 */
+  double tolerance;        /* of the projected gradient (radians for varimax_kaiser); default 1e-6 */
+  int threads;             /* for the random starts (0 = all cores); default 1 */
+} lode_rotation_options;
+
+LODE_API int lode_rotation_options_init(lode_rotation_options* opts, size_t struct_size);
+
+typedef struct lode_rotation lode_rotation;
+
+/* Rotates a caller's loading matrix (items x factors, at least 2 factors, finite). Presentation:
+ * factors ordered by the variance they account for, each reflected to sum positive (target
+ * rotations keep the target's order). */
+LODE_API int lode_rotate(const double* loadings, int64_t items, int64_t factors, int64_t row_stride,
+                         int64_t col_stride, const lode_rotation_options* opts, lode_rotation** out);
+
+LODE_API void lode_rotation_free(lode_rotation* rotation);
+
+enum lode_rotation_key {
+  /* matrices: lode_rotation_matrix */
+  LODE_ROTATION_PATTERN = 500,             /* items x factors */
+  LODE_ROTATION_STRUCTURE = 501,           /* items x factors: pattern times factor correlations */
+  LODE_ROTATION_FACTOR_CORRELATIONS = 502, /* factors x factors (identity when orthogonal) */
+  LODE_ROTATION_TRANSFORM = 503,           /* the rotation matrix T: pattern = A T (orthogonal) or A inv(T)' (oblique) */
+  LODE_ROTATION_SS_PATTERN = 504,          /* factors x 1: sums of squared pattern loadings */
+  LODE_ROTATION_SS_STRUCTURE = 505,        /* factors x 1: sums of squared structure loadings */
+  LODE_ROTATION_START_CRITERIA = 506,      /* starts x 1: final criterion of every start */
+  /* numbers: lode_rotation_value */
+  LODE_ROTATION_CRITERION = 520,
+  LODE_ROTATION_CONVERGED = 521,           /* 1 or 0 */
+  LODE_ROTATION_ITERATIONS = 522,
+  LODE_ROTATION_OBLIQUE = 523,             /* 1 or 0 */
+  LODE_ROTATION_STARTS = 524,
+  LODE_ROTATION_STARTS_CONVERGED = 525,
+  LODE_ROTATION_REACHED_BEST = 526,        /* converged starts within tolerance of the best criterion */
+  LODE_ROTATION_DISTINCT_SOLUTIONS = 527,
+  LODE_ROTATION_METHOD = 528,              /* enum lode_rotation_method */
+  LODE_ROTATION_FINAL_CHANGE = 529,        /* the convergence criterion at the last iteration */
+  LODE_ROTATION_TOLERANCE = 530,           /* what it was tested against */
+  LODE_ROTATION_MAX_ITERATIONS = 531,
+  /* text: lode_rotation_text */
+  LODE_ROTATION_METHOD_NAME = 550
+};
+
+LODE_API int lode_rotation_matrix(const lode_rotation* rotation, int key, double* out, size_t capacity,
+                                  int64_t* rows, int64_t* cols);
+LODE_API int lode_rotation_value(const lode_rotation* rotation, int key, double* value);
+LODE_API int lode_rotation_text(const lode_rotation* rotation, int key, char* out, size_t capacity,
+                                size_t* length);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Fitting a factor model: extraction, rotation, fit statistics, residuals                      */
+/* ------------------------------------------------------------------------------------------- */
+
+enum lode_extraction_method {
+  LODE_ML = 0,     /* maximum likelihood (Joreskog 1967; Lawley & Maxwell 1971) */
+  LODE_PAF = 1,    /* iterated principal axis factoring from SMCs */
+  LODE_MINRES = 2, /* minimum residual (unweighted least squares) */
+  LODE_PCA = 3     /* principal components, a comparison method */
+};
+
+typedef struct lode_fit_options {
+  size_t struct_size;
+  int factors;              /* number of factors; 0 (default) = the count suggested by
+                               lode_count_factors with `factor_count`'s options */
+  int method;               /* enum lode_extraction_method; default LODE_ML */
+  int max_iterations;       /* extraction; default 1000 */
+  double tolerance;         /* extraction; default 1e-9 */
+  double min_uniqueness;    /* lower bound of uniquenesses (ML, MINRES); default 0.005 */
+  double interval_level;    /* of the RMSEA interval; default 0.90 */
+  const lode_rotation_options* rotation;         /* NULL (default) = unrotated */
+  const lode_factor_count_options* factor_count; /* used when factors == 0; NULL = defaults */
+} lode_fit_options;
+
+LODE_API int lode_fit_options_init(lode_fit_options* opts, size_t struct_size);
+
+typedef struct lode_model lode_model;
+
+/* Extracts, rotates and assesses a factor model of `corr`'s matrix. Non-convergence and Heywood
+ * cases are reported (LODE_MODEL_CONVERGED, LODE_MODEL_HEYWOOD, the notes), not errors. Fit
+ * statistics need n_obs: without it they are unavailable (their getters say why) while loadings and
+ * residuals are there. */
+LODE_API int lode_fit(const lode_correlation* corr, const lode_fit_options* opts, lode_model** out);
+
+LODE_API void lode_model_free(lode_model* model);
+
+enum lode_model_key {
+  /* matrices: lode_model_matrix */
+  LODE_MODEL_LOADINGS = 400,            /* items x factors: rotated pattern (unrotated without rotation) */
+  LODE_MODEL_STRUCTURE = 401,           /* items x factors */
+  LODE_MODEL_FACTOR_CORRELATIONS = 402, /* factors x factors */
+  LODE_MODEL_ROTATION_MATRIX = 403,     /* factors x factors */
+  LODE_MODEL_UNROTATED_LOADINGS = 404,  /* items x factors */
+  LODE_MODEL_UNIQUENESSES = 405,        /* items x 1 */
+  LODE_MODEL_COMMUNALITIES = 406,       /* items x 1 */
+  LODE_MODEL_RESIDUALS = 407,           /* items x items: observed minus implied correlations */
+  LODE_MODEL_HEYWOOD = 408,             /* items x 1: 1 for an improper item (communality >= 1 or
+                                           uniqueness at its bound), else 0 */
+  LODE_MODEL_SS_LOADINGS = 409,         /* factors x 1: sums of squared pattern loadings */
+  LODE_MODEL_SS_STRUCTURE = 410,        /* factors x 1: sums of squared structure loadings */
+  /* numbers: lode_model_value */
+  LODE_MODEL_FACTORS = 420,
+  LODE_MODEL_ITEMS = 421,
+  LODE_MODEL_N_OBS = 422,
+  LODE_MODEL_CONVERGED = 423,           /* extraction converged: 1 or 0 */
+  LODE_MODEL_ITERATIONS = 424,
+  LODE_MODEL_HEYWOOD_COUNT = 425,
+  LODE_MODEL_OBJECTIVE = 426,           /* the extraction's fitting function at the solution */
+  LODE_MODEL_RMSR = 427,                /* root mean square of off-diagonal residuals (no n_obs needed) */
+  LODE_MODEL_MAX_ABS_RESIDUAL = 428,
+  LODE_MODEL_CHI_SQUARE = 429,          /* with Bartlett's correction; the following need n_obs */
+  LODE_MODEL_DF = 430,
+  LODE_MODEL_P_VALUE = 431,             /* NaN when df = 0 */
+  LODE_MODEL_RMSEA = 432,
+  LODE_MODEL_RMSEA_LOWER = 433,
+  LODE_MODEL_RMSEA_UPPER = 434,
+  LODE_MODEL_TLI = 435,
+  LODE_MODEL_BIC = 436,
+  LODE_MODEL_NULL_CHI_SQUARE = 437,
+  LODE_MODEL_NULL_DF = 438,
+  LODE_MODEL_ROTATION_CRITERION = 439,
+  LODE_MODEL_ROTATION_CONVERGED = 440,
+  LODE_MODEL_OBLIQUE = 441,
+  LODE_MODEL_METHOD = 442,              /* enum lode_extraction_method */
+  LODE_MODEL_ROTATION_METHOD = 443,     /* enum lode_rotation_method */
+  LODE_MODEL_SUGGESTED_FACTORS = 444,   /* when factors was 0: the count used; else 0 */
+  LODE_MODEL_FINAL_CHANGE = 445,        /* extraction's convergence criterion at the last iteration */
+  LODE_MODEL_TOLERANCE = 446,           /* what it was tested against */
+  LODE_MODEL_MAX_ITERATIONS = 447,
+  /* text: lode_model_text */
+  LODE_MODEL_NOTES = 450                /* remarks (Heywood cases, non-convergence, fit caveats) */
+};
+
+LODE_API int lode_model_matrix(const lode_model* model, int key, double* out, size_t capacity, int64_t* rows,
+                               int64_t* cols);
+LODE_API int lode_model_value(const lode_model* model, int key, double* value);
+LODE_API int lode_model_text(const lode_model* model, int key, char* out, size_t capacity, size_t* length);
+
+#ifdef __cplusplus
+} /* extern "C" */
+#endif
+
+#endif /* LODE_H */

@@ -1,0 +1,565 @@
+"""Lode from Python: exploratory factor analysis over liblode's stable C interface.
+
+The package is pure Python (ctypes and numpy). It loads liblode from the path in the
+``LODE_LIBRARY`` environment variable, else from beside the package, else through the system
+loader. Data are 2-D arrays with respondents in rows and items in columns; NaN is a missing
+answer. Every error of the library is raised as :class:`LodeError` with the library's message.
+"""
+
+import ctypes
+
+import numpy as np
+
+from . import _native
+from ._native import LodeError, lib, check
+
+__all__ = ["LodeError", "version", "correlation", "Correlation", "factorability", "Factorability",
+           "n_factors", "parallel_analysis", "map_test", "FactorCount", "rotate", "Rotation", "fit", "Model"]
+
+# Keys of lode.h (enum lode_correlation_key).
+_CORRELATION_MATRIX = 100
+_CORRELATION_PAIR_COUNTS = 101
+_CORRELATION_EIGENVALUES = 102
+_CORRELATION_REDUCED_EIGENVALUES = 103
+_CORRELATION_SMC = 104
+_CORRELATION_STANDARD_ERRORS = 105
+_CORRELATION_THRESHOLDS = 106
+_CORRELATION_VALUES = {
+    "items": 120, "n_obs": 121, "rows_total": 122, "rows_complete": 123, "rows_used": 124,
+    "min_pair_count": 125, "missing_fraction": 126, "positive_definite": 127, "smoothed": 128,
+    "smallest_eigenvalue_before": 129, "smoothing_max_change": 130, "smoothing_rms_change": 131,
+    "smoothing_converged": 132, "smoothing_iterations": 133, "pairs_not_converged": 136, "pairs_at_bound": 137,
+    "pairs_zero_cell_corrected": 138,
+}
+_CORRELATION_NOTES = 150
+
+_KINDS = {"pearson": 0, "spearman": 1, "polychoric": 2}
+_ZERO_CELLS = {"none": 0, "at_bound": 1, "always": 2}
+_MISSING = {"pairwise": 0, "listwise": 1}
+
+
+def version():
+    """The library's versions as a dict: ``version`` (release, e.g. "0.1.0") and ``abi``
+    (major, minor) of the C interface."""
+    v = lib.lode_version().contents
+    return {"version": v.string.decode(), "release": (v.major, v.minor, v.patch), "abi": (v.abi_major, v.abi_minor)}
+
+
+def _choice(value, table, what):
+    try:
+        return table[value]
+    except KeyError:
+        raise ValueError(f"unknown {what} {value!r}; choose one of {', '.join(map(repr, table))}") from None
+
+
+class _Data(_native.Handle):
+    """A lode_data handle (raw responses or a correlation/covariance matrix)."""
+
+    _free = "lode_data_free"
+
+
+def _names_of(X, item_names):
+    if item_names is None and hasattr(X, "columns"):
+        item_names = [str(c) for c in X.columns]
+    return item_names
+
+
+def _make_data(X=None, corr=None, cov=None, n_obs=None, item_names=None):
+    given = [a is not None for a in (X, corr, cov)]
+    if sum(given) != 1:
+        raise ValueError("give exactly one of X (raw data), corr (a correlation matrix) or cov (a covariance matrix)")
+    ptr = ctypes.c_void_p()
+    names = _names_of(X, item_names)
+    if X is not None:
+        if n_obs is not None:
+            raise ValueError("n_obs is taken from the data when X is given; pass it only with corr= or cov=")
+        a, rows, cols, rs, cs = _native.as_strided_matrix(X, "X")
+        check(lib.lode_data_from_raw(_native.data_pointer(a), rows, cols, rs, cs, ctypes.byref(ptr)))
+    else:
+        m = corr if corr is not None else cov
+        a, rows, cols, rs, cs = _native.as_strided_matrix(m, "corr" if corr is not None else "cov")
+        if rows != cols:
+            raise ValueError(f"a correlation or covariance matrix must be square; this one is {rows} x {cols}")
+        fn = lib.lode_data_from_correlation if corr is not None else lib.lode_data_from_covariance
+        n = 0 if n_obs is None else int(n_obs)
+        check(fn(_native.data_pointer(a), rows, rs, cs, n, ctypes.byref(ptr)))
+    data = _Data(ptr.value)
+    if names is not None:
+        names = [None if s is None else str(s) for s in names]
+        arr = (ctypes.c_char_p * len(names))(*[None if s is None else s.encode() for s in names])
+        check(lib.lode_data_set_item_names(data.pointer, arr, len(names)))
+    return data
+
+
+class Correlation(_native.Handle):
+    """A correlation matrix computed by Lode, with what went into it.
+
+    Attributes: ``matrix`` (items x items), ``pair_counts`` (observations behind each
+    correlation), ``eigenvalues`` (largest first), ``smc`` (squared multiple correlations; None
+    when the matrix is not positive definite), ``reduced_eigenvalues`` (SMCs on the diagonal; None
+    likewise), ``n_obs`` (the sample size for tests: listwise, rows used; pairwise, the smallest pair
+    count), ``rows_total``, ``rows_complete``, ``rows_used``, ``min_pair_count``,
+    ``missing_fraction``, ``positive_definite``, ``smoothed`` and ``smoothing`` (a dict describing
+    the Higham smoothing when it was applied), ``notes`` (plain-language remarks). For polychoric
+    correlations of raw data also ``standard_errors`` (items x items, before smoothing),
+    ``thresholds`` (a list with each item's thresholds) and ``polychoric`` (a dict counting pairs
+    ``not_converged``, ``at_bound`` and ``zero_cell_corrected``); otherwise these are None.
+    ``numpy.asarray(result)`` gives the matrix.
+    """
+
+    _free = "lode_correlation_free"
+
+    def __init__(self, pointer):
+        super().__init__(pointer)
+        fm = lib.lode_correlation_matrix
+        self.matrix = _native.get_matrix(fm, pointer, _CORRELATION_MATRIX)
+        self.pair_counts = _native.get_matrix(fm, pointer, _CORRELATION_PAIR_COUNTS).astype(np.int64)
+        self.eigenvalues = _native.get_matrix(fm, pointer, _CORRELATION_EIGENVALUES)[:, 0]
+        v = {k: _native.get_value(lib.lode_correlation_value, pointer, key) for k, key in _CORRELATION_VALUES.items()}
+        self.positive_definite = bool(v["positive_definite"])
+        try:
+            self.smc = _native.get_matrix(fm, pointer, _CORRELATION_SMC)[:, 0]
+            self.reduced_eigenvalues = _native.get_matrix(fm, pointer, _CORRELATION_REDUCED_EIGENVALUES)[:, 0]
+        except LodeError:
+            self.smc = None
+            self.reduced_eigenvalues = None
+        self.n_obs = int(v["n_obs"])
+        self.rows_total = int(v["rows_total"])
+        self.rows_complete = int(v["rows_complete"])
+        self.rows_used = int(v["rows_used"])
+        self.min_pair_count = int(v["min_pair_count"])
+        self.missing_fraction = v["missing_fraction"]
+        self.smoothed = bool(v["smoothed"])
+        self.smoothing = {
+            "applied": self.smoothed,
+            "smallest_eigenvalue_before": v["smallest_eigenvalue_before"],
+            "max_change": v["smoothing_max_change"],
+            "rms_change": v["smoothing_rms_change"],
+            "converged": bool(v["smoothing_converged"]),
+            "iterations": int(v["smoothing_iterations"]),
+        }
+        self.standard_errors = self.thresholds = self.polychoric = None
+        if v["pairs_not_converged"] or self._kind(pointer) == _KINDS["polychoric"]:
+            try:
+                self.standard_errors = _native.get_matrix(fm, pointer, _CORRELATION_STANDARD_ERRORS)
+                th = _native.get_matrix(fm, pointer, _CORRELATION_THRESHOLDS)
+                self.thresholds = [row[~np.isnan(row)] for row in th]
+                self.polychoric = {"not_converged": int(v["pairs_not_converged"]),
+                                   "at_bound": int(v["pairs_at_bound"]),
+                                   "zero_cell_corrected": int(v["pairs_zero_cell_corrected"])}
+            except LodeError:  # a polychoric kind given with a matrix: no per-pair estimates
+                pass
+        text = _native.get_text(lib.lode_correlation_text, pointer, _CORRELATION_NOTES)
+        self.notes = text.split("\n") if text else []
+
+    @staticmethod
+    def _kind(pointer):
+        return int(_native.get_value(lib.lode_correlation_value, pointer, 134))
+
+    def __array__(self, dtype=None, copy=None):
+        return self.matrix if dtype is None else self.matrix.astype(dtype)
+
+    def __repr__(self):
+        return f"<lode.Correlation {self.matrix.shape[0]} items, n_obs={self.n_obs}>"
+
+
+def _correlate(data, method, missing, smooth, min_eigenvalue=1e-6, min_pair_observations=3, threads=0,
+               max_categories=10, zero_cells="at_bound", zero_cell_add=0.5, progress=None):
+    o = _native.options(_native.CorrelationOptions, "lode_correlation_options_init",
+                        kind=_choice(method, _KINDS, "correlation method"),
+                        missing=_choice(missing, _MISSING, "missing-value policy"),
+                        smooth=1 if smooth else 0, min_eigenvalue=float(min_eigenvalue),
+                        min_pair_observations=int(min_pair_observations), threads=int(threads),
+                        max_categories=int(max_categories), zero_cells=_choice(zero_cells, _ZERO_CELLS, "zero-cell policy"),
+                        zero_cell_add=float(zero_cell_add))
+    callback = _native.make_progress(progress)
+    if callback is not None:
+        o.progress = callback
+    ptr = ctypes.c_void_p()
+    check(lib.lode_correlate(data.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    del callback
+    return Correlation(ptr.value)
+
+
+def correlation(X=None, *, corr=None, cov=None, n_obs=None, method="pearson", missing="pairwise", smooth=False,
+                min_eigenvalue=1e-6, min_pair_observations=3, item_names=None, threads=0, max_categories=10,
+                zero_cells="at_bound", zero_cell_add=0.5, progress=None):
+    """The correlation matrix of raw data ``X`` (rows are respondents, columns items, NaN missing),
+    or a given correlation matrix ``corr`` / covariance matrix ``cov`` with its ``n_obs``, checked.
+
+    ``method`` is "pearson", "spearman" or "polychoric" (ordinal items, Olsson's two-step
+    estimate; tetrachoric for binary items; ``max_categories``, ``zero_cells`` "none", "at_bound"
+    or "always" with ``zero_cell_add``, ``threads``, and ``progress(done, total)`` returning False
+    to cancel); ``missing`` is "pairwise" or "listwise"; ``smooth``
+    replaces a matrix that is not positive definite by the nearest correlation matrix with
+    eigenvalues at least ``min_eigenvalue`` (Higham 2002) and reports the change. ``item_names``
+    (or the columns of a data frame) name the items in error messages. Returns a
+    :class:`Correlation`.
+    """
+    data = _make_data(X, corr, cov, n_obs, item_names)
+    return _correlate(data, method, missing, smooth, min_eigenvalue, min_pair_observations, threads, max_categories,
+                      zero_cells, zero_cell_add, progress)
+
+
+# ---- factorability ---------------------------------------------------------------------------------
+
+class Factorability(_native.Handle):
+    """Is the correlation matrix worth factoring?
+
+    Attributes: ``kmo`` (overall Kaiser-Meyer-Olkin; None when the matrix is not positive
+    definite), ``kmo_label`` (Kaiser's 1974 verbal label), ``msa`` (per item), ``bartlett`` (a dict
+    with ``chi_square``, ``df``, ``p_value``, ``n_obs``; None without n_obs), ``determinant``,
+    ``log_determinant``, ``smc`` (squared multiple correlations) and ``notes``.
+    """
+
+    _free = "lode_factorability_free"
+
+    def __init__(self, pointer):
+        super().__init__(pointer)
+        m, v, t = lib.lode_factorability_matrix, lib.lode_factorability_value, lib.lode_factorability_text
+        self.kmo = _optional(lambda: _native.get_value(v, pointer, 220))
+        self.kmo_label = _optional(lambda: _native.get_text(t, pointer, 250))
+        self.msa = _optional(lambda: _native.get_matrix(m, pointer, 200)[:, 0])
+        self.smc = _optional(lambda: _native.get_matrix(m, pointer, 201)[:, 0])
+        chi = _optional(lambda: _native.get_value(v, pointer, 221))
+        self.bartlett = None if chi is None else {
+            "chi_square": chi, "df": _native.get_value(v, pointer, 222), "p_value": _native.get_value(v, pointer, 223),
+            "n_obs": int(_native.get_value(v, pointer, 224))}
+        self.determinant = _native.get_value(v, pointer, 225)
+        self.log_determinant = _native.get_value(v, pointer, 226)
+        self.notes = _lines(_native.get_text(t, pointer, 251))
+
+    def __repr__(self):
+        return f"<lode.Factorability kmo={self.kmo}>"
+
+
+def _optional(get):
+    try:
+        return get()
+    except LodeError:
+        return None
+
+
+def _lines(text):
+    return text.split("\n") if text else []
+
+
+def _correlation_of(X, corr, cov, n_obs, correlation, missing, smooth, item_names):
+    if isinstance(X, Correlation):
+        return X
+    data = _make_data(X, corr, cov, n_obs, item_names)
+    return _correlate(data, correlation, missing, smooth, 1e-6, 3)
+
+
+def factorability(X=None, *, corr=None, cov=None, n_obs=None, correlation="pearson", missing="pairwise",
+                  smooth=False, item_names=None):
+    """Kaiser-Meyer-Olkin (overall and per item), Bartlett's test of sphericity, the determinant and
+    the squared multiple correlations of the data's correlation matrix (raw data ``X``, or ``corr``
+    / ``cov`` with ``n_obs``; ``X`` may also be a :class:`Correlation`). Returns a
+    :class:`Factorability`."""
+    c = _correlation_of(X, corr, cov, n_obs, correlation, missing, smooth, item_names)
+    ptr = ctypes.c_void_p()
+    check(lib.lode_assess_factorability(c.pointer, ctypes.byref(ptr)))
+    return Factorability(ptr.value)
+
+
+
+
+# ---- factor count ----------------------------------------------------------------------------------
+
+_SOURCES = {"normal": 0, "permutation": 1}
+_THRESHOLDS = {"percentile": 0, "mean": 1}
+
+
+class FactorCount(_native.Handle):
+    """How many factors: every rule side by side.
+
+    Attributes: ``suggested`` (int) and ``reason``; ``by_rule`` (dict from rule name to its
+    count); ``table`` (list of dicts: ``rule``, ``factors``, ``primary``, ``basis``); ``parallel``
+    (dict: ``observed_pc``, ``observed_factor``, ``random_pc_mean``, ``random_pc_percentile``,
+    ``random_factor_mean``, ``random_factor_percentile``, ``suggested_pc``, ``suggested_factor``,
+    ``replicates``, ``percentile``); ``map`` (dict: ``average_squared``, ``average_fourth``,
+    ``suggested_squared``, ``suggested_fourth``); ``kaiser``, ``empirical_kaiser``,
+    ``ekc_reference``; ``n_obs``; ``notes``.
+    """
+
+    _free = "lode_factor_count_free"
+
+    def __init__(self, pointer):
+        super().__init__(pointer)
+        m, v, t = lib.lode_factor_count_matrix, lib.lode_factor_count_value, lib.lode_factor_count_text
+        col = lambda key: _native.get_matrix(m, pointer, key)[:, 0]  # noqa: E731
+        num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
+        self.suggested = int(num(320))
+        self.reason = _native.get_text(t, pointer, 350)
+        self.notes = _lines(_native.get_text(t, pointer, 352))
+        self.table = []
+        for line in _lines(_native.get_text(t, pointer, 351)):
+            rule, count, primary, basis = line.split("\t", 3)
+            self.table.append({"rule": rule, "factors": int(count), "primary": primary == "1", "basis": basis})
+        self.by_rule = {row["rule"]: row["factors"] for row in self.table}
+        self.parallel = {
+            "observed_pc": col(300), "observed_factor": col(301), "random_pc_mean": col(302),
+            "random_pc_percentile": col(303), "random_factor_mean": col(304), "random_factor_percentile": col(305),
+            "suggested_pc": int(num(321)), "suggested_factor": int(num(322)), "replicates": int(num(327)),
+            "percentile": num(329)}
+        self.map = {"average_squared": col(306), "average_fourth": col(307), "suggested_squared": int(num(323)),
+                    "suggested_fourth": int(num(324))}
+        self.kaiser = int(num(325))
+        self.empirical_kaiser = int(num(326))
+        self.ekc_reference = col(308)
+        self.n_obs = int(num(328))
+
+    def __repr__(self):
+        return f"<lode.FactorCount suggested={self.suggested}>"
+
+
+def _count_options(replicates, seed, percentile, threshold, source, threads, progress):
+    o = _native.options(_native.FactorCountOptions, "lode_factor_count_options_init")
+    if replicates is not None:
+        o.replicates = int(replicates)
+    if seed is not None:
+        o.seed = int(seed) & 0xFFFFFFFFFFFFFFFF
+    o.percentile = float(percentile)
+    o.threshold = _choice(threshold, _THRESHOLDS, "threshold")
+    o.source = _choice(source, _SOURCES, "random data source")
+    o.threads = int(threads)
+    callback = _native.make_progress(progress)
+    if callback is not None:
+        o.progress = callback
+    return o, callback
+
+
+def n_factors(X=None, *, corr=None, cov=None, n_obs=None, replicates=1000, seed=None, percentile=95.0,
+              threshold="percentile", source="normal", correlation="pearson", missing="pairwise", smooth=False,
+              threads=0, progress=None, item_names=None):
+    """How many factors to extract: parallel analysis (Horn 1965; ``replicates`` random data sets,
+    ``source`` "normal" or "permutation", compared with the ``percentile`` or the mean), Velicer's
+    MAP test (squared and fourth power), eigenvalues above one and the empirical Kaiser criterion,
+    with a suggested count and its reason. ``seed`` None uses Lode's fixed default seed (results are
+    reproducible either way). ``progress(done, total)`` is called during the work; returning False
+    cancels (LodeError). Returns a :class:`FactorCount`."""
+    c = _correlation_of(X, corr, cov, n_obs, correlation, missing, smooth, item_names)
+    o, keep = _count_options(replicates, seed, percentile, threshold, source, threads, progress)
+    ptr = ctypes.c_void_p()
+    check(lib.lode_count_factors(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    del keep
+    return FactorCount(ptr.value)
+
+
+def parallel_analysis(X=None, *, corr=None, cov=None, n_obs=None, replicates=1000, seed=None, percentile=95.0,
+                      threshold="percentile", source="normal", **kwargs):
+    """Parallel analysis (Horn 1965) alone: a dict with the observed component and factor
+    (reduced-matrix) eigenvalues, the random-data means and percentiles by position, and the
+    suggested counts ``suggested_pc`` and ``suggested_factor``. Arguments as :func:`n_factors`."""
+    return n_factors(X, corr=corr, cov=cov, n_obs=n_obs, replicates=replicates, seed=seed, percentile=percentile,
+                     threshold=threshold, source=source, **kwargs).parallel
+
+
+def map_test(X=None, *, corr=None, cov=None, n_obs=None, **kwargs):
+    """Velicer's (1976) minimum average partial test and its fourth-power variant (Velicer, Eaton &
+    Fava 2000): a dict with ``average_squared`` and ``average_fourth`` (entry m: after removing m
+    components) and the suggested counts ``suggested_squared`` and ``suggested_fourth``."""
+    kwargs.setdefault("replicates", 1)
+    return n_factors(X, corr=corr, cov=cov, n_obs=n_obs, **kwargs).map
+
+
+# ---- rotation --------------------------------------------------------------------------------------
+
+def _rotation_method(name):
+    method = ctypes.c_int()
+    check(lib.lode_rotation_method_from_name(str(name).encode(), ctypes.byref(method)))
+    return method.value
+
+
+def _rotation_options(rotation, normalize, gamma, kappa, epsilon, power, target, random_starts, seed, threads):
+    """The rotation option struct and the arrays it points to (kept alive by the caller)."""
+    o = _native.options(_native.RotationOptions, "lode_rotation_options_init")
+    o.method = _rotation_method(rotation)
+    o.normalize = 1 if normalize else 0
+    o.gamma = float(gamma)
+    o.epsilon = float(epsilon)
+    if o.method == 13:  # promax: kappa is its power
+        o.power = float(power if power is not None else (kappa if kappa is not None else 4.0))
+    else:
+        o.kappa = float(kappa if kappa is not None else 0.0)
+        if power is not None:
+            o.power = float(power)
+    keep = None
+    if target is not None:
+        keep, rows, cols, rs, cs = _native.as_strided_matrix(target, "target")
+        o.target = _native.data_pointer(keep)
+        o.target_rows, o.target_cols, o.target_row_stride, o.target_col_stride = rows, cols, rs, cs
+    if random_starts is not None:
+        o.random_starts = int(random_starts)
+    if seed is not None:
+        o.seed = int(seed) & 0xFFFFFFFFFFFFFFFF
+    o.threads = int(threads)
+    return o, keep
+
+
+class Rotation(_native.Handle):
+    """A rotated loading matrix.
+
+    Attributes: ``loadings`` (the pattern, items x factors), ``structure``,
+    ``factor_correlations`` (identity when orthogonal), ``rotation_matrix`` (T: pattern = A T
+    orthogonal, A inv(T)' oblique), ``criterion``, ``converged``, ``iterations``, ``oblique``,
+    ``method``, ``convergence`` (a dict: ``converged``, ``iterations``, ``final_change``,
+    ``tolerance``, ``max_iterations``), ``ss_loadings`` and ``ss_structure`` (per factor), ``starts`` (a dict: ``starts``,
+    ``converged``, ``reached_best``, ``distinct_solutions``, ``criteria``).
+    """
+
+    _free = "lode_rotation_free"
+
+    def __init__(self, pointer):
+        super().__init__(pointer)
+        m, v, t = lib.lode_rotation_matrix, lib.lode_rotation_value, lib.lode_rotation_text
+        mat = lambda key: _native.get_matrix(m, pointer, key)  # noqa: E731
+        num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
+        self.loadings = mat(500)
+        self.structure = mat(501)
+        self.factor_correlations = mat(502)
+        self.rotation_matrix = mat(503)
+        self.ss_loadings = mat(504)[:, 0]
+        self.ss_structure = mat(505)[:, 0]
+        self.criterion = num(520)
+        self.converged = bool(num(521))
+        self.iterations = int(num(522))
+        self.oblique = bool(num(523))
+        self.method = _native.get_text(t, pointer, 550)
+        self.convergence = {"converged": self.converged, "iterations": self.iterations, "final_change": num(529),
+                            "tolerance": num(530), "max_iterations": int(num(531))}
+        self.starts = {"starts": int(num(524)), "converged": int(num(525)), "reached_best": int(num(526)),
+                       "distinct_solutions": int(num(527)), "criteria": mat(506)[:, 0]}
+
+    def __repr__(self):
+        return f"<lode.Rotation {self.method} {self.loadings.shape}>"
+
+
+def rotate(loadings, rotation="varimax", *, normalize=True, gamma=0.0, kappa=None, epsilon=0.01, power=None,
+           target=None, random_starts=None, seed=None, threads=1):
+    """Rotates a loading matrix (items x factors) the caller already has.
+
+    ``rotation``: "none", "varimax", "quartimax", "equamax", "promax", "oblimin", "quartimin",
+    "geomin" (oblique; "geomin_orthogonal" for the orthogonal one), "target" (orthogonal;
+    "target_oblique"), "crawford_ferguson" and its oblique version, "varimax_kaiser".
+    ``normalize`` is Kaiser row normalisation; ``gamma`` the oblimin parameter; ``kappa`` the
+    Crawford-Ferguson kappa, or for promax its power (4 by default; ``power`` says the same);
+    ``epsilon`` geomin's constant; ``target`` an items x factors target, NaN for unspecified
+    entries; ``random_starts`` extra random starts (None: 10 for geomin and the oblimin family, else
+    0) drawn from ``seed``. Returns a :class:`Rotation`."""
+    a, rows, cols, rs, cs = _native.as_strided_matrix(loadings, "loadings")
+    o, keep = _rotation_options(rotation, normalize, gamma, kappa, epsilon, power, target, random_starts, seed, threads)
+    ptr = ctypes.c_void_p()
+    check(lib.lode_rotate(_native.data_pointer(a), rows, cols, rs, cs, ctypes.byref(o), ctypes.byref(ptr)))
+    del keep
+    return Rotation(ptr.value)
+
+
+# ---- fit -------------------------------------------------------------------------------------------
+
+_METHODS = {"ml": 0, "paf": 1, "minres": 2, "pca": 3}
+_METHOD_NAMES = {v: k for k, v in _METHODS.items()}
+
+
+class Model(_native.Handle):
+    """A fitted factor model.
+
+    Attributes (numpy arrays): ``loadings`` (pattern, items x factors; rotated when a rotation was
+    asked for), ``structure``, ``factor_correlations``, ``rotation_matrix``,
+    ``unrotated_loadings``, ``uniquenesses``, ``communalities``, ``residuals`` (items x items,
+    observed minus implied), ``heywood`` (bool per item), ``ss_loadings``; and ``factors``,
+    ``method``, ``rotation``, ``converged``, ``iterations``, ``n_obs``, ``oblique``, ``notes``,
+    ``suggested_factors`` (the count used when factors=0), ``convergence`` (a dict:
+    ``converged``, ``iterations``, ``final_change``, ``tolerance``, ``max_iterations``). ``statistics`` is a dict with
+    ``chi_square``, ``df``, ``p_value``, ``rmsea``, ``rmsea_ci`` (lower, upper), ``tli``, ``bic``,
+    ``rmsr``, ``null_chi_square``, ``null_df``; entries that need n_obs are None without it (the
+    reason is in ``statistics_unavailable``).
+    """
+
+    _free = "lode_model_free"
+
+    def __init__(self, pointer):
+        super().__init__(pointer)
+        m, v, t = lib.lode_model_matrix, lib.lode_model_value, lib.lode_model_text
+        mat = lambda key: _native.get_matrix(m, pointer, key)  # noqa: E731
+        num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
+        self.loadings = mat(400)
+        self.structure = mat(401)
+        self.factor_correlations = mat(402)
+        self.rotation_matrix = mat(403)
+        self.unrotated_loadings = mat(404)
+        self.uniquenesses = mat(405)[:, 0]
+        self.communalities = mat(406)[:, 0]
+        self.residuals = mat(407)
+        self.heywood = mat(408)[:, 0] != 0
+        self.ss_loadings = mat(409)[:, 0]
+        self.ss_structure = mat(410)[:, 0]
+        self.factors = int(num(420))
+        self.n_obs = int(num(422))
+        self.converged = bool(num(423))
+        self.iterations = int(num(424))
+        self.objective = num(426)
+        self.oblique = bool(num(441))
+        self.method = _METHOD_NAMES.get(int(num(442)), "unknown")
+        self.rotation = lib.lode_rotation_method_name(int(num(443))).decode()
+        self.suggested_factors = int(num(444))
+        self.convergence = {"converged": self.converged, "iterations": self.iterations, "final_change": num(445),
+                            "tolerance": num(446), "max_iterations": int(num(447))}
+        self.notes = _lines(_native.get_text(t, pointer, 450))
+        self.statistics_unavailable = None
+        try:
+            chi = num(429)
+        except LodeError as e:
+            chi = None
+            self.statistics_unavailable = e.message
+        stat = (lambda key: num(key)) if chi is not None else (lambda key: None)
+        self.statistics = {
+            "chi_square": chi, "df": stat(430), "p_value": stat(431), "rmsea": stat(432),
+            "rmsea_ci": None if chi is None else (num(433), num(434)), "tli": stat(435), "bic": stat(436),
+            "rmsr": num(427), "max_abs_residual": num(428), "null_chi_square": stat(437), "null_df": stat(438)}
+
+    def __repr__(self):
+        return f"<lode.Model {self.method} {self.factors} factor(s), {self.rotation}>"
+
+
+def fit(X=None, *, corr=None, cov=None, n_obs=None, factors, method="ml", rotation="none", missing="pairwise",
+        correlation="pearson", smooth=False, seed=None, max_iterations=1000, tolerance=1e-9, min_uniqueness=0.005,
+        interval_level=0.90, replicates=1000, progress=None, item_names=None, **rotation_keywords):
+    """Fits an exploratory factor model.
+
+    Data: raw ``X`` (rows are respondents, NaN missing; ``missing`` "pairwise" or "listwise",
+    ``correlation`` "pearson" or "spearman", ``smooth`` a non-positive-definite matrix), or a
+    correlation matrix ``corr`` / covariance matrix ``cov`` with ``n_obs``, or a
+    :class:`Correlation`. ``factors``: how many (0 = the count parallel analysis suggests, with
+    ``replicates`` and ``seed``). ``method``: "ml" (maximum likelihood), "paf" (principal axis),
+    "minres" (minimum residual) or "pca" (components, for comparison). ``rotation`` and the
+    ``rotation_keywords`` (normalize, gamma, kappa, epsilon, power, target, random_starts) as in
+    :func:`rotate`; ``seed`` seeds the random starts and the factor count. Returns a
+    :class:`Model`; non-convergence and Heywood cases are reported in it, not raised."""
+    c = _correlation_of(X, corr, cov, n_obs, correlation, missing, smooth, item_names)
+    allowed = {"normalize", "gamma", "kappa", "epsilon", "power", "target", "random_starts", "threads"}
+    unknown = set(rotation_keywords) - allowed
+    if unknown:
+        raise TypeError(f"fit() got unexpected keyword(s): {', '.join(sorted(unknown))}")
+    o = _native.options(_native.FitOptions, "lode_fit_options_init", factors=int(factors),
+                        method=_choice(method, _METHODS, "extraction method"), max_iterations=int(max_iterations),
+                        tolerance=float(tolerance), min_uniqueness=float(min_uniqueness),
+                        interval_level=float(interval_level))
+    keep = []
+    if rotation is not None and str(rotation).lower() != "none":
+        kw = {"normalize": True, "gamma": 0.0, "kappa": None, "epsilon": 0.01, "power": None, "target": None,
+              "random_starts": None, "threads": 1}
+        kw.update(rotation_keywords)
+        ro, target = _rotation_options(rotation, kw["normalize"], kw["gamma"], kw["kappa"], kw["epsilon"],
+                                       kw["power"], kw["target"], kw["random_starts"], seed, kw["threads"])
+        keep += [ro, target]
+        o.rotation = ctypes.pointer(ro)
+    if int(factors) == 0:
+        co, callback = _count_options(replicates, seed, 95.0, "percentile", "normal", 0, progress)
+        keep += [co, callback]
+        o.factor_count = ctypes.pointer(co)
+    ptr = ctypes.c_void_p()
+    check(lib.lode_fit(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    del keep
+    return Model(ptr.value)

@@ -1,0 +1,260 @@
+"""Loading liblode and declaring its C functions for ctypes (internal to the lode package)."""
+
+import ctypes
+import ctypes.util
+import os
+
+import numpy as np
+
+ABI_MAJOR = 1
+
+c_int = ctypes.c_int
+c_int64 = ctypes.c_int64
+c_size_t = ctypes.c_size_t
+c_double = ctypes.c_double
+c_char_p = ctypes.c_char_p
+c_void_p = ctypes.c_void_p
+P_double = ctypes.POINTER(c_double)
+P_int64 = ctypes.POINTER(c_int64)
+P_size_t = ctypes.POINTER(c_size_t)
+P_void_p = ctypes.POINTER(c_void_p)
+
+PROGRESS_FN = ctypes.CFUNCTYPE(c_int, c_void_p, c_int64, c_int64)
+
+
+class LodeError(Exception):
+    """An error reported by liblode: `status` is the C status code, `status_name` its name and
+    `message` the library's explanation (which item, which value, how many rows survive)."""
+
+    def __init__(self, status, status_name, message):
+        super().__init__(f"{message} [{status_name}]" if message else status_name)
+        self.status = status
+        self.status_name = status_name
+        self.message = message
+
+
+class VersionInfo(ctypes.Structure):
+    _fields_ = [("major", c_int), ("minor", c_int), ("patch", c_int), ("abi_major", c_int),
+                ("abi_minor", c_int), ("string", c_char_p)]
+
+
+class CorrelationOptions(ctypes.Structure):
+    _fields_ = [("struct_size", c_size_t), ("kind", c_int), ("missing", c_int), ("smooth", c_int),
+                ("min_eigenvalue", c_double), ("min_pair_observations", c_int64), ("threads", c_int),
+                ("max_categories", c_int), ("zero_cells", c_int), ("zero_cell_add", c_double),
+                ("progress", PROGRESS_FN), ("progress_user", c_void_p)]
+
+
+def _candidates():
+    env = os.environ.get("LODE_LIBRARY")
+    if env:
+        yield env
+        return
+    here = os.path.dirname(os.path.abspath(__file__))
+    # Beside the package (a wheel-like layout), then the library directory of an installed prefix
+    # (the package is installed under <libdir>/lode/python/lode).
+    for folder in (here, os.path.dirname(here), os.path.normpath(os.path.join(here, "..", "..", ".."))):
+        for name in ("liblode.so.1", "liblode.so", "liblode.dylib", "lode.dll"):
+            path = os.path.join(folder, name)
+            if os.path.exists(path):
+                yield path
+    found = ctypes.util.find_library("lode")
+    yield found or "liblode.so.1"
+
+
+def _load():
+    errors = []
+    for path in _candidates():
+        try:
+            return ctypes.CDLL(path)
+        except OSError as e:
+            errors.append(f"{path}: {e}")
+    raise ImportError("liblode could not be loaded (set LODE_LIBRARY to its path): " + "; ".join(errors))
+
+
+lib = _load()
+
+# name: (restype, argtypes)
+_SIGNATURES = {
+    "lode_version": (ctypes.POINTER(VersionInfo), []),
+    "lode_status_name": (c_char_p, [c_int]),
+    "lode_last_error": (c_char_p, []),
+    "lode_data_from_raw": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, P_void_p]),
+    "lode_data_from_correlation": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, P_void_p]),
+    "lode_data_from_covariance": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, P_void_p]),
+    "lode_data_set_item_names": (c_int, [c_void_p, ctypes.POINTER(c_char_p), c_int64]),
+    "lode_data_shape": (c_int, [c_void_p, P_int64, P_int64]),
+    "lode_data_free": (None, [c_void_p]),
+    "lode_correlation_options_init": (c_int, [ctypes.POINTER(CorrelationOptions), c_size_t]),
+    "lode_correlate": (c_int, [c_void_p, ctypes.POINTER(CorrelationOptions), P_void_p]),
+    "lode_correlation_free": (None, [c_void_p]),
+    "lode_correlation_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
+    "lode_correlation_value": (c_int, [c_void_p, c_int, P_double]),
+    "lode_correlation_text": (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t]),
+}
+
+
+def declare(signatures):
+    """Declares result and argument types of C functions (absent ones raise when called)."""
+    for name, (restype, argtypes) in signatures.items():
+        fn = getattr(lib, name)
+        fn.restype = restype
+        fn.argtypes = argtypes
+
+
+declare(_SIGNATURES)
+
+_info = lib.lode_version().contents
+if _info.abi_major != ABI_MAJOR:
+    raise ImportError(f"liblode has ABI {_info.abi_major}.{_info.abi_minor}; this binding needs ABI {ABI_MAJOR}.x")
+
+
+_factorability_signatures = {
+    "lode_assess_factorability": (c_int, [c_void_p, P_void_p]),
+    "lode_factorability_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
+    "lode_factorability_value": (c_int, [c_void_p, c_int, P_double]),
+    "lode_factorability_text": (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t]),
+    "lode_factorability_free": (None, [c_void_p]),
+}
+declare(_factorability_signatures)
+
+
+class FactorCountOptions(ctypes.Structure):
+    _fields_ = [("struct_size", c_size_t), ("replicates", c_int64), ("threshold", c_int), ("percentile", c_double),
+                ("source", c_int), ("seed", ctypes.c_uint64), ("threads", c_int), ("progress", PROGRESS_FN),
+                ("progress_user", c_void_p)]
+
+
+_count_signatures = {
+    "lode_factor_count_options_init": (c_int, [ctypes.POINTER(FactorCountOptions), c_size_t]),
+    "lode_count_factors": (c_int, [c_void_p, ctypes.POINTER(FactorCountOptions), P_void_p]),
+    "lode_factor_count_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
+    "lode_factor_count_value": (c_int, [c_void_p, c_int, P_double]),
+    "lode_factor_count_text": (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t]),
+    "lode_factor_count_free": (None, [c_void_p]),
+}
+declare(_count_signatures)
+
+
+class RotationOptions(ctypes.Structure):
+    _fields_ = [("struct_size", c_size_t), ("method", c_int), ("normalize", c_int), ("gamma", c_double),
+                ("kappa", c_double), ("epsilon", c_double), ("power", c_double), ("target", P_double),
+                ("target_rows", c_int64), ("target_cols", c_int64), ("target_row_stride", c_int64),
+                ("target_col_stride", c_int64), ("random_starts", c_int), ("seed", ctypes.c_uint64),
+                ("max_iterations", c_int), ("tolerance", c_double), ("threads", c_int)]
+
+
+class FitOptions(ctypes.Structure):
+    _fields_ = [("struct_size", c_size_t), ("factors", c_int), ("method", c_int), ("max_iterations", c_int),
+                ("tolerance", c_double), ("min_uniqueness", c_double), ("interval_level", c_double),
+                ("rotation", ctypes.POINTER(RotationOptions)), ("factor_count", ctypes.POINTER(FactorCountOptions))]
+
+
+_getters = {}
+for _kind in ("rotation", "model"):
+    _getters[f"lode_{_kind}_matrix"] = (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64])
+    _getters[f"lode_{_kind}_value"] = (c_int, [c_void_p, c_int, P_double])
+    _getters[f"lode_{_kind}_text"] = (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t])
+    _getters[f"lode_{_kind}_free"] = (None, [c_void_p])
+_getters.update({
+    "lode_rotation_method_from_name": (c_int, [c_char_p, ctypes.POINTER(c_int)]),
+    "lode_rotation_method_name": (c_char_p, [c_int]),
+    "lode_rotation_options_init": (c_int, [ctypes.POINTER(RotationOptions), c_size_t]),
+    "lode_rotate": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, ctypes.POINTER(RotationOptions), P_void_p]),
+    "lode_fit_options_init": (c_int, [ctypes.POINTER(FitOptions), c_size_t]),
+    "lode_fit": (c_int, [c_void_p, ctypes.POINTER(FitOptions), P_void_p]),
+})
+declare(_getters)
+
+
+
+def check(status):
+    """Raises LodeError for a failing status, with the library's message."""
+    if status != 0:
+        name = lib.lode_status_name(status).decode()
+        message = lib.lode_last_error().decode("utf-8", "replace")
+        raise LodeError(status, name, message)
+
+
+def options(struct_type, init_name, **fields):
+    """An option struct filled with the library's defaults, then the given fields."""
+    o = struct_type()
+    check(getattr(lib, init_name)(ctypes.byref(o), ctypes.sizeof(o)))
+    for key, value in fields.items():
+        setattr(o, key, value)
+    return o
+
+
+def as_strided_matrix(x, what):
+    """A 2-D float64 numpy array and its (rows, cols, row_stride, col_stride) in elements, reusing
+    the caller's memory when its layout allows (no copy for C or Fortran order)."""
+    a = np.asarray(x, dtype=np.float64)
+    if a.ndim != 2:
+        raise ValueError(f"{what} must be a 2-D array (rows x columns); it has {a.ndim} dimension(s)")
+    item = a.itemsize
+    if a.size == 0 or any(s <= 0 or s % item for s in a.strides):
+        a = np.ascontiguousarray(a)
+        rs, cs = a.shape[1], 1
+    else:
+        rs, cs = a.strides[0] // item, a.strides[1] // item
+    return a, a.shape[0], a.shape[1], max(rs, 1), max(cs, 1)
+
+
+def data_pointer(a):
+    return a.ctypes.data_as(P_double)
+
+
+class Handle:
+    """Owns one liblode handle and frees it with its `_free` function."""
+
+    _free = None
+
+    def __init__(self, pointer):
+        self._ptr = pointer
+
+    @property
+    def pointer(self):
+        return self._ptr
+
+    def __del__(self):
+        ptr, self._ptr = getattr(self, "_ptr", None), None
+        if ptr and self._free is not None:
+            getattr(lib, self._free)(ptr)
+
+
+def get_matrix(fn, handle, key):
+    rows, cols = c_int64(), c_int64()
+    check(fn(handle, key, None, 0, ctypes.byref(rows), ctypes.byref(cols)))
+    out = np.empty((rows.value, cols.value), dtype=np.float64)
+    check(fn(handle, key, data_pointer(out), out.size, None, None))
+    return out
+
+
+def get_value(fn, handle, key):
+    v = c_double()
+    check(fn(handle, key, ctypes.byref(v)))
+    return v.value
+
+
+def get_text(fn, handle, key):
+    n = c_size_t()
+    check(fn(handle, key, None, 0, ctypes.byref(n)))
+    buf = ctypes.create_string_buffer(n.value + 1)
+    check(fn(handle, key, buf, n.value + 1, None))
+    return buf.value.decode("utf-8", "replace")
+
+
+def make_progress(callback):
+    """Wraps a Python callable (done, total) -> truthy-to-continue as a C progress callback that
+    returns nonzero to cancel. Exceptions in the callable cancel the computation."""
+    if callback is None:
+        return None
+
+    def trampoline(_user, done, total):
+        try:
+            result = callback(int(done), int(total))
+        except BaseException:  # noqa: BLE001 - never let an exception cross into C
+            return 1
+        return 0 if (result is None or result) else 1
+
+    return PROGRESS_FN(trampoline)

@@ -1,0 +1,574 @@
+#include "functions.hpp"
+
+#include "capi.hpp"
+
+#include <algorithm>
+#include <cctype>
+#include <chrono>
+#include <cmath>
+#include <initializer_list>
+#include <string>
+
+namespace lode::addin {
+
+// ---------------------------------------------------------------------------------------------
+// The C ABI's statuses as cell results
+// ---------------------------------------------------------------------------------------------
+
+Failure failure_of_status(int status) noexcept {
+  switch (status) {
+    case LODE_E_INVALID_ARGUMENT:
+    case LODE_E_INSUFFICIENT_DATA:
+    case LODE_E_TOO_MANY_FACTORS:
+      return Failure::bad_argument;  // Err:502
+    case LODE_E_NOT_POSITIVE_DEFINITE:
+      return Failure::not_computable;  // #NUM!
+    case LODE_E_NOT_CONVERGED:
+      return Failure::not_converged;  // Err:523
+    case LODE_E_CANCELLED:  // only the add-in's own time limit cancels
+    case LODE_E_NOMEM:
+      return Failure::too_large;  // Err:502
+    default:  // LODE_E_INTERNAL, LODE_E_BUFFER_TOO_SMALL, LODE_E_UNSUPPORTED, unknown
+      return Failure::internal;  // #VALUE!
+  }
+}
+
+void check(int status, const char* what) {
+  if (status == LODE_OK) return;
+  if (status == LODE_E_CANCELLED)
+    throw CellError(Failure::too_large, std::string(what) + ": stopped after " + std::to_string(kTimeLimit.count()) +
+                                            " s, the time limit of a cell function; use fewer rows, items or "
+                                            "replicates");
+  const char* detail = lode_last_error();
+  throw CellError(failure_of_status(status),
+                  std::string(what) + ": " + (detail && *detail ? detail : lode_status_name(status)));
+}
+
+Output to_output(const Matrix& m) {
+  Output out = Output::table(static_cast<std::size_t>(m.rows), static_cast<std::size_t>(m.cols));
+  for (std::size_t i = 0; i < out.cells.size(); ++i) {
+    const double v = m.values[i];
+    out.cells[i] = OutCell::of(v);
+    if (!std::isfinite(v)) out.cells[i].error = Failure::not_computable;
+  }
+  return out;
+}
+
+int deadline_progress(void* user, std::int64_t, std::int64_t) {
+  return std::chrono::steady_clock::now() > static_cast<const Deadline*>(user)->until ? 1 : 0;
+}
+
+namespace {
+
+// ---------------------------------------------------------------------------------------------
+// Reading arguments
+// ---------------------------------------------------------------------------------------------
+
+std::string lower(std::string s) {
+  std::transform(s.begin(), s.end(), s.begin(), [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
+  return s;
+}
+
+std::string join(std::initializer_list<const char*> words) {
+  std::string s;
+  for (const char* w : words) s += (s.empty() ? "\"" : ", \"") + std::string(w) + "\"";
+  return s;
+}
+
+// A text option: one of `choices` (case-insensitive), or the first choice when left out.
+int choice(const Arg& a, const char* name, std::initializer_list<const char*> choices) {
+  if (a.kind == Arg::Kind::missing) return 0;
+  if (a.kind == Arg::Kind::text) {
+    const std::string t = lower(a.text);
+    int i = 0;
+    for (const char* c : choices) {
+      if (t == c) return i;
+      ++i;
+    }
+  }
+  throw CellError(Failure::bad_argument, std::string("'") + name + "' must be one of " + join(choices));
+}
+
+// A whole number in [lo, hi], or `fallback` when left out.
+[[maybe_unused]] std::int64_t whole(const Arg& a, const char* name, std::int64_t fallback, std::int64_t lo, std::int64_t hi) {
+  if (a.kind == Arg::Kind::missing) return fallback;
+  if (a.kind != Arg::Kind::number || a.number != std::floor(a.number) || a.number < static_cast<double>(lo) ||
+      a.number > static_cast<double>(hi))
+    throw CellError(Failure::bad_argument, std::string("'") + name + "' must be a whole number from " +
+                                               std::to_string(lo) + " to " + std::to_string(hi));
+  return static_cast<std::int64_t>(a.number);
+}
+
+// A yes/no option: TRUE/FALSE, 1/0, or left out (= fallback).
+bool flag(const Arg& a, const char* name, bool fallback) {
+  if (a.kind == Arg::Kind::missing) return fallback;
+  if (a.kind == Arg::Kind::number && (a.number == 0.0 || a.number == 1.0)) return a.number == 1.0;
+  throw CellError(Failure::bad_argument, std::string("'") + name + "' must be TRUE or FALSE (1 or 0)");
+}
+
+// The data argument: raw responses, or a correlation matrix (square, symmetric, ones on the
+// diagonal, every cell a number in [-1, 1]).
+struct Input {
+  const Grid* grid = nullptr;
+  bool is_correlation = false;
+};
+
+Input read_input(const Arg& a, const char* name) {
+  if (a.kind != Arg::Kind::grid || a.grid.empty() || a.grid.number_cells == 0)
+    throw CellError(Failure::bad_argument, std::string("'") + name + "' holds no numbers");
+  const Grid& g = a.grid;
+  Input in{&g, false};
+  if (g.rows != g.cols || g.number_cells != g.rows * g.cols || g.rows < 2) return in;
+  constexpr double tol = 1e-9;  // typed or rounded values are symmetric to far better than this
+  for (std::size_t i = 0; i < g.rows; ++i) {
+    if (std::fabs(g.at(i, i) - 1.0) > tol) return in;
+    for (std::size_t j = 0; j < i; ++j)
+      if (std::fabs(g.at(i, j) - g.at(j, i)) > tol || std::fabs(g.at(i, j)) > 1.0) return in;
+  }
+  in.is_correlation = true;
+  return in;
+}
+
+KeyBuilder& add_grid(KeyBuilder& k, const Grid& g) {
+  k.add(static_cast<std::uint64_t>(g.rows)).add(static_cast<std::uint64_t>(g.cols));
+  return k.add(g.values.data(), g.values.size());
+}
+
+DataHandle make_data(const Input& in, std::int64_t n_obs) {
+  const Grid& g = *in.grid;
+  lode_data* d = nullptr;
+  if (in.is_correlation) {
+    check(lode_data_from_correlation(g.values.data(), static_cast<std::int64_t>(g.rows), static_cast<std::int64_t>(g.cols),
+                                     1, n_obs, &d),
+          "correlation matrix");
+  } else {
+    check(lode_data_from_raw(g.values.data(), static_cast<std::int64_t>(g.rows), static_cast<std::int64_t>(g.cols),
+                             static_cast<std::int64_t>(g.cols), 1, &d),
+          "data");
+  }
+  DataHandle data(d);
+  if (!g.header.empty()) {
+    std::vector<const char*> names;
+    for (const std::string& s : g.header) names.push_back(s.c_str());
+    check(lode_data_set_item_names(d, names.data(), static_cast<std::int64_t>(names.size())), "item names");
+  }
+  return data;
+}
+
+struct CorrelationSpec {
+  int kind = LODE_PEARSON;
+  int missing = LODE_PAIRWISE;
+  std::int64_t n_obs = 0;  // for a correlation matrix given as data
+};
+
+// The correlation of the input with these options, computed once per distinct input.
+std::shared_ptr<const lode_correlation> correlation(const Call& call, const Input& in, const CorrelationSpec& spec) {
+  KeyBuilder k("correlation");
+  add_grid(k, *in.grid)
+      .add(static_cast<std::uint64_t>(in.is_correlation))
+      .add(static_cast<std::uint64_t>(spec.kind))
+      .add(static_cast<std::uint64_t>(spec.missing))
+      .add(static_cast<std::uint64_t>(spec.n_obs));
+  const std::size_t items = in.grid->cols;
+  return call.cache.get_or_compute<lode_correlation>(
+      k.take(),
+      [&]() -> std::shared_ptr<const lode_correlation> {
+        DataHandle data = make_data(in, spec.n_obs);
+        lode_correlation_options opts;
+        check(lode_correlation_options_init(&opts, sizeof opts), "correlation options");
+        opts.kind = spec.kind;
+        opts.missing = spec.missing;
+        Deadline deadline;
+        opts.progress = deadline_progress;
+        opts.progress_user = &deadline;
+        lode_correlation* c = nullptr;
+        check(lode_correlate(data.get(), &opts, &c), "correlation");
+        return std::shared_ptr<const lode_correlation>(c, [](const lode_correlation* p) {
+          lode_correlation_free(const_cast<lode_correlation*>(p));
+        });
+      },
+      items * items * 2 * sizeof(double) + 4096);
+}
+
+Matrix correlation_matrix(const lode_correlation* c, int key, const char* what) {
+  return read_matrix(c, key, lode_correlation_matrix, what);
+}
+
+}  // namespace
+
+// ---------------------------------------------------------------------------------------------
+// The functions
+// ---------------------------------------------------------------------------------------------
+
+Output fn_version(const Call&) {
+  const lode_version_info* v = lode_version();
+  Output out = Output::table(1, 1);
+  out.scalar = true;
+  out.cells[0] = OutCell::of("Lode " + std::string(v->string) + " (C ABI " + std::to_string(v->abi_major) + "." +
+                             std::to_string(v->abi_minor) + ")");
+  return out;
+}
+
+Output fn_corr(const Call& call) {
+  const Input in = read_input(call.args[0], "data");
+  CorrelationSpec spec;
+  const int kinds[] = {LODE_PEARSON, LODE_SPEARMAN, LODE_POLYCHORIC};
+  spec.kind = kinds[choice(call.args[1], "kind", {"pearson", "spearman", "polychoric"})];
+  spec.missing = choice(call.args[2], "missing", {"pairwise", "listwise"}) == 0 ? LODE_PAIRWISE : LODE_LISTWISE;
+  auto c = correlation(call, in, spec);
+  return to_output(correlation_matrix(c.get(), LODE_CORRELATION_MATRIX, "correlation matrix"));
+}
+
+Output fn_eigen(const Call& call) {
+  const Input in = read_input(call.args[0], "data");
+  const bool reduced = flag(call.args[1], "reduced", false);
+  auto c = correlation(call, in, CorrelationSpec{});
+  return to_output(correlation_matrix(c.get(), reduced ? LODE_CORRELATION_REDUCED_EIGENVALUES : LODE_CORRELATION_EIGENVALUES,
+                                      "eigenvalues"));
+}
+
+// ---------------------------------------------------------------------------------------------
+// Factor analyses shared by many cells. The C ABI is reached only in the run_* functions; the
+// cells read their outputs, which the cache keeps per distinct (input values, options).
+// ---------------------------------------------------------------------------------------------
+namespace {
+
+int method_arg(const Arg& a) { return choice(a, "method", {"ml", "paf", "minres"}); }
+int rotation_arg(const Arg& a) {
+  return choice(a, "rotation", {"oblimin", "none", "varimax", "quartimax", "equamax", "promax", "quartimin", "geomin"});
+}
+
+constexpr std::int64_t kMaxFactors = 100;
+constexpr std::int64_t kMaxReplicates = 10000;
+constexpr std::int64_t kMaxObservations = 1'000'000'000;
+constexpr std::size_t kNoArg = static_cast<std::size_t>(-1);
+
+struct FitSpec {
+  int factors = 0;   // 0 = the count parallel analysis suggests
+  int method = 0;    // index into method_arg's choices
+  int rotation = 0;  // index into rotation_arg's choices
+};
+
+// What every fit-reading cell needs, computed once per distinct (data, options).
+struct FitOutputs {
+  int factors = 0;
+  bool converged = true;
+  std::string convergence_note;  // why not, shown by LODE.FIT; the other cells show Err:523
+  Matrix pattern, structure, phi, uniquenesses, communalities, residuals;
+  std::vector<std::pair<std::string, double>> statistics;  // LODE.FIT's rows
+  std::string statistics_error;  // when the statistics could not be computed (e.g. n_obs unknown)
+  std::int64_t heywood = 0;      // items with an improper solution
+};
+
+struct ParallelOutputs {
+  Matrix table;  // items x 3: observed, random mean, random percentile
+};
+
+std::shared_ptr<const FitOutputs> run_fit(const lode_correlation* corr, const FitSpec& spec);
+std::shared_ptr<const ParallelOutputs> run_parallel(const lode_correlation* corr, std::int64_t replicates,
+                                                    double percentile, std::int64_t seed);
+std::int64_t run_nfactors(const lode_correlation* corr, int rule, std::int64_t seed);
+Matrix run_rotate(const Grid& loadings, int rotation, const Arg& parameter);
+
+// The data argument plus n_obs (argument `n_obs_index`; it matters only for a correlation matrix).
+struct Source {
+  Input input;
+  CorrelationSpec spec;
+};
+
+Source read_source(const Call& call, std::size_t n_obs_index) {
+  Source s{read_input(call.args[0], "data"), CorrelationSpec{}};
+  if (n_obs_index < call.args.size()) s.spec.n_obs = whole(call.args[n_obs_index], "n_obs", 0, 1, kMaxObservations);
+  if (!s.input.is_correlation) s.spec.n_obs = 0;  // raw data: the rows say how many
+  return s;
+}
+
+std::string source_key(const Source& s) {
+  KeyBuilder k("source");
+  add_grid(k, *s.input.grid)
+      .add(static_cast<std::uint64_t>(s.input.is_correlation))
+      .add(static_cast<std::uint64_t>(s.spec.n_obs));
+  return k.take();
+}
+
+std::int64_t cached_nfactors(const Call& call, const Source& src, int rule, std::int64_t seed) {
+  auto corr = correlation(call, src.input, src.spec);
+  KeyBuilder k("nfactors");
+  k.add(source_key(src)).add(static_cast<std::uint64_t>(rule)).add(static_cast<std::uint64_t>(seed));
+  return *call.cache.get_or_compute<std::int64_t>(
+      k.take(), [&] { return std::make_shared<const std::int64_t>(run_nfactors(corr.get(), rule, seed)); }, 64);
+}
+
+// Arguments of the fit family: data; [factors]; [method]; [rotation]; [n_obs].
+std::shared_ptr<const FitOutputs> fit(const Call& call) {
+  const Source src = read_source(call, 4);
+  FitSpec spec;
+  spec.factors = static_cast<int>(whole(call.args[1], "factors", 0, 0, kMaxFactors));
+  spec.method = method_arg(call.args[2]);
+  spec.rotation = rotation_arg(call.args[3]);
+  if (spec.factors == 0) spec.factors = static_cast<int>(cached_nfactors(call, src, 0, -1));
+  if (spec.factors == 0)
+    throw CellError(Failure::bad_argument, "parallel analysis suggests no common factor in these data");
+  auto corr = correlation(call, src.input, src.spec);
+  KeyBuilder k("fit");
+  k.add(source_key(src))
+      .add(static_cast<std::uint64_t>(spec.factors))
+      .add(static_cast<std::uint64_t>(spec.method))
+      .add(static_cast<std::uint64_t>(spec.rotation));
+  const std::size_t p = src.input.grid->cols;
+  return call.cache.get_or_compute<FitOutputs>(
+      k.take(), [&] { return run_fit(corr.get(), spec); },
+      (p * p * 2 + p * static_cast<std::size_t>(spec.factors) * 3) * sizeof(double) + 4096);
+}
+
+std::shared_ptr<const FitOutputs> converged_fit(const Call& call) {
+  auto f = fit(call);
+  if (!f->converged) throw CellError(Failure::not_converged, f->convergence_note);
+  return f;
+}
+
+std::shared_ptr<const lode_factorability> factorability(const Call& call, std::size_t n_obs_index) {
+  const Source src = read_source(call, n_obs_index);
+  auto corr = correlation(call, src.input, src.spec);
+  KeyBuilder k("factorability");
+  k.add(source_key(src));
+  return call.cache.get_or_compute<lode_factorability>(
+      k.take(),
+      [&]() -> std::shared_ptr<const lode_factorability> {
+        lode_factorability* f = nullptr;
+        check(lode_assess_factorability(corr.get(), &f), "factorability");
+        return std::shared_ptr<const lode_factorability>(
+            f, [](const lode_factorability* h) { lode_factorability_free(const_cast<lode_factorability*>(h)); });
+      },
+      src.input.grid->cols * 2 * sizeof(double) + 1024);
+}
+
+double factorability_value(const lode_factorability* f, int key, const char* what) {
+  double v = 0.0;
+  check(lode_factorability_value(f, key, &v), what);
+  return v;
+}
+
+template <class T, void (*Free)(T*)>
+std::shared_ptr<const T> shared_handle(T* h) {
+  return std::shared_ptr<const T>(h, [](const T* p) { Free(const_cast<T*>(p)); });
+}
+
+const int kRotationMethods[] = {LODE_ROTATION_OBLIMIN, LODE_ROTATION_NONE,    LODE_ROTATION_VARIMAX,
+                                LODE_ROTATION_QUARTIMAX, LODE_ROTATION_EQUAMAX, LODE_ROTATION_PROMAX,
+                                LODE_ROTATION_QUARTIMIN, LODE_ROTATION_GEOMIN};
+const int kExtractionMethods[] = {LODE_ML, LODE_PAF, LODE_MINRES};
+
+double model_value(const lode_model* m, int key, const char* what) {
+  double v = 0.0;
+  check(lode_model_value(m, key, &v), what);
+  return v;
+}
+
+std::shared_ptr<const FitOutputs> run_fit(const lode_correlation* corr, const FitSpec& spec) {
+  lode_rotation_options ro;
+  check(lode_rotation_options_init(&ro, sizeof ro), "rotation options");
+  ro.method = kRotationMethods[spec.rotation];
+  lode_fit_options fo;
+  check(lode_fit_options_init(&fo, sizeof fo), "fit options");
+  fo.factors = spec.factors;
+  fo.method = kExtractionMethods[spec.method];
+  fo.rotation = &ro;
+  lode_model* raw = nullptr;
+  check(lode_fit(corr, &fo, &raw), "factor analysis");
+  auto model = shared_handle<lode_model, lode_model_free>(raw);
+  const lode_model* m = model.get();
+  auto out = std::make_shared<FitOutputs>();
+  out->factors = static_cast<int>(model_value(m, LODE_MODEL_FACTORS, "factors"));
+  out->pattern = read_matrix(m, LODE_MODEL_LOADINGS, lode_model_matrix, "loadings");
+  out->structure = read_matrix(m, LODE_MODEL_STRUCTURE, lode_model_matrix, "structure");
+  out->phi = read_matrix(m, LODE_MODEL_FACTOR_CORRELATIONS, lode_model_matrix, "factor correlations");
+  out->uniquenesses = read_matrix(m, LODE_MODEL_UNIQUENESSES, lode_model_matrix, "uniquenesses");
+  out->communalities = read_matrix(m, LODE_MODEL_COMMUNALITIES, lode_model_matrix, "communalities");
+  out->residuals = read_matrix(m, LODE_MODEL_RESIDUALS, lode_model_matrix, "residuals");
+  out->heywood = static_cast<std::int64_t>(model_value(m, LODE_MODEL_HEYWOOD_COUNT, "Heywood cases"));
+  const bool extraction_ok = model_value(m, LODE_MODEL_CONVERGED, "convergence") == 1.0;
+  const bool rotation_ok = model_value(m, LODE_MODEL_ROTATION_CONVERGED, "rotation convergence") == 1.0;
+  out->converged = extraction_ok && rotation_ok;
+  if (!extraction_ok)
+    out->convergence_note = "the extraction did not converge in " +
+                            std::to_string(static_cast<long long>(model_value(m, LODE_MODEL_ITERATIONS, "iterations"))) +
+                            " iterations";
+  else if (!rotation_ok)
+    out->convergence_note = "the rotation did not converge";
+  // Statistics: RMSR needs no sample size; the others do and report why when they cannot be had.
+  const std::pair<const char*, int> keys[] = {
+      {"chi-square", LODE_MODEL_CHI_SQUARE}, {"df", LODE_MODEL_DF},   {"p", LODE_MODEL_P_VALUE},
+      {"RMSEA", LODE_MODEL_RMSEA},           {"RMSEA lower (90%)", LODE_MODEL_RMSEA_LOWER},
+      {"RMSEA upper (90%)", LODE_MODEL_RMSEA_UPPER}, {"TLI", LODE_MODEL_TLI}, {"BIC", LODE_MODEL_BIC}};
+  for (const auto& [label, key] : keys) {
+    double v = 0.0;
+    const int status = lode_model_value(m, key, &v);
+    if (status != LODE_OK) {
+      out->statistics_error = lode_last_error();
+      if (out->statistics_error.empty()) out->statistics_error = lode_status_name(status);
+      out->statistics.clear();
+      break;
+    }
+    out->statistics.emplace_back(label, v);
+  }
+  out->statistics.emplace_back("RMSR", model_value(m, LODE_MODEL_RMSR, "RMSR"));
+  return out;
+}
+
+std::shared_ptr<const lode_factor_count> run_count(const lode_correlation* corr, std::int64_t replicates,
+                                                   double percentile, std::int64_t seed) {
+  lode_factor_count_options o;
+  check(lode_factor_count_options_init(&o, sizeof o), "factor count options");
+  if (replicates > 0) o.replicates = replicates;
+  if (percentile > 0) o.percentile = percentile;
+  if (seed >= 0) o.seed = static_cast<std::uint64_t>(seed);
+  Deadline deadline;
+  o.progress = deadline_progress;
+  o.progress_user = &deadline;
+  lode_factor_count* raw = nullptr;
+  check(lode_count_factors(corr, &o, &raw), "factor count");
+  return shared_handle<lode_factor_count, lode_factor_count_free>(raw);
+}
+
+std::shared_ptr<const ParallelOutputs> run_parallel(const lode_correlation* corr, std::int64_t replicates,
+                                                    double percentile, std::int64_t seed) {
+  auto c = run_count(corr, replicates, percentile, seed);
+  const Matrix observed = read_matrix(c.get(), LODE_COUNT_OBSERVED_PC, lode_factor_count_matrix, "eigenvalues");
+  const Matrix mean = read_matrix(c.get(), LODE_COUNT_RANDOM_PC_MEAN, lode_factor_count_matrix, "random eigenvalues");
+  const Matrix pct =
+      read_matrix(c.get(), LODE_COUNT_RANDOM_PC_PERCENTILE, lode_factor_count_matrix, "random eigenvalues");
+  auto out = std::make_shared<ParallelOutputs>();
+  out->table.rows = observed.rows;
+  out->table.cols = 3;
+  for (std::int64_t i = 0; i < observed.rows; ++i) {
+    out->table.values.push_back(observed.values[static_cast<std::size_t>(i)]);
+    out->table.values.push_back(mean.values[static_cast<std::size_t>(i)]);
+    out->table.values.push_back(pct.values[static_cast<std::size_t>(i)]);
+  }
+  return out;
+}
+
+std::int64_t run_nfactors(const lode_correlation* corr, int rule, std::int64_t seed) {
+  auto c = run_count(corr, 0, 0.0, seed);
+  const int keys[] = {LODE_COUNT_PARALLEL_PC, LODE_COUNT_MAP_SQUARED_SUGGESTED, LODE_COUNT_KAISER,
+                      LODE_COUNT_EMPIRICAL_KAISER};
+  double v = 0.0;
+  check(lode_factor_count_value(c.get(), keys[rule], &v), "factor count");
+  return static_cast<std::int64_t>(v);
+}
+
+Matrix run_rotate(const Grid& loadings, int rotation, const Arg& parameter) {
+  lode_rotation_options ro;
+  check(lode_rotation_options_init(&ro, sizeof ro), "rotation options");
+  ro.method = kRotationMethods[rotation];
+  if (parameter.kind != Arg::Kind::missing) {
+    if (parameter.kind != Arg::Kind::number)
+      throw CellError(Failure::bad_argument, "'parameter' must be a number");
+    switch (ro.method) {
+      case LODE_ROTATION_OBLIMIN: ro.gamma = parameter.number; break;
+      case LODE_ROTATION_PROMAX: ro.power = parameter.number; break;
+      case LODE_ROTATION_GEOMIN: ro.epsilon = parameter.number; break;
+      default: break;  // the other rotations take no parameter
+    }
+  }
+  lode_rotation* raw = nullptr;
+  check(lode_rotate(loadings.values.data(), static_cast<std::int64_t>(loadings.rows),
+                    static_cast<std::int64_t>(loadings.cols), static_cast<std::int64_t>(loadings.cols), 1, &ro, &raw),
+        "rotation");
+  auto r = shared_handle<lode_rotation, lode_rotation_free>(raw);
+  double converged = 0.0;
+  check(lode_rotation_value(r.get(), LODE_ROTATION_CONVERGED, &converged), "rotation");
+  if (converged != 1.0) throw CellError(Failure::not_converged, "the rotation did not converge");
+  return read_matrix(r.get(), LODE_ROTATION_PATTERN, lode_rotation_matrix, "rotated loadings");
+}
+
+std::int64_t seed_arg(const Arg& a) { return whole(a, "seed", -1, 0, std::int64_t{1} << 52); }
+
+}  // namespace
+
+Output fn_kmo(const Call& call) {
+  return Output::number(factorability_value(factorability(call, kNoArg).get(), LODE_FACTORABILITY_KMO, "KMO"));
+}
+
+Output fn_msa(const Call& call) {
+  auto f = factorability(call, kNoArg);
+  return to_output(read_matrix(f.get(), LODE_FACTORABILITY_MSA, lode_factorability_matrix, "MSA"));
+}
+
+Output fn_sphericity(const Call& call) {
+  auto f = factorability(call, 1);
+  Output out = Output::table(1, 3);
+  out.at(0, 0) = OutCell::of(factorability_value(f.get(), LODE_FACTORABILITY_BARTLETT_CHI_SQUARE, "Bartlett's test"));
+  out.at(0, 1) = OutCell::of(factorability_value(f.get(), LODE_FACTORABILITY_BARTLETT_DF, "Bartlett's test"));
+  out.at(0, 2) = OutCell::of(factorability_value(f.get(), LODE_FACTORABILITY_BARTLETT_P_VALUE, "Bartlett's test"));
+  return out;
+}
+
+Output fn_parallel(const Call& call) {
+  const Source src = read_source(call, kNoArg);
+  const std::int64_t replicates = whole(call.args[1], "replicates", 500, 10, kMaxReplicates);
+  double percentile = 95.0;
+  if (call.args[2].kind != Arg::Kind::missing) {
+    if (call.args[2].kind != Arg::Kind::number || !(call.args[2].number > 0.0 && call.args[2].number < 100.0))
+      throw CellError(Failure::bad_argument, "'percentile' must be a number between 0 and 100, e.g. 95");
+    percentile = call.args[2].number;
+  }
+  const std::int64_t seed = seed_arg(call.args[3]);
+  auto corr = correlation(call, src.input, src.spec);
+  KeyBuilder k("parallel");
+  k.add(source_key(src)).add(static_cast<std::uint64_t>(replicates)).add(percentile).add(static_cast<std::uint64_t>(seed));
+  auto pa = call.cache.get_or_compute<ParallelOutputs>(
+      k.take(), [&] { return run_parallel(corr.get(), replicates, percentile, seed); },
+      src.input.grid->cols * 3 * sizeof(double) + 256);
+  return to_output(pa->table);
+}
+
+Output fn_nfactors(const Call& call) {
+  const Source src = read_source(call, kNoArg);
+  const int rule = choice(call.args[1], "rule", {"parallel", "map", "kaiser", "ekc"});
+  return Output::number(static_cast<double>(cached_nfactors(call, src, rule, seed_arg(call.args[2]))));
+}
+
+Output fn_loadings(const Call& call) { return to_output(converged_fit(call)->pattern); }
+Output fn_structure(const Call& call) { return to_output(converged_fit(call)->structure); }
+Output fn_uniqueness(const Call& call) { return to_output(converged_fit(call)->uniquenesses); }
+Output fn_communality(const Call& call) { return to_output(converged_fit(call)->communalities); }
+Output fn_factorcorr(const Call& call) { return to_output(converged_fit(call)->phi); }
+Output fn_residuals(const Call& call) { return to_output(converged_fit(call)->residuals); }
+
+Output fn_fit(const Call& call) {
+  std::shared_ptr<const FitOutputs> f;
+  try {
+    f = fit(call);
+  } catch (const CellError& e) {  // LODE.FIT says why in its cells
+    Output out = Output::table(1, 2);
+    out.at(0, 0) = OutCell::of(std::string("error"));
+    out.at(0, 1) = OutCell::of(std::string(e.what()));
+    return out;
+  }
+  std::vector<std::pair<std::string, OutCell>> rows;
+  rows.emplace_back("factors", OutCell::of(static_cast<double>(f->factors)));
+  for (const auto& [label, value] : f->statistics)
+    rows.emplace_back(label, std::isfinite(value) ? OutCell::of(value) : OutCell::of(std::string("not defined")));
+  if (!f->statistics_error.empty()) rows.emplace_back("tests", OutCell::of(f->statistics_error));
+  rows.emplace_back("converged", f->converged ? OutCell::of(1.0) : OutCell::of("no: " + f->convergence_note));
+  rows.emplace_back("Heywood cases", OutCell::of(static_cast<double>(f->heywood)));
+  Output out = Output::table(rows.size(), 2);
+  for (std::size_t r = 0; r < rows.size(); ++r) {
+    out.at(r, 0) = OutCell::of(rows[r].first);
+    out.at(r, 1) = rows[r].second;
+  }
+  return out;
+}
+
+Output fn_rotate(const Call& call) {
+  const Arg& a = call.args[0];
+  if (a.kind != Arg::Kind::grid || a.grid.empty() || a.grid.number_cells != a.grid.rows * a.grid.cols)
+    throw CellError(Failure::bad_argument, "'loadings' must be a block of numbers (items in rows, factors in columns)");
+  if (call.args[1].kind == Arg::Kind::missing)
+    throw CellError(Failure::bad_argument, "'rotation' is required, e.g. \"varimax\" or \"oblimin\"");
+  return to_output(run_rotate(a.grid, rotation_arg(call.args[1]), call.args[2]));
+}
+
+}  // namespace lode::addin

@@ -1,0 +1,26 @@
+// The compute functions behind the table's rows: each reads its arguments, calls the C ABI (through
+// the cache where an analysis is shared) and returns the cells. UNO-free.
+#pragma once
+
+#include "table.hpp"
+
+namespace lode::addin {
+
+Output fn_version(const Call& call);
+Output fn_corr(const Call& call);
+Output fn_eigen(const Call& call);
+Output fn_kmo(const Call& call);
+Output fn_msa(const Call& call);
+Output fn_sphericity(const Call& call);
+Output fn_parallel(const Call& call);
+Output fn_nfactors(const Call& call);
+Output fn_loadings(const Call& call);
+Output fn_structure(const Call& call);
+Output fn_uniqueness(const Call& call);
+Output fn_communality(const Call& call);
+Output fn_factorcorr(const Call& call);
+Output fn_residuals(const Call& call);
+Output fn_fit(const Call& call);
+Output fn_rotate(const Call& call);
+
+}  // namespace lode::addin

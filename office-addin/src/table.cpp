@@ -1,0 +1,186 @@
+// The declarative table of Lode's cell functions (see table.hpp). One row per function.
+#include "table.hpp"
+
+#include "functions.hpp"
+
+#include <algorithm>
+#include <cctype>
+
+namespace lode::addin {
+namespace {
+
+// Argument help shared by several rows.
+constexpr std::string_view kFactorsHelp =
+    "Number of factors; left out or 0: the count parallel analysis suggests (see LODE.NFACTORS)";
+constexpr std::string_view kMethodHelp =
+    "Extraction: \"ml\" maximum likelihood (default), \"paf\" principal axis, \"minres\" minimum residual";
+constexpr std::string_view kRotationHelp =
+    "\"oblimin\" (default), \"none\", \"varimax\", \"quartimax\", \"equamax\", \"promax\", \"quartimin\" or "
+    "\"geomin\"";
+constexpr std::string_view kNobsHelp =
+    "Number of respondents behind a correlation matrix given as data (needed for tests and fit indices); "
+    "ignored for raw data";
+constexpr std::string_view kSeedHelp =
+    "Seed of the random data (a whole number); left out: Lode's fixed default, so results repeat";
+constexpr std::string_view kFitErrors =
+    "#NUM!: matrix not positive definite; Err:523: no convergence";
+constexpr std::string_view kDataHelp =
+    "Respondents in rows, items in columns (empty and text cells are missing; a first row of names is "
+    "used as item names), or a square correlation matrix with ones on the diagonal";
+
+const std::vector<FunctionSpec> kTable = {
+    {"version", "LODE.VERSION", "The version of Lode and of its C library, as text.", {},
+     "text, e.g. `Lode 0.1.0 (C ABI 1.0)`", "none", fn_version},
+    {"corr",
+     "LODE.CORR",
+     "The correlation matrix of the items (items x items; an array formula).",
+     {{"data", ArgKind::range, kDataHelp},
+      {"kind", ArgKind::value,
+       "\"pearson\" (default), \"spearman\" or \"polychoric\" (ordinal items with at most 10 categories; "
+       "tetrachoric for two)"},
+      {"missing", ArgKind::value, "\"pairwise\" (default: each correlation uses the rows answering both items) or "
+                                  "\"listwise\" (only rows answering every item)"}},
+     "items x items", "none beyond Err:502", fn_corr},
+    {"eigen",
+     "LODE.EIGEN",
+     "The eigenvalues of the correlation matrix, largest first (one column).",
+     {{"data", ArgKind::range, kDataHelp},
+      {"reduced", ArgKind::value,
+       "TRUE: eigenvalues of the reduced matrix (squared multiple correlations on the diagonal); FALSE or "
+       "left out: of the full correlation matrix"}},
+     "items x 1", "#NUM!: `reduced` on a matrix that is not positive definite", fn_eigen},
+    {"kmo",
+     "LODE.KMO",
+     "The overall Kaiser-Meyer-Olkin measure of sampling adequacy (0 to 1; higher: more worth factoring).",
+     {{"data", ArgKind::range, kDataHelp}},
+     "one number", "#NUM!: matrix not positive definite", fn_kmo},
+    {"msa",
+     "LODE.MSA",
+     "The measure of sampling adequacy of each item (Kaiser-Meyer-Olkin per item; one column).",
+     {{"data", ArgKind::range, kDataHelp}},
+     "items x 1", "#NUM!: matrix not positive definite", fn_msa},
+    {"sphericity",
+     "LODE.SPHERICITY",
+     "Bartlett's test that the items are uncorrelated: one row of chi-square, degrees of freedom, p-value.",
+     {{"data", ArgKind::range, kDataHelp}, {"n_obs", ArgKind::value, kNobsHelp}},
+     "1 x 3: chi-square, df, p", "#NUM!: matrix not positive definite; Err:502: a correlation matrix without `n_obs`",
+     fn_sphericity},
+    {"parallel",
+     "LODE.PARALLEL",
+     "Parallel analysis: per position, the observed eigenvalue, the mean and a percentile of eigenvalues of random "
+     "data of the same size.",
+     {{"data", ArgKind::range, kDataHelp},
+      {"replicates", ArgKind::value, "Number of random data sets, 10 to 10000 (default 500)"},
+      {"percentile", ArgKind::value, "Percentile of the random eigenvalues, between 0 and 100 (default 95)"},
+      {"seed", ArgKind::value, kSeedHelp}},
+     "items x 3: observed, random mean, random percentile", "Err:502: a correlation matrix without `n_obs` cannot be "
+     "simulated", fn_parallel},
+    {"nfactors",
+     "LODE.NFACTORS",
+     "The suggested number of factors by one rule.",
+     {{"data", ArgKind::range, kDataHelp},
+      {"rule", ArgKind::value,
+       "\"parallel\" (default: parallel analysis), \"map\" (Velicer's minimum average partial), \"kaiser\" "
+       "(eigenvalues above one), \"ekc\" (empirical Kaiser criterion)"},
+      {"seed", ArgKind::value, kSeedHelp}},
+     "one number", "#NUM!: matrix not positive definite (map)", fn_nfactors},
+    {"loadings",
+     "LODE.LOADINGS",
+     "The factor loadings (pattern matrix), items x factors.",
+     {{"data", ArgKind::range, kDataHelp},
+      {"factors", ArgKind::value, kFactorsHelp},
+      {"method", ArgKind::value, kMethodHelp},
+      {"rotation", ArgKind::value, kRotationHelp},
+      {"n_obs", ArgKind::value, kNobsHelp}},
+     "items x factors", kFitErrors, fn_loadings},
+    {"structure",
+     "LODE.STRUCTURE",
+     "The structure matrix (correlations of items with factors), items x factors; equals the loadings when the "
+     "rotation is orthogonal.",
+     {{"data", ArgKind::range, kDataHelp},
+      {"factors", ArgKind::value, kFactorsHelp},
+      {"method", ArgKind::value, kMethodHelp},
+      {"rotation", ArgKind::value, kRotationHelp},
+      {"n_obs", ArgKind::value, kNobsHelp}},
+     "items x factors", kFitErrors, fn_structure},
+    {"uniqueness",
+     "LODE.UNIQUENESS",
+     "The uniqueness of each item: the share of its variance the factors leave unexplained (one column).",
+     {{"data", ArgKind::range, kDataHelp},
+      {"factors", ArgKind::value, kFactorsHelp},
+      {"method", ArgKind::value, kMethodHelp},
+      {"rotation", ArgKind::value, kRotationHelp},
+      {"n_obs", ArgKind::value, kNobsHelp}},
+     "items x 1", kFitErrors, fn_uniqueness},
+    {"communality",
+     "LODE.COMMUNALITY",
+     "The communality of each item: the share of its variance the factors explain (one column).",
+     {{"data", ArgKind::range, kDataHelp},
+      {"factors", ArgKind::value, kFactorsHelp},
+      {"method", ArgKind::value, kMethodHelp},
+      {"rotation", ArgKind::value, kRotationHelp},
+      {"n_obs", ArgKind::value, kNobsHelp}},
+     "items x 1", kFitErrors, fn_communality},
+    {"factorcorr",
+     "LODE.FACTORCORR",
+     "The correlations between the factors, factors x factors (the identity for orthogonal rotations).",
+     {{"data", ArgKind::range, kDataHelp},
+      {"factors", ArgKind::value, kFactorsHelp},
+      {"method", ArgKind::value, kMethodHelp},
+      {"rotation", ArgKind::value, kRotationHelp},
+      {"n_obs", ArgKind::value, kNobsHelp}},
+     "factors x factors", kFitErrors, fn_factorcorr},
+    {"residuals",
+     "LODE.RESIDUALS",
+     "The residual correlations: observed minus reproduced by the factors, items x items.",
+     {{"data", ArgKind::range, kDataHelp},
+      {"factors", ArgKind::value, kFactorsHelp},
+      {"method", ArgKind::value, kMethodHelp},
+      {"rotation", ArgKind::value, kRotationHelp},
+      {"n_obs", ArgKind::value, kNobsHelp}},
+     "items x items", kFitErrors, fn_residuals},
+    {"fit",
+     "LODE.FIT",
+     "How well the factors fit: two columns, a label and a value per row (chi-square, df, p, RMSEA and its "
+     "interval, TLI, BIC, RMSR, convergence, Heywood cases).",
+     {{"data", ArgKind::range, kDataHelp},
+      {"factors", ArgKind::value, kFactorsHelp},
+      {"method", ArgKind::value, kMethodHelp},
+      {"rotation", ArgKind::value, kRotationHelp},
+      {"n_obs", ArgKind::value, kNobsHelp}},
+     "rows x 2: label, value", "none: a failure shows as the row `error` with the reason as text", fn_fit},
+    {"rotate",
+     "LODE.ROTATE",
+     "Rotates a loading matrix you already have; returns the rotated loadings (pattern), items x factors.",
+     {{"loadings", ArgKind::range, "Loadings: items in rows, factors in columns, every cell a number"},
+      {"rotation", ArgKind::value, "Required: \"varimax\", \"quartimax\", \"equamax\", \"promax\", "
+                                   "\"oblimin\", \"quartimin\", \"geomin\" or \"none\""},
+      {"parameter", ArgKind::value,
+       "The rotation's parameter: oblimin gamma (default 0), promax power (default 4), geomin epsilon (default "
+       "0.01); ignored by the others"}},
+     "items x factors", "Err:523: no convergence", fn_rotate},
+};
+
+bool iequal(std::string_view a, std::string_view b) {
+  return a.size() == b.size() && std::equal(a.begin(), a.end(), b.begin(), [](unsigned char x, unsigned char y) {
+           return std::tolower(x) == std::tolower(y);
+         });
+}
+
+}  // namespace
+
+const std::vector<FunctionSpec>& function_table() { return kTable; }
+
+const FunctionSpec* find_by_method(std::string_view method) {
+  for (const auto& f : kTable)
+    if (f.method == method) return &f;
+  return nullptr;
+}
+
+const FunctionSpec* find_by_display(std::string_view display) {
+  for (const auto& f : kTable)
+    if (iequal(f.display, display)) return &f;
+  return nullptr;
+}
+
+}  // namespace lode::addin

@@ -1,0 +1,204 @@
+// libFuzzer target over liblode's data-taking entry points: whatever bytes arrive, every call must
+// return a status (no crash, hang, leak or undefined behaviour; ASan and UBSan watch). The bytes
+// choose the entry point, the shape, the layout, the options and the values (either raw doubles or
+// small Likert-like codes with missing and infinite cells, so that deeper stages are reached too).
+#include "lode.h"
+
+#include <cmath>
+#include <cstddef>
+#include <cstdint>
+#include <cstring>
+#include <limits>
+#include <vector>
+
+namespace {
+
+struct Bytes {
+  const uint8_t* p;
+  size_t n;
+  uint32_t filler = 12345;  // once the input runs out, a fixed pseudo-random sequence fills in
+  uint8_t byte() {
+    if (n == 0) {
+      filler = filler * 1103515245u + 12345u;
+      return static_cast<uint8_t>(filler >> 16);
+    }
+    --n;
+    return *p++;
+  }
+  double real() {
+    if (n < 8) return byte();
+    double v;
+    std::memcpy(&v, p, 8);
+    p += 8;
+    n -= 8;
+    return v;
+  }
+};
+
+double coded(uint8_t b) {
+  if (b == 255) return std::numeric_limits<double>::quiet_NaN();
+  if (b == 254) return std::numeric_limits<double>::infinity();
+  if (b >= 240) return std::numeric_limits<double>::quiet_NaN();
+  return static_cast<double>(b % 5 + 1);
+}
+
+// Reads every result of a correlation with several buffer sizes.
+void read_correlation(const lode_correlation* c, Bytes& in) {
+  static const int matrix_keys[] = {LODE_CORRELATION_MATRIX, LODE_CORRELATION_PAIR_COUNTS, LODE_CORRELATION_EIGENVALUES,
+                                    LODE_CORRELATION_REDUCED_EIGENVALUES, LODE_CORRELATION_SMC, 0, 999};
+  for (int key : matrix_keys) {
+    int64_t rows = 0, cols = 0;
+    if (lode_correlation_matrix(c, key, nullptr, 0, &rows, &cols) != LODE_OK) continue;
+    const size_t need = static_cast<size_t>(rows * cols);
+    std::vector<double> buf(need + 1);
+    lode_correlation_matrix(c, key, buf.data(), need - (in.byte() & 1), &rows, &cols);
+  }
+  for (int key = 118; key < 138; ++key) {
+    double v;
+    lode_correlation_value(c, key, &v);
+  }
+  size_t len = 0;
+  if (lode_correlation_text(c, LODE_CORRELATION_NOTES, nullptr, 0, &len) == LODE_OK) {
+    std::vector<char> text(len + 1);
+    lode_correlation_text(c, LODE_CORRELATION_NOTES, text.data(), len + 1 - (in.byte() & 1), &len);
+  }
+}
+
+
+// Factorability, a small factor count, a fit with the chosen method and rotation, and a rotation of
+// the fitted loadings, each read back in full.
+void analyse(const lode_correlation* c, Bytes& in) {
+  lode_factorability* f = nullptr;
+  if (lode_assess_factorability(c, &f) == LODE_OK) {
+    double v;
+    for (int key = 218; key < 228; ++key) lode_factorability_value(f, key, &v);
+    for (int key : {LODE_FACTORABILITY_MSA, LODE_FACTORABILITY_SMC}) {
+      double buf[16];
+      lode_factorability_matrix(f, key, buf, 16, nullptr, nullptr);
+    }
+    char text[256];
+    lode_factorability_text(f, LODE_FACTORABILITY_KMO_LABEL, text, sizeof text, nullptr);
+    lode_factorability_text(f, LODE_FACTORABILITY_NOTES, text, sizeof text, nullptr);
+    lode_factorability_free(f);
+  }
+  const uint8_t plan = in.byte();
+  lode_factor_count_options co;
+  lode_factor_count_options_init(&co, sizeof co);
+  co.replicates = 5 + in.byte() % 20;
+  co.threads = 1;
+  co.seed = in.byte();
+  co.source = (plan & 0x80) ? LODE_RANDOM_PERMUTATION : LODE_RANDOM_NORMAL;
+  if (plan & 1) {
+    lode_factor_count* n = nullptr;
+    if (lode_count_factors(c, &co, &n) == LODE_OK) {
+      double v, buf[16];
+      for (int key = 320; key < 330; ++key) lode_factor_count_value(n, key, &v);
+      for (int key = 300; key < 309; ++key) lode_factor_count_matrix(n, key, buf, 16, nullptr, nullptr);
+      char text[1024];
+      for (int key = 350; key < 353; ++key) lode_factor_count_text(n, key, text, sizeof text, nullptr);
+      lode_factor_count_free(n);
+    }
+  }
+  lode_rotation_options ro;
+  lode_rotation_options_init(&ro, sizeof ro);
+  ro.method = in.byte() % 15;  // includes one unknown method
+  ro.normalize = plan & 2;
+  ro.random_starts = in.byte() % 3;
+  ro.max_iterations = 200;
+  ro.threads = 1;
+  ro.gamma = (in.byte() % 5) / 4.0;
+  ro.kappa = (in.byte() % 5) / 4.0;
+  lode_fit_options fo;
+  lode_fit_options_init(&fo, sizeof fo);
+  fo.factors = in.byte() % 5;  // 0 = suggested
+  fo.method = in.byte() % 5;   // includes one unknown method
+  fo.max_iterations = 200;
+  fo.rotation = (plan & 4) ? &ro : nullptr;
+  fo.factor_count = &co;
+  lode_model* m = nullptr;
+  if (lode_fit(c, &fo, &m) != LODE_OK) return;
+  double buf[256], v;
+  for (int key = 400; key < 411; ++key) lode_model_matrix(m, key, buf, 256, nullptr, nullptr);
+  for (int key = 420; key < 445; ++key) lode_model_value(m, key, &v);
+  char text[2048];
+  lode_model_text(m, LODE_MODEL_NOTES, text, sizeof text, nullptr);
+  int64_t rows = 0, cols = 0;
+  if (lode_model_matrix(m, LODE_MODEL_UNROTATED_LOADINGS, buf, 256, &rows, &cols) == LODE_OK) {
+    lode_rotation* r = nullptr;
+    ro.struct_size = (plan & 8) ? offsetof(lode_rotation_options, target) : sizeof ro;
+    if (lode_rotate(buf, rows, cols, cols, 1, &ro, &r) == LODE_OK) {
+      for (int key = 500; key < 507; ++key) lode_rotation_matrix(r, key, buf, 256, nullptr, nullptr);
+      for (int key = 520; key < 529; ++key) lode_rotation_value(r, key, &v);
+      lode_rotation_text(r, LODE_ROTATION_METHOD_NAME, text, sizeof text, nullptr);
+      lode_rotation_free(r);
+    }
+  }
+  lode_model_free(m);
+}
+
+}  // namespace
+
+extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
+  Bytes in{data, size};
+  const uint8_t mode = in.byte();
+  const int64_t rows = in.byte() % 48;
+  const int64_t cols = in.byte() % 14;
+  const uint8_t layout = in.byte();
+  const bool likert = (mode & 0x10) == 0;
+
+  // Values laid out with the chosen strides (row-major, column-major, or padded).
+  const int64_t pad = layout & 3;
+  const bool col_major = (layout & 4) != 0;
+  const int64_t row_stride = col_major ? 1 : cols + pad;
+  const int64_t col_stride = col_major ? rows + pad : 1;
+  const size_t extent = static_cast<size_t>((rows + pad) * (cols + pad) + 1);
+  std::vector<double> values(extent, std::numeric_limits<double>::quiet_NaN());
+  for (int64_t i = 0; i < rows; ++i)
+    for (int64_t j = 0; j < cols; ++j)
+      values[static_cast<size_t>(i * row_stride + j * col_stride)] = likert ? coded(in.byte()) : in.real();
+
+  lode_data* d = nullptr;
+  int status;
+  if (mode % 3 == 0) {
+    status = lode_data_from_raw(values.data(), rows, cols, row_stride, col_stride, &d);
+  } else {
+    // A square matrix (correlation or covariance) of `cols` items in the same layout, symmetric with
+    // a unit (correlation) or coded (covariance) diagonal, so it often passes the checks.
+    const int64_t p = cols;
+    const int64_t rs = col_major ? 1 : p + pad, cs = col_major ? p + pad : 1;
+    std::vector<double> r(static_cast<size_t>((p + pad) * (p + pad) + 1), std::numeric_limits<double>::quiet_NaN());
+    for (int64_t i = 0; i < p; ++i)
+      for (int64_t j = 0; j <= i; ++j) {
+        double v;
+        if (i == j) v = mode % 3 == 1 ? 1.0 : (likert ? coded(in.byte()) : in.real());
+        else v = likert ? (coded(in.byte()) - 3.0) / 2.5 : in.real();
+        r[static_cast<size_t>(i * rs + j * cs)] = r[static_cast<size_t>(j * rs + i * cs)] = v;
+      }
+    status = mode % 3 == 1 ? lode_data_from_correlation(r.data(), p, rs, cs, rows, &d)
+                           : lode_data_from_covariance(r.data(), p, rs, cs, rows, &d);
+  }
+  if (status != LODE_OK) return 0;
+
+  if (in.byte() & 1) {
+    const char* names[16] = {"a", nullptr, "", "d\xc3\xa9", "e", "f", "g", "h", "i", "j", "k", "l", "m", "n", "o", "p"};
+    lode_data_set_item_names(d, names, cols);
+  }
+  lode_correlation_options o;
+  lode_correlation_options_init(&o, sizeof o);
+  const uint8_t flags = in.byte();
+  o.kind = flags & 1 ? LODE_SPEARMAN : LODE_PEARSON;
+  o.missing = flags & 2 ? LODE_LISTWISE : LODE_PAIRWISE;
+  o.smooth = (flags & 4) != 0;
+  o.min_eigenvalue = (flags & 8) ? 0.0 : 1e-6;
+  if (flags & 16) o.struct_size = offsetof(lode_correlation_options, smooth);
+  if (flags & 32) o.kind = LODE_POLYCHORIC;
+  o.threads = 1;
+  lode_correlation* c = nullptr;
+  if (lode_correlate(d, &o, &c) == LODE_OK) {
+    read_correlation(c, in);
+    analyse(c, in);
+    lode_correlation_free(c);
+  }
+  lode_data_free(d);
+  return 0;
+}

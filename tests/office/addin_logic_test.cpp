@@ -1,0 +1,103 @@
+// The add-in's UNO-free logic: the declarative table's consistency, the cache's bounds and thread
+// safety, and argument reading, without a LibreOffice.
+#include "cache.hpp"
+#include "table.hpp"
+
+#include <gtest/gtest.h>
+
+#include <atomic>
+#include <cctype>
+#include <set>
+#include <thread>
+#include <vector>
+
+namespace lode::addin {
+namespace {
+
+TEST(AddinTable, NamesAreUniqueAndWellFormed) {
+  std::set<std::string_view> methods, displays;
+  for (const auto& f : function_table()) {
+    EXPECT_TRUE(methods.insert(f.method).second) << f.method;
+    EXPECT_TRUE(displays.insert(f.display).second) << f.display;
+    EXPECT_EQ(f.display.substr(0, 5), "LODE.") << f.display;
+    ASSERT_FALSE(f.method.empty());
+    EXPECT_TRUE(std::islower(static_cast<unsigned char>(f.method[0]))) << f.method;
+    for (char c : f.method) EXPECT_TRUE(std::isalnum(static_cast<unsigned char>(c)) || c == '_') << f.method;
+    EXPECT_GT(f.description.size(), 20u) << f.display;
+    EXPECT_FALSE(f.result.empty()) << f.display;
+    EXPECT_FALSE(f.errors.empty()) << f.display;
+    EXPECT_NE(f.compute, nullptr) << f.display;
+    bool optional_seen = false;
+    std::set<std::string_view> arg_names;
+    for (const auto& a : f.args) {
+      EXPECT_TRUE(arg_names.insert(a.name).second) << f.display << " " << a.name;
+      EXPECT_GT(a.help.size(), 10u) << f.display << " " << a.name;
+      // Calc treats every `any` argument as optional: required ranges must come first
+      if (a.kind == ArgKind::value) optional_seen = true;
+      else EXPECT_FALSE(optional_seen) << f.display << ": required '" << a.name << "' after an optional one";
+    }
+  }
+}
+
+TEST(AddinTable, LookupByDisplayNameIgnoresCase) {
+  ASSERT_NE(find_by_display("lode.corr"), nullptr);
+  EXPECT_EQ(find_by_display("LODE.Corr")->method, "corr");
+  EXPECT_EQ(find_by_display("LODE.NOPE"), nullptr);
+  EXPECT_EQ(find_by_method("corr")->display, "LODE.CORR");
+}
+
+TEST(AddinCache, KeepsAtMostTheConfiguredEntriesAndBytes) {
+  ResultCache cache(3, 1000);
+  int computed = 0;
+  auto get = [&](int i, std::size_t bytes) {
+    return *cache.get_or_compute<int>(
+        KeyBuilder("t").add(static_cast<std::uint64_t>(i)).take(),
+        [&] { ++computed; return std::make_shared<const int>(i); }, bytes);
+  };
+  for (int i = 0; i < 5; ++i) EXPECT_EQ(get(i, 10), i);
+  EXPECT_EQ(cache.stats().entries, 3u);
+  EXPECT_EQ(get(4, 10), 4);  // still there
+  EXPECT_EQ(computed, 5);
+  EXPECT_EQ(get(0, 10), 0);  // evicted, recomputed
+  EXPECT_EQ(computed, 6);
+  get(9, 990);  // pushes the others out by size
+  EXPECT_LE(cache.stats().bytes, 1000u);
+  get(10, 5000);  // larger than the whole cache: computed, not kept
+  EXPECT_LE(cache.stats().bytes, 1000u);
+}
+
+TEST(AddinCache, FailuresAreNotCached) {
+  ResultCache cache;
+  const std::string key = KeyBuilder("f").take();
+  EXPECT_THROW(cache.get_or_compute<int>(key, []() -> std::shared_ptr<const int> { throw std::runtime_error("x"); }, 8),
+               std::runtime_error);
+  EXPECT_EQ(*cache.get_or_compute<int>(key, [] { return std::make_shared<const int>(7); }, 8), 7);
+}
+
+TEST(AddinCache, KeysDistinguishValuesAndShapes) {
+  const double a[] = {1, 2, 3, 4};
+  EXPECT_NE(KeyBuilder("k").add(a, 4).take(), KeyBuilder("k").add(a, 3).add(4.0).take());
+  EXPECT_NE(KeyBuilder("k").add(std::uint64_t{2}).add(a, 4).take(), KeyBuilder("k").add(std::uint64_t{4}).add(a, 4).take());
+  EXPECT_NE(KeyBuilder("a").take(), KeyBuilder("b").take());
+}
+
+TEST(AddinCache, IsSafeFromManyThreads) {
+  ResultCache cache(8, 1 << 20);
+  std::atomic<int> computed{0};
+  std::vector<std::thread> threads;
+  for (int t = 0; t < 8; ++t)
+    threads.emplace_back([&, t] {
+      for (int i = 0; i < 2000; ++i) {
+        const int k = (i * 7 + t) % 6;  // fewer keys than entries: later calls hit
+        auto v = cache.get_or_compute<int>(KeyBuilder("m").add(static_cast<std::uint64_t>(k)).take(),
+                                           [&] { ++computed; return std::make_shared<const int>(k); }, 16);
+        ASSERT_EQ(*v, k);
+      }
+    });
+  for (auto& th : threads) th.join();
+  EXPECT_LE(cache.stats().entries, 8u);
+  EXPECT_GT(cache.stats().hits, 0u);
+}
+
+}  // namespace
+}  // namespace lode::addin

@@ -1,0 +1,7 @@
+import os
+import sys
+
+# The suite imports the binding from the source tree and the test helpers from this folder; ctest
+# sets LODE_LIBRARY to the freshly built liblode.
+sys.path.insert(0, os.path.join(os.path.dirname(__file__), "..", "..", "capi", "python"))
+sys.path.insert(0, os.path.dirname(__file__))
