@@ -1,10 +1,18 @@
-// The benchmark inputs: binary files of doubles (row-major, with a small header) written once by
+// The benchmark inputs: binary files of doubles (column-major, with a small header) written once by
 // make_inputs.py and read by Lode's benchmarks, numpy and R alike, so every tool sees the same numbers.
 #pragma once
 
 #include "lode/common.hpp"
 
 #include <string>
+
+// Each suite measures an API only once it has landed in the core: these say which headers exist.
+#define LODE_BENCH_HAS_EXTRACTION __has_include("lode/extraction.hpp")
+#define LODE_BENCH_HAS_ROTATION __has_include("lode/rotation.hpp")
+#define LODE_BENCH_HAS_FIT __has_include("lode/fit.hpp")
+#define LODE_BENCH_HAS_FACTOR_COUNT __has_include("lode/factor_count.hpp")
+#define LODE_BENCH_HAS_POLYCHORIC __has_include("lode/polychoric.hpp")
+#define LODE_BENCH_HAS_BOOTSTRAP __has_include("lode/bootstrap.hpp")
 
 namespace lode::bench {
 
