@@ -1,18 +1,18 @@
 # Times what an analyst would script instead of Lode in base R, on the benchmark input files.
 #
-# Usage: Rscript alternatives.R INPUT_FOLDER OUTPUT_JSON [CASE ...]
+# Usage: Rscript alternatives.R INPUT_FOLDER OUTPUT_JSON [CASE_REGEX]
 # Cases: base R's cor (complete and pairwise), factanal(covmat = R, factors = k, rotation = "none")
 # for maximum likelihood, a plain parallel-analysis loop (normal data, cor, eigen; 1000 replicates),
 # r-cran-polycor's hetcor for the polychoric matrix, and the matrix product through the system BLAS.
-# Each case is the median wall-clock time of several repeats (fewer for slow cases). With CASE
-# arguments only cases whose names start with one of them run.
+# Each case is the median wall-clock time of several repeats (fewer for slow cases). With CASE_REGEX
+# only the cases whose names it matches (an extended regular expression) run.
 
 args <- commandArgs(trailingOnly = TRUE)
 folder <- args[1]
 out <- args[2]
-only <- args[-(1:2)]
+only <- if (length(args) > 2) args[3] else ""
 
-wanted <- function(case) length(only) == 0 || any(startsWith(case, only))
+wanted <- function(case) !nzchar(only) || grepl(only, case)
 
 read_input <- function(name) {
   con <- file(file.path(folder, paste0(name, ".f64")), "rb")

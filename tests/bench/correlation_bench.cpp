@@ -48,7 +48,7 @@ void BM_MatrixMultiplyRate(benchmark::State& state, Index n) {
     });
     benchmark::DoNotOptimize(c.data());
   }
-  state.counters["threads"] = threads;
+  state.counters["cores_used"] = threads;
   state.counters["flops"] = benchmark::Counter(2.0 * static_cast<double>(n) * static_cast<double>(n) * static_cast<double>(n),
                                                benchmark::Counter::kIsIterationInvariantRate);
 }

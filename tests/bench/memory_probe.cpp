@@ -1,5 +1,6 @@
 // Peak memory of the 1,000,000 x 50 analysis against the size of the data: reads the data, runs the
-// analysis steps that have landed in the core (correlation, then extraction, rotation and fit), and
+// analysis steps that have landed in the core (correlation, factor count, ML extraction, oblimin
+// rotation, fit), and
 // reports the process's peak resident set (VmHWM from /proc/self/status) as JSON on stdout.
 //
 // Usage: lode_bench_memory [INPUT_NAME]   (default corr_n1000000_p50; inputs from $LODE_BENCH_INPUTS)
@@ -13,6 +14,9 @@
 #endif
 #if LODE_BENCH_HAS_FIT
 #include "lode/fit.hpp"
+#endif
+#if LODE_BENCH_HAS_FACTOR_COUNT
+#include "lode/factor_count.hpp"
 #endif
 
 #include <cstdio>
@@ -45,6 +49,11 @@ int main(int argc, char** argv) {
 
     std::vector<std::string> steps{"correlation"};
     const lode::CorrelationResult corr = lode::correlation(x);
+#if LODE_BENCH_HAS_FACTOR_COUNT
+    const lode::FactorCountResult count = lode::count_factors_from_correlation(corr.matrix, corr.n_obs);
+    steps.push_back("factor count");
+    (void)count;
+#endif
 #if LODE_BENCH_HAS_EXTRACTION
     lode::ExtractionOptions eo;
     eo.n_obs = corr.n_obs;

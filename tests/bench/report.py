@@ -37,10 +37,10 @@ SECTIONS = [
         for p, k in ((30, 3), (60, 6), (100, 10), (200, 15))
     ]),
     ("Rotation with random starts", [
-        ("oblimin20_p100_k10", "oblimin (quartimin), p = 100, k = 10, 20 starts"),
-        ("geomin20_p100_k10", "geomin, p = 100, k = 10, 20 starts"),
+        ("oblimin20_p100_k10", "oblimin (quartimin), p = 100, k = 10, unrotated + 20 random starts"),
+        ("geomin20_p100_k10", "geomin, p = 100, k = 10, unrotated + 20 random starts"),
         ("varimax_p100_k10", "varimax, p = 100, k = 10, 1 start"),
-        ("ml_oblimin20_p100_k10", "ML extraction + oblimin with 20 starts, p = 100, k = 10"),
+        ("ml_oblimin20_p100_k10", "ML extraction + oblimin, unrotated + 20 random starts, p = 100, k = 10"),
     ]),
     ("Parallel analysis (normal-theory replicates)", [
         ("pa_p60_n2000_r1000", "p = 60, n = 2000, 1000 replicates"),
@@ -109,6 +109,12 @@ def load(path):
         return json.load(f)
 
 
+# Google Benchmark's own fields; every other number in an entry is a counter set by the benchmark.
+GB_FIELDS = {"name", "family_index", "per_family_instance_index", "run_name", "run_type", "repetitions",
+             "repetition_index", "threads", "iterations", "real_time", "cpu_time", "time_unit",
+             "aggregate_name", "aggregate_unit", "error_occurred", "error_message"}
+
+
 def lode_medians(doc):
     """{case: {"s": median seconds, "repetitions": n, "counters": {...}}} from Google Benchmark JSON.
     Uses the median aggregate where the benchmark was repeated, else the mean of its runs."""
@@ -125,8 +131,7 @@ def lode_medians(doc):
             continue
         case = parts[1]
         seconds = b["real_time"] * unit[b.get("time_unit", "ns")]
-        counters = {k: v for k, v in b.items() if k in ("flops", "rows", "items", "threads", "converged",
-                                                         "starts", "replicates")}
+        counters = {k: v for k, v in b.items() if k not in GB_FIELDS and isinstance(v, (int, float))}
         if b.get("run_type") == "aggregate":
             if b.get("aggregate_name") == "median":
                 medians[case] = {"s": seconds, "repetitions": b.get("repetitions", 0), "counters": counters}
@@ -305,7 +310,16 @@ def describe_machine(build_dir):
 # ---------------------------------------------------------------------------------------------------
 # The report
 
-def write_report(results_dir, out_path, elapsed_s=None):
+def lode_cases(results_dir):
+    """The cases lode_bench has (its --benchmark_list_tests output), or None when not recorded."""
+    path = os.path.join(results_dir, "lode-cases.txt")
+    if not os.path.exists(path):
+        return None
+    with open(path) as f:
+        return {l.strip().split("/")[1] for l in f if l.count("/") >= 1}
+
+
+def write_report(results_dir, out_path, elapsed_s=None, filter_regex=None):
     lode_doc = load(os.path.join(results_dir, "lode.json"))
     py = load(os.path.join(results_dir, "python.json"))
     r = load(os.path.join(results_dir, "r.json"))
@@ -314,6 +328,7 @@ def write_report(results_dir, out_path, elapsed_s=None):
     machine_end = load(os.path.join(results_dir, "machine-end.json")) or {}
     lode = lode_medians(lode_doc)
     errors = lode_errors(lode_doc)
+    available = lode_cases(results_dir)
     alts = alternatives(py, r)
     context = (lode_doc or {}).get("context", {})
     md = []
@@ -361,6 +376,8 @@ def write_report(results_dir, out_path, elapsed_s=None):
         w(f"| load average at end | {', '.join(f'{x:.2f}' for x in load_end)} |")
     if elapsed_s:
         w(f"| whole run | {elapsed_s / 60:.1f} min |")
+    if filter_regex:
+        w(f"| cases | only those matching `{filter_regex}` |")
     w("")
     cores = machine.get("cores") or 0
     if load_start and cores and max(load_start[0], (load_end or [0])[0]) > 0.5 * cores:
@@ -397,6 +414,10 @@ def write_report(results_dir, out_path, elapsed_s=None):
                 missing.append((title, label, case))
             lode_s = l["s"] if l else None
             lode_txt = fmt_time(lode_s) if l else "not measured yet"
+            if l and l["counters"].get("converged", 1) < 1:
+                lode_txt += " (did not converge)"
+            if l and l["counters"].get("failed", 0) > 0:
+                lode_txt += f" ({l['counters']['failed']:.0f} replicates failed)"
             if not a:
                 rows.append(f"| {label} | {lode_txt} | — | — | — |")
             for i, e in enumerate(a):
@@ -489,8 +510,14 @@ def write_report(results_dir, out_path, elapsed_s=None):
     w("## Not measured yet")
     w("")
     if missing or errors:
-        for title, label, case in missing:
-            w(f"- {title}: {label} (`{case}`): Lode's implementation has not landed yet, so there is no Lode number.")
+        skipped = [m for m in missing if available is not None and m[2] in available]
+        absent = [m for m in missing if m not in skipped]
+        for title in dict.fromkeys(t for t, _, _ in absent):
+            cases = ", ".join(f"{label} (`{case}`)" for t, label, case in absent if t == title)
+            w(f"- {title}: {cases}. The Lode implementation this needs has not landed yet, so there is no "
+              "Lode number.")
+        if skipped:
+            w(f"- Not run in this (filtered) run: {', '.join(f'`{c}`' for _, _, c in skipped)}.")
         for case, msg in sorted(errors.items()):
             w(f"- `{case}`: the benchmark reported an error: {msg}")
     else:
@@ -522,12 +549,13 @@ def main():
     wr.add_argument("--results", required=True)
     wr.add_argument("--out", required=True)
     wr.add_argument("--elapsed", type=float, default=None)
+    wr.add_argument("--filter", default=None)
     args = ap.parse_args()
     if args.command == "machine":
         with open(args.out, "w") as f:
             json.dump(describe_machine(args.build), f, indent=1)
     else:
-        write_report(args.results, args.out, args.elapsed)
+        write_report(args.results, args.out, args.elapsed, args.filter)
 
 
 if __name__ == "__main__":
