@@ -1,6 +1,9 @@
 #include "lode/correlation.hpp"
 #include "lode/parallel.hpp"
 
+#include "correlation_detail.hpp"
+#include "lode/polychoric.hpp"
+
 #include <fmt/format.h>
 
 #include <algorithm>
@@ -193,6 +196,10 @@ Matrix spearman(const Matrix& data, const Mask& present, MissingPolicy missing, 
   return r;
 }
 
+}  // namespace
+
+namespace detail {
+
 void check_pairs(const Matrix& r, const IndexMatrix& counts, const CorrelationOptions& options) {
   const Index p = r.cols();
   for (Index j = 0; j < p; ++j)
@@ -232,7 +239,10 @@ void finish(CorrelationResult& result, const CorrelationOptions& options) {
   }
 }
 
-}  // namespace
+}  // namespace detail
+
+using detail::check_pairs;
+using detail::finish;
 
 void validate_data(const Matrix& data, const CorrelationOptions& options) {
   const Index n = data.rows(), p = data.cols();
@@ -275,8 +285,7 @@ void validate_data(const Matrix& data, const CorrelationOptions& options) {
 }
 
 CorrelationResult correlation(const Matrix& data, const CorrelationOptions& options) {
-  if (options.kind == CorrelationKind::polychoric)
-    throw Error(ErrorCode::invalid_argument, "polychoric correlations are not available in this build");
+  if (options.kind == CorrelationKind::polychoric) return polychoric_correlation(data, options).correlation;
   validate_data(data, options);
   const Index n = data.rows(), p = data.cols();
   const Mask present = present_mask(data);

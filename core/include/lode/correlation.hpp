@@ -37,6 +37,25 @@ struct DataReport {
   double missing_fraction = 0.0;  // share of missing cells in the input
 };
 
+// What to do with empty cells of a pair's contingency table in the polychoric estimate. Adding a
+// small count (0.5) to empty cells is common practice; Lode's default applies it only where the
+// uncorrected estimate runs to the bound |rho| = max_abs_correlation (an empty cell that makes the
+// likelihood largest at a perfect correlation), and reports every pair where it did.
+enum class ZeroCellPolicy { none, at_bound, always };
+
+// Options of the ordinal path (polychoric.hpp): category checks, zero cells, the 1-D maximisation.
+struct PolychoricOptions {
+  int max_categories = 10;  // an item with more distinct codes is refused (use Pearson for it); 2..100
+  ZeroCellPolicy zero_cells = ZeroCellPolicy::at_bound;
+  // Added to each empty cell for the estimate of rho and its standard error only; the thresholds
+  // stay the normal quantiles of the observed margins.
+  double zero_cell_add = 0.5;
+  double max_abs_correlation = 0.9999;   // estimates are kept inside [-bound, bound]
+  double tolerance = 1e-10;              // on the change of rho between Newton steps
+  int max_iterations = 100;              // per pair
+  ProgressFn progress;                   // pairs done / pairs in all; return false to cancel
+};
+
 struct CorrelationOptions {
   CorrelationKind kind = CorrelationKind::pearson;
   MissingPolicy missing = MissingPolicy::pairwise;
@@ -48,6 +67,7 @@ struct CorrelationOptions {
   Index min_pair_observations = 3;  // fewer behind any correlation is an error
   std::vector<std::string> item_names;  // optional, used in messages; else "column 1", "column 2", ...
   int threads = 0;                      // 0 = all hardware threads
+  PolychoricOptions polychoric;         // used when kind == polychoric
 };
 
 struct CorrelationResult {
