@@ -33,6 +33,15 @@ void BM_CorrelationPairwiseMissing(benchmark::State& state, const char* input) {
   state.counters["items"] = static_cast<double>(x.cols());
 }
 
+// The input checks alone (validate_data: items, infinite values, constant items), the part of
+// correlation() that runs before the sums, on one thread.
+void BM_CorrelationChecks(benchmark::State& state, const char* input) {
+  const Matrix x = lode::bench::read_input(input);
+  for (auto _ : state) lode::validate_data(x, {});
+  state.counters["rows"] = static_cast<double>(x.rows());
+  state.counters["items"] = static_cast<double>(x.cols());
+}
+
 // A dense product C = A B of two n x n matrices by Eigen, the columns of B split over all hardware
 // threads (lode::parallel_for): the rate the core's own compiled code reaches on this machine.
 // alternatives.py measures the same product through numpy (OpenBLAS) for comparison.
@@ -70,6 +79,9 @@ BENCHMARK_CAPTURE(BM_Correlation, corr_n100000_p10, "corr_n100000_p10")->Unit(be
 BENCHMARK_CAPTURE(BM_Correlation, corr_n100000_p100, "corr_n100000_p100")->Unit(benchmark::kMillisecond)->UseRealTime();
 BENCHMARK_CAPTURE(BM_Correlation, corr_n100000_p200, "corr_n100000_p200")->Unit(benchmark::kMillisecond)->UseRealTime();
 BENCHMARK_CAPTURE(BM_CorrelationPairwiseMissing, corr_n100000_p50_missing, "corr_n100000_p50_missing")
+    ->Unit(benchmark::kMillisecond)
+    ->UseRealTime();
+BENCHMARK_CAPTURE(BM_CorrelationChecks, corr_checks_n1000000_p50, "corr_n1000000_p50")
     ->Unit(benchmark::kMillisecond)
     ->UseRealTime();
 BENCHMARK_CAPTURE(BM_MatrixMultiplyRate, matmul_n1000, 1000)->Unit(benchmark::kMillisecond)->UseRealTime();

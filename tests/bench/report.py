@@ -30,6 +30,7 @@ SECTIONS = [
         ("corr_n100000_p100", "n = 100,000, p = 100"),
         ("corr_n100000_p200", "n = 100,000, p = 200"),
         ("corr_n100000_p50_missing", "n = 100,000, p = 50, 5% missing, pairwise"),
+        ("corr_checks_n1000000_p50", "of which the input checks alone (validate_data), n = 1,000,000, p = 50"),
     ]),
     ("Extraction from a correlation matrix (n = 2000)", [
         (f"{m}_p{p}_k{k}", f"{label}, p = {p}, k = {k}")
@@ -243,7 +244,9 @@ def evaluate_target(target, lode, alts, memory):
     measured = f"Lode {fmt_time(s)}, {e['tool']} {fmt_time(e['median_s'])}: {fmt_ratio(ratio)}"
     if ratio >= threshold:
         return measured, f"**met** ({fmt_ratio(ratio)} against {fmt_ratio(threshold)} required)"
-    return measured, f"**not met**: {fmt_ratio(ratio)} against {fmt_ratio(threshold)} required ({ratio / threshold:.2f} of the target)"
+    if threshold == 1.0:
+        return measured, f"**not met**: Lode takes {fmt_ratio(1 / ratio)} as long"
+    return measured, f"**not met**: {fmt_ratio(ratio)} against {fmt_ratio(threshold)} required ({fmt_ratio(threshold / ratio)} short)"
 
 
 # ---------------------------------------------------------------------------------------------------

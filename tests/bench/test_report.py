@@ -84,7 +84,7 @@ class ReportTest(unittest.TestCase):
         self.assertIn("**not met**: 2.00x against 3.00x required", self.line("| ML extraction, p = 100"))
         # 0.25 s against 0.1 s: 2.5 times the limit; 20 s / 0.25 s = 80x < 100x
         self.assertIn("**not met**: 2.50x the limit of 100 ms", self.line("| Parallel analysis, 1000 replicates"))
-        self.assertIn("**not met**: 80.0x against 100x required", self.line("| Parallel analysis: at least"))
+        self.assertIn("**not met**: 80.0x against 100x required (1.25x short)", self.line("| Parallel analysis: at least"))
         self.assertIn("not measured yet", self.line("| Polychoric matrix, 60 items"))
         self.assertIn("not measured yet", self.line("| ML + oblimin with 20 random starts"))
         self.assertIn("**met** (1.12x against a limit of 2x)", self.line("| Peak memory"))
