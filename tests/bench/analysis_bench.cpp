@@ -20,7 +20,7 @@ namespace {
 using lode::Matrix;
 
 void BM_Analysis(benchmark::State& state, const char* input) {
-  const Matrix x = lode::bench::read_input(input);
+  const Matrix& x = lode::bench::input(input);
   int factors = 0;
   double rmsea = 0.0;
   for (auto _ : state) {

@@ -33,7 +33,7 @@ lode::FactorSolution ml_oblimin(const Matrix& r, int factors, Index n_obs) {
 }
 
 void BM_Bootstrap(benchmark::State& state, const char* input, int factors, Index replicates) {
-  const Matrix x = lode::bench::read_input(input);
+  const Matrix& x = lode::bench::input(input);
   const Index n = x.rows();
   const lode::FactorSolution full = ml_oblimin(lode::correlation(x).matrix, factors, n);
   const lode::SolutionFitter fit = [factors, n](const Matrix& r) { return ml_oblimin(r, factors, n); };

@@ -15,7 +15,7 @@ using lode::Index;
 using lode::Matrix;
 
 void BM_Correlation(benchmark::State& state, const char* input) {
-  const Matrix x = lode::bench::read_input(input);
+  const Matrix& x = lode::bench::input(input);
   for (auto _ : state) benchmark::DoNotOptimize(lode::correlation(x).matrix.data());
   state.counters["rows"] = static_cast<double>(x.rows());
   state.counters["items"] = static_cast<double>(x.cols());
@@ -27,7 +27,7 @@ void BM_Correlation(benchmark::State& state, const char* input) {
 
 // The same with 5% of the cells missing: pairwise-complete correlations (the default policy).
 void BM_CorrelationPairwiseMissing(benchmark::State& state, const char* input) {
-  const Matrix x = lode::bench::read_input(input);
+  const Matrix& x = lode::bench::input(input);
   for (auto _ : state) benchmark::DoNotOptimize(lode::correlation(x).matrix.data());
   state.counters["rows"] = static_cast<double>(x.rows());
   state.counters["items"] = static_cast<double>(x.cols());
@@ -36,7 +36,7 @@ void BM_CorrelationPairwiseMissing(benchmark::State& state, const char* input) {
 // The input checks alone (validate_data: items, infinite values, constant items), the part of
 // correlation() that runs before the sums, on one thread.
 void BM_CorrelationChecks(benchmark::State& state, const char* input) {
-  const Matrix x = lode::bench::read_input(input);
+  const Matrix& x = lode::bench::input(input);
   for (auto _ : state) lode::validate_data(x, {});
   state.counters["rows"] = static_cast<double>(x.rows());
   state.counters["items"] = static_cast<double>(x.cols());

@@ -13,7 +13,7 @@ using lode::ExtractionMethod;
 using lode::Matrix;
 
 void BM_Extraction(benchmark::State& state, ExtractionMethod method, const char* input, int factors) {
-  const Matrix r = lode::bench::read_input(input);
+  const Matrix& r = lode::bench::input(input);
   lode::ExtractionOptions options;  // Lode's defaults (tolerance, iteration cap), as an analyst gets them
   options.method = method;
   options.n_obs = 2000;
@@ -47,7 +47,7 @@ namespace {
 // ML extraction of 10 factors from 100 items, then oblimin (quartimin) from the unrotated start and
 // 20 random starts, the starts spread over all cores (the result does not depend on the thread count).
 void BM_MlOblimin(benchmark::State& state, const char* input, int factors, int random_starts) {
-  const Matrix r = lode::bench::read_input(input);
+  const Matrix& r = lode::bench::input(input);
   lode::ExtractionOptions eo;
   eo.n_obs = 2000;
   lode::RotationOptions ro;

@@ -14,7 +14,7 @@ using lode::Index;
 using lode::Matrix;
 
 void BM_ParallelAnalysis(benchmark::State& state, const char* input, Index items, Index n_obs) {
-  const Matrix x = lode::bench::read_input(input).leftCols(items);
+  const Matrix x = lode::bench::input(input).leftCols(items);
   const Matrix r = lode::correlation(x).matrix;
   lode::ParallelAnalysisOptions options;
   options.replicates = 1000;

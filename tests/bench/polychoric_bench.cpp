@@ -13,7 +13,7 @@ using lode::Index;
 using lode::Matrix;
 
 void BM_Polychoric(benchmark::State& state, const char* input, Index items) {
-  const Matrix x = lode::bench::read_input(input).leftCols(items);
+  const Matrix x = lode::bench::input(input).leftCols(items);
   lode::CorrelationOptions options;  // Lode's defaults: two-step estimates, pairwise deletion
   options.kind = lode::CorrelationKind::polychoric;
   lode::PolychoricResult result;

@@ -13,7 +13,7 @@ using lode::Matrix;
 using lode::RotationMethod;
 
 void BM_Rotation(benchmark::State& state, RotationMethod method, const char* input, int random_starts) {
-  const Matrix loadings = lode::bench::read_input(input);
+  const Matrix& loadings = lode::bench::input(input);
   lode::RotationOptions options;  // Lode's defaults otherwise (Kaiser normalisation, tolerance 1e-8)
   options.method = method;
   options.random_starts = random_starts;
