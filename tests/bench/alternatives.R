@@ -2,7 +2,7 @@
 #
 # Usage: Rscript alternatives.R INPUT_FOLDER OUTPUT_JSON [CASE_REGEX]
 # Cases: base R's cor (complete and pairwise), factanal(covmat = R, factors = k, rotation = "none")
-# for maximum likelihood, a plain parallel-analysis loop (normal data, cor, eigen; 1000 replicates),
+# for maximum likelihood, varimax, a plain parallel-analysis loop (normal data, cor, eigen; 1000 replicates),
 # r-cran-polycor's hetcor for the polychoric matrix, and the matrix product through the system BLAS.
 # Each case is the median wall-clock time of several repeats (fewer for slow cases). With CASE_REGEX
 # only the cases whose names it matches (an extended regular expression) run.
@@ -78,6 +78,13 @@ for (pk in list(c(30, 3), c(60, 6), c(100, 10), c(200, 15))) {
     record(case, "R factanal(covmat, rotation = \"none\")",
            function() factanal(covmat = r, factors = k, n.obs = 2000, rotation = "none"), budget = 8)
   }
+}
+
+# Varimax of the same unrotated loadings Lode rotates (stats::varimax, Kaiser normalisation, its
+# default tolerance 1e-5).
+if (wanted("varimax_p100_k10")) {
+  L <- read_input("rot_p100_k10_L")
+  record("varimax_p100_k10", "R stats::varimax", function() varimax(L))
 }
 
 # Parallel analysis as an analyst would loop it in base R: 1000 standard normal data sets of
