@@ -99,6 +99,17 @@ class ReportTest(unittest.TestCase):
         self.assertIn("(`bootstrap_n500_p30_k3_r1000`)", self.text)
         self.assertNotIn("(`corr_n1000000_p50`)", self.line("- Correlation matrix"))
 
+    def test_filtered_run_tells_skipped_from_absent(self):
+        # A case lode_bench has but this run did not time is "not run", not "not landed".
+        with open(os.path.join(self.dir.name, "lode-cases.txt"), "w") as f:
+            f.write("BM_Polychoric/polychoric_p60_n2000/real_time\n")
+        report.write_report(self.dir.name, self.out, filter_regex="corr")
+        with open(self.out) as f:
+            text = f.read()
+        self.assertIn("Not run in this (filtered) run: `polychoric_p60_n2000`.", text)
+        self.assertNotIn("60 items (`polychoric_p60_n2000`)", text)
+        self.assertIn("| cases | only those matching `corr` |", text)
+
     def test_growth_exponent(self):
         # 0.5 ms -> 5 ms -> 50 ms for 10x more rows each time: exponent 1.00
         self.assertIn("| 100,000 | 5 ms | 1.00 |", self.text)
