@@ -1,0 +1,427 @@
+// Factor extraction. Principal axis factoring iterates communalities from squared multiple
+// correlations (Harman 1976, "Modern Factor Analysis", ch. 8). Minimum residual / unweighted least
+// squares and maximum likelihood minimise a fitting function over the uniquenesses alone, the
+// loadings being the best ones for given uniquenesses (Joreskog 1967, "Some contributions to
+// maximum likelihood factor analysis"; Lawley & Maxwell 1971, ch. 4; Joreskog 1977 for ULS),
+// with a projected quasi-Newton method on the box [min_uniqueness, 1] (Bertsekas 1982, "Projected
+// Newton methods for optimization problems with simple constraints"; BFGS update, Nocedal & Wright
+// 2006, ch. 6).
+#include "lode/extraction.hpp"
+
+#include "lode/correlation.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <numeric>
+
+namespace lode {
+
+namespace {
+
+struct BoxMinimum {
+  Vector x;
+  double f = 0.0;
+  Convergence convergence;
+};
+
+Vector clamp(const Vector& x, double lo, double hi) { return x.cwiseMax(lo).cwiseMin(hi); }
+
+// Largest component of the projected gradient x - P(x - g): zero exactly at a stationary point of
+// the box-constrained problem.
+double projected_gradient_norm(const Vector& x, const Vector& g, double lo, double hi) {
+  return (x - clamp(x - g, lo, hi)).cwiseAbs().maxCoeff();
+}
+
+// Minimises f over the box [lo, hi]^n by projected BFGS: the quasi-Newton direction acts on the
+// variables not held at a bound, and a backtracking search along the projected path enforces the
+// Armijo condition. `fg(x, g)` returns f(x) and writes its gradient into g.
+template <class FG>
+BoxMinimum minimize_in_box(FG fg, Vector x, double lo, double hi, int max_iterations, double tolerance) {
+  const Index n = x.size();
+  x = clamp(x, lo, hi);
+  Vector g(n), g_new(n);
+  double f = fg(x, g);
+  Matrix h = Matrix::Identity(n, n);  // inverse Hessian approximation
+  bool scaled = false;
+  BoxMinimum out;
+  out.convergence.max_iterations = max_iterations;
+  out.convergence.tolerance = tolerance;
+  double criterion = projected_gradient_norm(x, g, lo, hi);
+  int it = 0;
+  while (criterion > tolerance && it < max_iterations) {
+    ++it;
+    // Variables at a bound with the gradient pushing outward stay fixed this step.
+    const double edge = 1e-12 * std::max(1.0, std::abs(hi));
+    std::vector<Index> free;
+    for (Index i = 0; i < n; ++i) {
+      const bool at_lo = x(i) <= lo + edge && g(i) > 0.0;
+      const bool at_hi = x(i) >= hi - edge && g(i) < 0.0;
+      if (!at_lo && !at_hi) free.push_back(i);
+    }
+    Vector d = Vector::Zero(n);
+    for (Index a : free) {
+      double s = 0.0;
+      for (Index b : free) s += h(a, b) * g(b);
+      d(a) = -s;
+    }
+    if (!(g.dot(d) < 0.0)) {  // not a descent direction: restart from steepest descent
+      h.setIdentity();
+      scaled = false;
+      d.setZero();
+      for (Index a : free) d(a) = -g(a);
+    }
+    // Backtracking along the projected path P(x + alpha d).
+    double alpha = 1.0, f_new = f;
+    Vector x_new = x;
+    bool accepted = false;
+    for (int k = 0; k < 60; ++k) {
+      x_new = clamp(x + alpha * d, lo, hi);
+      f_new = fg(x_new, g_new);
+      if (std::isfinite(f_new) && f_new <= f + 1e-4 * g.dot(x_new - x)) {
+        accepted = true;
+        break;
+      }
+      // Near the minimum the decrease falls below the rounding noise of f (the ML profile sums
+      // eigenvalues computed to about eps times the largest one): accept a step that keeps f within
+      // that noise and shrinks the projected gradient.
+      if (std::isfinite(f_new) && f_new <= f + 1e-11 * std::max(std::abs(f), 1.0) &&
+          projected_gradient_norm(x_new, g_new, lo, hi) < criterion) {
+        accepted = true;
+        break;
+      }
+      alpha *= 0.5;
+    }
+    if (!accepted) {
+      if (h.isIdentity() || !scaled) break;  // even steepest descent makes no progress: stop, report
+      h.setIdentity();
+      scaled = false;
+      continue;
+    }
+    const Vector s = x_new - x, y = g_new - g;
+    const double sy = s.dot(y);
+    if (sy > 1e-12 * s.norm() * y.norm()) {
+      if (!scaled) {
+        h = Matrix::Identity(n, n) * (sy / y.squaredNorm());
+        scaled = true;
+      }
+      const double rho = 1.0 / sy;
+      const Vector hy = h * y;
+      // H+ = (I - rho s y') H (I - rho y s') + rho s s'
+      h += (rho * rho * y.dot(hy) + rho) * (s * s.transpose()) - rho * (hy * s.transpose() + s * hy.transpose());
+    }
+    x = x_new;
+    f = f_new;
+    g = g_new;
+    criterion = projected_gradient_norm(x, g, lo, hi);
+  }
+  out.x = x;
+  out.f = f;
+  out.convergence.iterations = it;
+  out.convergence.final_change = criterion;
+  out.convergence.converged = criterion <= tolerance;
+  return out;
+}
+
+struct Eigen_ {
+  Vector values;   // descending
+  Matrix vectors;  // columns in the same order
+};
+
+Eigen_ eigen_descending(const Matrix& m) {
+  Eigen::SelfAdjointEigenSolver<Matrix> es(m);
+  Eigen_ out;
+  out.values = es.eigenvalues().reverse();
+  out.vectors = es.eigenvectors().rowwise().reverse();
+  return out;
+}
+
+// Loadings V_k diag(sqrt(max(values_k, 0))) from the k largest eigenpairs.
+Matrix top_loadings(const Eigen_& e, int k) {
+  Matrix l = e.vectors.leftCols(k);
+  for (int j = 0; j < k; ++j) l.col(j) *= std::sqrt(std::max(e.values(j), 0.0));
+  return l;
+}
+
+// Maximum likelihood, concentrated on the uniquenesses (Joreskog 1967): with S* = Psi^-1/2 R Psi^-1/2
+// and its eigenvalues theta, F(Psi) = sum_{m > k} (theta_m - ln theta_m - 1), L = Psi^1/2 V_k
+// diag(sqrt(max(theta_k - 1, 0))), and dF/dpsi_i = (L L' + Psi - R)_ii / psi_i^2.
+struct MlProfile {
+  const Matrix& r;
+  int k;
+  Matrix loadings(const Vector& psi) const {
+    const Vector s = psi.cwiseSqrt();
+    const Vector is = s.cwiseInverse();
+    const Eigen_ e = eigen_descending(is.asDiagonal() * r * is.asDiagonal());
+    Matrix l = e.vectors.leftCols(k);
+    for (int j = 0; j < k; ++j) l.col(j) *= std::sqrt(std::max(e.values(j) - 1.0, 0.0));
+    return s.asDiagonal() * l;
+  }
+  double operator()(const Vector& psi, Vector& g) const {
+    const Index p = r.rows();
+    const Vector s = psi.cwiseSqrt();
+    const Vector is = s.cwiseInverse();
+    const Eigen_ e = eigen_descending(is.asDiagonal() * r * is.asDiagonal());
+    double f = 0.0;
+    for (Index m = k; m < p; ++m) {
+      const double t = e.values(m);
+      if (!(t > 0.0)) return std::numeric_limits<double>::infinity();
+      f += t - std::log(t) - 1.0;
+    }
+    Matrix l = e.vectors.leftCols(k);
+    for (int j = 0; j < k; ++j) l.col(j) *= std::sqrt(std::max(e.values(j) - 1.0, 0.0));
+    l = s.asDiagonal() * l;
+    for (Index i = 0; i < p; ++i) g(i) = (l.row(i).squaredNorm() + psi(i) - r(i, i)) / (psi(i) * psi(i));
+    return f;
+  }
+};
+
+// Unweighted least squares concentrated on the uniquenesses: L from the k largest eigenpairs of
+// R - Psi, F(Psi) = 1/2 ||R - L L' - Psi||^2, dF/dpsi_i = (L L' + Psi - R)_ii.
+struct UlsProfile {
+  const Matrix& r;
+  int k;
+  Matrix loadings(const Vector& psi) const {
+    Matrix reduced = r;
+    reduced.diagonal() -= psi;
+    return top_loadings(eigen_descending(reduced), k);
+  }
+  double operator()(const Vector& psi, Vector& g) const {
+    const Matrix l = loadings(psi);
+    Matrix resid = r - l * l.transpose();
+    resid.diagonal() -= psi;
+    g = -resid.diagonal();
+    return 0.5 * resid.squaredNorm();
+  }
+};
+
+double least_squares_objective(const Matrix& r, const Matrix& l, const Vector& u) {
+  Matrix resid = r - l * l.transpose();
+  resid.diagonal() -= u;
+  return 0.5 * resid.squaredNorm();
+}
+
+std::string smallest_eigenvalue_text(const Matrix& r) {
+  const Vector ev = eigenvalues_descending(r);
+  return fmt::format("{:.3g}", ev(ev.size() - 1));
+}
+
+void check_options(const ExtractionOptions& o, Index p) {
+  if (o.max_iterations < 1)
+    throw Error(ErrorCode::invalid_argument,
+                fmt::format("the iteration cap must be at least 1; got {}", o.max_iterations));
+  if (!(o.tolerance > 0.0) || !std::isfinite(o.tolerance))
+    throw Error(ErrorCode::invalid_argument, fmt::format("the convergence tolerance must be positive; got {}", o.tolerance));
+  if (!(o.min_uniqueness > 0.0 && o.min_uniqueness < 1.0))
+    throw Error(ErrorCode::invalid_argument,
+                fmt::format("the lower bound for uniquenesses must lie strictly between 0 and 1; got {}", o.min_uniqueness));
+  if (o.n_obs < 0)
+    throw Error(ErrorCode::invalid_argument, fmt::format("the number of observations is negative ({})", o.n_obs));
+  if (!o.item_names.empty() && static_cast<Index>(o.item_names.size()) != p)
+    throw Error(ErrorCode::invalid_argument,
+                fmt::format("{} item names were given for {} items", o.item_names.size(), p));
+}
+
+// Columns by decreasing sum of squares, each with a non-negative sum (common practice).
+void orient(Matrix& l) {
+  const Index k = l.cols();
+  std::vector<Index> order(static_cast<std::size_t>(k));
+  std::iota(order.begin(), order.end(), Index{0});
+  const Vector ss = l.colwise().squaredNorm().transpose();
+  std::stable_sort(order.begin(), order.end(), [&](Index a, Index b) { return ss(a) > ss(b); });
+  Matrix sorted(l.rows(), k);
+  for (Index j = 0; j < k; ++j) {
+    sorted.col(j) = l.col(order[static_cast<std::size_t>(j)]);
+    if (sorted.col(j).sum() < 0.0) sorted.col(j) *= -1.0;
+  }
+  l = sorted;
+}
+
+}  // namespace
+
+const char* to_string(ExtractionMethod method) noexcept {
+  switch (method) {
+    case ExtractionMethod::principal_axis: return "principal axis factoring";
+    case ExtractionMethod::minimum_residual: return "minimum residual";
+    case ExtractionMethod::maximum_likelihood: return "maximum likelihood";
+    case ExtractionMethod::principal_components: return "principal components";
+  }
+  return "unknown";
+}
+
+double factor_model_df(Index items, int factors) {
+  const double p = static_cast<double>(items), k = factors;
+  return 0.5 * ((p - k) * (p - k) - (p + k));
+}
+
+int max_identified_factors(Index items) {
+  int k = 0;
+  while (k + 1 < items && factor_model_df(items, k + 1) >= 0.0) ++k;
+  return k;
+}
+
+Matrix implied_correlation(const Matrix& loadings, const Vector& uniquenesses) {
+  if (loadings.rows() != uniquenesses.size())
+    throw Error(ErrorCode::invalid_argument,
+                fmt::format("the loadings have {} rows but there are {} uniquenesses", loadings.rows(), uniquenesses.size()));
+  Matrix s = loadings * loadings.transpose();
+  s.diagonal() += uniquenesses;
+  return s;
+}
+
+ExtractionResult extract_factors(const Matrix& r_in, int factors, const ExtractionOptions& options) {
+  CorrelationOptions co;
+  co.item_names = options.item_names;
+  check_options(options, r_in.rows());
+  const Matrix r = correlation_from_matrix(r_in, 0, co).matrix;
+  const Index p = r.rows();
+  const int k = factors;
+  const auto method_name = to_string(options.method);
+  if (k < 1)
+    throw Error(ErrorCode::invalid_argument, fmt::format("the number of factors must be at least 1; got {}", k));
+  if (k >= p)
+    throw Error(ErrorCode::too_many_factors,
+                fmt::format("{} factors from {} items: there must be fewer factors than items", k, p));
+  if (options.n_obs > 0 && options.n_obs <= p)
+    throw Error(ErrorCode::insufficient_data,
+                fmt::format("too few observations: a correlation matrix of {} items from {} observations is singular; "
+                            "at least {} observations are needed, and many more for stable factors",
+                            p, options.n_obs, p + 1));
+  const bool pd = is_positive_definite(r);
+  if (options.method == ExtractionMethod::maximum_likelihood) {
+    const double df = factor_model_df(p, k);
+    if (df < 0.0)
+      throw Error(ErrorCode::too_many_factors,
+                  fmt::format("maximum likelihood with {} factors for {} items has negative degrees of freedom ({}); "
+                              "{} items can identify at most {} factor{}",
+                              k, p, df, p, max_identified_factors(p), max_identified_factors(p) == 1 ? "" : "s"));
+    if (!pd)
+      throw Error(ErrorCode::not_positive_definite,
+                  fmt::format("maximum likelihood needs a positive-definite correlation matrix, but this one's smallest "
+                              "eigenvalue is {}; smooth it to the nearest correlation matrix first (or use minimum "
+                              "residual extraction)",
+                              smallest_eigenvalue_text(r)));
+  }
+
+  ExtractionResult out;
+  out.method = options.method;
+  out.factors = k;
+  Matrix l;
+  Vector u;
+  switch (options.method) {
+    case ExtractionMethod::principal_components: {
+      const Eigen_ e = eigen_descending(r);
+      l = top_loadings(e, k);
+      out.convergence.converged = true;
+      break;
+    }
+    case ExtractionMethod::principal_axis: {
+      if (!pd)
+        throw Error(ErrorCode::not_positive_definite,
+                    fmt::format("principal axis factoring starts from squared multiple correlations, which need a "
+                                "positive-definite correlation matrix, but this one's smallest eigenvalue is {}; smooth "
+                                "it to the nearest correlation matrix first (or use minimum residual extraction)",
+                                smallest_eigenvalue_text(r)));
+      Vector h = squared_multiple_correlations(r);
+      Convergence& c = out.convergence;
+      c.max_iterations = options.max_iterations;
+      c.tolerance = options.tolerance;
+      bool short_of_positive = false;
+      for (int it = 1; it <= options.max_iterations; ++it) {
+        Matrix reduced = r;
+        reduced.diagonal() = h;
+        const Eigen_ e = eigen_descending(reduced);
+        short_of_positive = e.values(k - 1) <= 0.0;
+        l = top_loadings(e, k);
+        const Vector h_new = l.rowwise().squaredNorm();
+        c.iterations = it;
+        c.final_change = (h_new - h).cwiseAbs().maxCoeff();
+        h = h_new;
+        if (c.final_change < options.tolerance) {
+          c.converged = true;
+          break;
+        }
+      }
+      if (short_of_positive)
+        out.notes.push_back(fmt::format("the reduced correlation matrix has fewer than {} positive eigenvalues; the "
+                                        "last factor{} carry no variance",
+                                        k, k > 1 ? "s" : ""));
+      break;
+    }
+    case ExtractionMethod::minimum_residual: {
+      Vector start;
+      if (pd) {
+        start = Vector::Ones(p) - squared_multiple_correlations(r);
+      } else {
+        // No SMCs without an inverse: start from each item's largest absolute correlation (common practice).
+        Matrix a = r.cwiseAbs();
+        a.diagonal().setZero();
+        start = Vector::Ones(p) - a.rowwise().maxCoeff();
+        out.notes.push_back(fmt::format("the correlation matrix is not positive definite (smallest eigenvalue {}); "
+                                        "minimum residual started from the largest correlations instead of squared "
+                                        "multiple correlations",
+                                        smallest_eigenvalue_text(r)));
+      }
+      const UlsProfile uls{r, k};
+      BoxMinimum m = minimize_in_box([&](const Vector& x, Vector& g) { return uls(x, g); }, start, options.min_uniqueness,
+                                     1.0, options.max_iterations, options.tolerance);
+      out.convergence = m.convergence;
+      u = m.x;
+      l = uls.loadings(u);
+      break;
+    }
+    case ExtractionMethod::maximum_likelihood: {
+      // Start of Joreskog (1967): psi_i = (1 - k / (2p)) / (R^-1)_ii.
+      const Matrix inv = r.llt().solve(Matrix::Identity(p, p));
+      const Vector start = (1.0 - 0.5 * k / static_cast<double>(p)) * inv.diagonal().cwiseInverse();
+      const MlProfile ml{r, k};
+      BoxMinimum m = minimize_in_box([&](const Vector& x, Vector& g) { return ml(x, g); }, start, options.min_uniqueness,
+                                     1.0, options.max_iterations, options.tolerance);
+      out.convergence = m.convergence;
+      u = m.x;
+      l = ml.loadings(u);
+      out.objective = m.f;
+      break;
+    }
+  }
+  orient(l);
+  out.loadings = l;
+  out.communalities = l.rowwise().squaredNorm();
+  if (u.size() == 0) u = Vector::Ones(p) - out.communalities;
+  out.uniquenesses = u;
+  out.factor_variance = l.colwise().squaredNorm().transpose();
+  if (options.method != ExtractionMethod::maximum_likelihood) out.objective = least_squares_objective(r, l, u);
+
+  const bool bounded =
+      options.method == ExtractionMethod::minimum_residual || options.method == ExtractionMethod::maximum_likelihood;
+  for (Index i = 0; i < p; ++i) {
+    const bool at_bound = bounded && u(i) <= options.min_uniqueness * (1.0 + 1e-6);
+    const bool over = out.communalities(i) >= 1.0 - 1e-12;
+    if (!at_bound && !over) continue;
+    HeywoodItem hw;
+    hw.item = i;
+    hw.label = item_label(options.item_names, i);
+    hw.communality = out.communalities(i);
+    hw.uniqueness = u(i);
+    hw.at_bound = at_bound;
+    out.heywood.push_back(hw);
+    out.notes.push_back(
+        at_bound ? fmt::format("Heywood case: {} has its uniqueness held at the lower bound {} (communality {:.4f}); "
+                               "its estimates are improper, which often means too many factors or too few items per "
+                               "factor",
+                               hw.label, options.min_uniqueness, hw.communality)
+                 : fmt::format("Heywood case: {} has communality {:.4f}, at or above 1 (uniqueness {:.4f}); its "
+                               "estimates are improper, which often means too many factors or too few items per factor",
+                               hw.label, hw.communality, hw.uniqueness));
+  }
+  if (!out.convergence.converged)
+    out.notes.push_back(fmt::format("{} did not converge in {} iterations (criterion {:.3g}, tolerance {:.3g}); treat "
+                                    "the results with caution",
+                                    method_name, out.convergence.iterations, out.convergence.final_change,
+                                    out.convergence.tolerance));
+  return out;
+}
+
+}  // namespace lode

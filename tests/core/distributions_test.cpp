@@ -1,0 +1,124 @@
+// Distribution functions, checked live against scipy.special and scipy.stats.
+#include "lode/distributions.hpp"
+#include "support/external.hpp"
+
+#include <gtest/gtest.h>
+
+#include <cmath>
+
+using namespace lode;
+using lode::testing::run_python;
+
+namespace {
+
+// Relative error, except where the reference is zero (log Gamma(1), the median of the normal).
+double rel_err(double a, double b) {
+  if (b == 0.0) return std::abs(a) < 1e-14 ? 0.0 : 1.0;
+  return std::abs(a - b) / std::abs(b);
+}
+
+}  // namespace
+
+TEST(Distributions, GammaFunctionsMatchScipySpecial) {
+  Matrix grid(14, 2);  // (a, x)
+  grid << 0.5, 0.1, 0.5, 3.0, 1.0, 1.0, 2.5, 0.7, 3.0, 9.0, 7.5, 7.0, 12.0, 3.0, 12.0, 30.0, 40.0, 41.0, 150.0, 120.0,
+      150.0, 190.0, 1000.0, 1010.0, 5000.0, 4800.0, 0.01, 2.0;
+  // Reference: scipy.special.gammaln, gammainc (regularised P), gammaincc (regularised Q).
+  const auto ref = run_python(R"(
+from scipy import special
+a, x = X[:, 0], X[:, 1]
+emit('lg', special.gammaln(a)); emit('p', special.gammainc(a, x)); emit('q', special.gammaincc(a, x))
+)", {{"X", grid}});
+  for (Index i = 0; i < grid.rows(); ++i) {
+    const double a = grid(i, 0), x = grid(i, 1);
+    SCOPED_TRACE(::testing::Message() << "a=" << a << " x=" << x);
+    EXPECT_LT(rel_err(log_gamma(a), ref.at("lg")(i, 0)), 1e-13);
+    EXPECT_LT(rel_err(gamma_p(a, x), ref.at("p")(i, 0)), 1e-11);
+    EXPECT_LT(rel_err(gamma_q(a, x), ref.at("q")(i, 0)), 1e-11);
+  }
+}
+
+TEST(Distributions, NormalAndChiSquareMatchScipyStats) {
+  Matrix grid(9, 3);  // (x, df, probability)
+  grid << 0.5, 1, 0.001, 3.84, 1, 0.05, 10.0, 5, 0.5, 0.2, 3, 0.95, 45.0, 20, 0.999, 1500.0, 1400, 0.3, 300.0, 12, 1e-10,
+      7.0, 0.7, 0.9999, 25.0, 6, 0.025;
+  // Reference: scipy.stats.norm.cdf/ppf and scipy.stats.chi2.cdf/sf/ppf.
+  const auto ref = run_python(R"(
+from scipy import stats
+x, df, pr = X[:, 0], X[:, 1], X[:, 2]
+emit('ncdf', stats.norm.cdf(x - 5.0)); emit('nppf', stats.norm.ppf(pr))
+emit('cdf', stats.chi2.cdf(x, df)); emit('sf', stats.chi2.sf(x, df)); emit('ppf', stats.chi2.ppf(pr, df))
+)", {{"X", grid}});
+  for (Index i = 0; i < grid.rows(); ++i) {
+    const double x = grid(i, 0), df = grid(i, 1), pr = grid(i, 2);
+    SCOPED_TRACE(::testing::Message() << "x=" << x << " df=" << df << " p=" << pr);
+    EXPECT_LT(rel_err(normal_cdf(x - 5.0), ref.at("ncdf")(i, 0)), 1e-13);
+    EXPECT_LT(rel_err(normal_quantile(pr), ref.at("nppf")(i, 0)), 1e-12);
+    EXPECT_LT(rel_err(chi_square_cdf(x, df), ref.at("cdf")(i, 0)), 1e-11);
+    EXPECT_LT(rel_err(chi_square_sf(x, df), ref.at("sf")(i, 0)), 1e-11);
+    EXPECT_LT(rel_err(chi_square_quantile(pr, df), ref.at("ppf")(i, 0)), 1e-10);
+  }
+}
+
+TEST(Distributions, NoncentralChiSquareMatchesScipyNcx2) {
+  Matrix grid(10, 3);  // (x, df, lambda)
+  grid << 5.0, 3, 1.0, 20.0, 8, 10.0, 2.0, 2, 30.0, 200.0, 150, 40.0, 60.0, 12, 0.5, 1000.0, 900, 300.0, 80.0, 4, 20.0,
+      0.3, 1, 0.2, 400.0, 50, 500.0, 15.0, 24, 2.0;
+  // Reference: scipy.stats.ncx2.cdf and ncx2.sf.
+  const auto ref = run_python(R"(
+from scipy import stats
+x, df, lam = X[:, 0], X[:, 1], X[:, 2]
+emit('cdf', stats.ncx2.cdf(x, df, lam)); emit('sf', stats.ncx2.sf(x, df, lam))
+)", {{"X", grid}});
+  for (Index i = 0; i < grid.rows(); ++i) {
+    const double x = grid(i, 0), df = grid(i, 1), lam = grid(i, 2);
+    SCOPED_TRACE(::testing::Message() << "x=" << x << " df=" << df << " lambda=" << lam);
+    EXPECT_LT(rel_err(noncentral_chi_square_cdf(x, df, lam), ref.at("cdf")(i, 0)), 1e-8);
+    EXPECT_LT(rel_err(noncentral_chi_square_sf(x, df, lam), ref.at("sf")(i, 0)), 1e-8);
+  }
+}
+
+TEST(Distributions, NoncentralityInversionMatchesScipyRootFinding) {
+  Matrix cases(5, 3);  // (x, df, target probability)
+  cases << 85.3, 40, 0.95, 85.3, 40, 0.05, 250.0, 101, 0.05, 30.0, 4, 0.95, 12.0, 24, 0.05;
+  // Reference: scipy.optimize.brentq on scipy.stats.ncx2.cdf (0 when the central cdf is already below p).
+  const auto ref = run_python(R"(
+from scipy import stats, optimize
+out = []
+for x, df, p in X:
+    f = lambda lam: stats.ncx2.cdf(x, df, lam) - p if lam > 0 else stats.chi2.cdf(x, df) - p
+    out.append(0.0 if f(0.0) <= 0 else optimize.brentq(f, 0.0, 10 * x + 100, xtol=1e-13, rtol=1e-14))
+emit('lam', np.array(out))
+)", {{"X", cases}});
+  for (Index i = 0; i < cases.rows(); ++i) {
+    SCOPED_TRACE(::testing::Message() << "case " << i);
+    const double lam = noncentrality_for_cdf(cases(i, 0), cases(i, 1), cases(i, 2));
+    EXPECT_NEAR(lam, ref.at("lam")(i, 0), 1e-6 * std::max(1.0, lam));
+  }
+  EXPECT_EQ(ref.at("lam")(4, 0), 0.0);  // the central chi-square(24) cdf at 12 is below 0.05: lambda = 0
+}
+
+TEST(Distributions, RejectsArgumentsOutsideTheirDomain) {
+  EXPECT_THROW(
+      {
+        try {
+          chi_square_cdf(3.0, 0.0);
+        } catch (const Error& e) {
+          EXPECT_STREQ(e.what(), "chi-square degrees of freedom must be positive; got 0");
+          throw;
+        }
+      },
+      Error);
+  auto message = [](auto&& f) {
+    try {
+      f();
+    } catch (const Error& e) {
+      return std::string(e.what());
+    }
+    return std::string("no error");
+  };
+  EXPECT_EQ(message([] { return gamma_p(-1.0, 1.0); }), "the incomplete gamma function needs a > 0; got -1");
+  EXPECT_EQ(message([] { return noncentral_chi_square_cdf(1.0, 2.0, -0.5); }),
+            "the noncentrality parameter must be finite and non-negative; got -0.5");
+  EXPECT_EQ(message([] { return log_gamma(0.0); }), "log_gamma needs a positive finite argument; got 0");
+}
