@@ -6,13 +6,10 @@
 
 #include <string>
 
-// Each suite measures an API only once it has landed in the core: these say which headers exist.
-#define LODE_BENCH_HAS_EXTRACTION __has_include("lode/extraction.hpp")
-#define LODE_BENCH_HAS_ROTATION __has_include("lode/rotation.hpp")
-#define LODE_BENCH_HAS_FIT __has_include("lode/fit.hpp")
-#define LODE_BENCH_HAS_FACTOR_COUNT __has_include("lode/factor_count.hpp")
-#define LODE_BENCH_HAS_POLYCHORIC __has_include("lode/polychoric.hpp")
-#define LODE_BENCH_HAS_BOOTSTRAP __has_include("lode/bootstrap.hpp")
+// Each suite measures an API only once it has landed in the core: the generated bench_features.hpp
+// defines LODE_BENCH_HAS_<FAMILY> to 1 for each core header that exists (extraction, rotation, fit,
+// factor_count, polychoric, bootstrap) and to 0 otherwise.
+#include "bench_features.hpp"
 
 namespace lode::bench {
 
