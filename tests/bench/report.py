@@ -526,7 +526,10 @@ def write_report(results_dir, out_path, elapsed_s=None, filter_regex=None):
               f"arithmetic (the symmetric cross-product) at {c / 1e9:.1f} GFLOP/s: "
               f"**{100 * c / best:.0f}% of the best measured multiply rate** ({best_name}), "
               + (f"{100 * c / mm['counters']['flops']:.0f}% of Lode's own Eigen rate. " if mm and mm['counters'].get('flops') else "")
-              + "The rest is the centring pass, the column means and reading the data from memory.")
+              + "The remaining time goes to the passes around the product (input checks, missing-value "
+              "mask, column means, centring) and to memory traffic"
+              + (f"; the input checks alone took {fmt_time(lode['corr_checks_n1000000_p50']['s'])}."
+                 if "corr_checks_n1000000_p50" in lode else "."))
             w("")
     else:
         w("Not measured yet.")
