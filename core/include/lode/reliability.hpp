@@ -1,0 +1,87 @@
+// Reliability of scales: Cronbach's alpha (Cronbach 1951), raw and standardised, with alpha if an item is
+// deleted and corrected item-total correlations; McDonald's omega total (McDonald 1999) from fitted loadings.
+#pragma once
+
+#include "lode/common.hpp"
+#include "lode/extraction.hpp"
+
+#include <string>
+#include <vector>
+
+namespace lode {
+
+struct AlphaOptions {
+  std::vector<std::string> item_names;  // optional, used in messages and notes
+};
+
+struct AlphaResult {
+  // Rows with any missing item of the scale are left out (listwise deletion within the scale), so every
+  // figure below comes from the same respondents.
+  Index rows_total = 0;
+  Index rows_used = 0;
+  Index items = 0;
+  // Raw alpha, from the covariances: k/(k-1) (1 - sum var_i / var(total)) (Cronbach 1951).
+  double alpha = 0.0;
+  // Standardised alpha, from the correlations: k rbar / (1 + (k-1) rbar), rbar the mean inter-item
+  // correlation (the Spearman-Brown form).
+  double alpha_standardized = 0.0;
+  double mean_inter_item_correlation = 0.0;
+  Vector alpha_if_deleted;               // raw alpha of the scale without item i (NaN when only 1 would remain)
+  Vector alpha_standardized_if_deleted;  // standardised alpha without item i
+  Vector item_total_correlation;         // corrected: item i with the sum of the other items
+  Vector item_means, item_sds;           // over the rows used (n - 1 denominator)
+  std::vector<std::string> notes;
+};
+
+// Alpha for one scale: `data` holds the scale's items only (rows = respondents, NaN = missing), already
+// reverse-scored where needed. Needs at least 2 items and 3 complete rows; a constant item is an error.
+AlphaResult cronbach_alpha(const Matrix& data, const AlphaOptions& options = {});
+
+// Raw alpha from a covariance matrix (standardised alpha when it is a correlation matrix).
+double alpha_from_covariance(const Matrix& covariance);
+
+struct OmegaOptions {
+  // Which factor each item's scale is: -1 = not in any scale. Empty = each item goes to the factor of its
+  // largest absolute pattern loading (the rule stated in the notes).
+  std::vector<Index> assignment;
+  std::vector<std::string> item_names;
+};
+
+struct ScaleOmega {
+  Index factor = 0;            // 0-based factor the scale belongs to
+  std::vector<Index> items;    // 0-based items of the scale
+  double sum_loadings = 0.0;   // sum of the items' loadings on the factor (signed)
+  double sum_uniquenesses = 0.0;
+  // (sum lambda)^2 / ((sum lambda)^2 + sum psi) (McDonald 1999): NaN when the scale has no items.
+  double omega = 0.0;
+};
+
+struct OmegaResult {
+  std::vector<ScaleOmega> scales;  // one per factor, in factor order
+  std::vector<Index> assignment;   // the assignment used (per item, -1 = none)
+  std::vector<std::string> notes;
+};
+
+// Omega total for the scale of each factor, from fitted pattern loadings (items x factors) and
+// uniquenesses, e.g. of a correlation-matrix fit. The formula treats each scale as measuring its factor
+// alone (congeneric): loadings of the scale's items on other factors are not credited, and cross-loading
+// items inflate the error part only through their uniquenesses. Negative loadings on the scale's factor
+// are summed as they are; the notes name such items (reverse-score them and refit).
+// With a one-factor fit this is omega for that single scale.
+OmegaResult omega_from_loadings(const Matrix& loadings, const Vector& uniquenesses, const OmegaOptions& options = {});
+
+// Omega for a single scale from a one-factor fit of its items' correlation matrix (maximum likelihood by
+// default; the extraction options choose). The fit's convergence and any Heywood case are reported, not
+// hidden: a scale whose one-factor fit did not converge gets its omega with a note saying so.
+struct SingleScaleOmega {
+  double omega = 0.0;
+  Vector loadings;      // items: the one-factor loadings (column sum made non-negative)
+  Vector uniquenesses;  // items
+  ExtractionMethod method = ExtractionMethod::maximum_likelihood;
+  Convergence convergence;
+  std::vector<std::string> notes;
+};
+
+SingleScaleOmega omega_single_scale(const Matrix& correlation, const ExtractionOptions& options = {});
+
+}  // namespace lode
