@@ -1,4 +1,5 @@
 #include "lode/bootstrap.hpp"
+#include "lode/distributions.hpp"
 
 #include "lode/congruence.hpp"
 #include "lode/parallel.hpp"
@@ -12,14 +13,6 @@
 
 namespace lode {
 
-double quantile_type7(std::vector<double>& values, double q) {
-  if (values.empty()) throw Error(ErrorCode::insufficient_data, "a quantile of no values was requested");
-  std::sort(values.begin(), values.end());
-  const double h = (static_cast<double>(values.size()) - 1.0) * q;
-  const auto lo = static_cast<std::size_t>(std::floor(h));
-  const std::size_t hi = std::min(lo + 1, values.size() - 1);
-  return values[lo] + (h - static_cast<double>(lo)) * (values[hi] - values[lo]);
-}
 
 namespace {
 

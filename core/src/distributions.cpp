@@ -10,6 +10,8 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
+
 #include <cmath>
 #include <limits>
 #include <numbers>
@@ -273,6 +275,15 @@ double noncentrality_for_cdf(double x, double df, double p) {
     if (hi - lo <= 1e-13 * std::max(1.0, hi)) break;
   }
   return 0.5 * (lo + hi);
+}
+
+double quantile_type7(std::vector<double>& values, double q) {
+  if (values.empty()) throw Error(ErrorCode::insufficient_data, "a quantile of no values was requested");
+  std::sort(values.begin(), values.end());
+  const double h = (static_cast<double>(values.size()) - 1.0) * std::clamp(q, 0.0, 1.0);
+  const auto lo = static_cast<std::size_t>(std::floor(h));
+  const std::size_t hi = std::min(lo + 1, values.size() - 1);
+  return values[lo] + (h - static_cast<double>(lo)) * (values[hi] - values[lo]);
 }
 
 }  // namespace lode

@@ -1,4 +1,5 @@
 #include "lode/factor_count.hpp"
+#include "lode/distributions.hpp"
 
 #include "lode/parallel.hpp"
 
@@ -21,14 +22,6 @@ const char* to_string(RandomDataSource source) noexcept {
   return "unknown";
 }
 
-double quantile_type7(std::vector<double> values, double q) {
-  if (values.empty()) return std::numeric_limits<double>::quiet_NaN();
-  std::sort(values.begin(), values.end());
-  const double h = (static_cast<double>(values.size()) - 1.0) * std::clamp(q, 0.0, 1.0);
-  const auto lo = static_cast<std::size_t>(std::floor(h));
-  const std::size_t hi = std::min(lo + 1, values.size() - 1);
-  return values[lo] + (h - static_cast<double>(lo)) * (values[hi] - values[lo]);
-}
 
 namespace {
 

@@ -14,7 +14,11 @@ import threading
 import time
 
 import pytest
-import uno  # noqa: F401
+import uno  # noqa: F401  (its local context has read URE_MORE_TYPES by now)
+
+# URE_MORE_TYPES is for this Python only (it must know the service's interface). soffice must not
+# inherit it: it would replace the office's own list, which brings in the installed extensions' types.
+os.environ.pop("URE_MORE_TYPES", None)
 from com.sun.star.beans import PropertyValue
 from com.sun.star.accessibility.AccessibleRole import PUSH_BUTTON
 from com.sun.star.connection import NoConnectException

@@ -17,7 +17,11 @@ import time
 
 import numpy as np
 import pytest
-import uno  # noqa: F401
+import uno  # noqa: F401  (its local context has read URE_MORE_TYPES by now)
+
+# URE_MORE_TYPES is for this Python only (it must know the service's interface). soffice must not
+# inherit it: it would replace the office's own list, which brings in the installed extensions' types.
+os.environ.pop("URE_MORE_TYPES", None)
 from com.sun.star.beans import PropertyValue
 from com.sun.star.lang import IllegalArgumentException
 
@@ -418,3 +422,17 @@ def test_menu_toolbar_and_protocol_handler_are_registered(office):
     arg = PropertyValue("nodepath", 0, "/org.openoffice.Office.ProtocolHandler/HandlerSet", 0)
     hs = cp.createInstanceWithArguments("com.sun.star.configuration.ConfigurationAccess", (arg,))
     assert "org.lode.calc:*" in hs.getByName("org.lode.calc.DialogHandlerImpl").Protocols
+
+
+def test_cell_functions_and_report_service_live_side_by_side(office, service):
+    """Both parts of the extension come from its own registration (soffice does not see this
+    Python's URE_MORE_TYPES): a cell function still evaluates in the office running the service."""
+    doc = office.new_calc()
+    try:
+        with office.watchdog(60):
+            cell = doc.Sheets.getByIndex(0).getCellByPosition(0, 0)
+            cell.setFormula("=LODE.VERSION()")
+            assert cell.getError() == 0 and cell.getString().startswith("Lode ")
+    finally:
+        with office.watchdog(60):
+            doc.close(True)

@@ -97,8 +97,5 @@ FactorSolution fit_factor_solution(const Matrix& correlation, int factors, const
 BootstrapResult bootstrap_factor_solution(const Matrix& data, int factors, const ExtractionOptions& extraction,
                                           const RotationOptions& rotation, const BootstrapOptions& options);
 
-// Quantile of type 7 (linear interpolation between order statistics; Hyndman & Fan 1996) of `values`
-// (sorted in place), q in [0, 1].
-double quantile_type7(std::vector<double>& values, double q);
 
 }  // namespace lode

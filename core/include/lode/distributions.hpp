@@ -4,6 +4,8 @@
 
 #include "lode/bivariate_normal.hpp"  // normal_cdf and normal_quantile live there
 
+#include <vector>
+
 namespace lode {
 
 // log Gamma(x) for x > 0.
@@ -24,5 +26,10 @@ double noncentral_chi_square_sf(double x, double df, double lambda);
 // The noncentrality lambda >= 0 at which noncentral_chi_square_cdf(x, df, lambda) == p, or 0 when
 // even lambda = 0 gives a value below p (the cdf falls as lambda grows).
 double noncentrality_for_cdf(double x, double df, double p);
+
+// Quantile q in [0, 1] of `values` (sorted in place) by linear interpolation between order statistics
+// (type 7 of Hyndman & Fan 1996, the default of R's quantile and numpy's percentile). Throws
+// insufficient_data for no values.
+double quantile_type7(std::vector<double>& values, double q);
 
 }  // namespace lode

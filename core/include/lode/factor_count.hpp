@@ -165,7 +165,5 @@ MapResult minimum_average_partial(const Matrix& r);
 // (Braeken & van Assen 2017): reference l_j = max((1 + sqrt(p/n))^2 (p - sum_{i<j} lambda_i) / (p - j + 1), 1).
 EigenvalueRules eigenvalue_rules(const Vector& eigenvalues_desc, Index n_obs);
 
-// Quantile q in [0, 1] of the values, linear interpolation between order statistics (type 7).
-double quantile_type7(std::vector<double> values, double q);
 
 }  // namespace lode
