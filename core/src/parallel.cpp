@@ -20,6 +20,9 @@ void parallel_for(Index count, int threads, const std::function<void(Index)>& bo
     if (progress) progress(0, 0);
     return;
   }
+  // A first report before any work, so a caller who has already asked to stop is honoured at once,
+  // however quickly the work would have finished.
+  if (progress && !progress(0, count)) throw Error(ErrorCode::cancelled, "cancelled by the caller");
   if (threads <= 0) threads = default_thread_count();
   if (threads > count) threads = static_cast<int>(count);
 

@@ -13,7 +13,8 @@ namespace lode {
 int default_thread_count() noexcept;
 
 // Runs body(i) for every i in [0, count) on up to `threads` threads (0 = default_thread_count()).
-// The calling thread reports progress (if given) about every 50 ms and once at the end; when it returns
+// The calling thread reports progress (if given) once before any work, about every 50 ms, and once at
+// the end; when it returns
 // false the remaining units are skipped and Error(cancelled) is thrown. The first exception thrown by
 // a unit stops the others and is rethrown in the calling thread.
 void parallel_for(Index count, int threads, const std::function<void(Index)>& body,
