@@ -3,6 +3,7 @@
 // failure into what Calc shows. Nothing escapes this boundary except the two UNO exceptions Calc
 // maps to documented error values.
 #include "convert.hpp"
+#include "report_uno.hpp"
 #include "table.hpp"
 
 #include <cppuhelper/factory.hxx>
@@ -139,6 +140,11 @@ Sequence<OUString> SAL_CALL service_names() { return CellFunctions::supported_se
 
 const cppu::ImplementationEntry kEntries[] = {
     {create, implementation_name, service_names, cppu::createSingleComponentFactory, nullptr, 0},
+    // the analysis dialog and the report service behind it (report_uno.cpp, dialog.cpp)
+    {lode::addin::report::create_analysis_report, lode::addin::report::analysis_report_implementation_name,
+     lode::addin::report::analysis_report_service_names, cppu::createSingleComponentFactory, nullptr, 0},
+    {lode::addin::report::create_dialog_handler, lode::addin::report::dialog_handler_implementation_name,
+     lode::addin::report::dialog_handler_service_names, cppu::createSingleComponentFactory, nullptr, 0},
     {nullptr, nullptr, nullptr, nullptr, nullptr, 0},
 };
 

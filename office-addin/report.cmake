@@ -1,0 +1,43 @@
+# The analysis dialog and the report service (included by office-addin/CMakeLists.txt): their own
+# IDL (idl/XAnalysisReport.idl -> lode_report.rdb), sources added to the component, and the menu,
+# toolbar and protocol-handler configuration added to the extension through LODE_OXT_EXTRA.
+set(LODE_REPORT_IDL ${CMAKE_CURRENT_SOURCE_DIR}/idl/XAnalysisReport.idl)
+add_custom_command(
+  OUTPUT ${GEN}/lode_report.rdb
+  COMMAND ${LODE_UNOIDL_WRITE} ${LODE_LO_TYPES} ${LODE_REPORT_IDL} ${GEN}/lode_report.rdb
+  DEPENDS ${LODE_REPORT_IDL}
+  COMMENT "unoidl-write lode_report.rdb")
+set(_report_x)
+foreach(t ${LODE_LO_TYPES})
+  list(APPEND _report_x -X${t})
+endforeach()
+add_custom_command(
+  OUTPUT ${GEN}/inc/org/lode/calc/XAnalysisReport.hpp
+  COMMAND ${LODE_CPPUMAKER} -Gc -O${GEN}/inc ${_report_x} ${GEN}/lode_report.rdb
+  DEPENDS ${GEN}/lode_report.rdb
+  COMMENT "cppumaker: C++ headers of the report service")
+add_custom_target(lode_report_types DEPENDS ${GEN}/inc/org/lode/calc/XAnalysisReport.hpp)
+
+# report_model.cpp is UNO-free (C ABI only); report_uno.cpp and dialog.cpp are the UNO side.
+target_sources(lode_calc PRIVATE src/report_model.cpp src/report_uno.cpp src/dialog.cpp)
+add_dependencies(lode_calc lode_report_types)
+
+list(APPEND LODE_OXT_EXTRA ${GEN}/lode_report.rdb ${PKG}/Addons.xcu ${PKG}/ProtocolHandler.xcu ${PKG}/lode-16.png
+     ${PKG}/lode-26.png)
+
+# For the office tests: the service's type library (their Python needs it) and the program folder.
+set_property(GLOBAL PROPERTY LODE_REPORT_RDB ${GEN}/lode_report.rdb)
+
+# Sections that light up when the C ABI offers them: detected from lode.h at configure time.
+set(_lode_h ${PROJECT_SOURCE_DIR}/capi/include/lode.h)
+set_property(DIRECTORY APPEND PROPERTY CMAKE_CONFIGURE_DEPENDS ${_lode_h})
+file(READ ${_lode_h} _lode_h_text)
+string(FIND "${_lode_h_text}" "lode_count_factors(" _has_count)
+if(_has_count GREATER -1)
+  set_property(SOURCE src/report_model.cpp APPEND PROPERTY COMPILE_DEFINITIONS LODE_REPORT_HAS_COUNT=1)
+endif()
+string(FIND "${_lode_h_text}" "lode_fit(" _has_fit)
+string(FIND "${_lode_h_text}" "LODE_MODEL_LOADINGS" _has_model_keys)
+if(_has_fit GREATER -1 AND _has_model_keys GREATER -1)
+  set_property(SOURCE src/report_model.cpp APPEND PROPERTY COMPILE_DEFINITIONS LODE_REPORT_HAS_FIT=1)
+endif()

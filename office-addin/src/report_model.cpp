@@ -1,0 +1,905 @@
+// The report's content: reads the items, runs what the C ABI offers, lays out the sheets.
+// Only lode.h is used (office-addin -> capi -> core).
+#include "report_model.hpp"
+
+#include <lode.h>
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <cstring>
+#include <limits>
+#include <memory>
+#include <stdexcept>
+
+namespace lode::addin::report {
+namespace {
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+bool one_of(const std::string& v, std::initializer_list<const char*> allowed) {
+  for (const char* a : allowed)
+    if (v == a) return true;
+  return false;
+}
+
+void require(const std::string& what, const std::string& v, std::initializer_list<const char*> allowed) {
+  if (one_of(v, allowed)) return;
+  std::string list;
+  for (const char* a : allowed) list += (list.empty() ? "" : ", ") + std::string(a);
+  throw std::invalid_argument("option " + what + " is \"" + v + "\"; it must be one of " + list);
+}
+
+std::string fmt_num(double v, int digits = 3) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*f", digits, v);
+  return buf;
+}
+
+struct DataFree {
+  void operator()(lode_data* p) const noexcept { lode_data_free(p); }
+};
+struct CorrFree {
+  void operator()(lode_correlation* p) const noexcept { lode_correlation_free(p); }
+};
+
+// A C ABI failure as the exception the service reports.
+[[noreturn]] void fail(int status, const std::string& what) {
+  if (status == LODE_E_CANCELLED) throw Cancelled{};
+  std::string msg = what + ": " + lode_last_error();
+  if (status == LODE_E_INVALID_ARGUMENT || status == LODE_E_INSUFFICIENT_DATA || status == LODE_E_TOO_MANY_FACTORS ||
+      status == LODE_E_NOT_POSITIVE_DEFINITE)
+    throw std::invalid_argument(msg);
+  throw std::runtime_error(msg + " (" + lode_status_name(status) + ")");
+}
+void check(int status, const std::string& what) {
+  if (status != LODE_OK) fail(status, what);
+}
+
+std::vector<double> read_corr_matrix(const lode_correlation* c, int key, std::int64_t* rows, std::int64_t* cols) {
+  check(lode_correlation_matrix(c, key, nullptr, 0, rows, cols), "reading a result");
+  std::vector<double> out(static_cast<std::size_t>(*rows * *cols));
+  check(lode_correlation_matrix(c, key, out.data(), out.size(), rows, cols), "reading a result");
+  return out;
+}
+double read_corr_value(const lode_correlation* c, int key) {
+  double v = kNaN;
+  check(lode_correlation_value(c, key, &v), "reading a result");
+  return v;
+}
+std::string read_corr_notes(const lode_correlation* c) {
+  size_t len = 0;
+  if (lode_correlation_text(c, LODE_CORRELATION_NOTES, nullptr, 0, &len) != LODE_OK) return {};
+  std::string s(len + 1, '\0');
+  if (lode_correlation_text(c, LODE_CORRELATION_NOTES, s.data(), s.size(), &len) != LODE_OK) return {};
+  s.resize(len);
+  return s;
+}
+
+struct FactFree {
+  void operator()(lode_factorability* p) const noexcept { lode_factorability_free(p); }
+};
+
+// A factorability result that may be unavailable: the value, or the C ABI's reason.
+struct Maybe {
+  double value = kNaN;
+  std::string reason;  // empty when the value is there
+};
+Maybe fact_value(const lode_factorability* f, int key) {
+  Maybe m;
+  if (lode_factorability_value(f, key, &m.value) != LODE_OK) m.reason = lode_last_error();
+  return m;
+}
+std::string fact_text(const lode_factorability* f, int key) {
+  size_t len = 0;
+  if (lode_factorability_text(f, key, nullptr, 0, &len) != LODE_OK) return {};
+  std::string s(len + 1, '\0');
+  if (lode_factorability_text(f, key, s.data(), s.size(), &len) != LODE_OK) return {};
+  s.resize(len);
+  return s;
+}
+std::vector<double> fact_vector(const lode_factorability* f, int key, std::string& reason) {
+  std::int64_t r = 0, c = 0;
+  if (lode_factorability_matrix(f, key, nullptr, 0, &r, &c) != LODE_OK) {
+    reason = lode_last_error();
+    return {};
+  }
+  std::vector<double> out(static_cast<std::size_t>(r * c));
+  if (lode_factorability_matrix(f, key, out.data(), out.size(), &r, &c) != LODE_OK) {
+    reason = lode_last_error();
+    return {};
+  }
+  return out;
+}
+std::vector<std::string> lines_of(const std::string& text) {
+  std::vector<std::string> out;
+  std::size_t start = 0;
+  while (start < text.size()) {
+    std::size_t end = text.find('\n', start);
+    if (end == std::string::npos) end = text.size();
+    if (end > start) out.push_back(text.substr(start, end - start));
+    start = end + 1;
+  }
+  return out;
+}
+
+// Progress from the C ABI into the run's callback (which may cancel).
+struct ProgressBridge {
+  const Progress* progress;
+  std::string phase;
+  double from, to;
+  static int call(void* user, std::int64_t done, std::int64_t total) {
+    auto* self = static_cast<ProgressBridge*>(user);
+    double share = total > 0 ? static_cast<double>(done) / static_cast<double>(total) : 0.0;
+    bool go_on = !*self->progress || (*self->progress)(self->phase, self->from + (self->to - self->from) * share);
+    return go_on ? 0 : 1;
+  }
+};
+
+const char* correlation_words(const std::string& kind) {
+  if (kind == "spearman") return "Spearman (rank order)";
+  if (kind == "polychoric") return "polychoric (ordered answer categories)";
+  return "Pearson (answers taken as numbers)";
+}
+const char* missing_words(const std::string& m) {
+  return m == "listwise" ? "only respondents who answered every item (listwise)"
+                         : "each pair of items uses everyone who answered both (pairwise)";
+}
+
+// What the C ABI of this build cannot compute yet; each line says so in the report.
+constexpr const char* kNotYet = "not in this liblode yet (C ABI ";
+
+std::string not_yet() {
+  const lode_version_info* v = lode_version();
+  return std::string(kNotYet) + std::to_string(v->abi_major) + "." + std::to_string(v->abi_minor) + ")";
+}
+
+
+// How many factors, through the C ABI's factor count when this liblode has it (report.cmake sets
+// LODE_REPORT_HAS_COUNT from lode.h); otherwise `reason` says what is missing.
+struct CountResult {
+  bool available = false;
+  std::string reason;
+  std::vector<double> random_pc;  // 95th percentile of random-data component eigenvalues
+  double percentile = 95.0;
+  int replicates = 0;
+  int suggested = 0;
+  std::string why;
+  struct Rule {
+    std::string rule, factors, basis;
+    bool primary = false;
+  };
+  std::vector<Rule> rules;
+  std::vector<std::string> notes;
+};
+
+#if LODE_REPORT_HAS_COUNT
+struct CountFree {
+  void operator()(lode_factor_count* p) const noexcept { lode_factor_count_free(p); }
+};
+std::string count_text(const lode_factor_count* f, int key) {
+  size_t len = 0;
+  if (lode_factor_count_text(f, key, nullptr, 0, &len) != LODE_OK) return {};
+  std::string s(len + 1, '\0');
+  if (lode_factor_count_text(f, key, s.data(), s.size(), &len) != LODE_OK) return {};
+  s.resize(len);
+  return s;
+}
+#endif
+
+CountResult count_factors(const lode_correlation* corr, const Options& o, const Progress& progress,
+                          const std::string& missing_feature) {
+  CountResult r;
+#if LODE_REPORT_HAS_COUNT
+  lode_factor_count_options opts;
+  lode_factor_count_options_init(&opts, sizeof opts);
+  opts.seed = o.seed;
+  opts.threads = 1;  // the office's other work keeps a core
+  ProgressBridge bridge{&progress, "parallel analysis", 0.5, 0.9};
+  opts.progress = &ProgressBridge::call;
+  opts.progress_user = &bridge;
+  lode_factor_count* raw = nullptr;
+  const int st = lode_count_factors(corr, &opts, &raw);
+  if (st == LODE_E_CANCELLED) throw Cancelled{};
+  if (st != LODE_OK) {
+    r.reason = lode_last_error();
+    return r;
+  }
+  std::unique_ptr<lode_factor_count, CountFree> count(raw);
+  std::int64_t rows = 0, cols = 0;
+  check(lode_factor_count_matrix(count.get(), LODE_COUNT_RANDOM_PC_PERCENTILE, nullptr, 0, &rows, &cols), "parallel analysis");
+  r.random_pc.resize(static_cast<std::size_t>(rows * cols));
+  check(lode_factor_count_matrix(count.get(), LODE_COUNT_RANDOM_PC_PERCENTILE, r.random_pc.data(), r.random_pc.size(),
+                                 &rows, &cols),
+        "parallel analysis");
+  double v = 0;
+  check(lode_factor_count_value(count.get(), LODE_COUNT_SUGGESTED, &v), "the factor count");
+  r.suggested = static_cast<int>(v);
+  check(lode_factor_count_value(count.get(), LODE_COUNT_PERCENTILE, &r.percentile), "the factor count");
+  check(lode_factor_count_value(count.get(), LODE_COUNT_REPLICATES, &v), "the factor count");
+  r.replicates = static_cast<int>(v);
+  r.why = count_text(count.get(), LODE_COUNT_REASON);
+  for (const std::string& line : lines_of(count_text(count.get(), LODE_COUNT_TABLE))) {
+    CountResult::Rule rule;
+    std::size_t a = line.find('\t'), b = line.find('\t', a + 1), c = line.find('\t', b + 1);
+    if (a == std::string::npos || b == std::string::npos || c == std::string::npos) continue;
+    rule.rule = line.substr(0, a);
+    rule.factors = line.substr(a + 1, b - a - 1);
+    rule.primary = line.substr(b + 1, c - b - 1) == "1";
+    rule.basis = line.substr(c + 1);
+    r.rules.push_back(rule);
+  }
+  r.notes = lines_of(count_text(count.get(), LODE_COUNT_NOTES));
+  r.available = true;
+  (void)missing_feature;
+#else
+  (void)corr;
+  (void)o;
+  (void)progress;
+  r.reason = "parallel analysis is " + missing_feature;
+#endif
+  return r;
+}
+
+// The fitted model (extraction, rotation, fit, residuals) through the C ABI's lode_fit when this
+// liblode has it (report.cmake sets LODE_REPORT_HAS_FIT from lode.h); otherwise `reason` says why not.
+struct ModelResult {
+  bool available = false;
+  std::string reason;
+  int factors = 0;
+  bool oblique = false;
+  std::string rotation_used;
+  std::vector<double> loadings, structure, phi, communalities, uniquenesses, residuals, heywood, ss;
+  double rmsr = kNaN, max_residual = kNaN;
+  bool have_stats = false;
+  std::string stats_reason;
+  double chi2 = kNaN, df = kNaN, p = kNaN, rmsea = kNaN, rmsea_lo = kNaN, rmsea_hi = kNaN, tli = kNaN, bic = kNaN;
+  std::vector<std::string> notes;
+};
+
+#if LODE_REPORT_HAS_FIT
+struct ModelFree {
+  void operator()(lode_model* p) const noexcept { lode_model_free(p); }
+};
+std::vector<double> model_matrix(const lode_model* m, int key) {
+  std::int64_t r = 0, c = 0;
+  check(lode_model_matrix(m, key, nullptr, 0, &r, &c), "reading the model");
+  std::vector<double> out(static_cast<std::size_t>(r * c));
+  check(lode_model_matrix(m, key, out.data(), out.size(), &r, &c), "reading the model");
+  return out;
+}
+double model_value(const lode_model* m, int key) {
+  double v = kNaN;
+  check(lode_model_value(m, key, &v), "reading the model");
+  return v;
+}
+#endif
+
+ModelResult fit_model(const lode_correlation* corr, const Options& o, int factors, const std::string& missing_feature) {
+  ModelResult r;
+  r.factors = factors;
+#if LODE_REPORT_HAS_FIT
+  (void)missing_feature;
+  lode_fit_options fo;
+  lode_fit_options_init(&fo, sizeof fo);
+  fo.factors = factors;
+  fo.method = o.extraction == "ml" ? LODE_ML : o.extraction == "paf" ? LODE_PAF : LODE_MINRES;
+  lode_rotation_options ro;
+  lode_rotation_options_init(&ro, sizeof ro);
+  ro.seed = o.seed;
+  ro.threads = 1;
+  r.rotation_used = o.rotation;
+  if (o.rotation == "oblimin") {
+    ro.method = LODE_ROTATION_OBLIMIN;
+    ro.gamma = o.rotation_parameter;
+  } else if (o.rotation == "promax") {
+    ro.method = LODE_ROTATION_PROMAX;
+    if (o.rotation_parameter > 0) ro.power = o.rotation_parameter;
+  } else {
+    ro.method = LODE_ROTATION_VARIMAX;
+  }
+  if (o.rotation != "none" && factors >= 2) fo.rotation = &ro;
+  else if (o.rotation != "none") r.rotation_used = "none (one factor cannot be rotated)";
+  lode_model* raw = nullptr;
+  const int st = lode_fit(corr, &fo, &raw);
+  if (st == LODE_E_CANCELLED) throw Cancelled{};
+  if (st != LODE_OK) {
+    r.reason = lode_last_error();
+    return r;
+  }
+  std::unique_ptr<lode_model, ModelFree> m(raw);
+  r.loadings = model_matrix(m.get(), LODE_MODEL_LOADINGS);
+  r.structure = model_matrix(m.get(), LODE_MODEL_STRUCTURE);
+  r.phi = model_matrix(m.get(), LODE_MODEL_FACTOR_CORRELATIONS);
+  r.communalities = model_matrix(m.get(), LODE_MODEL_COMMUNALITIES);
+  r.uniquenesses = model_matrix(m.get(), LODE_MODEL_UNIQUENESSES);
+  r.residuals = model_matrix(m.get(), LODE_MODEL_RESIDUALS);
+  r.heywood = model_matrix(m.get(), LODE_MODEL_HEYWOOD);
+  r.ss = model_matrix(m.get(), LODE_MODEL_SS_LOADINGS);
+  r.oblique = model_value(m.get(), LODE_MODEL_OBLIQUE) > 0.5;
+  r.rmsr = model_value(m.get(), LODE_MODEL_RMSR);
+  r.max_residual = model_value(m.get(), LODE_MODEL_MAX_ABS_RESIDUAL);
+  double v = kNaN;
+  if (lode_model_value(m.get(), LODE_MODEL_CHI_SQUARE, &v) == LODE_OK) {
+    r.have_stats = true;
+    r.chi2 = v;
+    r.df = model_value(m.get(), LODE_MODEL_DF);
+    r.p = model_value(m.get(), LODE_MODEL_P_VALUE);
+    r.rmsea = model_value(m.get(), LODE_MODEL_RMSEA);
+    r.rmsea_lo = model_value(m.get(), LODE_MODEL_RMSEA_LOWER);
+    r.rmsea_hi = model_value(m.get(), LODE_MODEL_RMSEA_UPPER);
+    r.tli = model_value(m.get(), LODE_MODEL_TLI);
+    r.bic = model_value(m.get(), LODE_MODEL_BIC);
+  } else {
+    r.stats_reason = lode_last_error();
+  }
+  size_t len = 0;
+  if (lode_model_text(m.get(), LODE_MODEL_NOTES, nullptr, 0, &len) == LODE_OK) {
+    std::string t(len + 1, '\0');
+    if (lode_model_text(m.get(), LODE_MODEL_NOTES, t.data(), t.size(), &len) == LODE_OK) {
+      t.resize(len);
+      r.notes = lines_of(t);
+    }
+  }
+  r.available = true;
+#else
+  (void)corr;
+  (void)o;
+  r.reason = "factor extraction is " + missing_feature;
+#endif
+  return r;
+}
+
+// Items in reading order: grouped by the factor of their largest absolute loading (factor 1 first),
+// within a group by that loading's size, largest first.
+std::vector<std::size_t> loading_order(const std::vector<double>& L, std::size_t p, std::size_t k) {
+  std::vector<std::size_t> idx(p), home(p);
+  for (std::size_t j = 0; j < p; ++j) {
+    idx[j] = j;
+    std::size_t best = 0;
+    for (std::size_t f = 1; f < k; ++f)
+      if (std::fabs(L[j * k + f]) > std::fabs(L[j * k + best])) best = f;
+    home[j] = best;
+  }
+  std::stable_sort(idx.begin(), idx.end(), [&](std::size_t a, std::size_t b) {
+    if (home[a] != home[b]) return home[a] < home[b];
+    return std::fabs(L[a * k + home[a]]) > std::fabs(L[b * k + home[b]]);
+  });
+  return idx;
+}
+}  // namespace
+
+void validate(const Options& o) {
+  if (o.header < -1 || o.header > 1) throw std::invalid_argument("option HeaderRow must be -1 (detect), 0 or 1");
+  require("Correlation", o.correlation, {"pearson", "spearman", "polychoric"});
+  require("Missing", o.missing, {"pairwise", "listwise"});
+  require("Extraction", o.extraction, {"minres", "ml", "paf"});
+  require("Rotation", o.rotation, {"oblimin", "promax", "varimax", "none"});
+  require("Scores", o.scores, {"none", "regression", "bartlett"});
+  require("ScoresPlace", o.scores_place, {"beside", "sheet"});
+  if (o.factors < 0 || o.factors > 100) throw std::invalid_argument("option Factors must be 0 (suggest) to 100");
+  if (o.bootstrap < 0 || o.bootstrap > 100000) throw std::invalid_argument("option Bootstrap must be 0 (off) to 100000 resamples");
+  if (!(o.salient > 0.0 && o.salient < 1.0)) throw std::invalid_argument("option Salient must lie between 0 and 1");
+  if (!std::isfinite(o.rotation_parameter)) throw std::invalid_argument("option RotationParameter must be a number");
+}
+
+bool detect_header(const SourceTable& t) {
+  if (t.rows < 2) return false;
+  bool any_text = false;
+  for (std::size_t c = 0; c < t.cols; ++c) {
+    const SourceCell& s = t.at(0, c);
+    if (s.kind == SourceCell::Kind::number) return false;
+    if (s.kind == SourceCell::Kind::text) any_text = true;
+  }
+  if (!any_text) return false;
+  for (std::size_t r = 1; r < t.rows; ++r)
+    for (std::size_t c = 0; c < t.cols; ++c)
+      if (t.at(r, c).kind == SourceCell::Kind::number) return true;
+  return false;
+}
+
+std::vector<Column> describe_columns(const SourceTable& t, bool header) {
+  std::vector<Column> out(t.cols);
+  for (std::size_t c = 0; c < t.cols; ++c) {
+    Column& col = out[c];
+    const std::string letter = c < t.column_letters.size() ? t.column_letters[c] : std::to_string(c + 1);
+    col.name = header && t.at(0, c).kind == SourceCell::Kind::text && !t.at(0, c).text.empty() ? t.at(0, c).text
+                                                                                              : "column " + letter;
+    for (std::size_t r = header ? 1 : 0; r < t.rows; ++r) {
+      const SourceCell& s = t.at(r, c);
+      if (s.kind == SourceCell::Kind::number) col.numeric = true;
+      else if (s.kind == SourceCell::Kind::text) ++col.text_cells;
+    }
+  }
+  return out;
+}
+
+std::uint64_t hash_values(const std::vector<double>& values, const std::vector<std::string>& names) {
+  std::uint64_t h = 0xcbf29ce484222325ULL;
+  auto byte = [&h](unsigned char b) {
+    h ^= b;
+    h *= 0x100000001b3ULL;
+  };
+  for (double v : values) {
+    std::uint64_t bits;
+    if (std::isnan(v)) bits = 0x7ff8000000000000ULL;
+    else std::memcpy(&bits, &v, sizeof bits);
+    for (int i = 0; i < 8; ++i) byte(static_cast<unsigned char>(bits >> (8 * i)));
+  }
+  for (const std::string& n : names) {
+    for (unsigned char ch : n) byte(ch);
+    byte(0);
+  }
+  return h;
+}
+
+Report build_report(const SourceTable& src, const Options& o, const std::string& timestamp, const Progress& progress) {
+  validate(o);
+  auto step = [&](const std::string& phase, double share) {
+    if (progress && !progress(phase, share)) throw Cancelled{};
+  };
+  step("reading the data", 0.0);
+
+  // ---- the items ----------------------------------------------------------------------------
+  const bool header = o.header == -1 ? detect_header(src) : o.header == 1;
+  const std::vector<Column> columns = describe_columns(src, header);
+  std::vector<std::size_t> chosen;
+  if (o.items.empty()) {
+    for (std::size_t c = 0; c < columns.size(); ++c)
+      if (columns[c].numeric) chosen.push_back(c);
+  } else {
+    for (const std::string& want : o.items) {
+      auto it = std::find_if(columns.begin(), columns.end(), [&](const Column& c) { return c.name == want; });
+      if (it == columns.end()) throw std::invalid_argument("item \"" + want + "\" is not a column of " + src.address);
+      std::size_t c = static_cast<std::size_t>(it - columns.begin());
+      if (!it->numeric) throw std::invalid_argument("item \"" + want + "\" holds no numbers");
+      if (std::find(chosen.begin(), chosen.end(), c) == chosen.end()) chosen.push_back(c);
+    }
+  }
+  if (chosen.size() < 3)
+    throw std::invalid_argument("only " + std::to_string(chosen.size()) + " columns with numbers in " + src.address +
+                                "; a factor analysis needs at least 3 items");
+  const std::size_t first = header ? 1 : 0;
+  const std::size_t n_rows = src.rows - first;
+  const std::size_t p = chosen.size();
+  std::vector<double> values(n_rows * p, kNaN);
+  std::vector<std::string> item_names;
+  std::size_t text_as_missing = 0;
+  for (std::size_t j = 0; j < p; ++j) {
+    item_names.push_back(columns[chosen[j]].name);
+    text_as_missing += columns[chosen[j]].text_cells;
+    for (std::size_t r = 0; r < n_rows; ++r) {
+      const SourceCell& s = src.at(first + r, chosen[j]);
+      if (s.kind == SourceCell::Kind::number) values[r * p + j] = s.number;
+    }
+  }
+
+  Report rep;
+  rep.values_hash = hash_values(values, item_names);
+
+  // ---- correlations through the C ABI -------------------------------------------------------
+  step("computing correlations", 0.05);
+  lode_data* raw_data = nullptr;
+  check(lode_data_from_raw(values.data(), static_cast<std::int64_t>(n_rows), static_cast<std::int64_t>(p),
+                           static_cast<std::int64_t>(p), 1, &raw_data),
+        "reading the items");
+  std::unique_ptr<lode_data, DataFree> data(raw_data);
+  std::vector<const char*> cnames;
+  for (const std::string& n : item_names) cnames.push_back(n.c_str());
+  check(lode_data_set_item_names(data.get(), cnames.data(), static_cast<std::int64_t>(p)), "naming the items");
+
+  lode_correlation_options copts;
+  lode_correlation_options_init(&copts, sizeof copts);
+  copts.kind = o.correlation == "spearman" ? LODE_SPEARMAN : o.correlation == "polychoric" ? LODE_POLYCHORIC : LODE_PEARSON;
+  copts.missing = o.missing == "listwise" ? LODE_LISTWISE : LODE_PAIRWISE;
+  copts.threads = 1;  // the office's other work keeps a core
+  ProgressBridge bridge{&progress, "computing correlations", 0.05, 0.5};
+  copts.progress = &ProgressBridge::call;
+  copts.progress_user = &bridge;
+  lode_correlation* raw_corr = nullptr;
+  check(lode_correlate(data.get(), &copts, &raw_corr), "computing the correlations");
+  std::unique_ptr<lode_correlation, CorrFree> corr(raw_corr);
+  step("laying out the report", 0.9);
+
+  std::int64_t r_rows = 0, r_cols = 0;
+  const std::vector<double> R = read_corr_matrix(corr.get(), LODE_CORRELATION_MATRIX, &r_rows, &r_cols);
+  const std::vector<double> eig = read_corr_matrix(corr.get(), LODE_CORRELATION_EIGENVALUES, &r_rows, &r_cols);
+  std::vector<double> smc;
+  std::string smc_problem;
+  {
+    std::int64_t a = 0, b = 0;
+    int st = lode_correlation_matrix(corr.get(), LODE_CORRELATION_SMC, nullptr, 0, &a, &b);
+    if (st == LODE_OK) smc = read_corr_matrix(corr.get(), LODE_CORRELATION_SMC, &a, &b);
+    else smc_problem = lode_last_error();
+  }
+  const double rows_total = read_corr_value(corr.get(), LODE_CORRELATION_ROWS_TOTAL);
+  const double rows_used = read_corr_value(corr.get(), LODE_CORRELATION_ROWS_USED);
+  const double rows_complete = read_corr_value(corr.get(), LODE_CORRELATION_ROWS_COMPLETE);
+  const double n_obs = read_corr_value(corr.get(), LODE_CORRELATION_N_OBS);
+  const double missing_share = read_corr_value(corr.get(), LODE_CORRELATION_MISSING_FRACTION);
+  const double pos_def = read_corr_value(corr.get(), LODE_CORRELATION_POSITIVE_DEFINITE);
+  const std::string notes = read_corr_notes(corr.get());
+
+  // Factorability (KMO, MSA, Bartlett) through the C ABI; parts it cannot compute come with a reason.
+  lode_factorability* raw_fact = nullptr;
+  check(lode_assess_factorability(corr.get(), &raw_fact), "assessing factorability");
+  std::unique_ptr<lode_factorability, FactFree> fact(raw_fact);
+  const Maybe kmo = fact_value(fact.get(), LODE_FACTORABILITY_KMO);
+  const std::string kmo_label = fact_text(fact.get(), LODE_FACTORABILITY_KMO_LABEL);
+  const Maybe chi2 = fact_value(fact.get(), LODE_FACTORABILITY_BARTLETT_CHI_SQUARE);
+  const Maybe chi2_df = fact_value(fact.get(), LODE_FACTORABILITY_BARTLETT_DF);
+  const Maybe chi2_p = fact_value(fact.get(), LODE_FACTORABILITY_BARTLETT_P_VALUE);
+  std::string msa_reason;
+  const std::vector<double> msa = fact_vector(fact.get(), LODE_FACTORABILITY_MSA, msa_reason);
+  const std::vector<std::string> fact_notes = lines_of(fact_text(fact.get(), LODE_FACTORABILITY_NOTES));
+
+  // Eigenvalues above 1: common practice (Kaiser 1960), known to over-count; shown as one piece of evidence.
+  std::size_t above_one = 0;
+  double total = 0.0;
+  for (double e : eig) {
+    total += e;
+    if (e > 1.0) ++above_one;
+  }
+  const std::string missing_feature = not_yet();
+  const CountResult count = count_factors(corr.get(), o, progress, missing_feature);
+  step("fitting the factor model", 0.92);
+  const int k_decided = o.factors > 0 ? o.factors : count.available ? count.suggested : 0;
+  ModelResult model;
+  if (k_decided > 0) model = fit_model(corr.get(), o, k_decided, missing_feature);
+  else model.reason = count.available ? "no factor stands out from random data" : count.reason;
+  const std::size_t k = model.available ? static_cast<std::size_t>(model.factors) : 0;
+  using namespace styles;
+
+  // ---- 1. overview --------------------------------------------------------------------------
+  Sheet ov;
+  ov.base_name = names::overview;
+  ov.column_widths = {7000, 4500, 4000, 4000, 4000};
+  ov.line({Cell::txt("Lode factor analysis report", title)});
+  ov.line({Cell::txt("Written " + timestamp + ". The sheets of this report:", note)});
+  for (const char* s : {names::overview, names::loadings, names::factors, names::scree, names::record})
+    ov.line({Cell::txt(s, label)});
+  ov.blank();
+  ov.line({Cell::txt("Data used", heading), Cell::txt("", heading)});
+  ov.line({Cell::txt("Source range", label), Cell::txt(src.address)});
+  ov.line({Cell::txt("First row holds item names", label), Cell::txt(header ? "yes" : "no")});
+  ov.line({Cell::txt("Items analysed", label), Cell::num(static_cast<double>(p))});
+  ov.line({Cell::txt("Respondents in the range", label), Cell::num(rows_total)});
+  ov.line({Cell::txt("Respondents used", label), Cell::num(rows_used)});
+  ov.line({Cell::txt("Respondents who answered every item", label), Cell::num(rows_complete)});
+  ov.line({Cell::txt("Sample size for tests", label), Cell::num(n_obs)});
+  ov.line({Cell::txt("Share of answers missing", label), Cell::num(missing_share, number)});
+  ov.line({Cell::txt("Missing answers", label), Cell::txt(missing_words(o.missing))});
+  ov.line({Cell::txt("Correlations", label), Cell::txt(correlation_words(o.correlation))});
+  if (text_as_missing > 0)
+    ov.line({Cell::txt("Text cells among the answers", label), Cell::num(static_cast<double>(text_as_missing)),
+             Cell::txt("read as missing answers", note)});
+  ov.blank();
+  ov.line({Cell::txt("Can these items be factored?", heading), Cell::txt("", heading)});
+  ov.line({Cell::txt("Correlation matrix positive definite", label), Cell::txt(pos_def > 0.5 ? "yes" : "no")});
+  if (kmo.reason.empty())
+    ov.line({Cell::txt("KMO sampling adequacy", label), Cell::num(kmo.value, number),
+             Cell::txt(kmo_label + " (Kaiser 1974); under 0.50 the items share too little to factor", note)});
+  else
+    ov.line({Cell::txt("KMO sampling adequacy", label), Cell::txt("not available: " + kmo.reason, note)});
+  if (chi2.reason.empty()) {
+    ov.line({Cell::txt("Bartlett's test: chi-square", label), Cell::num(chi2.value, number)});
+    ov.line({Cell::txt("Bartlett's test: degrees of freedom", label), Cell::num(chi2_df.value)});
+    ov.line({Cell::txt("Bartlett's test: p-value", label), Cell::num(chi2_p.value),
+             Cell::txt(chi2_p.value < 0.001 ? "p < 0.001: the items are correlated, not unrelated (p < 0.05; common practice)"
+                       : chi2_p.value < 0.05 ? "the items are correlated, not unrelated (p < 0.05; common practice)"
+                                          : "the items may be unrelated: p is 0.05 or more (common practice)",
+                       note)});
+  } else {
+    ov.line({Cell::txt("Bartlett's test of sphericity", label), Cell::txt("not available: " + chi2.reason, note)});
+  }
+  for (const std::string& n : fact_notes) ov.line({Cell::txt("Note on factorability", flag), Cell::txt(n, note)});
+  ov.blank();
+  ov.line({Cell::txt("How many factors", heading), Cell::txt("", heading), Cell::txt("", heading), Cell::txt("", heading)});
+  const std::string random_words =
+      count.available ? "Random data (" + fmt_num(count.percentile, 0) + "th percentile of " +
+                            std::to_string(count.replicates) + ")"
+                      : "Random data (parallel analysis)";
+  ov.line({Cell::txt("Factor", label), Cell::txt("Eigenvalue", label), Cell::txt("Share of variance", label),
+           Cell::txt(random_words, label)});
+  for (std::size_t k = 0; k < eig.size(); ++k)
+    ov.line({Cell::num(static_cast<double>(k + 1)), Cell::num(eig[k], number), Cell::num(eig[k] / total, number),
+             count.available && k < count.random_pc.size() ? Cell::num(count.random_pc[k], number)
+                                                            : Cell::txt(k == 0 ? count.reason : "", note)});
+  if (count.available) {
+    ov.line({Cell::txt("Rule", label), Cell::txt("Factors", label), Cell::txt("Basis", label)});
+    for (const CountResult::Rule& r : count.rules)
+      ov.line({Cell::txt(r.rule, r.primary ? salient : label), Cell::txt(r.factors), Cell::txt(r.basis, note)});
+    for (const std::string& n : count.notes) ov.line({Cell::txt("Note on the count", flag), Cell::txt(n, note)});
+  } else {
+    ov.line({Cell::txt("Eigenvalues above 1", label), Cell::num(static_cast<double>(above_one)),
+             Cell::txt("a rule of thumb that tends to suggest too many factors (common practice)", note)});
+  }
+  if (o.factors > 0)
+    ov.line({Cell::txt("Decision", label), Cell::num(o.factors),
+             Cell::txt(count.available ? "factors, as you fixed them; the evidence suggests " + std::to_string(count.suggested)
+                                       : std::string("factors, as you fixed them"),
+                       note)});
+  else if (count.available)
+    ov.line({Cell::txt("Decision", label), Cell::num(count.suggested), Cell::txt(count.why, note)});
+  else
+    ov.line({Cell::txt("Decision", label), Cell::txt("not made: " + count.reason, note)});
+  ov.blank();
+  ov.line({Cell::txt("How well the model fits", heading), Cell::txt("", heading)});
+  if (!model.available) {
+    ov.line({Cell::txt("Fit statistics (RMSEA, TLI, RMSR)", label), Cell::txt("not available: " + model.reason, note)});
+  } else {
+    ov.line({Cell::txt("Factors in the model", label), Cell::num(static_cast<double>(k)),
+             Cell::txt(o.extraction + ", rotation " + model.rotation_used, note)});
+    ov.line({Cell::txt("Root mean square residual (RMSR)", label), Cell::num(model.rmsr, number),
+             Cell::txt(model.rmsr <= 0.05 ? "small: the model reproduces the correlations well (0.05 or less; common practice)"
+                                          : model.rmsr <= 0.08 ? "acceptable (0.08 or less; common practice)"
+                                                               : "large: correlations the factors do not explain (above 0.08; common practice)",
+                       note)});
+    if (model.have_stats) {
+      ov.line({Cell::txt("Chi-square", label), Cell::num(model.chi2, number), Cell::txt("degrees of freedom", note),
+               Cell::num(model.df)});
+      ov.line({Cell::txt("p-value", label), Cell::num(model.p),
+               Cell::txt("with a few hundred respondents even small misfit gives a small p; read RMSEA and TLI too "
+                         "(common practice)",
+                         note)});
+      ov.line({Cell::txt("RMSEA", label), Cell::num(model.rmsea, number),
+               Cell::txt(model.rmsea <= 0.05 ? "close fit (0.05 or less; Browne and Cudeck 1993)"
+                         : model.rmsea <= 0.08 ? "reasonable fit (0.08 or less; Browne and Cudeck 1993)"
+                         : model.rmsea <= 0.10 ? "mediocre fit (0.10 or less; MacCallum, Browne and Sugawara 1996)"
+                                               : "poor fit (above 0.10; MacCallum, Browne and Sugawara 1996)",
+                         note)});
+      ov.line({Cell::txt("RMSEA interval (90%)", label), Cell::num(model.rmsea_lo, number), Cell::txt("to", note),
+               Cell::num(model.rmsea_hi, number)});
+      ov.line({Cell::txt("TLI", label), Cell::num(model.tli, number),
+               Cell::txt(model.tli >= 0.95 ? "good (0.95 or more; Hu and Bentler 1999)"
+                                           : model.tli >= 0.90 ? "acceptable (0.90 or more; common practice)"
+                                                               : "weak (under 0.90; common practice)",
+                         note)});
+      ov.line({Cell::txt("BIC", label), Cell::num(model.bic, number), Cell::txt("lower is better when comparing models", note)});
+    } else {
+      ov.line({Cell::txt("Chi-square, RMSEA, TLI", label), Cell::txt("not available: " + model.stats_reason, note)});
+    }
+    for (const std::string& n : model.notes) ov.line({Cell::txt("Note on the model", flag), Cell::txt(n, note)});
+  }
+  ov.blank();
+  ov.line({Cell::txt("Items to look at", heading), Cell::txt("", heading), Cell::txt("", heading)});
+  bool any_flag = false;
+  if (model.available)
+    for (std::size_t j = 0; j < p; ++j) {
+      std::size_t strong = 0;
+      for (std::size_t f = 0; f < k; ++f)
+        if (std::fabs(model.loadings[j * k + f]) >= o.salient) ++strong;
+      std::string why;
+      if (model.heywood[j] > 0.5)
+        why = "an improper solution for this item (communality at or above 1): the model cannot be trusted for it";
+      else if (strong == 0)
+        why = "no loading reaches " + fmt_num(o.salient, 2) + ": it does not clearly belong to any factor";
+      else if (strong > 1)
+        why = "loads on " + std::to_string(strong) + " factors at " + fmt_num(o.salient, 2) +
+              " or more: it measures more than one thing";
+      if (why.empty()) continue;
+      any_flag = true;
+      ov.line({Cell::txt(item_names[j], flag), Cell::num(model.communalities[j], number), Cell::txt(why, note)});
+    }
+  for (std::size_t j = 0; j < msa.size() && j < p; ++j)
+    if (msa[j] < 0.50) {  // Kaiser (1974): a sampling adequacy under 0.50 is unacceptable
+      any_flag = true;
+      ov.line({Cell::txt(item_names[j], flag), Cell::num(msa[j], number),
+               Cell::txt("its sampling adequacy (MSA) is under 0.50: the other items say little about it; "
+                         "consider leaving it out",
+                         note)});
+    }
+  if (!smc.empty()) {
+    for (std::size_t j = 0; j < p; ++j)
+      if (smc[j] < 0.20) {  // common practice: an item sharing under a fifth of its variance with the rest
+        any_flag = true;
+        ov.line({Cell::txt(item_names[j], flag), Cell::num(smc[j], number),
+                 Cell::txt("shares little with the other items (squared multiple correlation under 0.20); "
+                           "check its wording and whether it belongs to this questionnaire",
+                           note)});
+      }
+  } else {
+    ov.line({Cell::txt("Squared multiple correlations", label), Cell::txt(smc_problem, note)});
+  }
+  if (!notes.empty()) {
+    std::size_t start = 0;
+    while (start < notes.size()) {
+      std::size_t end = notes.find('\n', start);
+      if (end == std::string::npos) end = notes.size();
+      if (end > start) {
+        any_flag = true;
+        ov.line({Cell::txt("Note on the correlations", flag), Cell::txt(notes.substr(start, end - start), note)});
+      }
+      start = end + 1;
+    }
+  }
+  if (!any_flag) ov.line({Cell::txt("No item stands out.", note)});
+  ov.blank();
+  ov.line({Cell::txt("Before using factor scores about people", heading), Cell::txt("", heading)});
+  for (const char* s :
+       {"Factor scores are estimates with error, not measurements of a person.",
+        "An instrument needs evidence of validity for the intended use before scores inform decisions about "
+        "individuals (selection, rating, diagnosis).",
+        "Professional testing standards and local law govern such use; follow them, and prefer group summaries "
+        "where a decision about one person is not needed."})
+    ov.line({Cell::txt(s, caution)});
+  if (o.scores != "none")
+    ov.line({Cell::txt("Factor scores were asked for: " + missing_feature + "; none were written.", note)});
+  if (o.bootstrap > 0)
+    ov.line({Cell::txt("Bootstrap intervals were asked for: " + missing_feature + "; none were written.", note)});
+  rep.sheets.push_back(std::move(ov));
+
+  // ---- 2. loadings --------------------------------------------------------------------------
+  Sheet ld;
+  ld.base_name = names::loadings;
+  ld.column_widths = {5000, 3000, 3000, 3000, 3000, 3000, 3000, 3000};
+  ld.line({Cell::txt("Loadings", title)});
+  ld.line({Cell::txt("Strong loadings (at least " + fmt_num(o.salient, 2) + ") are shaded; small ones are grey.", note)});
+  if (!model.available) {
+    ld.line({Cell::txt("Factor loadings: " + model.reason + ". Shown until then: each item's starting "
+                       "communality estimate.",
+                       note)});
+  } else {
+    ld.line({Cell::txt("Items are grouped by the factor they load on most, largest loading first.", note)});
+    if (o.bootstrap > 0) ld.line({Cell::txt("Bootstrap intervals: " + missing_feature, note)});
+    ld.blank();
+    std::vector<Cell> hdr{Cell::txt("Item", heading)};
+    for (std::size_t f = 0; f < k; ++f) hdr.push_back(Cell::txt("Factor " + std::to_string(f + 1), heading));
+    hdr.push_back(Cell::txt("Communality", heading));
+    hdr.push_back(Cell::txt("Uniqueness", heading));
+    ld.line(std::move(hdr));
+    for (std::size_t j : loading_order(model.loadings, p, k)) {
+      std::vector<Cell> row{Cell::txt(item_names[j], label)};
+      for (std::size_t f = 0; f < k; ++f) {
+        const double v = model.loadings[j * k + f];
+        row.push_back(Cell::num(v, std::fabs(v) >= o.salient ? salient : faint));
+      }
+      row.push_back(Cell::num(model.communalities[j], number));
+      row.push_back(Cell::num(model.uniquenesses[j], number));
+      ld.line(std::move(row));
+    }
+    std::vector<Cell> ssrow{Cell::txt("Sum of squared loadings", label)};
+    for (std::size_t f = 0; f < k; ++f) ssrow.push_back(Cell::num(model.ss[f], number));
+    ld.line(std::move(ssrow));
+    ld.blank();
+  }
+  ld.line({Cell::txt("Item", heading), Cell::txt("Starting communality (SMC)", heading),
+           Cell::txt("Sampling adequacy (MSA)", heading)});
+  for (std::size_t j = 0; j < p; ++j)
+    ld.line({Cell::txt(item_names[j], label), smc.empty() ? Cell::txt(smc_problem, note) : Cell::num(smc[j], number),
+             msa.empty() ? Cell::txt(msa_reason, note) : Cell::num(msa[j], number)});
+  rep.sheets.push_back(std::move(ld));
+
+  // ---- 3. factors, residuals, reliability ---------------------------------------------------
+  Sheet fc;
+  fc.base_name = names::factors;
+  fc.line({Cell::txt("Factors, residuals and reliability", title)});
+  if (!model.available) {
+    fc.line({Cell::txt("Factor correlations and structure: " + model.reason, note)});
+    fc.line({Cell::txt("Residual correlations: " + model.reason, note)});
+  } else {
+    if (model.oblique) {
+      fc.blank();
+      fc.line({Cell::txt("Factor correlations", heading)});
+      std::vector<Cell> hdr{Cell::txt("", heading)};
+      for (std::size_t f = 0; f < k; ++f) hdr.push_back(Cell::txt("Factor " + std::to_string(f + 1), heading));
+      fc.line(hdr);
+      for (std::size_t a = 0; a < k; ++a) {
+        std::vector<Cell> row{Cell::txt("Factor " + std::to_string(a + 1), label)};
+        for (std::size_t b = 0; b < k; ++b) row.push_back(Cell::num(model.phi[a * k + b], number));
+        fc.line(std::move(row));
+      }
+      fc.blank();
+      fc.line({Cell::txt("Structure: correlations of items with factors", heading)});
+      hdr[0] = Cell::txt("Item", heading);
+      fc.line(hdr);
+      for (std::size_t j = 0; j < p; ++j) {
+        std::vector<Cell> row{Cell::txt(item_names[j], label)};
+        for (std::size_t f = 0; f < k; ++f) row.push_back(Cell::num(model.structure[j * k + f], number));
+        fc.line(std::move(row));
+      }
+    } else {
+      fc.line({Cell::txt("The factors are kept uncorrelated (orthogonal rotation): no factor correlations.", note)});
+    }
+    fc.blank();
+    fc.line({Cell::txt("Residual correlations (observed minus model); above 0.10 in size is flagged (common practice)", heading)});
+    std::vector<Cell> rh{Cell::txt("", heading)};
+    for (const std::string& n : item_names) rh.push_back(Cell::txt(n, heading));
+    fc.line(std::move(rh));
+    for (std::size_t i = 0; i < p; ++i) {
+      std::vector<Cell> row{Cell::txt(item_names[i], label)};
+      for (std::size_t j = 0; j < p; ++j) {
+        const double v = model.residuals[i * p + j];
+        row.push_back(Cell::num(v, i != j && std::fabs(v) > 0.10 ? flag : number));
+      }
+      fc.line(std::move(row));
+    }
+  }
+  fc.line({Cell::txt("Reliability of each factor's scale (alpha, omega): " + missing_feature, note)});
+  fc.blank();
+  fc.line({Cell::txt("Item correlations used", heading)});
+  {
+    std::vector<Cell> hdr{Cell::txt("", heading)};
+    for (const std::string& n : item_names) hdr.push_back(Cell::txt(n, heading));
+    fc.line(std::move(hdr));
+    for (std::size_t i = 0; i < p; ++i) {
+      std::vector<Cell> row{Cell::txt(item_names[i], label)};
+      for (std::size_t j = 0; j < p; ++j) row.push_back(Cell::num(R[i * p + j], number));
+      fc.line(std::move(row));
+    }
+  }
+  rep.sheets.push_back(std::move(fc));
+
+  // ---- 4. scree -----------------------------------------------------------------------------
+  Sheet sc;
+  sc.base_name = names::scree;
+  sc.line({Cell::txt("Scree: eigenvalues of the item correlations", title)});
+  sc.line({Cell::txt(count.available ? "Where the observed line falls below the random-data line, the factors are no "
+                                        "stronger than chance (parallel analysis, Horn 1965)."
+                                      : "The random-data line of parallel analysis: " + count.reason,
+                    note)});
+  sc.blank();
+  const std::size_t table_top = sc.rows.size();
+  if (count.available)
+    sc.line({Cell::txt("Factor", heading), Cell::txt("Observed eigenvalue", heading), Cell::txt(random_words, heading)});
+  else
+    sc.line({Cell::txt("Factor", heading), Cell::txt("Observed eigenvalue", heading)});
+  for (std::size_t k = 0; k < eig.size(); ++k) {
+    std::vector<Cell> row{Cell::num(static_cast<double>(k + 1)), Cell::num(eig[k], number)};
+    if (count.available && k < count.random_pc.size()) row.push_back(Cell::num(count.random_pc[k], number));
+    sc.line(std::move(row));
+  }
+  Chart ch;
+  ch.name = "LodeScree";
+  ch.title = "Scree";
+  ch.x_title = "Factor";
+  ch.y_title = "Eigenvalue";
+  ch.top = table_top;
+  ch.left = 0;
+  ch.rows = eig.size() + 1;
+  ch.cols = count.available ? 3 : 2;
+  ch.anchor_row = table_top;
+  ch.anchor_col = 3;
+  sc.charts.push_back(ch);
+  sc.column_widths = {2500, 4000, 6500};
+  rep.sheets.push_back(std::move(sc));
+
+  // ---- 5. run record ------------------------------------------------------------------------
+  Sheet rr;
+  rr.base_name = names::record;
+  rr.column_widths = {6000, 9000};
+  const lode_version_info* v = lode_version();
+  char hash[32];
+  std::snprintf(hash, sizeof hash, "%016llx", static_cast<unsigned long long>(rep.values_hash));
+  std::string items_text;
+  for (const std::string& n : item_names) items_text += (items_text.empty() ? "" : ", ") + n;
+  rr.line({Cell::txt("Run record", title)});
+  rr.line({Cell::txt("Everything needed to repeat this analysis exactly.", note)});
+  auto rec = [&rr](const char* k, Cell val) { rr.line({Cell::txt(k, label), std::move(val)}); };
+  rec("Lode version", Cell::txt(std::string(v->string) + " (C ABI " + std::to_string(v->abi_major) + "." +
+                                std::to_string(v->abi_minor) + ")"));
+  rec("Written", Cell::txt(timestamp));
+  rec("Source range", Cell::txt(src.address));
+  rec("First row holds item names", Cell::txt(header ? "yes" : "no"));
+  rec("Items", Cell::txt(items_text));
+  rec("Values hash (FNV-1a 64)", Cell::txt(hash));
+  rec("Correlations", Cell::txt(o.correlation));
+  rec("Missing answers", Cell::txt(o.missing));
+  rec("Number of factors", o.factors > 0 ? Cell::num(o.factors) : Cell::txt("suggest"));
+  rec("Extraction", Cell::txt(o.extraction));
+  rec("Rotation", Cell::txt(o.rotation));
+  rec("Rotation parameter", Cell::num(o.rotation_parameter));
+  rec("Factor scores", Cell::txt(o.scores));
+  rec("Factor scores placed", Cell::txt(o.scores_place));
+  rec("Bootstrap resamples", Cell::num(o.bootstrap));
+  rec("Strong loading from", Cell::num(o.salient));
+  rec("Random seed", Cell::txt(std::to_string(o.seed)));
+  rep.sheets.push_back(std::move(rr));
+
+  rep.summary = "Lode analysed " + std::to_string(p) + " items of " + std::to_string(static_cast<long long>(rows_used)) +
+                " respondents";
+  step("writing the report", 1.0);
+  return rep;
+}
+
+}  // namespace lode::addin::report

@@ -1,0 +1,134 @@
+// The analysis report, free of UNO: options, the source table as read from the sheet, the analysis
+// through the C ABI (lode.h), and the report as plain sheets of cells that report_uno.cpp writes.
+#pragma once
+
+#include <atomic>
+#include <cstdint>
+#include <functional>
+#include <optional>
+#include <string>
+#include <vector>
+
+namespace lode::addin::report {
+
+// Everything the dialog (or any UNO caller) can choose. Text values are the option words of the
+// README's table ("pearson", "pairwise", ...); parse_* functions check them.
+struct Options {
+  int header = -1;                 // -1 detect, 0 no header row, 1 the first row holds item names
+  std::vector<std::string> items;  // names of the columns to analyse; empty = every column holding numbers
+  std::string correlation = "pearson";  // pearson | spearman | polychoric
+  std::string missing = "pairwise";     // pairwise | listwise
+  int factors = 0;                       // 0 = suggest from the data, else this many
+  std::string extraction = "minres";     // minres | ml | paf
+  std::string rotation = "oblimin";      // oblimin | promax | varimax | none
+  double rotation_parameter = 0.0;       // oblimin gamma; promax power (0 = the method's usual value)
+  std::string scores = "none";           // none | regression | bartlett
+  std::string scores_place = "beside";   // beside (new columns right of the data, when empty) | sheet
+  int bootstrap = 0;                     // resamples; 0 = off
+  double salient = 0.30;                 // loadings at least this large (absolute) are emphasised
+  std::uint64_t seed = 20261201;
+  int cancel_after_sheets = -1;          // tests only: cancel after writing this many sheets
+};
+
+// Checks the option words; throws std::invalid_argument naming the option and the allowed words.
+void validate(const Options& o);
+
+// One cell of the source range.
+struct SourceCell {
+  enum class Kind { empty, number, text } kind = Kind::empty;
+  double number = 0.0;
+  std::string text;
+};
+
+struct SourceTable {
+  std::size_t rows = 0, cols = 0;
+  std::vector<SourceCell> cells;  // row-major
+  std::string address;            // e.g. "$Responses.$A$1:$AE$301"
+  std::vector<std::string> column_letters;  // "A", "B", ... of each column
+  const SourceCell& at(std::size_t r, std::size_t c) const { return cells[r * cols + c]; }
+};
+
+// Whether the first row holds item names: every non-empty cell of it is text, at least one is, and
+// some later row holds a number.
+bool detect_header(const SourceTable& t);
+
+struct Column {
+  std::string name;       // from the header row, else "column C"
+  bool numeric = false;   // some cell below the header holds a number
+  std::size_t text_cells = 0;  // text cells below the header (read as missing answers)
+};
+std::vector<Column> describe_columns(const SourceTable& t, bool header);
+
+// A cell of the report. `style` names one of Lode's cell styles (report_styles), or "".
+struct Cell {
+  enum class Kind { empty, number, text } kind = Kind::empty;
+  double number = 0.0;
+  std::string text;
+  std::string style;
+  static Cell num(double v, std::string style = "") { return Cell{Kind::number, v, {}, std::move(style)}; }
+  static Cell txt(std::string t, std::string style = "") { return Cell{Kind::text, 0.0, std::move(t), std::move(style)}; }
+};
+
+// A line chart over a block of the same sheet: first column categories, first row series names.
+struct Chart {
+  std::string name, title, x_title, y_title;
+  std::size_t top = 0, left = 0, rows = 0, cols = 0;  // the data block, header row included
+  std::size_t anchor_row = 0, anchor_col = 0;          // where the chart's top-left corner goes
+};
+
+struct Sheet {
+  std::string base_name;  // the report's name for it; the writer makes it unique in the workbook
+  std::vector<std::vector<Cell>> rows;
+  std::vector<Chart> charts;
+  std::vector<int> column_widths;  // 1/100 mm; 0 = leave
+
+  Sheet& line(std::vector<Cell> cells) { rows.push_back(std::move(cells)); return *this; }
+  Sheet& blank() { rows.emplace_back(); return *this; }
+};
+
+struct Report {
+  std::vector<Sheet> sheets;          // in the order they are written
+  std::string summary;                // one line for the status bar and the caller
+  std::uint64_t values_hash = 0;
+};
+
+// Progress of a run: phase text and a share in [0, 1]. Returning false cancels the run.
+using Progress = std::function<bool(const std::string& phase, double share)>;
+
+// Thrown when the run was cancelled (by the progress callback or by the C ABI's LODE_E_CANCELLED).
+struct Cancelled {};
+
+// Reads the items, runs the analysis through the C ABI and lays out the report. Throws
+// std::invalid_argument (bad options or data, with the reason), Cancelled, or std::runtime_error.
+Report build_report(const SourceTable& source, const Options& options, const std::string& timestamp,
+                    const Progress& progress);
+
+// FNV-1a, 64 bits, over the analysed values row by row (each an IEEE double, little-endian; an empty
+// or text cell as a quiet NaN with the bit pattern 0x7ff8000000000000), then the item names, each
+// followed by a NUL byte. The run record shows it in hexadecimal.
+std::uint64_t hash_values(const std::vector<double>& row_major, const std::vector<std::string>& names);
+
+// Sheet names the report uses (its own words).
+namespace names {
+inline constexpr const char* overview = "Lode overview";
+inline constexpr const char* loadings = "Lode loadings";
+inline constexpr const char* factors = "Lode factors";
+inline constexpr const char* scree = "Lode scree";
+inline constexpr const char* record = "Lode run record";
+inline constexpr const char* scores = "Lode scores";
+}  // namespace names
+
+// Cell style names (created in the workbook by the writer; report_uno.cpp defines their look).
+namespace styles {
+inline constexpr const char* title = "Lode title";
+inline constexpr const char* heading = "Lode heading";
+inline constexpr const char* label = "Lode label";
+inline constexpr const char* number = "Lode number";
+inline constexpr const char* salient = "Lode strong loading";
+inline constexpr const char* faint = "Lode faint loading";
+inline constexpr const char* flag = "Lode flag";
+inline constexpr const char* note = "Lode note";
+inline constexpr const char* caution = "Lode caution";
+}  // namespace styles
+
+}  // namespace lode::addin::report

@@ -1,0 +1,531 @@
+// The UNO service org.lode.calc.AnalysisReport: reads the source range, runs report_model (UNO-free,
+// over the C ABI), and writes the report into new sheets. Writes only into sheets it creates; a
+// failure or a cancellation removes what it wrote (sheets and the cell styles it added) and restores
+// the document's modified state.
+#include "report_uno.hpp"
+
+#include "report_model.hpp"
+
+#include <cppuhelper/implbase2.hxx>
+#include <cppuhelper/supportsservice.hxx>
+#include <rtl/ref.hxx>
+
+#include <com/sun/star/awt/Rectangle.hpp>
+#include <com/sun/star/beans/XPropertySet.hpp>
+#include <com/sun/star/awt/Point.hpp>
+#include <com/sun/star/chart/XAxisXSupplier.hpp>
+#include <com/sun/star/chart/XAxisYSupplier.hpp>
+#include <com/sun/star/chart/XChartDocument.hpp>
+#include <com/sun/star/container/XNamed.hpp>
+#include <com/sun/star/chart/XDiagram.hpp>
+#include <com/sun/star/container/XIndexAccess.hpp>
+#include <com/sun/star/container/XNameContainer.hpp>
+#include <com/sun/star/document/XEmbeddedObjectSupplier.hpp>
+#include <com/sun/star/frame/XModel.hpp>
+#include <com/sun/star/lang/IllegalArgumentException.hpp>
+#include <com/sun/star/lang/Locale.hpp>
+#include <com/sun/star/lang/XMultiServiceFactory.hpp>
+#include <com/sun/star/lang/XServiceInfo.hpp>
+#include <com/sun/star/awt/FontSlant.hpp>
+#include <com/sun/star/sheet/XCellRangeData.hpp>
+#include <com/sun/star/sheet/XSpreadsheet.hpp>
+#include <com/sun/star/sheet/XSpreadsheets.hpp>
+#include <com/sun/star/sheet/XSpreadsheetView.hpp>
+#include <com/sun/star/style/XStyleFamiliesSupplier.hpp>
+#include <com/sun/star/table/XCell.hpp>
+#include <com/sun/star/table/XCellRange.hpp>
+#include <com/sun/star/table/XColumnRowRange.hpp>
+#include <com/sun/star/table/XTableChart.hpp>
+#include <com/sun/star/table/XTableCharts.hpp>
+#include <com/sun/star/table/XTableChartsSupplier.hpp>
+#include <com/sun/star/text/XText.hpp>
+#include <com/sun/star/uno/RuntimeException.hpp>
+#include <com/sun/star/util/XModifiable.hpp>
+#include <com/sun/star/util/XNumberFormats.hpp>
+#include <com/sun/star/util/XNumberFormatsSupplier.hpp>
+#include <org/lode/calc/XAnalysisReport.hpp>
+
+#include <algorithm>
+#include <atomic>
+#include <cctype>
+#include <memory>
+#include <chrono>
+#include <ctime>
+#include <mutex>
+#include <stdexcept>
+#include <thread>
+
+namespace css = com::sun::star;
+using css::uno::Any;
+using css::uno::Reference;
+using css::uno::Sequence;
+using css::uno::UNO_QUERY;
+using css::uno::UNO_QUERY_THROW;
+using rtl::OUString;
+
+namespace lode::addin::report {
+namespace {
+
+constexpr const char kServiceName[] = "org.lode.calc.AnalysisReport";
+constexpr const char kImplementationName[] = "org.lode.calc.AnalysisReportImpl";
+
+OUString ustr(const std::string& s) { return OUString(s.data(), static_cast<sal_Int32>(s.size()), RTL_TEXTENCODING_UTF8); }
+std::string utf8(const OUString& s) { return std::string(OUStringToOString(s, RTL_TEXTENCODING_UTF8).getStr()); }
+
+std::string column_letters(sal_Int32 col) {
+  std::string s;
+  for (sal_Int32 c = col + 1; c > 0; c = (c - 1) / 26) s.insert(s.begin(), static_cast<char>('A' + (c - 1) % 26));
+  return s;
+}
+
+std::string sheet_ref(const std::string& name) {
+  bool plain = !name.empty();
+  for (char ch : name)
+    if (!(std::isalnum(static_cast<unsigned char>(ch)) || ch == '_')) plain = false;
+  if (plain) return "$" + name;
+  std::string q = "$'";
+  for (char ch : name) q += ch == '\'' ? std::string("''") : std::string(1, ch);
+  return q + "'";
+}
+
+std::string utc_now() {
+  std::time_t t = std::chrono::system_clock::to_time_t(std::chrono::system_clock::now());
+  std::tm tm{};
+  gmtime_r(&t, &tm);
+  char buf[40];
+  std::strftime(buf, sizeof buf, "%Y-%m-%d %H:%M:%S UTC", &tm);
+  return buf;
+}
+
+// ---- options from named values -----------------------------------------------------------------
+Options options_from(const Sequence<css::beans::PropertyValue>& props) {
+  Options o;
+  for (const css::beans::PropertyValue& p : props) {
+    const std::string n = utf8(p.Name);
+    auto text = [&]() {
+      OUString s;
+      if (!(p.Value >>= s)) throw std::invalid_argument("option " + n + " must be text");
+      return utf8(s).empty() ? std::string() : utf8(s);
+    };
+    auto integer = [&]() {
+      sal_Int64 i = 0;
+      double d = 0;
+      if (p.Value >>= i) return i;
+      if ((p.Value >>= d) && d == static_cast<double>(static_cast<sal_Int64>(d))) return static_cast<sal_Int64>(d);
+      throw std::invalid_argument("option " + n + " must be a whole number");
+    };
+    auto number = [&]() {
+      double d = 0;
+      if (p.Value >>= d) return d;
+      throw std::invalid_argument("option " + n + " must be a number");
+    };
+    if (n == "HeaderRow") o.header = static_cast<int>(integer());
+    else if (n == "Items") {
+      Sequence<OUString> items;
+      if (!(p.Value >>= items)) throw std::invalid_argument("option Items must be a list of item names");
+      for (const OUString& s : items) o.items.push_back(utf8(s));
+    } else if (n == "Correlation") o.correlation = text();
+    else if (n == "Missing") o.missing = text();
+    else if (n == "Factors") o.factors = static_cast<int>(integer());
+    else if (n == "Extraction") o.extraction = text();
+    else if (n == "Rotation") o.rotation = text();
+    else if (n == "RotationParameter") o.rotation_parameter = number();
+    else if (n == "Scores") o.scores = text();
+    else if (n == "ScoresPlace") o.scores_place = text();
+    else if (n == "Bootstrap") o.bootstrap = static_cast<int>(integer());
+    else if (n == "Salient") o.salient = number();
+    else if (n == "Seed") {
+      sal_Int64 s = integer();
+      if (s < 0) throw std::invalid_argument("option Seed must not be negative");
+      o.seed = static_cast<std::uint64_t>(s);
+    } else if (n == "CancelAfterSheets") o.cancel_after_sheets = static_cast<int>(integer());
+    else throw std::invalid_argument("unknown option " + n);
+  }
+  return o;
+}
+
+// ---- reading the source range ------------------------------------------------------------------
+SourceTable read_source(const Reference<css::sheet::XSpreadsheetDocument>& doc, const css::table::CellRangeAddress& a) {
+  if (!doc.is()) throw std::invalid_argument("no document given");
+  Reference<css::container::XIndexAccess> sheets(doc->getSheets(), UNO_QUERY_THROW);
+  if (a.Sheet < 0 || a.Sheet >= sheets->getCount()) throw std::invalid_argument("the source range names no sheet of this document");
+  if (a.EndRow < a.StartRow || a.EndColumn < a.StartColumn || a.StartRow < 0 || a.StartColumn < 0)
+    throw std::invalid_argument("the source range is empty");
+  const std::size_t rows = static_cast<std::size_t>(a.EndRow - a.StartRow + 1);
+  const std::size_t cols = static_cast<std::size_t>(a.EndColumn - a.StartColumn + 1);
+  if (rows * cols > 20'000'000) throw std::invalid_argument("the source range is larger than 20 million cells");
+  Reference<css::sheet::XSpreadsheet> sheet(sheets->getByIndex(a.Sheet), UNO_QUERY_THROW);
+  Reference<css::container::XNamed> named(sheet, UNO_QUERY_THROW);
+  Reference<css::sheet::XCellRangeData> data(
+      sheet->getCellRangeByPosition(a.StartColumn, a.StartRow, a.EndColumn, a.EndRow), UNO_QUERY_THROW);
+  const Sequence<Sequence<Any>> arr = data->getDataArray();
+  SourceTable t;
+  t.rows = rows;
+  t.cols = cols;
+  t.cells.resize(rows * cols);
+  for (std::size_t r = 0; r < rows && r < static_cast<std::size_t>(arr.getLength()); ++r)
+    for (std::size_t c = 0; c < cols && c < static_cast<std::size_t>(arr[r].getLength()); ++c) {
+      const Any& v = arr[r][c];
+      SourceCell& s = t.cells[r * cols + c];
+      double d = 0;
+      OUString str;
+      if (v >>= d) {
+        s.kind = SourceCell::Kind::number;
+        s.number = d;
+      } else if ((v >>= str) && !str.isEmpty()) {
+        s.kind = SourceCell::Kind::text;
+        s.text = utf8(str);
+      }
+    }
+  for (std::size_t c = 0; c < cols; ++c) t.column_letters.push_back(column_letters(a.StartColumn + static_cast<sal_Int32>(c)));
+  t.address = sheet_ref(utf8(named->getName())) + ".$" + column_letters(a.StartColumn) + "$" + std::to_string(a.StartRow + 1) +
+              ":$" + column_letters(a.EndColumn) + "$" + std::to_string(a.EndRow + 1);
+  return t;
+}
+
+// ---- writing -----------------------------------------------------------------------------------
+struct StyleLook {
+  const char* name;
+  sal_Int32 back = -1, color = -1;
+  bool bold = false, italic = false, wrap = false;
+  float height = 0;
+  const char* format = nullptr;
+};
+// Lode's own palette: moss and sage for structure, amber for strong loadings, brick for flags.
+const StyleLook kLooks[] = {
+    {styles::title, -1, 0x2E4A3B, true, false, false, 14.0f, nullptr},
+    {styles::heading, 0xDCE8D2, 0x1F3328, true, false, false, 0, nullptr},
+    {styles::label, -1, 0x1F3328, false, false, false, 0, nullptr},
+    {styles::number, -1, -1, false, false, false, 0, "0.000"},
+    {styles::salient, 0xF5D38A, 0x3A2A00, true, false, false, 0, "0.000"},
+    {styles::faint, -1, 0xA3A3A3, false, false, false, 0, "0.000"},
+    {styles::flag, -1, 0xA23B2A, true, false, false, 0, nullptr},
+    {styles::note, -1, 0x5A5A5A, false, true, false, 0, nullptr},
+    {styles::caution, 0xFBE3D6, 0x5C2A1A, false, false, false, 0, nullptr},
+};
+
+class Writer {
+ public:
+  explicit Writer(const Reference<css::sheet::XSpreadsheetDocument>& doc) : doc_(doc) {
+    Reference<css::util::XModifiable> mod(doc, UNO_QUERY);
+    was_modified_ = mod.is() && mod->isModified();
+  }
+
+  void ensure_styles() {
+    Reference<css::style::XStyleFamiliesSupplier> fam(doc_, UNO_QUERY_THROW);
+    Reference<css::container::XNameContainer> cell_styles(fam->getStyleFamilies()->getByName("CellStyles"), UNO_QUERY_THROW);
+    Reference<css::lang::XMultiServiceFactory> factory(doc_, UNO_QUERY_THROW);
+    Reference<css::util::XNumberFormatsSupplier> nfs(doc_, UNO_QUERY_THROW);
+    Reference<css::util::XNumberFormats> formats = nfs->getNumberFormats();
+    css::lang::Locale locale;
+    for (const StyleLook& s : kLooks) {
+      const OUString name = OUString::createFromAscii(s.name);
+      if (cell_styles->hasByName(name)) continue;  // an earlier run's (or the user's own edit of it)
+      Reference<css::beans::XPropertySet> st(factory->createInstance("com.sun.star.style.CellStyle"), UNO_QUERY_THROW);
+      cell_styles->insertByName(name, Any(st));
+      created_styles_.push_back(name);
+      if (s.back >= 0) {
+        st->setPropertyValue("CellBackColor", Any(s.back));
+        st->setPropertyValue("IsCellBackgroundTransparent", Any(false));
+      }
+      if (s.color >= 0) st->setPropertyValue("CharColor", Any(s.color));
+      if (s.bold) st->setPropertyValue("CharWeight", Any(150.0f));
+      if (s.italic) st->setPropertyValue("CharPosture", Any(css::awt::FontSlant_ITALIC));
+      if (s.height > 0) st->setPropertyValue("CharHeight", Any(s.height));
+      if (s.format) {
+        const OUString code = OUString::createFromAscii(s.format);
+        sal_Int32 key = formats->queryKey(code, locale, false);
+        if (key < 0) key = formats->addNew(code, locale);
+        st->setPropertyValue("NumberFormat", Any(key));
+      }
+    }
+  }
+
+  // A name not yet used in the workbook: the base, else "base 2", "base 3", ...
+  OUString unique_name(const std::string& base) {
+    Reference<css::container::XNameAccess> names(doc_->getSheets(), UNO_QUERY_THROW);
+    OUString name = ustr(base);
+    for (int k = 2; names->hasByName(name); ++k) name = ustr(base + " " + std::to_string(k));
+    return name;
+  }
+
+  OUString write_sheet(const Sheet& s, const std::vector<std::pair<std::string, OUString>>& renames) {
+    Reference<css::sheet::XSpreadsheets> sheets = doc_->getSheets();
+    Reference<css::container::XIndexAccess> idx(sheets, UNO_QUERY_THROW);
+    const OUString name = unique_name(s.base_name);
+    sheets->insertNewByName(name, static_cast<sal_Int16>(idx->getCount()));
+    created_sheets_.push_back(name);
+    Reference<css::sheet::XSpreadsheet> sheet(sheets->getByName(name), UNO_QUERY_THROW);
+    for (std::size_t r = 0; r < s.rows.size(); ++r)
+      for (std::size_t c = 0; c < s.rows[r].size(); ++c) {
+        const Cell& cell = s.rows[r][c];
+        Reference<css::table::XCell> xc = sheet->getCellByPosition(static_cast<sal_Int32>(c), static_cast<sal_Int32>(r));
+        if (cell.kind == Cell::Kind::number) xc->setValue(cell.number);
+        else if (cell.kind == Cell::Kind::text) {
+          OUString text = ustr(cell.text);
+          for (const auto& [base, actual] : renames)
+            if (cell.text == base) text = actual;  // the report's own sheet names, as they ended up
+          Reference<css::text::XText>(xc, UNO_QUERY_THROW)->setString(text);
+        }
+        if (!cell.style.empty())
+          Reference<css::beans::XPropertySet>(xc, UNO_QUERY_THROW)
+              ->setPropertyValue("CellStyle", Any(OUString::createFromAscii(cell.style.c_str())));
+      }
+    Reference<css::table::XColumnRowRange> crr(sheet, UNO_QUERY_THROW);
+    Reference<css::container::XIndexAccess> columns(crr->getColumns(), UNO_QUERY_THROW);
+    for (std::size_t c = 0; c < s.column_widths.size(); ++c)
+      if (s.column_widths[c] > 0)
+        Reference<css::beans::XPropertySet>(columns->getByIndex(static_cast<sal_Int32>(c)), UNO_QUERY_THROW)
+            ->setPropertyValue("Width", Any(static_cast<sal_Int32>(s.column_widths[c])));
+    for (const Chart& ch : s.charts) add_chart(sheet, ch);
+    return name;
+  }
+
+  void rollback() noexcept {
+    try {
+      Reference<css::sheet::XSpreadsheets> sheets = doc_->getSheets();
+      for (const OUString& n : created_sheets_)
+        if (sheets->hasByName(n)) sheets->removeByName(n);
+      created_sheets_.clear();
+      Reference<css::style::XStyleFamiliesSupplier> fam(doc_, UNO_QUERY_THROW);
+      Reference<css::container::XNameContainer> cell_styles(fam->getStyleFamilies()->getByName("CellStyles"), UNO_QUERY_THROW);
+      for (const OUString& n : created_styles_)
+        if (cell_styles->hasByName(n)) cell_styles->removeByName(n);
+      created_styles_.clear();
+      Reference<css::util::XModifiable> mod(doc_, UNO_QUERY);
+      if (mod.is()) mod->setModified(was_modified_);
+    } catch (...) {
+    }
+  }
+
+ private:
+  void add_chart(const Reference<css::sheet::XSpreadsheet>& sheet, const Chart& ch) {
+    Reference<css::table::XTableChartsSupplier> sup(sheet, UNO_QUERY_THROW);
+    Reference<css::table::XTableCharts> charts = sup->getCharts();
+    Reference<css::container::XNamed> named(sheet, UNO_QUERY_THROW);
+    Reference<css::sheet::XSpreadsheets> sheets = doc_->getSheets();
+    Reference<css::container::XIndexAccess> idx(sheets, UNO_QUERY_THROW);
+    sal_Int16 sheet_index = 0;
+    for (sal_Int32 i = 0; i < idx->getCount(); ++i) {
+      Reference<css::container::XNamed> s(idx->getByIndex(i), UNO_QUERY);
+      if (s.is() && s->getName() == named->getName()) sheet_index = static_cast<sal_Int16>(i);
+    }
+    css::table::CellRangeAddress range;
+    range.Sheet = sheet_index;
+    range.StartColumn = static_cast<sal_Int32>(ch.left);
+    range.StartRow = static_cast<sal_Int32>(ch.top);
+    range.EndColumn = static_cast<sal_Int32>(ch.left + ch.cols - 1);
+    range.EndRow = static_cast<sal_Int32>(ch.top + ch.rows - 1);
+    // The anchor: the position of the anchor cell, in 1/100 mm.
+    Reference<css::beans::XPropertySet> anchor(
+        sheet->getCellByPosition(static_cast<sal_Int32>(ch.anchor_col), static_cast<sal_Int32>(ch.anchor_row)), UNO_QUERY_THROW);
+    css::awt::Point pos;
+    anchor->getPropertyValue("Position") >>= pos;
+    css::awt::Rectangle rect(pos.X, pos.Y, 16000, 9000);
+    // Chart names are unique in the whole document: the sheet's (unique) name makes them so.
+    const OUString chart_name = ustr(ch.name + " on " + utf8(named->getName()));
+    charts->addNewByName(chart_name, rect, Sequence<css::table::CellRangeAddress>(&range, 1), true, true);
+    Reference<css::document::XEmbeddedObjectSupplier> emb(charts->getByName(chart_name), UNO_QUERY_THROW);
+    Reference<css::chart::XChartDocument> cd(emb->getEmbeddedObject(), UNO_QUERY_THROW);
+    Reference<css::lang::XMultiServiceFactory> cf(cd, UNO_QUERY_THROW);
+    cd->setDiagram(Reference<css::chart::XDiagram>(cf->createInstance("com.sun.star.chart.LineDiagram"), UNO_QUERY_THROW));
+    Reference<css::beans::XPropertySet> diagram(cd->getDiagram(), UNO_QUERY_THROW);
+    diagram->setPropertyValue("SymbolType", Any(sal_Int32(-2)));  // css::chart::ChartSymbolType::AUTO
+    Reference<css::beans::XPropertySet> cdp(cd, UNO_QUERY_THROW);
+    cdp->setPropertyValue("HasMainTitle", Any(true));
+    cdp->setPropertyValue("HasLegend", Any(true));
+    Reference<css::beans::XPropertySet>(cd->getTitle(), UNO_QUERY_THROW)->setPropertyValue("String", Any(ustr(ch.title)));
+    diagram->setPropertyValue("HasXAxisTitle", Any(true));
+    diagram->setPropertyValue("HasYAxisTitle", Any(true));
+    Reference<css::chart::XAxisXSupplier> xs(diagram, UNO_QUERY);
+    if (xs.is()) Reference<css::beans::XPropertySet>(xs->getXAxisTitle(), UNO_QUERY_THROW)->setPropertyValue("String", Any(ustr(ch.x_title)));
+    Reference<css::chart::XAxisYSupplier> ys(diagram, UNO_QUERY);
+    if (ys.is()) Reference<css::beans::XPropertySet>(ys->getYAxisTitle(), UNO_QUERY_THROW)->setPropertyValue("String", Any(ustr(ch.y_title)));
+  }
+
+  Reference<css::sheet::XSpreadsheetDocument> doc_;
+  bool was_modified_ = false;
+  std::vector<OUString> created_sheets_;
+  std::vector<OUString> created_styles_;
+};
+
+class AnalysisReport : public cppu::WeakImplHelper2<org::lode::calc::XAnalysisReport, css::lang::XServiceInfo> {
+ public:
+  OUString SAL_CALL run(const Reference<css::sheet::XSpreadsheetDocument>& doc, const css::table::CellRangeAddress& source,
+                        const Sequence<css::beans::PropertyValue>& options) override {
+    std::string outcome;
+    bool ok = execute(doc, source, options, nullptr, outcome);
+    {
+      std::lock_guard<std::mutex> lock(mutex_);
+      last_outcome_ = outcome;
+    }
+    if (!ok) throw css::lang::IllegalArgumentException(ustr(outcome), static_cast<cppu::OWeakObject*>(this), 0);
+    return ustr(outcome);
+  }
+
+  sal_Bool SAL_CALL start(const Reference<css::sheet::XSpreadsheetDocument>& doc, const css::table::CellRangeAddress& source,
+                          const Sequence<css::beans::PropertyValue>& options,
+                          const Reference<css::task::XStatusIndicator>& indicator) override {
+    std::lock_guard<std::mutex> lock(mutex_);
+    if (running_) return false;
+    running_ = true;
+    cancel_ = false;
+    rtl::Reference<AnalysisReport> self(this);
+    worker_ = std::thread([self, doc, source, options, indicator]() {
+      std::string outcome;
+      self->execute(doc, source, options, indicator, outcome);
+      std::lock_guard<std::mutex> l(self->mutex_);
+      self->last_outcome_ = outcome;
+      self->running_ = false;
+    });
+    worker_.detach();  // it holds a reference to this service; nothing waits for it
+    return true;
+  }
+
+  void SAL_CALL cancel() override { cancel_ = true; }
+  sal_Bool SAL_CALL isRunning() override {
+    std::lock_guard<std::mutex> lock(mutex_);
+    return running_;
+  }
+  OUString SAL_CALL lastOutcome() override {
+    std::lock_guard<std::mutex> lock(mutex_);
+    return ustr(last_outcome_);
+  }
+
+  Sequence<OUString> SAL_CALL describeColumns(const Reference<css::sheet::XSpreadsheetDocument>& doc,
+                                              const css::table::CellRangeAddress& source, sal_Int32 header) override {
+    try {
+      SourceTable t = read_source(doc, source);
+      const bool has_header = header == -1 ? detect_header(t) : header == 1;
+      std::vector<OUString> out{OUString::createFromAscii(has_header ? "header" : "no header")};
+      for (const Column& c : describe_columns(t, has_header)) out.push_back(ustr((c.numeric ? "+" : "-") + c.name));
+      return Sequence<OUString>(out.data(), static_cast<sal_Int32>(out.size()));
+    } catch (const std::exception& e) {
+      throw css::lang::IllegalArgumentException(ustr(e.what()), static_cast<cppu::OWeakObject*>(this), 1);
+    }
+  }
+
+  OUString SAL_CALL getImplementationName() override { return OUString(kImplementationName); }
+  sal_Bool SAL_CALL supportsService(const OUString& name) override { return cppu::supportsService(this, name); }
+  Sequence<OUString> SAL_CALL getSupportedServiceNames() override { return supported(); }
+  static Sequence<OUString> supported() {
+    OUString n(kServiceName);
+    return Sequence<OUString>(&n, 1);
+  }
+
+ private:
+  // One run; never throws. Returns true with the summary line, or false with "stopped: reason".
+  bool execute(const Reference<css::sheet::XSpreadsheetDocument>& doc, const css::table::CellRangeAddress& source,
+               const Sequence<css::beans::PropertyValue>& props, const Reference<css::task::XStatusIndicator>& indicator,
+               std::string& outcome) noexcept {
+    std::unique_ptr<Writer> writer;
+    auto say = [&](const std::string& text, double share) {
+      try {
+        if (indicator.is()) {
+          indicator->setText(ustr("Lode: " + text));
+          indicator->setValue(static_cast<sal_Int32>(share * 100.0));
+        }
+      } catch (...) {
+      }
+    };
+    try {
+      if (indicator.is()) indicator->start("Lode: starting the analysis", 100);
+      Options opts = options_from(props);
+      SourceTable src = read_source(doc, source);
+      Progress progress = [&](const std::string& phase, double share) {
+        say(phase, 0.8 * share);
+        return !cancel_.load();
+      };
+      Report rep = build_report(src, opts, utc_now(), progress);
+
+      writer = std::make_unique<Writer>(doc);
+      Reference<css::frame::XModel> model(doc, UNO_QUERY);
+      if (model.is()) model->lockControllers();
+      struct Unlock {
+        Reference<css::frame::XModel> m;
+        ~Unlock() {
+          try {
+            if (m.is()) m->unlockControllers();
+          } catch (...) {
+          }
+        }
+      } unlock{model};
+      writer->ensure_styles();
+      std::vector<std::pair<std::string, OUString>> renames;
+      for (const Sheet& s : rep.sheets) renames.emplace_back(s.base_name, OUString());
+      // Names are decided up front so the overview can list them; each is checked again on insert.
+      {
+        Reference<css::container::XNameAccess> names(doc->getSheets(), UNO_QUERY_THROW);
+        std::vector<OUString> taken;
+        for (auto& [base, actual] : renames) {
+          OUString n = ustr(base);
+          for (int k = 2; names->hasByName(n) || std::find(taken.begin(), taken.end(), n) != taken.end(); ++k)
+            n = ustr(base + " " + std::to_string(k));
+          actual = n;
+          taken.push_back(n);
+        }
+      }
+      std::string where;
+      int written = 0;
+      for (std::size_t i = 0; i < rep.sheets.size(); ++i) {
+        if (cancel_.load() || (opts.cancel_after_sheets >= 0 && written >= opts.cancel_after_sheets)) throw Cancelled{};
+        say("writing " + rep.sheets[i].base_name, 0.8 + 0.2 * static_cast<double>(i) / static_cast<double>(rep.sheets.size()));
+        Sheet s = rep.sheets[i];
+        s.base_name = utf8(renames[i].second);
+        OUString name = writer->write_sheet(s, renames);
+        where += (where.empty() ? "" : ", ") + utf8(name);
+        ++written;
+      }
+      outcome = rep.summary + "; the report is on the sheets " + where + ".";
+      if (indicator.is()) {  // a run from the dialog: show the overview and say where the report went
+        indicator->end();
+        show_first_sheet(model, renames.front().second);
+      }
+      return true;
+    } catch (const Cancelled&) {
+      outcome = "stopped: the analysis was cancelled; the workbook is as it was";
+    } catch (const std::invalid_argument& e) {
+      outcome = std::string("stopped: ") + e.what();
+    } catch (const css::uno::Exception& e) {
+      outcome = "stopped: LibreOffice refused a step: " + utf8(e.Message);
+    } catch (const std::bad_alloc&) {
+      outcome = "stopped: not enough memory for this analysis";
+    } catch (const std::exception& e) {
+      outcome = std::string("stopped: ") + e.what();
+    } catch (...) {
+      outcome = "stopped: an unexpected failure in Lode";
+    }
+    if (writer) writer->rollback();
+    try {
+      if (indicator.is()) indicator->end();
+    } catch (...) {
+    }
+    return false;
+  }
+
+  static void show_first_sheet(const Reference<css::frame::XModel>& model, const OUString& name) noexcept {
+    try {
+      Reference<css::sheet::XSpreadsheetView> view(model->getCurrentController(), UNO_QUERY);
+      Reference<css::sheet::XSpreadsheetDocument> doc(model, UNO_QUERY);
+      if (view.is() && doc.is())
+        view->setActiveSheet(Reference<css::sheet::XSpreadsheet>(doc->getSheets()->getByName(name), UNO_QUERY_THROW));
+    } catch (...) {
+    }
+  }
+
+  std::mutex mutex_;
+  bool running_ = false;
+  std::atomic<bool> cancel_{false};
+  std::string last_outcome_;
+  std::thread worker_;
+};
+
+}  // namespace
+
+Reference<css::uno::XInterface> SAL_CALL create_analysis_report(const Reference<css::uno::XComponentContext>&) {
+  return static_cast<cppu::OWeakObject*>(new AnalysisReport);
+}
+OUString SAL_CALL analysis_report_implementation_name() { return OUString(kImplementationName); }
+Sequence<OUString> SAL_CALL analysis_report_service_names() { return AnalysisReport::supported(); }
+
+}  // namespace lode::addin::report

@@ -1,0 +1,438 @@
+"""The analysis report service (org.lode.calc.AnalysisReport, the work behind the dialog) called on
+the demo workbook in a real headless LibreOffice; every report sheet's cells are checked against
+the C library on the same data (its Python binding, capi/python/lode), the eigenvalues and the
+listwise matrix also against numpy. Checked too: nothing outside the new sheets changes, a second
+run does not overwrite the first, a cancelled or failed run leaves the workbook as it was, the menu
+and toolbar entries are registered.
+
+Run by ctest as office_report (tests/office/CMakeLists.txt), which sets URE_MORE_TYPES so that
+this Python knows the service's interface. The file name keeps it out of the cell-function run.
+"""
+
+import csv
+import os
+import shutil
+import struct
+import time
+
+import numpy as np
+import pytest
+import uno  # noqa: F401  (its local context has read URE_MORE_TYPES by now)
+
+# URE_MORE_TYPES is for this Python only (it must know the service's interface). soffice must not
+# inherit it: it would replace the office's own list, which brings in the installed extensions' types.
+os.environ.pop("URE_MORE_TYPES", None)
+from com.sun.star.beans import PropertyValue
+from com.sun.star.lang import IllegalArgumentException
+
+import lode  # the C library through its Python binding
+
+HERE = os.path.dirname(os.path.abspath(__file__))
+SHEETS = os.path.join(HERE, "..", "..", "example-sheets")
+REPORT_SHEETS = ["Lode overview", "Lode loadings", "Lode factors", "Lode scree", "Lode run record"]
+TOL = 1e-12  # the cells hold the C library's doubles
+
+
+def props(**kw):
+    out = []
+    for k, v in kw.items():
+        p = PropertyValue()
+        p.Name = k
+        p.Value = uno.Any("[]string", tuple(v)) if isinstance(v, (list, tuple)) else v
+        out.append(p)
+    return tuple(out)
+
+
+def survey_values():
+    """The demo responses from the CSV the workbook was made from: item names and values (NaN = empty)."""
+    with open(os.path.join(SHEETS, "volunteer-survey-responses.csv"), newline="") as f:
+        rows = list(csv.reader(f))
+    names = rows[0][1:]
+    x = np.array([[float(v) if v != "" else np.nan for v in r[1:]] for r in rows[1:]])
+    return names, x
+
+
+def fnv1a64(x, names):
+    """The run record's hash as report_model.hpp defines it, recomputed independently here."""
+    h = 0xcbf29ce484222325
+    data = bytearray()
+    for v in x.reshape(-1):
+        data += struct.pack("<Q", 0x7ff8000000000000) if np.isnan(v) else struct.pack("<d", v)
+    for n in names:
+        data += n.encode() + b"\0"
+    for b in data:
+        h ^= b
+        h = (h * 0x100000001b3) & 0xFFFFFFFFFFFFFFFF
+    return f"{h:016x}"
+
+
+def sheet_names(doc):
+    return list(doc.Sheets.ElementNames)
+
+
+def used_block(sheet):
+    """The used area of a sheet as formulas (text, numbers and formulas alike) and its address."""
+    cur = sheet.createCursor()
+    cur.gotoStartOfUsedArea(False)
+    cur.gotoEndOfUsedArea(True)
+    a = cur.RangeAddress
+    return (a.StartColumn, a.StartRow, a.EndColumn, a.EndRow), cur.getFormulaArray()
+
+
+def snapshot(doc):
+    return {n: used_block(doc.Sheets.getByName(n)) for n in sheet_names(doc)}
+
+
+def cell_styles(doc):
+    return set(doc.StyleFamilies.getByName("CellStyles").ElementNames)
+
+
+def read_sheet(sheet):
+    """Every used cell: a list of rows of values (float, str or None for empty)."""
+    (c0, r0, c1, r1), _ = used_block(sheet)
+    out = []
+    for r in range(0, r1 + 1):
+        row = []
+        for c in range(0, c1 + 1):
+            cell = sheet.getCellByPosition(c, r)
+            t = cell.Type.value
+            row.append(None if t == "EMPTY" else cell.String if t == "TEXT" else cell.Value)
+        out.append(row)
+    return out
+
+
+def find_row(rows, label):
+    hits = [r for r in rows if r and r[0] == label]
+    assert len(hits) == 1, f"{label!r} found {len(hits)} times"
+    return hits[0]
+
+
+@pytest.fixture(scope="module")
+def service(office):
+    s = office.smgr.createInstanceWithContext("org.lode.calc.AnalysisReport", office.ctx)
+    assert s is not None, "the extension does not provide org.lode.calc.AnalysisReport"
+    return s
+
+
+@pytest.fixture(scope="module")
+def survey(office):
+    path = os.path.join(office.dir, "survey.ods")
+    shutil.copy(os.path.join(SHEETS, "volunteer-survey.ods"), path)
+    os.chmod(path, 0o666)
+    with office.watchdog(60):
+        doc = office.desktop.loadComponentFromURL(uno.systemPathToFileUrl(path), "_blank", 0,
+                                                  (PropertyValue("Hidden", 0, True, 0),))
+    yield doc
+    with office.watchdog(60):
+        doc.close(True)
+
+
+def source(doc):
+    (c0, r0, c1, r1), _ = used_block(doc.Sheets.getByName("Responses"))
+    a = uno.createUnoStruct("com.sun.star.table.CellRangeAddress")
+    a.Sheet = sheet_names(doc).index("Responses")
+    a.StartColumn, a.StartRow, a.EndColumn, a.EndRow = c0, r0, c1, r1
+    return a
+
+
+def test_describe_columns_detects_the_header_and_the_text_column(survey, service):
+    names, _ = survey_values()
+    cols = service.describeColumns(survey, source(survey), -1)
+    assert cols[0] == "header"
+    assert cols[1] == "-respondent"  # identifiers are text: not offered as an item
+    assert list(cols[2:]) == ["+" + n for n in names]
+    forced = service.describeColumns(survey, source(survey), 0)
+    assert forced[0] == "no header" and forced[1] == "-column A" and forced[2] == "+column B"
+
+
+def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, service):
+    names, x = survey_values()
+    before = snapshot(survey)
+    styles_before = cell_styles(survey)
+    with office.watchdog(300):
+        said = service.run(survey, source(survey), props(Correlation="pearson", Missing="pairwise", Seed=4242,
+                                                         Salient=0.35, Factors=0))
+    after_names = sheet_names(survey)
+    new = [n for n in after_names if n not in before]
+    assert new == REPORT_SHEETS, new
+    for n in REPORT_SHEETS:
+        assert n in said, said  # the caller is told where the report went
+    for n, block in before.items():  # nothing outside the new sheets changed
+        assert used_block(survey.Sheets.getByName(n)) == block, f"sheet {n} changed"
+    assert styles_before <= cell_styles(survey)
+
+    # The reference: the C library on the same values (the CSV the workbook was made from).
+    ref = lode.correlation(x, method="pearson", missing="pairwise", item_names=names)
+    p = len(names)
+
+    ov = read_sheet(survey.Sheets.getByName("Lode overview"))
+    for s in REPORT_SHEETS:
+        assert [s] in [r[:1] for r in ov], f"the overview does not list {s}"
+    assert find_row(ov, "Source range")[1] == "$Responses.$A$1:$AE$421"
+    assert find_row(ov, "First row holds item names")[1] == "yes"
+    assert find_row(ov, "Items analysed")[1] == p
+    assert find_row(ov, "Respondents in the range")[1] == ref.rows_total == x.shape[0]
+    assert find_row(ov, "Respondents used")[1] == ref.rows_used
+    assert find_row(ov, "Respondents who answered every item")[1] == ref.rows_complete
+    # numpy: complete rows counted directly
+    assert ref.rows_complete == int(np.sum(~np.isnan(x).any(axis=1)))
+    assert find_row(ov, "Sample size for tests")[1] == ref.n_obs
+    assert abs(find_row(ov, "Share of answers missing")[1] - ref.missing_fraction) < TOL
+    assert abs(ref.missing_fraction - np.isnan(x).mean()) < 1e-15  # numpy: the share of NaN cells
+    assert find_row(ov, "Correlation matrix positive definite")[1] == ("yes" if ref.positive_definite else "no")
+    start = [i for i, r in enumerate(ov) if r[:2] == ["Factor", "Eigenvalue"]][0] + 1
+    eig = np.array([ov[start + k][1] for k in range(p)])
+    share = np.array([ov[start + k][2] for k in range(p)])
+    assert [ov[start + k][0] for k in range(p)] == list(range(1, p + 1))
+    assert np.max(np.abs(eig - ref.eigenvalues)) < TOL
+    # numpy.linalg.eigvalsh of the C library's matrix: the eigenvalues themselves
+    assert np.max(np.abs(eig - np.sort(np.linalg.eigvalsh(ref.matrix))[::-1])) < 1e-10
+    assert np.max(np.abs(share - ref.eigenvalues / ref.eigenvalues.sum())) < TOL
+    random_col = [ov[start + k][3] for k in range(p)]
+    if hasattr(lode, "n_factors"):  # the C ABI's factor count: parallel analysis with the run's seed
+        cnt = lode.n_factors(x, replicates=500, seed=4242, correlation="pearson", missing="pairwise", item_names=names)
+        assert np.max(np.abs(np.array(random_col) - cnt.parallel["random_pc_percentile"])) < TOL
+        decision = find_row(ov, "Decision")
+        assert decision[1] == cnt.suggested and decision[2] == cnt.reason
+        rules_at = [i for i, r in enumerate(ov) if r[:2] == ["Rule", "Factors"]][0] + 1
+        assert [(r["rule"], str(r["factors"])) for r in cnt.table] == \
+               [(ov[rules_at + i][0], ov[rules_at + i][1]) for i in range(len(cnt.table))]
+    else:  # not behind the C ABI yet: the report says so instead of a number
+        assert "not in this liblode yet" in random_col[0]
+        assert find_row(ov, "Eigenvalues above 1")[1] == int(np.sum(ref.eigenvalues > 1))
+        assert "not in this liblode yet" in find_row(ov, "Decision")[1]
+    # Factorability: the C library, and the textbook formulas in numpy/scipy (KMO: Kaiser 1974, from
+    # the anti-image partial correlations; Bartlett 1950: -(n - 1 - (2p + 5)/6) log det R on p(p-1)/2 df).
+    fa = lode.factorability(ref)
+    kmo_row = find_row(ov, "KMO sampling adequacy")
+    assert abs(kmo_row[1] - fa.kmo) < TOL and fa.kmo_label in kmo_row[2]
+    R = ref.matrix
+    Ri = np.linalg.inv(R)
+    partial = -Ri / np.sqrt(np.outer(np.diag(Ri), np.diag(Ri)))
+    off = ~np.eye(p, dtype=bool)
+    kmo_np = (R[off] ** 2).sum() / ((R[off] ** 2).sum() + (partial[off] ** 2).sum())
+    assert abs(kmo_row[1] - kmo_np) < 1e-10
+    chi = find_row(ov, "Bartlett's test: chi-square")[1]
+    df = find_row(ov, "Bartlett's test: degrees of freedom")[1]
+    pv = find_row(ov, "Bartlett's test: p-value")[1]
+    assert abs(chi - fa.bartlett["chi_square"]) < TOL and df == fa.bartlett["df"] and pv == fa.bartlett["p_value"]
+    n = fa.bartlett["n_obs"]
+    assert n == ref.n_obs
+    chi_np = -(n - 1 - (2 * p + 5) / 6) * np.linalg.slogdet(R)[1]
+    assert abs(chi - chi_np) < 1e-8 * chi_np and df == p * (p - 1) / 2
+    import scipy.stats
+    assert abs(pv - scipy.stats.chi2.sf(chi_np, df)) < 1e-12
+
+    # Items to look at: MSA under 0.50 (Kaiser 1974), then SMC under 0.20 (common practice).
+    flagged = [r for r in ov if r and r[0] in names and ("MSA" in str(r[2]) or "squared multiple" in str(r[2]))]
+    expected = [(nm, m, "MSA") for nm, m in zip(names, fa.msa) if m < 0.50] + \
+               [(nm, s, "squared multiple") for nm, s in zip(names, ref.smc) if s < 0.20]
+    assert [r[0] for r in flagged] == [e[0] for e in expected]
+    for r, (nm, v, why) in zip(flagged, expected):
+        assert abs(r[1] - v) < TOL and why in r[2]
+    text = " ".join(str(v) for r in ov for v in r if isinstance(v, str))
+    assert "estimates" in text and "validity" in text and "local law" in text  # the cautions on scores
+
+    ld = read_sheet(survey.Sheets.getByName("Lode loadings"))
+    hdr = [i for i, r in enumerate(ld) if r[:2] == ["Item", "Starting communality (SMC)"]][0]
+    got = {r[0]: r[1] for r in ld[hdr + 1:hdr + 1 + p]}
+    assert list(got) == names
+    assert max(abs(got[n] - s) for n, s in zip(names, ref.smc)) < TOL
+    msa = [r[2] for r in ld[hdr + 1:hdr + 1 + p]]
+    assert np.max(np.abs(np.array(msa) - fa.msa)) < TOL
+    assert "0.35" in ld[1][0]  # the threshold chosen is the one the sheet states
+    heading = survey.Sheets.getByName("Lode loadings").getCellByPosition(0, hdr)
+    assert heading.CellStyle == "Lode heading"
+    style = survey.StyleFamilies.getByName("CellStyles").getByName("Lode heading")
+    assert style.CellBackColor == 0xDCE8D2 and not style.IsCellBackgroundTransparent
+
+    if hasattr(lode, "fit") and hasattr(lode, "n_factors"):
+        check_model(survey, ov, ld, x, names, cnt.suggested, salient=0.35, seed=4242)
+    else:  # extraction is not behind the C ABI yet: the report says so
+        assert any(isinstance(r[0], str) and "not in this liblode yet" in r[0] for r in ld)
+
+    fc = read_sheet(survey.Sheets.getByName("Lode factors"))
+    top = [i for i, r in enumerate(fc) if r[:1] == ["Item correlations used"]][0] + 1
+    assert fc[top][1:1 + p] == names
+    m = np.array([fc[top + 1 + i][1:1 + p] for i in range(p)])
+    assert [fc[top + 1 + i][0] for i in range(p)] == names
+    assert np.max(np.abs(m - ref.matrix)) < TOL
+
+    sc_sheet = survey.Sheets.getByName("Lode scree")
+    sc = read_sheet(sc_sheet)
+    top = [i for i, r in enumerate(sc) if r[:2] == ["Factor", "Observed eigenvalue"]][0]
+    assert np.max(np.abs(np.array([sc[top + 1 + k][1] for k in range(p)]) - ref.eigenvalues)) < TOL
+    lines = 2
+    if hasattr(lode, "n_factors"):  # the random-data line beside the observed one
+        lines = 3
+        assert np.max(np.abs(np.array([sc[top + 1 + k][2] for k in range(p)]) - cnt.parallel["random_pc_percentile"])) < TOL
+    charts = sc_sheet.getCharts()
+    assert charts.getCount() == 1
+    chart = charts.getByIndex(0)
+    (rng,) = chart.getRanges()
+    assert (rng.StartColumn, rng.StartRow, rng.EndColumn, rng.EndRow) == (0, top, lines - 1, top + p)
+    cdoc = chart.getEmbeddedObject()
+    assert cdoc.getDiagram().getDiagramType() == "com.sun.star.chart.LineDiagram"
+    assert cdoc.getData().getData()[0][0] == pytest.approx(ref.eigenvalues[0], abs=TOL)
+
+    rr = read_sheet(survey.Sheets.getByName("Lode run record"))
+    rec = {r[0]: r[1] for r in rr if r and len(r) > 1 and r[1] is not None}
+    assert rec["Lode version"].startswith(lode.version()["version"] + " (C ABI ")
+    assert rec["Source range"] == "$Responses.$A$1:$AE$421"
+    assert rec["Items"] == ", ".join(names)
+    assert rec["Values hash (FNV-1a 64)"] == fnv1a64(x, names)
+    assert rec["Correlations"] == "pearson" and rec["Missing answers"] == "pairwise"
+    assert rec["Random seed"] == "4242" and rec["Strong loading from"] == 0.35
+    assert rec["Number of factors"] == "suggest" and rec["Rotation"] == "oblimin" and rec["Extraction"] == "minres"
+    assert time.strftime("%Y-%m-%d", time.gmtime()) in rec["Written"]
+
+
+def check_model(doc, ov, ld, x, names, k, salient, seed):
+    """The loadings, communalities, factor correlations, residuals and fit against lode.fit (the C
+    library) with the same options: minres, oblimin (gamma 0), the run's seed."""
+    m = lode.fit(x, factors=k, method="minres", rotation="oblimin", seed=seed, missing="pairwise",
+                 correlation="pearson", item_names=names, gamma=0.0)
+    p = len(names)
+    hdr = [i for i, r in enumerate(ld) if r[:2] == ["Item", "Factor 1"]][0]
+    assert ld[hdr][1:k + 3] == [f"Factor {f + 1}" for f in range(k)] + ["Communality", "Uniqueness"]
+    rows = ld[hdr + 1:hdr + 1 + p]
+    L = m.loadings
+    home = np.argmax(np.abs(L), axis=1)
+    order = sorted(range(p), key=lambda j: (home[j], -abs(L[j, home[j]])))
+    assert [r[0] for r in rows] == [names[j] for j in order]
+    sheet = doc.Sheets.getByName("Lode loadings")
+    for i, j in enumerate(order):
+        assert np.max(np.abs(np.array(rows[i][1:k + 1]) - L[j])) < 1e-12
+        assert abs(rows[i][k + 1] - m.communalities[j]) < 1e-12 and abs(rows[i][k + 2] - m.uniquenesses[j]) < 1e-12
+        for f in range(k):
+            style = sheet.getCellByPosition(1 + f, hdr + 1 + i).CellStyle
+            assert style == ("Lode strong loading" if abs(L[j, f]) >= salient else "Lode faint loading")
+    assert abs(find_row(ov, "Root mean square residual (RMSR)")[1] - m.statistics["rmsr"]) < 1e-12
+    assert abs(find_row(ov, "RMSEA")[1] - m.statistics["rmsea"]) < 1e-12
+    assert abs(find_row(ov, "TLI")[1] - m.statistics["tli"]) < 1e-12
+    fs = read_sheet(doc.Sheets.getByName("Lode factors"))
+    if m.oblique:
+        at = [i for i, r in enumerate(fs) if r[:1] == ["Factor correlations"]][0] + 2
+        phi = np.array([fs[at + a][1:1 + k] for a in range(k)])
+        assert np.max(np.abs(phi - m.factor_correlations)) < 1e-12
+    at = [i for i, r in enumerate(fs) if isinstance(r[0], str) and r[0].startswith("Residual correlations")][0] + 2
+    res = np.array([fs[at + i][1:1 + p] for i in range(p)])
+    assert np.max(np.abs(res - m.residuals)) < 1e-12
+    # numpy: the residuals are the observed minus the model's correlations (L Phi L' + uniquenesses)
+    implied = m.loadings @ m.factor_correlations @ m.loadings.T
+    np.fill_diagonal(implied, 1.0)
+    r = lode.correlation(x, method="pearson", missing="pairwise").matrix
+    assert np.max(np.abs((r - implied)[~np.eye(p, dtype=bool)] - res[~np.eye(p, dtype=bool)])) < 1e-8
+
+
+def test_listwise_spearman_and_chosen_items(office, survey, service):
+    names, x = survey_values()
+    items = names[:12]
+    before = sheet_names(survey)
+    with office.watchdog(300):
+        service.run(survey, source(survey), props(Correlation="spearman", Missing="listwise", Items=items))
+    new = [n for n in sheet_names(survey) if n not in before]
+    fc = read_sheet(survey.Sheets.getByName(new[2]))
+    top = [i for i, r in enumerate(fc) if r[:1] == ["Item correlations used"]][0] + 1
+    m = np.array([fc[top + 1 + i][1:13] for i in range(12)])
+    ref = lode.correlation(x[:, :12], method="spearman", missing="listwise", item_names=items)
+    assert np.max(np.abs(m - ref.matrix)) < TOL
+    # scipy: Spearman on the complete rows
+    import scipy.stats
+    xs = x[:, :12][~np.isnan(x[:, :12]).any(axis=1)]
+    assert np.max(np.abs(m - scipy.stats.spearmanr(xs).correlation)) < 1e-10
+
+
+def test_second_run_does_not_overwrite_the_first(office, survey, service):
+    first = snapshot(survey)
+    with office.watchdog(300):
+        said = service.run(survey, source(survey), props(Correlation="pearson"))
+    after = sheet_names(survey)
+    new = [n for n in after if n not in first]
+    assert len(new) == len(REPORT_SHEETS) and all(n.startswith("Lode ") for n in new)
+    assert not set(new) & set(first)
+    for n in new:
+        assert n in said
+    for n, block in first.items():
+        assert used_block(survey.Sheets.getByName(n)) == block, f"sheet {n} changed"
+    ov = read_sheet(survey.Sheets.getByName(new[0]))
+    for n in new:  # the overview names the sheets as they ended up
+        assert [n] in [r[:1] for r in ov]
+
+
+def test_cancelled_run_leaves_the_workbook_as_it_was(office, survey, service):
+    before = snapshot(survey)
+    styles = cell_styles(survey)
+    with office.watchdog(300), pytest.raises(IllegalArgumentException) as e:
+        service.run(survey, source(survey), props(CancelAfterSheets=2))
+    assert "cancelled" in e.value.Message
+    assert snapshot(survey) == before
+    assert cell_styles(survey) == styles
+    assert service.lastOutcome().startswith("stopped")
+
+
+def test_cancel_from_another_caller_while_running_in_the_background(office, survey, service):
+    before = snapshot(survey)
+    with office.watchdog(300):
+        assert service.start(survey, source(survey), props(Correlation="polychoric"), None)
+        service.cancel()
+        deadline = time.monotonic() + 200
+        while service.isRunning() and time.monotonic() < deadline:
+            time.sleep(0.05)
+    assert not service.isRunning()
+    assert service.lastOutcome().startswith("stopped: the analysis was cancelled"), service.lastOutcome()
+    assert snapshot(survey) == before
+
+
+def test_background_run_finishes_and_reports(office, survey, service):
+    before = sheet_names(survey)
+    with office.watchdog(300):
+        assert service.start(survey, source(survey), props(Correlation="pearson", Missing="listwise"), None)
+        deadline = time.monotonic() + 200
+        while service.isRunning() and time.monotonic() < deadline:
+            time.sleep(0.05)
+    out = service.lastOutcome()
+    new = [n for n in sheet_names(survey) if n not in before]
+    assert len(new) == len(REPORT_SHEETS) and all(n in out for n in new), out
+
+
+@pytest.mark.parametrize("opts,words", [
+    (dict(Correlation="kendall"), "Correlation"),
+    (dict(Salient=1.5), "Salient"),
+    (dict(Items=["ROL1", "NOPE"]), "NOPE"),
+    (dict(Items=["respondent", "ROL1", "ROL2"]), "no numbers"),
+    (dict(Colour="green"), "unknown option Colour"),
+])
+def test_bad_options_are_named_and_change_nothing(office, survey, service, opts, words):
+    before = snapshot(survey)
+    with office.watchdog(120), pytest.raises(IllegalArgumentException) as e:
+        service.run(survey, source(survey), props(**opts))
+    assert words in e.value.Message
+    assert snapshot(survey) == before
+
+
+def test_menu_toolbar_and_protocol_handler_are_registered(office):
+    cp = office.smgr.createInstanceWithContext("com.sun.star.configuration.ConfigurationProvider", office.ctx)
+    arg = PropertyValue("nodepath", 0, "/org.openoffice.Office.Addons/AddonUI", 0)
+    ui = cp.createInstanceWithArguments("com.sun.star.configuration.ConfigurationAccess", (arg,))
+    menu = ui.getByName("OfficeMenuBar").getByName("org.lode.calc.menu")
+    urls = [menu.Submenu.getByName(n).URL for n in menu.Submenu.ElementNames]
+    assert "org.lode.calc:analyse" in urls and "org.lode.calc:stop" in urls
+    assert ui.getByName("OfficeToolBar").getByName("org.lode.calc.toolbar").getByName("b1").URL == "org.lode.calc:analyse"
+    arg = PropertyValue("nodepath", 0, "/org.openoffice.Office.ProtocolHandler/HandlerSet", 0)
+    hs = cp.createInstanceWithArguments("com.sun.star.configuration.ConfigurationAccess", (arg,))
+    assert "org.lode.calc:*" in hs.getByName("org.lode.calc.DialogHandlerImpl").Protocols
+
+
+def test_cell_functions_and_report_service_live_side_by_side(office, service):
+    """Both parts of the extension come from its own registration (soffice does not see this
+    Python's URE_MORE_TYPES): a cell function still evaluates in the office running the service."""
+    doc = office.new_calc()
+    try:
+        with office.watchdog(60):
+            cell = doc.Sheets.getByIndex(0).getCellByPosition(0, 0)
+            cell.setFormula("=LODE.VERSION()")
+            assert cell.getError() == 0 and cell.getString().startswith("Lode ")
+    finally:
+        with office.watchdog(60):
+            doc.close(True)
