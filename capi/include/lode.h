@@ -70,7 +70,7 @@ extern "C" {
 /* ABI version of this header. The major version is the shared object's SONAME suffix
  * (liblode.so.LODE_ABI_VERSION_MAJOR); the minor version counts compatible additions. */
 #define LODE_ABI_VERSION_MAJOR 1
-#define LODE_ABI_VERSION_MINOR 0
+#define LODE_ABI_VERSION_MINOR 1
 
 /* ------------------------------------------------------------------------------------------- */
 /* Status codes, version, errors                                                                */
@@ -524,6 +524,151 @@ LODE_API int lode_model_matrix(const lode_model* model, int key, double* out, si
                                int64_t* cols);
 LODE_API int lode_model_value(const lode_model* model, int key, double* value);
 LODE_API int lode_model_text(const lode_model* model, int key, char* out, size_t capacity, size_t* length);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Factor scores                                                                                  */
+/* ------------------------------------------------------------------------------------------- */
+
+enum lode_score_method {
+  LODE_SCORES_REGRESSION = 0, /* Thurstone (1935) */
+  LODE_SCORES_BARTLETT = 1,   /* Bartlett (1937) */
+  LODE_SCORES_TENBERGE = 2    /* correlation-preserving (ten Berge et al. 1999) */
+};
+enum lode_score_missing {
+  LODE_SCORE_FROM_ANSWERED = 0, /* weights from the answered items, when enough were answered */
+  LODE_SCORE_LEAVE_MISSING = 1  /* any missing item leaves the row's scores NaN */
+};
+
+typedef struct lode_score_options {
+  size_t struct_size;
+  int method;                /* enum lode_score_method; default LODE_SCORES_REGRESSION */
+  int missing;               /* enum lode_score_missing; default LODE_SCORE_FROM_ANSWERED */
+  double min_answered_share; /* share of items a row must answer to be scored; default 0.5 */
+  double low_determinacy;    /* determinacy below this is flagged; default 0.80 */
+} lode_score_options;
+
+LODE_API int lode_score_options_init(lode_score_options* opts, size_t struct_size);
+
+typedef struct lode_scores lode_scores;
+
+/* Scores the respondents of `data` (raw data with the model's items in the same order; NULL = the raw
+ * data the model was fitted to) on the model's factors. Items are standardised with the means and
+ * standard deviations of `data`. Factor scores are estimates: the notes carry the cautions that go
+ * with using them to select, rate or diagnose people. */
+LODE_API int lode_score(const lode_model* model, const lode_data* data, const lode_score_options* opts,
+                        lode_scores** out);
+
+LODE_API void lode_scores_free(lode_scores* scores);
+
+enum lode_scores_key {
+  /* matrices: lode_scores_matrix */
+  LODE_SCORES_VALUES = 600,             /* rows x factors; NaN where a row is left missing */
+  LODE_SCORES_WEIGHTS = 601,            /* items x factors, applied to standardised complete rows */
+  LODE_SCORES_DETERMINACY = 602,        /* factors x 1: correlation of the best linear score with the factor */
+  LODE_SCORES_VALIDITY = 603,           /* factors x 1: correlation of these scores with their factor */
+  LODE_SCORES_CORRELATIONS = 604,       /* factors x factors: correlations among the scores */
+  LODE_SCORES_LOW_DETERMINACY = 605,    /* factors x 1: 1 where determinacy is below the threshold */
+  /* numbers: lode_scores_value */
+  LODE_SCORES_ROWS_TOTAL = 620,
+  LODE_SCORES_ROWS_COMPLETE = 621,
+  LODE_SCORES_ROWS_PARTIAL = 622,       /* scored from the answered items only */
+  LODE_SCORES_ROWS_MISSING = 623,       /* left missing */
+  /* text: lode_scores_text */
+  LODE_SCORES_NOTES = 650,              /* remarks, ending with the cautions */
+  LODE_SCORES_CAUTIONS = 651            /* the cautions alone */
+};
+
+LODE_API int lode_scores_matrix(const lode_scores* scores, int key, double* out, size_t capacity, int64_t* rows,
+                                int64_t* cols);
+LODE_API int lode_scores_value(const lode_scores* scores, int key, double* value);
+LODE_API int lode_scores_text(const lode_scores* scores, int key, char* out, size_t capacity, size_t* length);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Reliability: Cronbach's alpha, McDonald's omega                                               */
+/* ------------------------------------------------------------------------------------------- */
+
+typedef struct lode_reliability lode_reliability;
+
+/* Cronbach's (1951) alpha of one scale: `data` holds the scale's items (raw data, already
+ * reverse-scored where needed); rows with a missing item are left out. */
+LODE_API int lode_cronbach_alpha(const lode_data* data, lode_reliability** out);
+
+/* McDonald's (1999) omega total for the scale of each factor of `model`. `assignment` gives each
+ * item's factor (0-based; -1 = in no scale), `count` the number of items; NULL with count 0 assigns
+ * each item to the factor of its largest absolute loading (stated in the notes). */
+LODE_API int lode_mcdonald_omega(const lode_model* model, const int64_t* assignment, int64_t count,
+                                 lode_reliability** out);
+
+/* McDonald's (1999) omega for a single scale from a one-factor fit of `corr` (the correlations of
+ * the scale's items alone). Of `opts` only method, max_iterations, tolerance and min_uniqueness are
+ * read (NULL = maximum likelihood with the defaults); non-convergence and Heywood cases are stated in
+ * the notes and LODE_OMEGA_CONVERGED, not hidden. */
+LODE_API int lode_omega_single_scale(const lode_correlation* corr, const lode_fit_options* opts,
+                                     lode_reliability** out);
+
+LODE_API void lode_reliability_free(lode_reliability* reliability);
+
+enum lode_reliability_key {
+  /* alpha (lode_cronbach_alpha) - matrices, items x 1 */
+  LODE_ALPHA_IF_DELETED = 700,
+  LODE_ALPHA_STANDARDIZED_IF_DELETED = 701,
+  LODE_ALPHA_ITEM_TOTAL = 702,          /* corrected item-total correlations */
+  LODE_ALPHA_ITEM_MEANS = 703,
+  LODE_ALPHA_ITEM_SDS = 704,
+  /* alpha - numbers */
+  LODE_ALPHA = 720,                     /* raw alpha */
+  LODE_ALPHA_STANDARDIZED = 721,
+  LODE_ALPHA_MEAN_INTER_ITEM = 722,     /* mean inter-item correlation */
+  LODE_ALPHA_ROWS_TOTAL = 723,
+  LODE_ALPHA_ROWS_USED = 724,
+  LODE_ALPHA_ITEMS = 725,
+  /* omega (lode_mcdonald_omega) - matrices */
+  LODE_OMEGA = 740,                     /* factors x 1: omega total of each factor's scale (NaN: no items) */
+  LODE_OMEGA_ASSIGNMENT = 741,          /* items x 1: the factor of each item (0-based, -1 = none) */
+  LODE_OMEGA_SUM_LOADINGS = 742,        /* factors x 1 */
+  LODE_OMEGA_SUM_UNIQUENESSES = 743,    /* factors x 1 */
+  LODE_OMEGA_LOADINGS = 744,            /* single scale only: items x 1, the one-factor loadings */
+  LODE_OMEGA_UNIQUENESSES = 745,        /* single scale only: items x 1 */
+  /* omega - numbers */
+  LODE_OMEGA_CONVERGED = 760,           /* single scale: the one-factor fit converged (1 or 0); model: 1 */
+  /* text, both kinds */
+  LODE_RELIABILITY_NOTES = 750
+};
+
+LODE_API int lode_reliability_matrix(const lode_reliability* reliability, int key, double* out, size_t capacity,
+                                     int64_t* rows, int64_t* cols);
+LODE_API int lode_reliability_value(const lode_reliability* reliability, int key, double* value);
+LODE_API int lode_reliability_text(const lode_reliability* reliability, int key, char* out, size_t capacity,
+                                   size_t* length);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Comparing two solutions: Tucker's congruence after matching factors                           */
+/* ------------------------------------------------------------------------------------------- */
+
+typedef struct lode_comparison lode_comparison;
+
+/* Tucker's (1951) congruence between every factor of loading matrix `a` and every factor of `b`
+ * (same items, same number of factors), then the one-to-one matching of b's factors to a's with the
+ * largest total |congruence| (Hungarian method), reflecting matched factors with negative congruence. */
+LODE_API int lode_compare_loadings(const double* a, const double* b, int64_t items, int64_t factors,
+                                   int64_t a_row_stride, int64_t a_col_stride, int64_t b_row_stride,
+                                   int64_t b_col_stride, lode_comparison** out);
+
+LODE_API void lode_comparison_free(lode_comparison* comparison);
+
+enum lode_comparison_key {
+  LODE_COMPARISON_CONGRUENCE = 800,         /* factors x factors, before matching (signed) */
+  LODE_COMPARISON_ORDER = 801,              /* factors x 1: the factor of b matched to each factor of a (0-based) */
+  LODE_COMPARISON_SIGNS = 802,              /* factors x 1: +1 or -1 applied to that factor of b */
+  LODE_COMPARISON_MATCHED_CONGRUENCE = 803, /* factors x 1: congruence of each matched pair (>= 0) */
+  LODE_COMPARISON_ALIGNED = 804,            /* items x factors: b reordered and reflected */
+  LODE_COMPARISON_NOTES = 850               /* text: a plain reading of each matched pair */
+};
+
+LODE_API int lode_comparison_matrix(const lode_comparison* comparison, int key, double* out, size_t capacity,
+                                    int64_t* rows, int64_t* cols);
+LODE_API int lode_comparison_text(const lode_comparison* comparison, int key, char* out, size_t capacity,
+                                  size_t* length);
 
 #ifdef __cplusplus
 } /* extern "C" */

@@ -1045,6 +1045,281 @@ static void test_fit(void) {
   lode_correlation_free(c0);
 }
 
+static void test_scores(void) {
+  double x[N_ROWS * N_ITEMS], v, buf[N_ROWS * 2], det[2], w[N_ITEMS * 2];
+  char text[4096];
+  size_t len = 0;
+  int64_t rows, cols, assignment[N_ITEMS] = {0, 0, 0, 1, 1, 1};
+  int i;
+  lode_data *d = NULL, *d3 = NULL, *dm = NULL;
+  lode_correlation *c = NULL, *cm = NULL;
+  lode_model *m = NULL, *mm = NULL;
+  lode_fit_options fo;
+  lode_rotation_options ro;
+  lode_score_options so;
+  lode_scores* s = NULL;
+  lode_reliability* rel = NULL;
+  lode_comparison* cmp = NULL;
+  make_data(x);
+  x[5 * N_ITEMS + 2] = nan_value();
+  OK(lode_data_from_raw(x, N_ROWS, N_ITEMS, N_ITEMS, 1, &d));
+  OK(lode_correlate(d, NULL, &c));
+  OK(lode_fit_options_init(&fo, sizeof fo));
+  OK(lode_rotation_options_init(&ro, sizeof ro));
+  fo.factors = 2;
+  fo.method = LODE_PAF;
+  fo.rotation = &ro;
+  OK(lode_fit(c, &fo, &m));
+
+  /* scores of the data the model was fitted to */
+  EXPECT(lode_score_options_init(NULL, sizeof so), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
+  OK(lode_score_options_init(&so, sizeof so));
+  CHECK(so.method == LODE_SCORES_REGRESSION && so.missing == LODE_SCORE_FROM_ANSWERED && so.min_answered_share == 0.5);
+  OK(lode_score(m, NULL, &so, &s));
+  OK(lode_scores_matrix(s, LODE_SCORES_VALUES, NULL, 0, &rows, &cols));
+  CHECK(rows == N_ROWS && cols == 2);
+  OK(lode_scores_matrix(s, LODE_SCORES_VALUES, buf, N_ROWS * 2, NULL, NULL));
+  CHECK(buf[5 * 2] == buf[5 * 2]); /* the row with a missing item is scored from its answered items */
+  OK(lode_scores_matrix(s, LODE_SCORES_DETERMINACY, det, 2, &rows, &cols));
+  CHECK(rows == 2 && cols == 1 && det[0] > 0.0 && det[0] <= 1.0);
+  OK(lode_scores_matrix(s, LODE_SCORES_WEIGHTS, w, N_ITEMS * 2, NULL, NULL));
+  OK(lode_scores_matrix(s, LODE_SCORES_VALIDITY, det, 2, NULL, NULL));
+  OK(lode_scores_matrix(s, LODE_SCORES_CORRELATIONS, w, 4, NULL, NULL));
+  OK(lode_scores_matrix(s, LODE_SCORES_LOW_DETERMINACY, det, 2, NULL, NULL));
+  OK(lode_scores_value(s, LODE_SCORES_ROWS_TOTAL, &v));
+  CHECK(v == N_ROWS);
+  OK(lode_scores_value(s, LODE_SCORES_ROWS_PARTIAL, &v));
+  CHECK(v == 1.0);
+  OK(lode_scores_value(s, LODE_SCORES_ROWS_COMPLETE, &v));
+  CHECK(v == N_ROWS - 1);
+  OK(lode_scores_value(s, LODE_SCORES_ROWS_MISSING, &v));
+  CHECK(v == 0.0);
+  OK(lode_scores_text(s, LODE_SCORES_CAUTIONS, text, sizeof text, &len));
+  CHECK(strstr(text, "estimates") != NULL);
+  OK(lode_scores_text(s, LODE_SCORES_NOTES, text, sizeof text, &len));
+  CHECK(strstr(text, "estimates") != NULL); /* the notes end with the cautions */
+  EXPECT(lode_scores_value(s, LODE_SCORES_VALUES, &v), LODE_E_INVALID_ARGUMENT, "key 600");
+  EXPECT(lode_scores_matrix(s, LODE_SCORES_ROWS_TOTAL, buf, 10, NULL, NULL), LODE_E_INVALID_ARGUMENT, "key 620");
+  EXPECT(lode_scores_text(s, LODE_SCORES_VALUES, text, 10, NULL), LODE_E_INVALID_ARGUMENT, "key 600");
+  EXPECT(lode_scores_value(NULL, LODE_SCORES_ROWS_TOTAL, &v), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT(lode_scores_matrix(NULL, LODE_SCORES_VALUES, buf, 10, NULL, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT(lode_scores_text(NULL, LODE_SCORES_NOTES, text, 10, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  lode_scores_free(s);
+  s = NULL;
+
+  /* other methods, explicit data, the leave-missing rule, an older options struct */
+  so.method = LODE_SCORES_BARTLETT;
+  so.missing = LODE_SCORE_LEAVE_MISSING;
+  OK(lode_score(m, d, &so, &s));
+  OK(lode_scores_value(s, LODE_SCORES_ROWS_MISSING, &v));
+  CHECK(v == 1.0);
+  lode_scores_free(s);
+  s = NULL;
+  so.method = LODE_SCORES_TENBERGE;
+  so.struct_size = offsetof(lode_score_options, missing); /* older: the rule defaults to from-answered */
+  OK(lode_score(m, d, &so, &s));
+  OK(lode_scores_value(s, LODE_SCORES_ROWS_MISSING, &v));
+  CHECK(v == 0.0);
+  lode_scores_free(s);
+  s = NULL;
+  OK(lode_score_options_init(&so, sizeof so));
+  so.method = 9;
+  EXPECT(lode_score(m, NULL, &so, &s), LODE_E_INVALID_ARGUMENT, "unknown score method 9");
+  so.method = LODE_SCORES_REGRESSION;
+  so.missing = 4;
+  EXPECT(lode_score(m, NULL, &so, &s), LODE_E_INVALID_ARGUMENT, "missing-item rule");
+  so.missing = LODE_SCORE_FROM_ANSWERED;
+  so.min_answered_share = 0.0;
+  EXPECT(lode_score(m, NULL, &so, &s), LODE_E_INVALID_ARGUMENT, "min_answered_share");
+  so.min_answered_share = 0.5;
+  so.low_determinacy = 2.0;
+  EXPECT(lode_score(m, NULL, &so, &s), LODE_E_INVALID_ARGUMENT, "low_determinacy");
+  EXPECT(lode_score(NULL, NULL, NULL, &s), LODE_E_INVALID_ARGUMENT, "'model' is NULL");
+  EXPECT(lode_score(m, NULL, NULL, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  OK(lode_data_from_raw(x, N_ROWS, 3, N_ITEMS, 1, &d3));
+  EXPECT(lode_score(m, d3, NULL, &s), LODE_E_INVALID_ARGUMENT, "the data have 3 items but the model has 6");
+  {
+    /* a model fitted to a matrix has no respondents to score */
+    double r[36];
+    OK(lode_correlation_matrix(c, LODE_CORRELATION_MATRIX, r, 36, NULL, NULL));
+    OK(lode_data_from_correlation(r, N_ITEMS, N_ITEMS, 1, N_ROWS, &dm));
+    OK(lode_correlate(dm, NULL, &cm));
+    OK(lode_fit(cm, &fo, &mm));
+    EXPECT(lode_score(mm, NULL, NULL, &s), LODE_E_INVALID_ARGUMENT, "fitted to a matrix");
+    EXPECT(lode_score(mm, dm, NULL, &s), LODE_E_INVALID_ARGUMENT, "raw data");
+    OK(lode_score(mm, d, NULL, &s));
+    lode_scores_free(s);
+    s = NULL;
+  }
+  lode_scores_free(NULL);
+
+  /* alpha of the first three items: standardised alpha is the Spearman-Brown form of the mean
+   * inter-item correlation, k r / (1 + (k - 1) r) (Cronbach 1951; published identity) */
+  OK(lode_cronbach_alpha(d3, &rel));
+  OK(lode_reliability_value(rel, LODE_ALPHA, &v));
+  CHECK(v > 0.0 && v < 1.0);
+  {
+    double rbar, std_alpha;
+    OK(lode_reliability_value(rel, LODE_ALPHA_MEAN_INTER_ITEM, &rbar));
+    OK(lode_reliability_value(rel, LODE_ALPHA_STANDARDIZED, &std_alpha));
+    CHECK(fabs(std_alpha - 3 * rbar / (1 + 2 * rbar)) < 1e-12);
+  }
+  OK(lode_reliability_value(rel, LODE_ALPHA_ROWS_USED, &v));
+  CHECK(v == N_ROWS - 1);
+  OK(lode_reliability_value(rel, LODE_ALPHA_ROWS_TOTAL, &v));
+  OK(lode_reliability_value(rel, LODE_ALPHA_ITEMS, &v));
+  CHECK(v == 3.0);
+  {
+    static const int keys[] = {LODE_ALPHA_IF_DELETED, LODE_ALPHA_STANDARDIZED_IF_DELETED, LODE_ALPHA_ITEM_TOTAL,
+                               LODE_ALPHA_ITEM_MEANS, LODE_ALPHA_ITEM_SDS};
+    size_t k;
+    for (k = 0; k < sizeof keys / sizeof keys[0]; ++k) {
+      OK(lode_reliability_matrix(rel, keys[k], buf, 3, &rows, &cols));
+      CHECK(rows == 3 && cols == 1);
+    }
+  }
+  OK(lode_reliability_text(rel, LODE_RELIABILITY_NOTES, NULL, 0, &len));
+  EXPECT(lode_reliability_matrix(rel, LODE_OMEGA, buf, 3, NULL, NULL), LODE_E_INVALID_ARGUMENT, "omega");
+  EXPECT(lode_reliability_value(rel, LODE_OMEGA, &v), LODE_E_INVALID_ARGUMENT, "key 740");
+  EXPECT(lode_reliability_text(rel, LODE_ALPHA, text, 10, NULL), LODE_E_INVALID_ARGUMENT, "key 720");
+  EXPECT(lode_reliability_value(NULL, LODE_ALPHA, &v), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT(lode_reliability_matrix(NULL, LODE_OMEGA, buf, 3, NULL, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT(lode_reliability_text(NULL, LODE_RELIABILITY_NOTES, text, 10, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  lode_reliability_free(rel);
+  rel = NULL;
+  EXPECT(lode_cronbach_alpha(dm, &rel), LODE_E_INVALID_ARGUMENT, "raw data");
+  EXPECT(lode_cronbach_alpha(NULL, &rel), LODE_E_INVALID_ARGUMENT, "'data' is NULL");
+  EXPECT(lode_cronbach_alpha(d3, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+
+  /* omega: by largest loading, and by a given assignment */
+  OK(lode_mcdonald_omega(m, NULL, 0, &rel));
+  OK(lode_reliability_matrix(rel, LODE_OMEGA, det, 2, &rows, &cols));
+  CHECK(rows == 2 && cols == 1 && det[0] > 0.0 && det[0] < 1.0);
+  OK(lode_reliability_matrix(rel, LODE_OMEGA_ASSIGNMENT, buf, N_ITEMS, &rows, NULL));
+  CHECK(rows == N_ITEMS);
+  OK(lode_reliability_matrix(rel, LODE_OMEGA_SUM_LOADINGS, det, 2, NULL, NULL));
+  OK(lode_reliability_matrix(rel, LODE_OMEGA_SUM_UNIQUENESSES, det, 2, NULL, NULL));
+  OK(lode_reliability_text(rel, LODE_RELIABILITY_NOTES, text, sizeof text, NULL));
+  EXPECT(lode_reliability_value(rel, LODE_ALPHA, &v), LODE_E_INVALID_ARGUMENT, "alpha");
+  EXPECT(lode_reliability_matrix(rel, LODE_ALPHA_IF_DELETED, buf, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "alpha");
+  lode_reliability_free(rel);
+  rel = NULL;
+  OK(lode_mcdonald_omega(m, assignment, N_ITEMS, &rel));
+  OK(lode_reliability_matrix(rel, LODE_OMEGA_ASSIGNMENT, buf, N_ITEMS, NULL, NULL));
+  for (i = 0; i < N_ITEMS; ++i) CHECK(buf[i] == (double)assignment[i]);
+  lode_reliability_free(rel);
+  rel = NULL;
+  assignment[2] = 5;
+  EXPECT(lode_mcdonald_omega(m, assignment, N_ITEMS, &rel), LODE_E_INVALID_ARGUMENT, "column 3 is assigned to factor 5");
+  EXPECT(lode_mcdonald_omega(m, assignment, 4, &rel), LODE_E_INVALID_ARGUMENT, "4 assignments were given for 6 items");
+  EXPECT(lode_mcdonald_omega(m, NULL, 3, &rel), LODE_E_INVALID_ARGUMENT, "'assignment' is NULL");
+  EXPECT(lode_mcdonald_omega(NULL, NULL, 0, &rel), LODE_E_INVALID_ARGUMENT, "'model' is NULL");
+  EXPECT(lode_mcdonald_omega(m, NULL, 0, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  lode_reliability_free(NULL);
+
+
+  /* omega of a single scale from a one-factor fit of its items' correlations: the stored loadings
+   * and uniquenesses reproduce McDonald's (1999) formula (sum l)^2 / ((sum l)^2 + sum psi) */
+  {
+    lode_correlation* c3 = NULL;
+    lode_fit_options f1;
+    double lam[3], psi[3], om, sl;
+    OK(lode_correlate(d3, NULL, &c3));
+    OK(lode_omega_single_scale(c3, NULL, &rel));
+    OK(lode_reliability_matrix(rel, LODE_OMEGA, &om, 1, &rows, &cols));
+    CHECK(rows == 1 && cols == 1 && om > 0.0 && om < 1.0);
+    OK(lode_reliability_matrix(rel, LODE_OMEGA_LOADINGS, lam, 3, &rows, &cols));
+    CHECK(rows == 3 && cols == 1);
+    OK(lode_reliability_matrix(rel, LODE_OMEGA_UNIQUENESSES, psi, 3, NULL, NULL));
+    sl = lam[0] + lam[1] + lam[2];
+    CHECK(fabs(om - sl * sl / (sl * sl + psi[0] + psi[1] + psi[2])) < 1e-12);
+    OK(lode_reliability_matrix(rel, LODE_OMEGA_ASSIGNMENT, buf, 3, &rows, NULL));
+    CHECK(rows == 3 && buf[0] == 0.0 && buf[2] == 0.0);
+    OK(lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v));
+    CHECK(v == 1.0);
+    OK(lode_reliability_text(rel, LODE_RELIABILITY_NOTES, NULL, 0, &len));
+    EXPECT(lode_reliability_value(rel, LODE_ALPHA, &v), LODE_E_INVALID_ARGUMENT, "alpha");
+    EXPECT(lode_reliability_matrix(rel, LODE_OMEGA_LOADINGS, lam, 2, NULL, NULL), LODE_E_BUFFER_TOO_SMALL, NULL);
+    lode_reliability_free(rel);
+    rel = NULL;
+    OK(lode_fit_options_init(&f1, sizeof f1));
+    f1.method = LODE_PAF;
+    OK(lode_omega_single_scale(c3, &f1, &rel));
+    OK(lode_reliability_matrix(rel, LODE_OMEGA, &om, 1, NULL, NULL));
+    CHECK(om > 0.0 && om < 1.0);
+    lode_reliability_free(rel);
+    rel = NULL;
+    f1.method = 9;
+    EXPECT(lode_omega_single_scale(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "unknown extraction method 9");
+    f1.method = LODE_ML;
+    f1.tolerance = -1.0;
+    EXPECT(lode_omega_single_scale(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "tolerance");
+    f1.tolerance = 1e-9;
+    f1.max_iterations = 0;
+    EXPECT(lode_omega_single_scale(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "max_iterations");
+    f1.max_iterations = 1000;
+    f1.min_uniqueness = 1.0;
+    EXPECT(lode_omega_single_scale(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "min_uniqueness");
+    f1.struct_size = 1;
+    EXPECT(lode_omega_single_scale(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "struct_size");
+    EXPECT(lode_omega_single_scale(NULL, NULL, &rel), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
+    EXPECT(lode_omega_single_scale(c3, NULL, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+    CHECK(rel == NULL);
+    lode_correlation_free(c3);
+  }
+  /* a model's omega has no single-scale loadings; an alpha result has no convergence */
+  OK(lode_mcdonald_omega(m, NULL, 0, &rel));
+  EXPECT(lode_reliability_matrix(rel, LODE_OMEGA_LOADINGS, buf, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "single-scale");
+  OK(lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v));
+  CHECK(v == 1.0);
+  lode_reliability_free(rel);
+  rel = NULL;
+  OK(lode_cronbach_alpha(d3, &rel));
+  EXPECT(lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v), LODE_E_INVALID_ARGUMENT, "omega");
+  lode_reliability_free(rel);
+  rel = NULL;
+
+  /* congruence: a solution against itself with its factors swapped and one reflected */
+  {
+    double a[N_ITEMS * 2], b[N_ITEMS * 2], out[N_ITEMS * 2], con[4];
+    OK(lode_model_matrix(m, LODE_MODEL_LOADINGS, a, N_ITEMS * 2, NULL, NULL));
+    for (i = 0; i < N_ITEMS; ++i) {
+      b[i * 2] = -a[i * 2 + 1];
+      b[i * 2 + 1] = a[i * 2];
+    }
+    OK(lode_compare_loadings(a, b, N_ITEMS, 2, 2, 1, 2, 1, &cmp));
+    OK(lode_comparison_matrix(cmp, LODE_COMPARISON_MATCHED_CONGRUENCE, con, 2, &rows, &cols));
+    CHECK(rows == 2 && cols == 1 && fabs(con[0] - 1.0) < 1e-12 && fabs(con[1] - 1.0) < 1e-12);
+    OK(lode_comparison_matrix(cmp, LODE_COMPARISON_ORDER, con, 2, NULL, NULL));
+    CHECK(con[0] == 1.0 && con[1] == 0.0);
+    OK(lode_comparison_matrix(cmp, LODE_COMPARISON_SIGNS, con, 2, NULL, NULL));
+    CHECK(con[0] == 1.0 && con[1] == -1.0);
+    OK(lode_comparison_matrix(cmp, LODE_COMPARISON_ALIGNED, out, N_ITEMS * 2, NULL, NULL));
+    CHECK(max_abs_diff(out, a, N_ITEMS * 2) < 1e-15);
+    OK(lode_comparison_matrix(cmp, LODE_COMPARISON_CONGRUENCE, con, 4, NULL, NULL));
+    OK(lode_comparison_text(cmp, LODE_COMPARISON_NOTES, text, sizeof text, NULL));
+    EXPECT(lode_comparison_matrix(cmp, LODE_COMPARISON_NOTES, con, 4, NULL, NULL), LODE_E_INVALID_ARGUMENT, "key 850");
+    EXPECT(lode_comparison_text(cmp, LODE_COMPARISON_ORDER, text, 10, NULL), LODE_E_INVALID_ARGUMENT, "key 801");
+    EXPECT(lode_comparison_matrix(NULL, LODE_COMPARISON_ORDER, con, 4, NULL, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+    EXPECT(lode_comparison_text(NULL, LODE_COMPARISON_NOTES, text, 10, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+    lode_comparison_free(cmp);
+    cmp = NULL;
+    b[3] = nan_value();
+    EXPECT(lode_compare_loadings(a, b, N_ITEMS, 2, 2, 1, 2, 1, &cmp), LODE_E_INVALID_ARGUMENT, "second loading matrix");
+    EXPECT(lode_compare_loadings(a, NULL, N_ITEMS, 2, 2, 1, 2, 1, &cmp), LODE_E_INVALID_ARGUMENT, "'values' is NULL");
+    EXPECT(lode_compare_loadings(a, b, N_ITEMS, 2, 2, 1, 2, 1, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+    CHECK(cmp == NULL);
+    lode_comparison_free(NULL);
+  }
+  lode_model_free(m);
+  lode_model_free(mm);
+  lode_correlation_free(c);
+  lode_correlation_free(cm);
+  lode_data_free(d);
+  lode_data_free(d3);
+  lode_data_free(dm);
+}
+
 static void test_last_error_is_cleared(void) {
   lode_data* d = NULL;
   EXPECT(lode_data_from_raw(NULL, 1, 1, 1, 1, &d), LODE_E_INVALID_ARGUMENT, "NULL");
@@ -1067,6 +1342,7 @@ int main(void) {
   test_factor_count();
   test_rotation();
   test_fit();
+  test_scores();
   test_last_error_is_cleared();
   printf("%d checks, %d failures\n", checks, failures);
   return failures == 0 ? 0 : 1;

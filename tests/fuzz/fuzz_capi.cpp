@@ -133,7 +133,61 @@ void analyse(const lode_correlation* c, Bytes& in) {
       lode_rotation_free(r);
     }
   }
+  // Scores of the data the model was fitted to (refused for matrix input), omega per factor, and the
+  // congruence of the unrotated with the rotated loadings, each read back in full.
+  lode_score_options so;
+  lode_score_options_init(&so, sizeof so);
+  so.method = in.byte() % 4;   // includes one unknown method
+  so.missing = in.byte() % 3;  // includes one unknown rule
+  so.min_answered_share = (in.byte() % 5) / 4.0;
+  lode_scores* s = nullptr;
+  if (lode_score(m, nullptr, &so, &s) == LODE_OK) {
+    for (int key = 600; key < 606; ++key) lode_scores_matrix(s, key, buf, 256, nullptr, nullptr);
+    for (int key = 620; key < 624; ++key) lode_scores_value(s, key, &v);
+    for (int key = 650; key < 652; ++key) lode_scores_text(s, key, text, sizeof text, nullptr);
+    lode_scores_free(s);
+  }
+  lode_reliability* rel = nullptr;
+  if (lode_mcdonald_omega(m, nullptr, 0, &rel) == LODE_OK) {
+    for (int key = 740; key < 746; ++key) lode_reliability_matrix(rel, key, buf, 256, nullptr, nullptr);
+    lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v);
+    lode_reliability_text(rel, LODE_RELIABILITY_NOTES, text, sizeof text, nullptr);
+    lode_reliability_free(rel);
+  }
+  double rotated[256];
+  if (lode_model_matrix(m, LODE_MODEL_UNROTATED_LOADINGS, buf, 256, &rows, &cols) == LODE_OK &&
+      lode_model_matrix(m, LODE_MODEL_LOADINGS, rotated, 256, nullptr, nullptr) == LODE_OK) {
+    lode_comparison* cmp = nullptr;
+    if (lode_compare_loadings(buf, rotated, rows, cols, cols, 1, cols, 1, &cmp) == LODE_OK) {
+      double out[256];
+      for (int key = 800; key < 805; ++key) lode_comparison_matrix(cmp, key, out, 256, nullptr, nullptr);
+      lode_comparison_text(cmp, LODE_COMPARISON_NOTES, text, sizeof text, nullptr);
+      lode_comparison_free(cmp);
+    }
+  }
   lode_model_free(m);
+}
+
+// Reliability straight from the data: alpha of raw data, omega of a single scale from its correlations.
+void reliability(const lode_data* d, const lode_correlation* c) {
+  double buf[64], v;
+  char text[1024];
+  lode_reliability* rel = nullptr;
+  if (lode_cronbach_alpha(d, &rel) == LODE_OK) {
+    for (int key = 700; key < 705; ++key) lode_reliability_matrix(rel, key, buf, 64, nullptr, nullptr);
+    for (int key = 720; key < 726; ++key) lode_reliability_value(rel, key, &v);
+    lode_reliability_text(rel, LODE_RELIABILITY_NOTES, text, sizeof text, nullptr);
+    lode_reliability_free(rel);
+  }
+  lode_fit_options fo;
+  lode_fit_options_init(&fo, sizeof fo);
+  fo.max_iterations = 200;
+  if (lode_omega_single_scale(c, &fo, &rel) == LODE_OK) {
+    for (int key = 740; key < 746; ++key) lode_reliability_matrix(rel, key, buf, 64, nullptr, nullptr);
+    lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v);
+    lode_reliability_text(rel, LODE_RELIABILITY_NOTES, text, sizeof text, nullptr);
+    lode_reliability_free(rel);
+  }
 }
 
 }  // namespace
@@ -197,6 +251,7 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
   if (lode_correlate(d, &o, &c) == LODE_OK) {
     read_correlation(c, in);
     analyse(c, in);
+    reliability(d, c);
     lode_correlation_free(c);
   }
   lode_data_free(d);

@@ -168,6 +168,34 @@ declare(_getters)
 
 
 
+class ScoreOptions(ctypes.Structure):
+    _fields_ = [("struct_size", c_size_t), ("method", c_int), ("missing", c_int), ("min_answered_share", c_double),
+                ("low_determinacy", c_double)]
+
+
+_more = {}
+for _kind in ("scores", "reliability"):
+    _more[f"lode_{_kind}_matrix"] = (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64])
+    _more[f"lode_{_kind}_value"] = (c_int, [c_void_p, c_int, P_double])
+    _more[f"lode_{_kind}_text"] = (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t])
+    _more[f"lode_{_kind}_free"] = (None, [c_void_p])
+_more.update({
+    "lode_score_options_init": (c_int, [ctypes.POINTER(ScoreOptions), c_size_t]),
+    "lode_score": (c_int, [c_void_p, c_void_p, ctypes.POINTER(ScoreOptions), P_void_p]),
+    "lode_cronbach_alpha": (c_int, [c_void_p, P_void_p]),
+    "lode_mcdonald_omega": (c_int, [c_void_p, P_int64, c_int64, P_void_p]),
+    "lode_omega_single_scale": (c_int, [c_void_p, ctypes.POINTER(FitOptions), P_void_p]),
+    "lode_compare_loadings": (c_int, [P_double, P_double, c_int64, c_int64, c_int64, c_int64, c_int64, c_int64,
+                                      P_void_p]),
+    "lode_comparison_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
+    "lode_comparison_text": (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t]),
+    "lode_comparison_free": (None, [c_void_p]),
+})
+# Added in ABI 1.1: declared only where the loaded library has them, so older libraries still load
+# (the functions that need them then raise AttributeError).
+declare({name: sig for name, sig in _more.items() if hasattr(lib, name)})
+
+
 def check(status):
     """Raises LodeError for a failing status, with the library's message."""
     if status != 0:
