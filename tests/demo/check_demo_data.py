@@ -38,6 +38,17 @@ FILES = ["volunteer-survey-responses.csv", "volunteer-survey-items.csv",
 results = []
 
 
+
+def json_close(a, b, tol):
+    """True when two parsed JSON values are equal, numbers within tol."""
+    if isinstance(a, dict) and isinstance(b, dict):
+        return a.keys() == b.keys() and all(json_close(a[k], b[k], tol) for k in a)
+    if isinstance(a, list) and isinstance(b, list):
+        return len(a) == len(b) and all(json_close(x, y, tol) for x, y in zip(a, b))
+    if isinstance(a, (int, float)) and isinstance(b, (int, float)) and not isinstance(a, bool):
+        return abs(a - b) <= tol
+    return a == b
+
 def check(name, ok, detail=""):
     results.append(bool(ok))
     print(f"{'ok  ' if ok else 'FAIL'} {name}" + (f": {detail}" if detail else ""), flush=True)
@@ -176,7 +187,15 @@ def main():
         # 1. Determinism: the regenerated files equal the committed ones byte for byte.
         for name in FILES:
             same = filecmp.cmp(os.path.join(gen, name), os.path.join(sheets, name), shallow=False)
-            check(f"regenerated {name} is byte-identical to the committed file", same)
+            if not same and name.endswith(".json"):
+                # The truth file holds model-implied values rounded to 4 decimals; the system BLAS
+                # (reference or OpenBLAS) can move a value across a rounding boundary. The data
+                # themselves must match byte for byte; the derived values must agree to 1e-4.
+                with open(os.path.join(gen, name)) as f_gen, open(os.path.join(sheets, name)) as f_ref:
+                    same = json_close(json.load(f_gen), json.load(f_ref), 1.01e-4)
+                check(f"regenerated {name} equals the committed file (derived values to 1e-4)", same)
+            else:
+                check(f"regenerated {name} is byte-identical to the committed file", same)
 
         with open(os.path.join(gen, "volunteer-survey-truth.json")) as f:
             truth = json.load(f)
