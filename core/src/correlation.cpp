@@ -26,6 +26,23 @@ const char* to_string(CorrelationKind kind) noexcept {
   return "unknown";
 }
 
+Vector average_ranks(const Vector& x) {
+  const Index n = x.size();
+  std::vector<Index> order(static_cast<std::size_t>(n));
+  std::iota(order.begin(), order.end(), Index{0});
+  std::stable_sort(order.begin(), order.end(), [&](Index a, Index b) { return x(a) < x(b); });
+  Vector ranks(n);
+  Index i = 0;
+  while (i < n) {
+    Index j = i;
+    while (j + 1 < n && x(order[static_cast<std::size_t>(j + 1)]) == x(order[static_cast<std::size_t>(i)])) ++j;
+    const double r = 0.5 * static_cast<double>(i + j) + 1.0;
+    for (Index k = i; k <= j; ++k) ranks(order[static_cast<std::size_t>(k)]) = r;
+    i = j + 1;
+  }
+  return ranks;
+}
+
 std::string item_label(const std::vector<std::string>& names, Index j) {
   if (j >= 0 && static_cast<std::size_t>(j) < names.size() && !names[static_cast<std::size_t>(j)].empty())
     return fmt::format("item '{}'", names[static_cast<std::size_t>(j)]);
@@ -45,23 +62,6 @@ std::vector<Index> complete_rows(const Mask& present) {
   return rows;
 }
 
-// Average ranks (ties share the mean of their positions), 1-based.
-Vector average_ranks(const Vector& x) {
-  const Index n = x.size();
-  std::vector<Index> order(static_cast<std::size_t>(n));
-  std::iota(order.begin(), order.end(), Index{0});
-  std::stable_sort(order.begin(), order.end(), [&](Index a, Index b) { return x(a) < x(b); });
-  Vector ranks(n);
-  Index i = 0;
-  while (i < n) {
-    Index j = i;
-    while (j + 1 < n && x(order[static_cast<std::size_t>(j + 1)]) == x(order[static_cast<std::size_t>(i)])) ++j;
-    const double r = 0.5 * static_cast<double>(i + j) + 1.0;
-    for (Index k = i; k <= j; ++k) ranks(order[static_cast<std::size_t>(k)]) = r;
-    i = j + 1;
-  }
-  return ranks;
-}
 
 double pearson_of(const Vector& x, const Vector& y) {
   const double mx = x.mean(), my = y.mean();

@@ -369,23 +369,6 @@ std::vector<std::vector<Index>> answered_rows(const Matrix& data) {
   return rows;
 }
 
-// Average ranks (ties share the mean of their positions), 1-based.
-Vector average_ranks(const Vector& x) {
-  const Index n = x.size();
-  std::vector<Index> order(static_cast<std::size_t>(n));
-  std::iota(order.begin(), order.end(), Index{0});
-  std::stable_sort(order.begin(), order.end(), [&](Index a, Index b) { return x(a) < x(b); });
-  Vector ranks(n);
-  Index i = 0;
-  while (i < n) {
-    Index j = i;
-    while (j + 1 < n && x(order[static_cast<std::size_t>(j + 1)]) == x(order[static_cast<std::size_t>(i)])) ++j;
-    const double r = 0.5 * static_cast<double>(i + j) + 1.0;
-    for (Index k = i; k <= j; ++k) ranks(order[static_cast<std::size_t>(k)]) = r;
-    i = j + 1;
-  }
-  return ranks;
-}
 
 }  // namespace
 

@@ -107,6 +107,9 @@ CorrelationResult correlation_from_covariance(const Matrix& s, Index n_obs, cons
 Matrix nearest_correlation(const Matrix& r, double min_eigenvalue, SmoothingReport* report = nullptr,
                            int max_iterations = 1000, double tolerance = 1e-10);
 
+// Average ranks of x (ties share the mean of their positions), 1-based, as Spearman uses them.
+Vector average_ranks(const Vector& x);
+
 // Eigenvalues of a symmetric matrix, largest first.
 Vector eigenvalues_descending(const Matrix& symmetric);
 
