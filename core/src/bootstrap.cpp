@@ -188,9 +188,27 @@ BootstrapResult bootstrap_solution(const Matrix& data, const FactorSolution& ful
   return out;
 }
 
-FactorSolution fit_factor_solution(const Matrix& correlation, int factors, const ExtractionOptions& extraction,
-                                   const RotationOptions& rotation) {
-  const ExtractionResult e = extract_factors(correlation, factors, extraction);
+namespace {
+
+// The orthogonal Q minimising ||a Q - target|| (Schoenemann 1966): U V' from the SVD of a' target.
+Matrix procrustes_rotation(const Matrix& a, const Matrix& target) {
+  Eigen::JacobiSVD<Matrix> svd(a.transpose() * target, Eigen::ComputeFullU | Eigen::ComputeFullV);
+  return svd.matrixU() * svd.matrixV().transpose();
+}
+
+// A solution to start the rotation from: its unrotated loadings and its rotation matrix T.
+struct CarriedRotation {
+  const Matrix* unrotated = nullptr;
+  const Matrix* rotation = nullptr;
+};
+
+// Extraction then rotation, as fit_factor_solution; the full results are kept when asked for. With
+// `carry`, the rotation starts from carry's rotation turned onto these unrotated loadings, which differ
+// from carry's by sampling error and an orthogonal turn Q: start T = Q T_carry.
+FactorSolution fit_solution(const Matrix& correlation, int factors, const ExtractionOptions& extraction,
+                            const RotationOptions& rotation, ExtractionResult* extraction_out = nullptr,
+                            RotationResult* rotation_out = nullptr, CarriedRotation carry = {}) {
+  ExtractionResult e = extract_factors(correlation, factors, extraction);
   FactorSolution s;
   s.uniquenesses = e.uniquenesses;
   s.converged = e.convergence.converged;
@@ -198,7 +216,14 @@ FactorSolution fit_factor_solution(const Matrix& correlation, int factors, const
     s.problem = fmt::format("{} extraction did not converge within {} iterations", to_string(e.method),
                             e.convergence.max_iterations);
   if (factors >= 2 && rotation.method != RotationMethod::none) {
-    const RotationResult r = rotate(e.loadings, rotation);
+    RotationResult r;
+    if (carry.unrotated && carry.rotation) {
+      RotationOptions from = rotation;
+      from.start = procrustes_rotation(e.loadings, *carry.unrotated) * *carry.rotation;
+      r = rotate(e.loadings, from);
+    } else {
+      r = rotate(e.loadings, rotation);
+    }
     s.loadings = r.pattern;
     s.factor_correlations = r.factor_correlations;
     if (!r.convergence.converged) {
@@ -207,11 +232,20 @@ FactorSolution fit_factor_solution(const Matrix& correlation, int factors, const
         s.problem = fmt::format("{} rotation did not converge within {} iterations", rotation_name(rotation.method),
                                 r.convergence.max_iterations);
     }
+    if (rotation_out) *rotation_out = std::move(r);
   } else {
     s.loadings = e.loadings;
     s.factor_correlations = Matrix::Identity(factors, factors);
   }
+  if (extraction_out) *extraction_out = std::move(e);
   return s;
+}
+
+}  // namespace
+
+FactorSolution fit_factor_solution(const Matrix& correlation, int factors, const ExtractionOptions& extraction,
+                                   const RotationOptions& rotation) {
+  return fit_solution(correlation, factors, extraction, rotation);
 }
 
 BootstrapResult bootstrap_factor_solution(const Matrix& data, int factors, const ExtractionOptions& extraction,
@@ -219,7 +253,9 @@ BootstrapResult bootstrap_factor_solution(const Matrix& data, int factors, const
   const CorrelationResult r = correlation(data, options.correlation);
   ExtractionOptions ext = extraction;
   if (ext.n_obs == 0) ext.n_obs = r.n_obs;
-  const FactorSolution full = fit_factor_solution(r.matrix, factors, ext, rotation);
+  ExtractionResult full_extraction;
+  RotationResult full_rotation;
+  const FactorSolution full = fit_solution(r.matrix, factors, ext, rotation, &full_extraction, &full_rotation);
   if (!full.converged)
     throw Error(ErrorCode::not_converged,
                 fmt::format("the full-sample solution did not converge ({}); bootstrap intervals around it would mean "
@@ -228,18 +264,24 @@ BootstrapResult bootstrap_factor_solution(const Matrix& data, int factors, const
   RotationOptions rot = rotation;
   rot.threads = 1;  // the replicates are the parallel units
   if (options.replicate_random_starts >= 0) rot.random_starts = options.replicate_random_starts;
-  auto fit = [&](const Matrix& rr) { return fit_factor_solution(rr, factors, ext, rot); };
+  const bool rotating = factors >= 2 && rotation.method != RotationMethod::none;
+  const bool warm = options.replicate_warm_start;
+  if (warm && (ext.method == ExtractionMethod::maximum_likelihood || ext.method == ExtractionMethod::minimum_residual))
+    ext.start_uniquenesses = full_extraction.uniquenesses;
+  CarriedRotation carry;
+  if (warm && rotating) carry = {&full_extraction.loadings, &full_rotation.rotation};
+  auto fit = [&](const Matrix& rr) { return fit_solution(rr, factors, ext, rot, nullptr, nullptr, carry); };
   BootstrapResult out = bootstrap_solution(data, full, fit, options);
   out.notes.insert(out.notes.begin() + 1,
-                   fmt::format("Each replicate: {} correlations, {} extraction of {} factor{}{}.",
+                   fmt::format("Each replicate: {} correlations, {} extraction of {} factor{}{}{}.",
                                to_string(options.correlation.kind), to_string(extraction.method), factors,
                                factors == 1 ? "" : "s",
-                               factors >= 2 && rotation.method != RotationMethod::none
-                                   ? fmt::format(", {} rotation ({} random start{})", rotation_name(rotation.method),
-                                                 rot.random_starts < 0 ? std::string("default")
-                                                                       : std::to_string(rot.random_starts),
-                                                 rot.random_starts == 1 ? "" : "s")
-                                   : std::string()));
+                               rotating ? fmt::format(", {} rotation ({} random start{})", rotation_name(rotation.method),
+                                                      rot.random_starts < 0 ? std::string("default")
+                                                                            : std::to_string(rot.random_starts),
+                                                      rot.random_starts == 1 ? "" : "s")
+                                        : std::string(),
+                               warm ? "; each fit started from the full-sample solution" : ""));
   return out;
 }
 

@@ -9,6 +9,7 @@
 #include "lode/extraction.hpp"
 
 #include "lode/correlation.hpp"
+#include "symmetric_eigen.hpp"
 
 #include <fmt/format.h>
 
@@ -145,35 +146,49 @@ Matrix top_loadings(const Eigen_& e, int k) {
   return l;
 }
 
+// Loadings V_k diag(sqrt(max(values_k - shift, 0))) from the k leading eigenpairs.
+Matrix leading_loadings(const detail::LeadingEigen& e, int k, double shift) {
+  Matrix l = e.vectors().leftCols(k);
+  for (int j = 0; j < k; ++j) l.col(j) *= std::sqrt(std::max(e.values()(j) - shift, 0.0));
+  return l;
+}
+
 // Maximum likelihood, concentrated on the uniquenesses (Joreskog 1967): with S* = Psi^-1/2 R Psi^-1/2
 // and its eigenvalues theta, F(Psi) = sum_{m > k} (theta_m - ln theta_m - 1), L = Psi^1/2 V_k
-// diag(sqrt(max(theta_k - 1, 0))), and dF/dpsi_i = (L L' + Psi - R)_ii / psi_i^2.
+// diag(sqrt(max(theta_k - 1, 0))), and dF/dpsi_i = (L L' + Psi - R)_ii / psi_i^2. Each evaluation
+// needs every eigenvalue of S* but only its k leading eigenvectors (detail::LeadingEigen); the
+// workspace is reused from one evaluation to the next.
 struct MlProfile {
   const Matrix& r;
   int k;
-  Matrix loadings(const Vector& psi) const {
-    const Vector s = psi.cwiseSqrt();
-    const Vector is = s.cwiseInverse();
-    const Eigen_ e = eigen_descending(is.asDiagonal() * r * is.asDiagonal());
-    Matrix l = e.vectors.leftCols(k);
-    for (int j = 0; j < k; ++j) l.col(j) *= std::sqrt(std::max(e.values(j) - 1.0, 0.0));
-    return s.asDiagonal() * l;
+  detail::LeadingEigen eig{};
+  Matrix scaled{};
+  bool decompose(const Vector& psi) {
+    const Vector is = psi.cwiseSqrt().cwiseInverse();
+    scaled.noalias() = is.asDiagonal() * r * is.asDiagonal();
+    return eig.compute(scaled, k);
   }
-  double operator()(const Vector& psi, Vector& g) const {
+  Matrix loadings(const Vector& psi) {
+    if (!decompose(psi)) throw Error(ErrorCode::internal, "the eigen decomposition in maximum likelihood failed");
+    return psi.cwiseSqrt().asDiagonal() * leading_loadings(eig, k, 1.0);
+  }
+  double operator()(const Vector& psi, Vector& g) {
     const Index p = r.rows();
-    const Vector s = psi.cwiseSqrt();
-    const Vector is = s.cwiseInverse();
-    const Eigen_ e = eigen_descending(is.asDiagonal() * r * is.asDiagonal());
+    if (!decompose(psi)) return std::numeric_limits<double>::infinity();
+    const Vector& theta = eig.values();
     double f = 0.0;
     for (Index m = k; m < p; ++m) {
-      const double t = e.values(m);
+      const double t = theta(m);
       if (!(t > 0.0)) return std::numeric_limits<double>::infinity();
       f += t - std::log(t) - 1.0;
     }
-    Matrix l = e.vectors.leftCols(k);
-    for (int j = 0; j < k; ++j) l.col(j) *= std::sqrt(std::max(e.values(j) - 1.0, 0.0));
-    l = s.asDiagonal() * l;
-    for (Index i = 0; i < p; ++i) g(i) = (l.row(i).squaredNorm() + psi(i) - r(i, i)) / (psi(i) * psi(i));
+    const Matrix& v = eig.vectors();
+    for (Index i = 0; i < p; ++i) {
+      double h = 0.0;  // communality (L L')_ii = psi_i sum_j max(theta_j - 1, 0) v_ij^2
+      for (int j = 0; j < k; ++j) h += std::max(theta(j) - 1.0, 0.0) * v(i, j) * v(i, j);
+      h *= psi(i);
+      g(i) = (h + psi(i) - r(i, i)) / (psi(i) * psi(i));
+    }
     return f;
   }
 };
@@ -183,14 +198,18 @@ struct MlProfile {
 struct UlsProfile {
   const Matrix& r;
   int k;
-  Matrix loadings(const Vector& psi) const {
-    Matrix reduced = r;
+  detail::LeadingEigen eig{};
+  Matrix reduced{}, resid{};
+  Matrix loadings(const Vector& psi) {
+    reduced = r;
     reduced.diagonal() -= psi;
-    return top_loadings(eigen_descending(reduced), k);
+    if (!eig.compute(reduced, k)) throw Error(ErrorCode::internal, "the eigen decomposition in minimum residual failed");
+    return leading_loadings(eig, k, 0.0);
   }
-  double operator()(const Vector& psi, Vector& g) const {
+  double operator()(const Vector& psi, Vector& g) {
     const Matrix l = loadings(psi);
-    Matrix resid = r - l * l.transpose();
+    resid = r;
+    resid.noalias() -= l * l.transpose();
     resid.diagonal() -= psi;
     g = -resid.diagonal();
     return 0.5 * resid.squaredNorm();
@@ -222,6 +241,16 @@ void check_options(const ExtractionOptions& o, Index p) {
   if (!o.item_names.empty() && static_cast<Index>(o.item_names.size()) != p)
     throw Error(ErrorCode::invalid_argument,
                 fmt::format("{} item names were given for {} items", o.item_names.size(), p));
+  if (o.start_uniquenesses.size() != 0) {
+    if (o.start_uniquenesses.size() != p)
+      throw Error(ErrorCode::invalid_argument,
+                  fmt::format("{} starting uniquenesses were given for {} items", o.start_uniquenesses.size(), p));
+    for (Index i = 0; i < p; ++i)
+      if (!std::isfinite(o.start_uniquenesses(i)))
+        throw Error(ErrorCode::invalid_argument,
+                    fmt::format("the starting uniqueness of {} is not a finite number ({})", item_label(o.item_names, i),
+                                o.start_uniquenesses(i)));
+  }
 }
 
 // Columns by decreasing sum of squares, each with a non-negative sum (common practice).
@@ -329,12 +358,14 @@ ExtractionResult extract_factors(const Matrix& r_in, int factors, const Extracti
       c.max_iterations = options.max_iterations;
       c.tolerance = options.tolerance;
       bool short_of_positive = false;
+      detail::LeadingEigen e;
+      Matrix reduced = r;
       for (int it = 1; it <= options.max_iterations; ++it) {
-        Matrix reduced = r;
         reduced.diagonal() = h;
-        const Eigen_ e = eigen_descending(reduced);
-        short_of_positive = e.values(k - 1) <= 0.0;
-        l = top_loadings(e, k);
+        if (!e.compute(reduced, k))
+          throw Error(ErrorCode::internal, "the eigen decomposition in principal axis factoring failed");
+        short_of_positive = e.values()(k - 1) <= 0.0;
+        l = leading_loadings(e, k, 0.0);
         const Vector h_new = l.rowwise().squaredNorm();
         c.iterations = it;
         c.final_change = (h_new - h).cwiseAbs().maxCoeff();
@@ -352,7 +383,9 @@ ExtractionResult extract_factors(const Matrix& r_in, int factors, const Extracti
     }
     case ExtractionMethod::minimum_residual: {
       Vector start;
-      if (pd) {
+      if (options.start_uniquenesses.size() != 0) {
+        start = options.start_uniquenesses;
+      } else if (pd) {
         start = Vector::Ones(p) - squared_multiple_correlations(r);
       } else {
         // No SMCs without an inverse: start from each item's largest absolute correlation (common practice).
@@ -364,7 +397,7 @@ ExtractionResult extract_factors(const Matrix& r_in, int factors, const Extracti
                                         "multiple correlations",
                                         smallest_eigenvalue_text(r)));
       }
-      const UlsProfile uls{r, k};
+      UlsProfile uls{r, k};
       BoxMinimum m = minimize_in_box([&](const Vector& x, Vector& g) { return uls(x, g); }, start, options.min_uniqueness,
                                      1.0, options.max_iterations, options.tolerance);
       out.convergence = m.convergence;
@@ -373,10 +406,13 @@ ExtractionResult extract_factors(const Matrix& r_in, int factors, const Extracti
       break;
     }
     case ExtractionMethod::maximum_likelihood: {
-      // Start of Joreskog (1967): psi_i = (1 - k / (2p)) / (R^-1)_ii.
-      const Matrix inv = r.llt().solve(Matrix::Identity(p, p));
-      const Vector start = (1.0 - 0.5 * k / static_cast<double>(p)) * inv.diagonal().cwiseInverse();
-      const MlProfile ml{r, k};
+      // Start of Joreskog (1967): psi_i = (1 - k / (2p)) / (R^-1)_ii, unless the caller gave one.
+      Vector start = options.start_uniquenesses;
+      if (start.size() == 0) {
+        const Matrix inv = r.llt().solve(Matrix::Identity(p, p));
+        start = (1.0 - 0.5 * k / static_cast<double>(p)) * inv.diagonal().cwiseInverse();
+      }
+      MlProfile ml{r, k};
       BoxMinimum m = minimize_in_box([&](const Vector& x, Vector& g) { return ml(x, g); }, start, options.min_uniqueness,
                                      1.0, options.max_iterations, options.tolerance);
       out.convergence = m.convergence;

@@ -2,6 +2,7 @@
 #include "lode/distributions.hpp"
 
 #include "lode/parallel.hpp"
+#include "symmetric_eigen.hpp"
 
 #include <fmt/format.h>
 
@@ -12,6 +13,8 @@
 #include <random>
 
 namespace lode {
+
+using detail::QlState;
 
 const char* to_string(RandomDataSource source) noexcept {
   switch (source) {
@@ -67,213 +70,59 @@ void run_chunks(Index replicates, const ParallelAnalysisOptions& o, const std::f
       progress);
 }
 
-// Eigenvalues of symmetric tridiagonal matrices by the root-free implicit QL iteration of Pal, Walker &
-// Kahan (1969), the scheme of LAPACK's dsterf. Eigen's general solver spends most of its time in this
-// phase; this form is about twice as fast, and two independent matrices (a replicate's component and
-// factor versions) are swept in lockstep so the processor overlaps their chains of divisions.
-//
-// One matrix: d, the diagonal, overwritten by the eigenvalues in no particular order; e2, the squared
-// off-diagonal (n - 1 used), destroyed.
-struct QlState {
-  double* d;
-  double* e2;
-  Index n;
-  int max_iterations;  // per eigenvalue
-  Index l = 0, m = 0, i = 0;
-  int iterations = 0;
-  bool failed = false;
-  double c = 1.0, s = 0.0, gamma = 0.0, p = 0.0, sigma = 0.0;
-
-  // Moves past converged eigenvalues and sets up the next sweep; false when every eigenvalue is found
-  // (or the iteration cap was hit: `failed`).
-  bool next_sweep() {
-    constexpr double eps2 = std::numeric_limits<double>::epsilon() * std::numeric_limits<double>::epsilon();
-    while (l < n) {
-      Index mm = l;
-      for (; mm < n - 1; ++mm)
-        if (std::abs(e2[mm]) <= eps2 * std::abs(d[mm] * d[mm + 1])) break;
-      if (mm < n - 1) e2[mm] = 0.0;
-      if (mm == l) {
-        ++l;
-        iterations = 0;
-        continue;
-      }
-      if (mm == l + 1) {  // a 2 x 2 block, in closed form
-        const double mean = 0.5 * (d[l] + d[l + 1]), half = 0.5 * (d[l] - d[l + 1]);
-        const double root = std::sqrt(half * half + e2[l]);
-        d[l] = mean + root;
-        d[l + 1] = mean - root;
-        e2[l] = 0.0;
-        l += 2;
-        iterations = 0;
-        continue;
-      }
-      if (++iterations > max_iterations) {
-        failed = true;
-        return false;
-      }
-      m = mm;
-      const double rte = std::sqrt(e2[l]);
-      double g = (d[l + 1] - d[l]) / (2.0 * rte);
-      const double r0 = std::sqrt(g * g + 1.0);
-      sigma = d[l] - rte / (g + (g >= 0.0 ? r0 : -r0));
-      c = 1.0;
-      s = 0.0;
-      gamma = d[m] - sigma;
-      p = gamma * gamma;
-      i = m - 1;
-      return true;
-    }
-    return false;
-  }
-  void end_sweep() {
-    e2[l] = s * p;
-    d[l] = sigma + gamma;
-  }
-};
-
-// `count` rotations of a sweep, from row i upwards. Locals only, so two calls inlined side by side
-// leave the processor two independent dependency chains.
-inline void ql_rotations(double* d, double* e2, Index m, double sigma, Index& i, double& c, double& s, double& gamma,
-                         double& p, Index count) {
-  for (Index t = 0; t < count; ++t, --i) {
-    const double bb = e2[i], r = p + bb;
-    const double ir = 1.0 / r, ip = 1.0 / p;  // independent divisions, issued together
-    if (i != m - 1) e2[i + 1] = s * r;
-    const double old_c = c, old_gamma = gamma, alpha = d[i];
-    c = p * ir;
-    s = bb * ir;
-    gamma = c * (alpha - sigma) - s * old_gamma;
-    d[i + 1] = old_gamma + (alpha - gamma);
-    const double r_over_p = r * ip;  // off the dependency chain
-    p = c != 0.0 ? (gamma * gamma) * r_over_p : old_c * bb;
-  }
-}
-
-void finish_alone(QlState& q, bool& has_sweep) {
-  while (has_sweep) {
-    ql_rotations(q.d, q.e2, q.m, q.sigma, q.i, q.c, q.s, q.gamma, q.p, q.i - q.l + 1);
-    q.end_sweep();
-    has_sweep = q.next_sweep();
-  }
-}
-
-// Both matrices' eigenvalues; false if either did not converge.
-bool tridiagonal_eigenvalues_pair(QlState& a, QlState& b) {
-  bool ha = a.next_sweep(), hb = b.next_sweep();
-  while (ha && hb) {
-    const Index k = std::min(a.i - a.l, b.i - b.l) + 1;
-    Index ia = a.i, ib = b.i;
-    double ca = a.c, sa = a.s, ga = a.gamma, pa = a.p, cb = b.c, sb = b.s, gb = b.gamma, pb = b.p;
-    for (Index t = 0; t < k; ++t) {
-      ql_rotations(a.d, a.e2, a.m, a.sigma, ia, ca, sa, ga, pa, 1);
-      ql_rotations(b.d, b.e2, b.m, b.sigma, ib, cb, sb, gb, pb, 1);
-    }
-    a.i = ia, a.c = ca, a.s = sa, a.gamma = ga, a.p = pa;
-    b.i = ib, b.c = cb, b.s = sb, b.gamma = gb, b.p = pb;
-    if (a.i < a.l) {
-      a.end_sweep();
-      ha = a.next_sweep();
-    }
-    if (b.i < b.l) {
-      b.end_sweep();
-      hb = b.next_sweep();
-    }
-  }
-  finish_alone(a, ha);
-  finish_alone(b, hb);
-  return !a.failed && !b.failed;
-}
-
-// Per-unit scratch space for one replicate's eigenvalues: allocated once per chunk.
+// Per-unit scratch space: allocated once per chunk of replicates. Eigenvalues are found four matrices
+// at a time (two replicates' component and factor versions, one per vector lane): replicates are staged
+// and the lanes run when full or when the chunk ends.
 struct Workspace {
   explicit Workspace(Index p)
-      : a(Matrix::Zero(p, p)), r(p, p), inv(p, p), d(p), rinv(p), column(p), diag_pc(p), off_pc(p), diag_f(p), off_f(p), tri(p),
-        llt(p) {}
+      : a(Matrix::Zero(p, p)), r(p, p), inv(p, p), d(p), dis(p), rinv(p), column(p), llt(p), lanes(p),
+        diag(static_cast<std::size_t>(p * detail::TridiagonalLanes::lanes)),
+        off(static_cast<std::size_t>(p * detail::TridiagonalLanes::lanes)) {}
   Matrix a, r, inv;
-  Vector d, rinv, column, diag_pc, off_pc, diag_f, off_f;
-  Eigen::Tridiagonalization<Matrix> tri;
+  Vector d, dis, rinv, column;
   Eigen::LLT<Matrix> llt;
+  detail::TridiagonalLanes lanes;
+  std::vector<double> diag, off;
+  int staged = 0;                                        // lanes filled
+  double* out[detail::TridiagonalLanes::lanes] = {};    // where each lane's eigenvalues go (p each)
 };
 
-void tridiagonalise(Workspace& w, Vector& diag, Vector& off2) {
+// Eigenvalues, largest first, of every staged matrix, into their destinations: the lanes'
+// Householder tridiagonalisation, then the root-free QL iteration on all of them at once.
+void flush(Workspace& w) {
+  if (w.staged == 0) return;
   const Index p = w.r.rows();
-  w.tri.compute(w.r);
-  diag = w.tri.diagonal();
-  off2.head(p - 1) = w.tri.subDiagonal().cwiseAbs2();
-  off2(p - 1) = 0.0;
-}
-
-// Eigenvalues, largest first, of w.r (into pc) and of w.r with squared multiple correlations
-// 1 - 1 / diag(R^-1) (given in w.rinv) on its diagonal (into factor): Householder tridiagonalisation,
-// then the root-free QL iteration on both at once. Overwrites w.r's diagonal.
-void eigen_pair(Workspace& w, Eigen::Ref<Vector> pc, Eigen::Ref<Vector> factor) {
-  const Index p = w.r.rows();
-  tridiagonalise(w, w.diag_pc, w.off_pc);
-  w.r.diagonal() = (1.0 - w.rinv.array().inverse()).matrix();
-  tridiagonalise(w, w.diag_f, w.off_f);
-  QlState a{w.diag_pc.data(), w.off_pc.data(), p, 50};
-  QlState b{w.diag_f.data(), w.off_f.data(), p, 50};
-  if (!tridiagonal_eigenvalues_pair(a, b))
+  w.lanes.run();
+  QlState q[detail::TridiagonalLanes::lanes];
+  for (int l = 0; l < w.staged; ++l) {
+    double* diag = w.diag.data() + l * p;
+    double* off = w.off.data() + l * p;
+    w.lanes.extract(l, diag, off);
+    q[l] = QlState{diag, off, p, 50};
+  }
+  if (!detail::tridiagonal_eigenvalues_many(q, w.staged))
     throw Error(ErrorCode::internal, "the eigenvalues of a random correlation matrix did not converge in 50 "
                                      "iterations per eigenvalue");
-  std::sort(w.diag_pc.data(), w.diag_pc.data() + p, std::greater<double>());
-  std::sort(w.diag_f.data(), w.diag_f.data() + p, std::greater<double>());
-  pc = w.diag_pc;
-  factor = w.diag_f;
-}
-
-// Standard normal draws by the ziggurat method (Marsaglia & Tsang 2000) with 256 layers, in the
-// double-precision form of Doornik (2005): the layer from the low 8 bits of one 64-bit draw, the
-// abscissa from its top 53 bits. Much cheaper than std::normal_distribution, which dominated the cost
-// of drawing a Wishart matrix. The tables are constants, built once.
-struct ZigguratTables {
-  static constexpr int layers = 256;
-  static constexpr double r = 3.6541528853610088;     // start of the tail
-  static constexpr double v = 4.92867323399e-3;       // area of each layer
-  double x[layers + 1];
-  double ratio[layers];
-  ZigguratTables() {
-    double f = std::exp(-0.5 * r * r);
-    x[0] = v / f;
-    x[1] = r;
-    x[layers] = 0.0;
-    for (int i = 2; i < layers; ++i) {
-      x[i] = std::sqrt(-2.0 * std::log(v / x[i - 1] + f));
-      f = std::exp(-0.5 * x[i] * x[i]);
-    }
-    for (int i = 0; i < layers; ++i) ratio[i] = x[i + 1] / x[i];
+  for (int l = 0; l < w.staged; ++l) {
+    double* diag = w.diag.data() + l * p;
+    std::sort(diag, diag + p, std::greater<double>());
+    std::copy(diag, diag + p, w.out[l]);
   }
-};
-
-const ZigguratTables& ziggurat() {
-  static const ZigguratTables tables;
-  return tables;
+  w.staged = 0;
 }
 
-double open_uniform(RandomEngine& engine) {  // in (0, 1)
-  return (static_cast<double>(engine() >> 11) + 0.5) * 0x1.0p-53;
-}
-
-double ziggurat_normal(RandomEngine& engine, const ZigguratTables& t) {
-  for (;;) {
-    const std::uint64_t bits = engine();
-    const int i = static_cast<int>(bits & 0xffU);
-    const double u = 2.0 * (static_cast<double>(bits >> 11) * 0x1.0p-53) - 1.0;  // [-1, 1)
-    if (std::abs(u) < t.ratio[i]) return u * t.x[i];
-    if (i == 0) {  // the tail beyond r (Marsaglia 1964)
-      double a, b;
-      do {
-        a = -std::log(open_uniform(engine)) / ZigguratTables::r;
-        b = -std::log(open_uniform(engine));
-      } while (b + b < a * a);
-      return u < 0.0 ? -(ZigguratTables::r + a) : ZigguratTables::r + a;
-    }
-    const double z = u * t.x[i];
-    const double f0 = std::exp(-0.5 * (t.x[i] * t.x[i] - z * z));
-    const double f1 = std::exp(-0.5 * (t.x[i + 1] * t.x[i + 1] - z * z));
-    if (f1 + open_uniform(engine) * (f0 - f1) < 1.0) return z;
-  }
+// Stages w.r (into `pc`) and w.r with squared multiple correlations 1 - 1 / diag(R^-1) (given in
+// w.rinv) on its diagonal (into `factor`); eigenvalues are written when the lanes are flushed.
+void eigen_pair(Workspace& w, Eigen::Ref<Vector> pc, Eigen::Ref<Vector> factor) {
+  const Index p = w.r.rows();
+  const int l = w.staged;
+  for (Index j = 0; j < p; ++j)
+    for (Index i = j; i < p; ++i) w.lanes(i, j, l) = w.lanes(i, j, l + 1) = w.r(i, j);
+  for (Index j = 0; j < p; ++j) w.lanes(j, j, l + 1) = 1.0 - 1.0 / w.rinv(j);
+  w.out[l] = pc.data();
+  w.out[l + 1] = factor.data();
+  w.staged += 2;
+  if (w.staged == detail::TridiagonalLanes::lanes) flush(w);
 }
 
 // One normal-theory replicate. Bartlett decomposition: W = A A' with A lower triangular,
@@ -281,31 +130,37 @@ double ziggurat_normal(RandomEngine& engine, const ZigguratTables& t) {
 // the distribution of the centred cross-product matrix of n normal rows. R = D^-1/2 W D^-1/2.
 // Then L = D^-1/2 A is R's Cholesky factor, so diag(R^-1)_i = d_i * ||column i of A^-1||^2.
 void wishart_into(Index p, Index n_obs, RandomEngine& engine, Workspace& w) {
-  const ZigguratTables& zig = ziggurat();
   for (Index j = 0; j < p; ++j) {
-    std::chi_squared_distribution<double> chi2(static_cast<double>(n_obs - 1 - j));
-    w.a(j, j) = std::sqrt(chi2(engine));
-    for (Index i = j + 1; i < p; ++i) w.a(i, j) = ziggurat_normal(engine, zig);
+    w.a(j, j) = std::sqrt(chi_square_draw(static_cast<double>(n_obs - 1 - j), engine));
+    for (Index i = j + 1; i < p; ++i) w.a(i, j) = ziggurat_normal(engine);
   }
-  w.r.setZero();
-  w.r.selfadjointView<Eigen::Lower>().rankUpdate(w.a);
+  // W = A A', lower triangle only; column j below the diagonal is A(j:, 0..j) A(j, 0..j)' since A is
+  // lower triangular (a sixth of p^3 multiply-adds instead of half).
+  for (Index j = 0; j < p; ++j)
+    w.r.col(j).tail(p - j).noalias() = w.a.block(j, 0, p - j, j + 1) * w.a.row(j).head(j + 1).transpose();
   w.d = w.r.diagonal();
+  for (Index j = 0; j < p; ++j) w.dis(j) = 1.0 / std::sqrt(w.d(j));
   for (Index j = 0; j < p; ++j) {
     w.r(j, j) = 1.0;
-    for (Index i = j + 1; i < p; ++i) w.r(j, i) = w.r(i, j) /= std::sqrt(w.d(i) * w.d(j));
+    for (Index i = j + 1; i < p; ++i) w.r(j, i) = w.r(i, j) *= w.dis(i) * w.dis(j);
   }
 }
 
 void normal_replicate(Index p, Index n_obs, RandomEngine& engine, Workspace& w, Eigen::Ref<Vector> pc,
                       Eigen::Ref<Vector> factor) {
   wishart_into(p, n_obs, engine, w);
-  // Column j of A^-1 is zero above row j; below, it solves the trailing triangle against e_1.
-  for (Index j = 0; j < p; ++j) {
-    auto column = w.column.head(p - j);
-    column.setZero();
-    column(0) = 1.0;
-    w.a.bottomRightCorner(p - j, p - j).triangularView<Eigen::Lower>().solveInPlace(column);
-    w.rinv(j) = w.d(j) * column.squaredNorm();
+  // A is overwritten by its inverse (lower triangular), column by column from the last, as in LAPACK's
+  // dtrti2: X_jj = 1 / A_jj, X(j+1:, j) = -X_jj X(j+1:, j+1:) A(j+1:, j).
+  for (Index j = p - 1; j >= 0; --j) {
+    const double x = 1.0 / w.a(j, j);
+    w.a(j, j) = x;
+    const Index m = p - 1 - j;
+    if (m > 0) {
+      auto y = w.column.head(m);
+      y.noalias() = w.a.bottomRightCorner(m, m).triangularView<Eigen::Lower>() * w.a.col(j).tail(m);
+      w.a.col(j).tail(m) = -x * y;
+    }
+    w.rinv(j) = w.d(j) * w.a.col(j).tail(p - j).squaredNorm();
   }
   eigen_pair(w, pc, factor);
 }
@@ -405,6 +260,7 @@ RandomEigenvalues random_eigenvalues(Index p, Index n_obs, const ParallelAnalysi
         generic_replicate(w, k, out.pc.col(k), out.factor.col(k));
       }
     }
+    flush(w);
   });
   return out;
 }
@@ -446,6 +302,7 @@ RandomEigenvalues permuted_eigenvalues(const Matrix& data, const CorrelationOpti
         }
         generic_replicate(w, k, out.pc.col(k), out.factor.col(k));
       }
+      flush(w);
     });
     return out;
   }
@@ -472,6 +329,7 @@ RandomEigenvalues permuted_eigenvalues(const Matrix& data, const CorrelationOpti
       w.r = correlation(shuffled, inner).matrix;
       generic_replicate(w, k, out.pc.col(k), out.factor.col(k));
     }
+    flush(w);
   });
   return out;
 }

@@ -93,6 +93,16 @@ void validate(const Matrix& a, const RotationOptions& o) {
                             o.random_starts));
   if (!(o.best_tolerance >= 0.0) || !(o.distinct_tolerance >= 0.0))
     throw Error(ErrorCode::invalid_argument, "best_tolerance and distinct_tolerance must not be negative");
+  if (o.start.size() != 0) {
+    if (o.start.rows() != a.cols() || o.start.cols() != a.cols())
+      throw Error(ErrorCode::invalid_argument,
+                  fmt::format("the starting rotation is {} x {} but there are {} factors; it must be {} x {}",
+                              o.start.rows(), o.start.cols(), a.cols(), a.cols(), a.cols()));
+    if (!o.start.allFinite())
+      throw Error(ErrorCode::invalid_argument, "the starting rotation contains a missing or infinite value");
+    if (Eigen::FullPivLU<Matrix>(o.start).rank() < a.cols())
+      throw Error(ErrorCode::invalid_argument, "the starting rotation is singular; it must be invertible");
+  }
   switch (o.method) {
     case RotationMethod::oblimin:
       if (!std::isfinite(o.gamma))
@@ -466,8 +476,17 @@ RotationResult rotate(const Matrix& loadings, const RotationOptions& options) {
     const int extra = effective_random_starts(options);
     const Index n = 1 + extra;
     std::vector<StartResult> runs(static_cast<std::size_t>(n));
+    Matrix first = Matrix::Identity(m, m);
+    if (options.start.size() != 0) {
+      if (oblique) {
+        first = options.start * options.start.colwise().norm().cwiseInverse().asDiagonal();
+      } else {
+        Eigen::JacobiSVD<Matrix> svd(options.start, Eigen::ComputeFullU | Eigen::ComputeFullV);
+        first = svd.matrixU() * svd.matrixV().transpose();
+      }
+    }
     parallel_for(n, options.threads, [&](Index i) {
-      Matrix t0 = Matrix::Identity(m, m);
+      Matrix t0 = first;
       if (i > 0) {
         auto rng = random_stream(options.seed, static_cast<std::uint64_t>(i));
         t0 = random_orthogonal(m, rng);

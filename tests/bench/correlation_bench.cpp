@@ -72,16 +72,16 @@ void BM_MatrixMultiplyRate(benchmark::State& state, Index n) {
 }  // namespace
 
 // Cost growth in n (p = 50) and in p (n = 100,000). Wall-clock time: the work runs on several threads.
-BENCHMARK_CAPTURE(BM_Correlation, corr_n10000_p50, "corr_n10000_p50")->Unit(benchmark::kMillisecond)->UseRealTime();
-BENCHMARK_CAPTURE(BM_Correlation, corr_n100000_p50, "corr_n100000_p50")->Unit(benchmark::kMillisecond)->UseRealTime();
-BENCHMARK_CAPTURE(BM_Correlation, corr_n1000000_p50, "corr_n1000000_p50")->Unit(benchmark::kMillisecond)->UseRealTime();
-BENCHMARK_CAPTURE(BM_Correlation, corr_n100000_p10, "corr_n100000_p10")->Unit(benchmark::kMillisecond)->UseRealTime();
-BENCHMARK_CAPTURE(BM_Correlation, corr_n100000_p100, "corr_n100000_p100")->Unit(benchmark::kMillisecond)->UseRealTime();
-BENCHMARK_CAPTURE(BM_Correlation, corr_n100000_p200, "corr_n100000_p200")->Unit(benchmark::kMillisecond)->UseRealTime();
+BENCHMARK_CAPTURE(BM_Correlation, corr_n10000_p50, "corr_n10000_p50")->Unit(benchmark::kMillisecond)->UseRealTime()->MeasureProcessCPUTime();
+BENCHMARK_CAPTURE(BM_Correlation, corr_n100000_p50, "corr_n100000_p50")->Unit(benchmark::kMillisecond)->UseRealTime()->MeasureProcessCPUTime();
+BENCHMARK_CAPTURE(BM_Correlation, corr_n1000000_p50, "corr_n1000000_p50")->Unit(benchmark::kMillisecond)->UseRealTime()->MeasureProcessCPUTime();
+BENCHMARK_CAPTURE(BM_Correlation, corr_n100000_p10, "corr_n100000_p10")->Unit(benchmark::kMillisecond)->UseRealTime()->MeasureProcessCPUTime();
+BENCHMARK_CAPTURE(BM_Correlation, corr_n100000_p100, "corr_n100000_p100")->Unit(benchmark::kMillisecond)->UseRealTime()->MeasureProcessCPUTime();
+BENCHMARK_CAPTURE(BM_Correlation, corr_n100000_p200, "corr_n100000_p200")->Unit(benchmark::kMillisecond)->UseRealTime()->MeasureProcessCPUTime();
 BENCHMARK_CAPTURE(BM_CorrelationPairwiseMissing, corr_n100000_p50_missing, "corr_n100000_p50_missing")
     ->Unit(benchmark::kMillisecond)
-    ->UseRealTime();
+    ->UseRealTime()->MeasureProcessCPUTime();
 BENCHMARK_CAPTURE(BM_CorrelationChecks, corr_checks_n1000000_p50, "corr_n1000000_p50")
     ->Unit(benchmark::kMillisecond)
-    ->UseRealTime();
-BENCHMARK_CAPTURE(BM_MatrixMultiplyRate, matmul_n1000, 1000)->Unit(benchmark::kMillisecond)->UseRealTime();
+    ->UseRealTime()->MeasureProcessCPUTime();
+BENCHMARK_CAPTURE(BM_MatrixMultiplyRate, matmul_n1000, 1000)->Unit(benchmark::kMillisecond)->UseRealTime()->MeasureProcessCPUTime();

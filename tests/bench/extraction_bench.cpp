@@ -29,11 +29,16 @@ void BM_Extraction(benchmark::State& state, ExtractionMethod method, const char*
 
 }  // namespace
 
-#define LODE_EXTRACTION_CASES(method, prefix)                                                                  \
-  BENCHMARK_CAPTURE(BM_Extraction, prefix##_p30_k3, method, "fa_p30_k3_R", 3)->Unit(benchmark::kMillisecond)->UseRealTime();    \
-  BENCHMARK_CAPTURE(BM_Extraction, prefix##_p60_k6, method, "fa_p60_k6_R", 6)->Unit(benchmark::kMillisecond)->UseRealTime();    \
-  BENCHMARK_CAPTURE(BM_Extraction, prefix##_p100_k10, method, "fa_p100_k10_R", 10)->Unit(benchmark::kMillisecond)->UseRealTime(); \
-  BENCHMARK_CAPTURE(BM_Extraction, prefix##_p200_k15, method, "fa_p200_k15_R", 15)->Unit(benchmark::kMillisecond)->UseRealTime()
+#define LODE_EXTRACTION_CASE(method, name, input, k)                                                \
+  BENCHMARK_CAPTURE(BM_Extraction, name, method, input, k)                                           \
+      ->Unit(benchmark::kMillisecond)                                                                \
+      ->UseRealTime()                                                                                \
+      ->MeasureProcessCPUTime()
+#define LODE_EXTRACTION_CASES(method, prefix)                                                        \
+  LODE_EXTRACTION_CASE(method, prefix##_p30_k3, "fa_p30_k3_R", 3);                                   \
+  LODE_EXTRACTION_CASE(method, prefix##_p60_k6, "fa_p60_k6_R", 6);                                   \
+  LODE_EXTRACTION_CASE(method, prefix##_p100_k10, "fa_p100_k10_R", 10);                              \
+  LODE_EXTRACTION_CASE(method, prefix##_p200_k15, "fa_p200_k15_R", 15)
 
 LODE_EXTRACTION_CASES(ExtractionMethod::maximum_likelihood, ml);
 LODE_EXTRACTION_CASES(ExtractionMethod::principal_axis, paf);
@@ -70,7 +75,7 @@ void BM_MlOblimin(benchmark::State& state, const char* input, int factors, int r
 
 BENCHMARK_CAPTURE(BM_MlOblimin, ml_oblimin20_p100_k10, "fa_p100_k10_R", 10, 20)
     ->Unit(benchmark::kMillisecond)
-    ->UseRealTime();
+    ->UseRealTime()->MeasureProcessCPUTime();
 #endif  // LODE_BENCH_HAS_ROTATION
 
 #endif  // LODE_BENCH_HAS_EXTRACTION

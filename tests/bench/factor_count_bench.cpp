@@ -33,12 +33,12 @@ void BM_ParallelAnalysis(benchmark::State& state, const char* input, Index items
 
 BENCHMARK_CAPTURE(BM_ParallelAnalysis, pa_p60_n2000_r1000, "pa_p60_X", 60, 2000)
     ->Unit(benchmark::kMillisecond)
-    ->UseRealTime();
+    ->UseRealTime()->MeasureProcessCPUTime();
 BENCHMARK_CAPTURE(BM_ParallelAnalysis, pa_p20_n2000_r1000, "pa_p60_X", 20, 2000)
     ->Unit(benchmark::kMillisecond)
-    ->UseRealTime();
+    ->UseRealTime()->MeasureProcessCPUTime();
 BENCHMARK_CAPTURE(BM_ParallelAnalysis, pa_p60_n500_r1000, "pa_p60_X", 60, 500)
     ->Unit(benchmark::kMillisecond)
-    ->UseRealTime();
+    ->UseRealTime()->MeasureProcessCPUTime();
 
 #endif  // LODE_BENCH_HAS_FACTOR_COUNT

@@ -27,7 +27,7 @@ void BM_Polychoric(benchmark::State& state, const char* input, Index items) {
 
 }  // namespace
 
-BENCHMARK_CAPTURE(BM_Polychoric, polychoric_p60_n2000, "ordinal_p60_X", 60)->Unit(benchmark::kMillisecond)->UseRealTime();
-BENCHMARK_CAPTURE(BM_Polychoric, polychoric_p20_n2000, "ordinal_p60_X", 20)->Unit(benchmark::kMillisecond)->UseRealTime();
+BENCHMARK_CAPTURE(BM_Polychoric, polychoric_p60_n2000, "ordinal_p60_X", 60)->Unit(benchmark::kMillisecond)->UseRealTime()->MeasureProcessCPUTime();
+BENCHMARK_CAPTURE(BM_Polychoric, polychoric_p20_n2000, "ordinal_p60_X", 20)->Unit(benchmark::kMillisecond)->UseRealTime()->MeasureProcessCPUTime();
 
 #endif  // LODE_BENCH_HAS_POLYCHORIC

@@ -33,12 +33,12 @@ void BM_Rotation(benchmark::State& state, RotationMethod method, const char* inp
 
 BENCHMARK_CAPTURE(BM_Rotation, oblimin20_p100_k10, RotationMethod::oblimin, "rot_p100_k10_L", 20)
     ->Unit(benchmark::kMillisecond)
-    ->UseRealTime();
+    ->UseRealTime()->MeasureProcessCPUTime();
 BENCHMARK_CAPTURE(BM_Rotation, geomin20_p100_k10, RotationMethod::geomin, "rot_p100_k10_L", 20)
     ->Unit(benchmark::kMillisecond)
-    ->UseRealTime();
+    ->UseRealTime()->MeasureProcessCPUTime();
 BENCHMARK_CAPTURE(BM_Rotation, varimax_p100_k10, RotationMethod::varimax, "rot_p100_k10_L", 0)
     ->Unit(benchmark::kMillisecond)
-    ->UseRealTime();
+    ->UseRealTime()->MeasureProcessCPUTime();
 
 #endif  // LODE_BENCH_HAS_ROTATION

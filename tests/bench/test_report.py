@@ -77,6 +77,8 @@ class ReportTest(unittest.TestCase):
         row = self.line("| n = 1,000,000, p = 50 |")
         self.assertIn("| 50 ms |", row)
         self.assertIn("| 4.00x |", row)
+        # the CPU column beside the wall-clock one: the median aggregate's cpu_time (50 ms / 10)
+        self.assertIn("| 50 ms | 5 ms |", row)
 
     def test_targets(self):
         self.assertIn("**met** (4.00x against 1.00x required)", self.line("| Correlation of 1,000,000 x 50"))
@@ -84,6 +86,7 @@ class ReportTest(unittest.TestCase):
         self.assertIn("**not met**: 2.00x against 3.00x required", self.line("| ML extraction, p = 100"))
         # 0.25 s against 0.1 s: 2.5 times the limit; 20 s / 0.25 s = 80x < 100x
         self.assertIn("**not met**: 2.50x the limit of 100 ms", self.line("| Parallel analysis, 1000 replicates"))
+        self.assertIn("| 250 ms (CPU 25 ms) |", self.line("| Parallel analysis, 1000 replicates"))
         self.assertIn("**not met**: 80.0x against 100x required (1.25x short)", self.line("| Parallel analysis: at least"))
         self.assertIn("not measured yet", self.line("| Polychoric matrix, 60 items"))
         self.assertIn("not measured yet", self.line("| ML + oblimin with 20 random starts"))

@@ -44,10 +44,21 @@ struct BootstrapOptions {
   CorrelationOptions correlation;
   bool keep_replicates = false;  // keep every aligned replicate in the result (memory: B x items x factors)
   ProgressFn progress;           // replicates done / B; returning false cancels (Error cancelled)
-  // bootstrap_factor_solution only: random starts of the rotation in each replicate. 0 = start from the
-  // unrotated loadings only (fast; the alignment to the full-sample solution follows); -1 = as in the
-  // rotation options. The full-sample rotation always uses the rotation options as given.
+  // bootstrap_factor_solution only: random starts of the rotation in each replicate, besides the first
+  // start (see replicate_warm_start). 0 = the first start only (fast; the alignment to the full-sample
+  // solution follows); -1 = as in the rotation options. The full-sample rotation always uses the
+  // rotation options as given.
   int replicate_random_starts = 0;
+  // bootstrap_factor_solution only: start each replicate's iterative fits from the full-sample
+  // solution. Minimum residual and maximum likelihood start from the full-sample uniquenesses; the
+  // rotation's first start is the full-sample rotation carried over to the replicate's unrotated
+  // loadings (T = Q T_full, Q the orthogonal Procrustes rotation of the replicate's unrotated loadings
+  // toward the full-sample ones; Schoenemann 1966). Each fit still stops at the same convergence
+  // criterion, so the replicate's solution is the same to within the tolerances; where the rotation
+  // criterion has several local optima, the one nearest the full-sample solution is found, which is the
+  // solution the intervals are about. false = extraction from its usual start and rotation from the
+  // unrotated loadings.
+  bool replicate_warm_start = true;
 };
 
 struct BootstrapResult {
@@ -92,8 +103,9 @@ FactorSolution fit_factor_solution(const Matrix& correlation, int factors, const
 
 // The bootstrap of an exploratory factor analysis: the full-sample correlations (options.correlation),
 // extraction and rotation, then `options.replicates` resamples fitted the same way (rotation threads 1,
-// random starts per options.replicate_random_starts). A full-sample fit that does not converge is an
-// error (not_converged): intervals around it would mean nothing.
+// random starts per options.replicate_random_starts, starts per options.replicate_warm_start). A
+// full-sample fit that does not converge is an error (not_converged): intervals around it would mean
+// nothing.
 BootstrapResult bootstrap_factor_solution(const Matrix& data, int factors, const ExtractionOptions& extraction,
                                           const RotationOptions& rotation, const BootstrapOptions& options);
 

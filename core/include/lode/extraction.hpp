@@ -34,6 +34,12 @@ struct ExtractionOptions {
   // items, since a matrix from fewer rows is singular.
   Index n_obs = 0;
   std::vector<std::string> item_names;  // optional, used in messages and Heywood reports
+  // Minimum residual and maximum likelihood: the uniquenesses the search starts from (one per item,
+  // moved into [min_uniqueness, 1]); empty = the method's usual start (1 - SMC for minimum residual,
+  // Joreskog's (1967) start for maximum likelihood). A start near the optimum, such as the full-sample
+  // uniquenesses when a bootstrap resample is refitted, saves iterations; the search stops at the same
+  // convergence criterion wherever it starts.
+  Vector start_uniquenesses;
 };
 
 // An item whose solution is improper: communality at or above 1, or uniqueness held at the bound.

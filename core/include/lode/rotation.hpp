@@ -77,10 +77,16 @@ struct RotationOptions {
                                      // pattern loading differs by more than this
   int threads = 1;              // for random starts (0 = all cores); results do not depend on it
   std::vector<std::string> item_names;  // optional, for error messages (row i is item i)
+  // Gradient projection methods: the rotation matrix T (factors x factors, see the convention above)
+  // that start 0 begins at; empty = the identity (the unrotated loadings). Orthogonal methods start
+  // from the orthogonal matrix nearest to it (its polar factor), oblique ones from it with columns
+  // scaled to unit length. A start near the solution (e.g. a full-sample rotation carried over to a
+  // bootstrap resample) saves iterations. Random starts are unaffected.
+  Matrix start;
 };
 
-// What the random starts found. Start 0 begins at the unrotated loadings (T = I); start i >= 1 at a
-// uniformly random orthogonal matrix drawn from random_stream(seed, i).
+// What the random starts found. Start 0 begins at options.start (by default the unrotated loadings,
+// T = I); start i >= 1 at a uniformly random orthogonal matrix drawn from random_stream(seed, i).
 struct RandomStartReport {
   int starts = 1;
   int converged = 0;              // starts that met the tolerance within max_iterations
