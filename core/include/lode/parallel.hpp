@@ -16,7 +16,9 @@ int default_thread_count() noexcept;
 // The calling thread reports progress (if given) once before any work, about every 50 ms, and once at
 // the end; when it returns
 // false the remaining units are skipped and Error(cancelled) is thrown. The first exception thrown by
-// a unit stops the others and is rethrown in the calling thread.
+// a unit stops the others and is rethrown in the calling thread. With one thread (threads == 1, or a
+// single unit) the units run on the calling thread itself, in order, and progress is checked between
+// units.
 void parallel_for(Index count, int threads, const std::function<void(Index)>& body,
                   const ProgressFn& progress = {});
 
