@@ -279,11 +279,15 @@ double noncentrality_for_cdf(double x, double df, double p) {
 
 double quantile_type7(std::vector<double>& values, double q) {
   if (values.empty()) throw Error(ErrorCode::insufficient_data, "a quantile of no values was requested");
-  std::sort(values.begin(), values.end());
   const double h = (static_cast<double>(values.size()) - 1.0) * std::clamp(q, 0.0, 1.0);
   const auto lo = static_cast<std::size_t>(std::floor(h));
-  const std::size_t hi = std::min(lo + 1, values.size() - 1);
-  return values[lo] + (h - static_cast<double>(lo)) * (values[hi] - values[lo]);
+  // The two order statistics needed, without sorting everything: the lo-th by selection, the next one
+  // as the smallest of those above it.
+  const auto at = values.begin() + static_cast<std::ptrdiff_t>(lo);
+  std::nth_element(values.begin(), at, values.end());
+  const double below = *at;
+  const double above = lo + 1 < values.size() ? *std::min_element(at + 1, values.end()) : below;
+  return below + (h - static_cast<double>(lo)) * (above - below);
 }
 
 }  // namespace lode

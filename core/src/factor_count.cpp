@@ -70,21 +70,23 @@ void run_chunks(Index replicates, const ParallelAnalysisOptions& o, const std::f
       progress);
 }
 
-// Per-unit scratch space: allocated once per chunk of replicates. Eigenvalues are found four matrices
-// at a time (two replicates' component and factor versions, one per vector lane): replicates are staged
-// and the lanes run when full or when the chunk ends.
+// Per-unit scratch space: allocated once per chunk of replicates. Eigenvalues are found eight matrices
+// at a time (four replicates' component and factor versions, one per vector lane, in two sets of four):
+// replicates are staged and the lanes run when full or when the chunk ends.
+constexpr int kLanes = 2 * detail::TridiagonalLanes::lanes;
+
 struct Workspace {
   explicit Workspace(Index p)
-      : a(Matrix::Zero(p, p)), r(p, p), inv(p, p), d(p), dis(p), rinv(p), column(p), llt(p), lanes(p),
-        diag(static_cast<std::size_t>(p * detail::TridiagonalLanes::lanes)),
-        off(static_cast<std::size_t>(p * detail::TridiagonalLanes::lanes)) {}
+      : a(Matrix::Zero(p, p)), r(p, p), inv(p, p), d(p), dis(p), rinv(p), column(p), llt(p), lanes{detail::TridiagonalLanes(p), detail::TridiagonalLanes(p)},
+        diag(static_cast<std::size_t>(p * kLanes)), off(static_cast<std::size_t>(p * kLanes)) {}
   Matrix a, r, inv;
   Vector d, dis, rinv, column;
   Eigen::LLT<Matrix> llt;
-  detail::TridiagonalLanes lanes;
+  detail::TridiagonalLanes lanes[2];
   std::vector<double> diag, off;
-  int staged = 0;                                        // lanes filled
-  double* out[detail::TridiagonalLanes::lanes] = {};    // where each lane's eigenvalues go (p each)
+  int staged = 0;               // lanes filled
+  double* out[kLanes] = {};     // where each lane's eigenvalues go (p each)
+  double& at(Index i, Index j, int lane) { return lanes[lane / 4](i, j, lane % 4); }
 };
 
 // Eigenvalues, largest first, of every staged matrix, into their destinations: the lanes'
@@ -92,15 +94,17 @@ struct Workspace {
 void flush(Workspace& w) {
   if (w.staged == 0) return;
   const Index p = w.r.rows();
-  w.lanes.run();
-  QlState q[detail::TridiagonalLanes::lanes];
-  for (int l = 0; l < w.staged; ++l) {
+  const int sets = (w.staged + 3) / 4;
+  for (int set = 0; set < sets; ++set) w.lanes[set].run();
+  const int count = 4 * sets;  // the QL runs whole sets; a set's unused lanes are solved and dropped
+  QlState q[kLanes];
+  for (int l = 0; l < count; ++l) {
     double* diag = w.diag.data() + l * p;
     double* off = w.off.data() + l * p;
-    w.lanes.extract(l, diag, off);
+    w.lanes[l / 4].extract(l % 4, diag, off);
     q[l] = QlState{diag, off, p, 50};
   }
-  if (!detail::tridiagonal_eigenvalues_many(q, w.staged))
+  if (!detail::tridiagonal_eigenvalues_lanes(q, count))
     throw Error(ErrorCode::internal, "the eigenvalues of a random correlation matrix did not converge in 50 "
                                      "iterations per eigenvalue");
   for (int l = 0; l < w.staged; ++l) {
@@ -116,13 +120,14 @@ void flush(Workspace& w) {
 void eigen_pair(Workspace& w, Eigen::Ref<Vector> pc, Eigen::Ref<Vector> factor) {
   const Index p = w.r.rows();
   const int l = w.staged;
+  detail::TridiagonalLanes& set = w.lanes[l / 4];
   for (Index j = 0; j < p; ++j)
-    for (Index i = j; i < p; ++i) w.lanes(i, j, l) = w.lanes(i, j, l + 1) = w.r(i, j);
-  for (Index j = 0; j < p; ++j) w.lanes(j, j, l + 1) = 1.0 - 1.0 / w.rinv(j);
+    for (Index i = j; i < p; ++i) set(i, j, l % 4) = set(i, j, l % 4 + 1) = w.r(i, j);
+  for (Index j = 0; j < p; ++j) set(j, j, l % 4 + 1) = 1.0 - 1.0 / w.rinv(j);
   w.out[l] = pc.data();
   w.out[l + 1] = factor.data();
   w.staged += 2;
-  if (w.staged == detail::TridiagonalLanes::lanes) flush(w);
+  if (w.staged == kLanes) flush(w);
 }
 
 // One normal-theory replicate. Bartlett decomposition: W = A A' with A lower triangular,

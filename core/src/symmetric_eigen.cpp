@@ -34,7 +34,126 @@ void lockstep(QlState* const* q, bool* has) {
   }
 }
 
+// Four doubles, one per matrix; loads and stores need only the alignment of a double.
+typedef double Lanes __attribute__((vector_size(4 * sizeof(double)), aligned(alignof(double)), may_alias));
+typedef long long LaneMask __attribute__((vector_size(4 * sizeof(double)), aligned(alignof(double)), may_alias));
+static_assert(TridiagonalLanes::lanes == 4, "the kernels' vector type holds four lanes");
+
+// The QL iteration of 4 G tridiagonal matrices with each lane of G vector registers running one
+// matrix's sweeps: the rotations of ql_rotations, lane by lane the same operations in the same order
+// (so the same numbers as one matrix at a time), the divisions of four matrices issued as one and G
+// independent chains of them in flight. Between sweep ends (found in advance: the shortest remaining
+// sweep) the loop has no branch; a lane whose matrix is done runs on a harmless stand-in (dummy: n + 1
+// doubles) until the others finish.
+template <int G>
+[[gnu::always_inline]] inline void ql_lanes(QlState* q, double* dummy_d, double* dummy_e2) {
+  constexpr int L = 4 * G;
+  bool active[L];
+  double* base_d[L];
+  double* base_e2[L];
+  Index idx[L];
+  Lanes c[G], s[G], g[G], p[G], sigma[G];
+  auto load = [&](int t) {
+    const int v = t / 4, l = t % 4;
+    c[v][l] = q[t].c, s[v][l] = q[t].s, g[v][l] = q[t].gamma, p[v][l] = q[t].p, sigma[v][l] = q[t].sigma;
+  };
+  auto stand_in = [&](int t) {
+    const int v = t / 4, l = t % 4;
+    c[v][l] = 1.0, s[v][l] = 0.0, g[v][l] = 1.0, p[v][l] = 1.0, sigma[v][l] = 0.0;
+  };
+  for (int t = 0; t < L; ++t) {
+    active[t] = q[t].next_sweep();
+    if (active[t]) load(t);
+    else stand_in(t);
+  }
+  const Lanes zero = {0.0, 0.0, 0.0, 0.0};
+  for (;;) {
+    Index k = -1;
+    for (int t = 0; t < L; ++t)
+      if (active[t] && (k < 0 || q[t].i - q[t].l + 1 < k)) k = q[t].i - q[t].l + 1;
+    if (k < 0) break;
+    for (int t = 0; t < L; ++t) {
+      if (active[t]) {
+        base_d[t] = q[t].d, base_e2[t] = q[t].e2, idx[t] = q[t].i;
+      } else {
+        base_d[t] = dummy_d, base_e2[t] = dummy_e2, idx[t] = k - 1;
+        stand_in(t);
+      }
+    }
+    for (Index step = 0; step < k; ++step) {
+      for (int v = 0; v < G; ++v) {
+        const int o = 4 * v;
+        const Lanes bb = {base_e2[o][idx[o]], base_e2[o + 1][idx[o + 1]], base_e2[o + 2][idx[o + 2]],
+                          base_e2[o + 3][idx[o + 3]]};
+        const Lanes alpha = {base_d[o][idx[o]], base_d[o + 1][idx[o + 1]], base_d[o + 2][idx[o + 2]],
+                             base_d[o + 3][idx[o + 3]]};
+        const Lanes r = p[v] + bb;
+        const Lanes ir = 1.0 / r, ip = 1.0 / p[v];
+        // e2[i + 1] = s r; at a sweep's first rotation s is 0 and e2[m] already 0, so writing it is harmless.
+        const Lanes sr = s[v] * r;
+        const Lanes old_c = c[v], old_g = g[v];
+        c[v] = p[v] * ir;
+        s[v] = bb * ir;
+        g[v] = c[v] * (alpha - sigma[v]) - s[v] * old_g;
+        const Lanes next_d = old_g + (alpha - g[v]);
+        const Lanes r_over_p = r * ip;
+        const LaneMask nonzero = (LaneMask)(c[v] != zero);
+        p[v] = (Lanes)(((LaneMask)((g[v] * g[v]) * r_over_p) & nonzero) | ((LaneMask)(old_c * bb) & ~nonzero));
+        for (int l = 0; l < 4; ++l) {
+          base_e2[o + l][idx[o + l] + 1] = sr[l];
+          base_d[o + l][idx[o + l] + 1] = next_d[l];
+          --idx[o + l];
+        }
+      }
+    }
+    for (int t = 0; t < L; ++t) {
+      if (!active[t]) continue;
+      const int v = t / 4, l = t % 4;
+      q[t].i = idx[t], q[t].c = c[v][l], q[t].s = s[v][l], q[t].gamma = g[v][l], q[t].p = p[v][l];
+      if (q[t].i < q[t].l) {
+        q[t].end_sweep();
+        active[t] = q[t].next_sweep();
+        if (active[t]) load(t);
+      }
+    }
+  }
+}
+
+void ql_lanes_portable(QlState* q, int groups, double* dummy_d, double* dummy_e2) {
+  if (groups == 2) ql_lanes<2>(q, dummy_d, dummy_e2);
+  else ql_lanes<1>(q, dummy_d, dummy_e2);
+}
+
+#if defined(__x86_64__) && (defined(__GNUC__) || defined(__clang__))
+#define LODE_HAS_AVX2_KERNEL 1
+[[gnu::target("avx2")]] void ql_lanes_avx2(QlState* q, int groups, double* dummy_d, double* dummy_e2) {
+  if (groups == 2) ql_lanes<2>(q, dummy_d, dummy_e2);
+  else ql_lanes<1>(q, dummy_d, dummy_e2);
+}
+bool has_avx2() {
+  static const bool avx2 = __builtin_cpu_supports("avx2");  // a fact of the machine, fixed at first use
+  return avx2;
+}
+#endif
+
 }  // namespace
+
+bool tridiagonal_eigenvalues_lanes(QlState* states, int count, bool vector_instructions) {
+  if (count != 4 && count != 8) return tridiagonal_eigenvalues_many(states, count);
+  Index n = 0;
+  for (int t = 0; t < count; ++t) n = std::max(n, states[t].n);
+  std::vector<double> dummy_d(static_cast<std::size_t>(n + 1), 1.0), dummy_e2(static_cast<std::size_t>(n + 1), 0.0);
+#ifdef LODE_HAS_AVX2_KERNEL
+  if (vector_instructions && has_avx2()) ql_lanes_avx2(states, count / 4, dummy_d.data(), dummy_e2.data());
+  else ql_lanes_portable(states, count / 4, dummy_d.data(), dummy_e2.data());
+#else
+  (void)vector_instructions;  // only the portable form here
+  ql_lanes_portable(states, count / 4, dummy_d.data(), dummy_e2.data());
+#endif
+  for (int t = 0; t < count; ++t)
+    if (states[t].failed) return false;
+  return true;
+}
 
 bool tridiagonal_eigenvalues_many(QlState* states, int count) {
   QlState* active[8];
@@ -63,9 +182,6 @@ bool tridiagonal_eigenvalues_many(QlState* states, int count) {
 
 namespace {
 
-// Four doubles, one per matrix; loads and stores need only the alignment of a double.
-typedef double Lanes __attribute__((vector_size(4 * sizeof(double)), aligned(alignof(double)), may_alias));
-static_assert(TridiagonalLanes::lanes == 4, "the kernel's vector type holds four lanes");
 
 // The kernel, inlined into one function per instruction set. a: n x n lower triangles, column-major,
 // four lanes per element; diag (n), sub (n - 1): outputs; v, w: scratch (n).
@@ -133,8 +249,7 @@ void tridiagonalise_portable(double* a, Index n, double* diag, double* sub, doub
   tridiagonalise_lanes(a, n, diag, sub, v, w);
 }
 
-#if defined(__x86_64__) && (defined(__GNUC__) || defined(__clang__))
-#define LODE_HAS_AVX2_KERNEL 1
+#ifdef LODE_HAS_AVX2_KERNEL
 [[gnu::target("avx2")]] void tridiagonalise_avx2(double* a, Index n, double* diag, double* sub, double* v, double* w) {
   tridiagonalise_lanes(a, n, diag, sub, v, w);
 }
@@ -150,11 +265,11 @@ TridiagonalLanes::TridiagonalLanes(Index n)
       v_(static_cast<std::size_t>(n * lanes)),
       w_(static_cast<std::size_t>(n * lanes)) {}
 
-void TridiagonalLanes::run() {
+void TridiagonalLanes::run(bool vector_instructions) {
+  (void)vector_instructions;  // unused where there is only the portable form
   if (n_ < 1) return;
 #ifdef LODE_HAS_AVX2_KERNEL
-  static const bool avx2 = __builtin_cpu_supports("avx2");  // a fact of the machine, fixed at first use
-  if (avx2) {
+  if (vector_instructions && has_avx2()) {
     tridiagonalise_avx2(a_.data(), n_, diag_.data(), sub_.data(), v_.data(), w_.data());
     return;
   }

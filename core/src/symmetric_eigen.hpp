@@ -34,9 +34,13 @@ struct QlState {
   bool next_sweep() {
     constexpr double eps2 = std::numeric_limits<double>::epsilon() * std::numeric_limits<double>::epsilon();
     while (l < n) {
+      // The first negligible off-diagonal entry at or after l (four tests per branch).
+      auto small = [&](Index j) { return std::abs(e2[j]) <= eps2 * std::abs(d[j] * d[j + 1]); };
       Index mm = l;
+      for (; mm + 4 <= n - 1; mm += 4)
+        if (small(mm) | small(mm + 1) | small(mm + 2) | small(mm + 3)) break;
       for (; mm < n - 1; ++mm)
-        if (std::abs(e2[mm]) <= eps2 * std::abs(d[mm] * d[mm + 1])) break;
+        if (small(mm)) break;
       if (mm < n - 1) e2[mm] = 0.0;
       if (mm == l) {
         ++l;
@@ -145,6 +149,12 @@ inline bool tridiagonal_eigenvalues(double* d, double* e2, Index n, int max_iter
 // divisions; every matrix gets exactly the arithmetic of tridiagonal_eigenvalues. False if any failed.
 bool tridiagonal_eigenvalues_many(QlState* states, int count);
 
+// The same for exactly 4 or 8 matrices with one matrix per vector lane (AVX2 where the processor has
+// it; the same numbers either way, and the same as tridiagonal_eigenvalues_many); other counts go to
+// tridiagonal_eigenvalues_many.
+// `vector_instructions` false forces the portable form (for the tests that compare the two).
+bool tridiagonal_eigenvalues_lanes(QlState* states, int count, bool vector_instructions = true);
+
 // Householder tridiagonalisation (Golub & Van Loan 2013, "Matrix Computations", algorithm 8.3.1, in the
 // form of Eigen's Tridiagonalization) of `lanes` symmetric matrices of one size at once, one matrix
 // per lane of the processor's vector registers. Every lane does exactly the arithmetic of the
@@ -161,7 +171,9 @@ class TridiagonalLanes {
   double& operator()(Index row, Index col, int lane) {
     return a_[static_cast<std::size_t>((col * n_ + row) * lanes + lane)];
   }
-  void run();  // tridiagonalises every lane; the lower triangles are overwritten
+  // Tridiagonalises every lane; the lower triangles are overwritten. `vector_instructions` false forces
+  // the portable form (for the tests that compare the two).
+  void run(bool vector_instructions = true);
   // After run: the diagonal (n) and the squared subdiagonal (n - 1, then a 0) of matrix `lane`.
   void extract(int lane, double* diag, double* sub2) const;
 

@@ -283,3 +283,35 @@ TEST(Bootstrap, FactorSolutionReportsAndCountsNonConvergence) {
             "only 0 of 10 bootstrap replicates could be fitted; the commonest failure: oblimin rotation did not "
             "converge within 2 iterations");
 }
+
+TEST(Bootstrap, WarmStartsReachTheSameReplicateSolutionsAsFittingFromScratch) {
+  // Starting each replicate's ML search from the full-sample uniquenesses and its oblimin rotation from
+  // the carried-over full-sample rotation changes where the iterations begin, not where they stop: on
+  // data from a clear two-factor model every replicate's aligned solution agrees with the one fitted
+  // from scratch (Joreskog's start, the unrotated loadings) to within the convergence tolerances.
+  const Matrix x = lode::testing::simulate_factor_data(cluster_loadings(), lode::testing::two_factor_phi(0.3), 400, 62).x;
+  ExtractionOptions ext;
+  RotationOptions rot;
+  rot.method = RotationMethod::oblimin;
+  BootstrapOptions o;
+  o.replicates = 150;
+  o.seed = 5;
+  o.keep_replicates = true;
+  const auto warm = bootstrap_factor_solution(x, 2, ext, rot, o);
+  o.replicate_warm_start = false;
+  const auto cold = bootstrap_factor_solution(x, 2, ext, rot, o);
+  ASSERT_EQ(warm.replicates_used, cold.replicates_used);
+  ASSERT_EQ(warm.replicate_loadings.size(), cold.replicate_loadings.size());
+  double worst = 0.0;
+  for (std::size_t i = 0; i < warm.replicate_loadings.size(); ++i) {
+    worst = std::max(worst, (warm.replicate_loadings[i] - cold.replicate_loadings[i]).cwiseAbs().maxCoeff());
+    worst = std::max(worst, (warm.replicate_uniquenesses[i] - cold.replicate_uniquenesses[i]).cwiseAbs().maxCoeff());
+    worst = std::max(worst,
+                     (warm.replicate_factor_correlations[i] - cold.replicate_factor_correlations[i]).cwiseAbs().maxCoeff());
+  }
+  EXPECT_LT(worst, 1e-5);
+  EXPECT_LT((warm.loadings_lower - cold.loadings_lower).cwiseAbs().maxCoeff(), 1e-5);
+  EXPECT_LT((warm.factor_correlations_upper - cold.factor_correlations_upper).cwiseAbs().maxCoeff(), 1e-5);
+  EXPECT_NE(warm.notes.at(1).find("each fit started from the full-sample solution"), std::string::npos);
+  EXPECT_EQ(cold.notes.at(1).find("each fit started from the full-sample solution"), std::string::npos);
+}

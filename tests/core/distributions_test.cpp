@@ -122,3 +122,20 @@ TEST(Distributions, RejectsArgumentsOutsideTheirDomain) {
             "the noncentrality parameter must be finite and non-negative; got -0.5");
   EXPECT_EQ(message([] { return log_gamma(0.0); }), "log_gamma needs a positive finite argument; got 0");
 }
+
+TEST(Distributions, QuantileType7MatchesNumpyPercentile) {
+  // numpy.percentile's default (linear, Hyndman & Fan type 7), run live, on samples with ties, of one
+  // value, and at the ends q = 0 and 1.
+  const std::vector<Index> sizes = {1, 2, 7, 1000};
+  const std::vector<double> qs = {0.0, 0.025, 0.5, 0.95, 0.975, 1.0};
+  for (Index n : sizes) {
+    Matrix x(n, 1);
+    for (Index i = 0; i < n; ++i) x(i, 0) = std::round(10.0 * std::sin(1.7 * static_cast<double>(i * i) + 0.3));
+    Matrix q = Eigen::Map<const Vector>(qs.data(), static_cast<Index>(qs.size()));
+    const auto ref = run_python("emit('v', np.percentile(X.ravel(), 100 * Q.ravel()))", {{"X", x}, {"Q", q}});
+    for (Index k = 0; k < q.rows(); ++k) {
+      std::vector<double> values(x.data(), x.data() + n);
+      EXPECT_NEAR(quantile_type7(values, q(k, 0)), ref.at("v")(k, 0), 1e-12) << "n " << n << " q " << q(k, 0);
+    }
+  }
+}

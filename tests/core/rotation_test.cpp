@@ -430,6 +430,39 @@ TEST(Rotation, BadInputGetsClearErrors) {
   auto it = opts(RotationMethod::varimax);
   it.max_iterations = 0;
   expect_error(a, it, "max_iterations must be at least 1");
+  auto st = opts(RotationMethod::oblimin);
+  st.start = Matrix::Identity(2, 2);
+  expect_error(a, st, "the starting rotation is 2 x 2 but there are 3 factors; it must be 3 x 3");
+  st.start = Matrix::Ones(3, 3);
+  expect_error(a, st, "the starting rotation is singular; it must be invertible");
+  st.start = Matrix::Identity(3, 3);
+  st.start(1, 2) = std::nan("");
+  expect_error(a, st, "the starting rotation contains a missing or infinite value");
+}
+
+TEST(Rotation, AStartingRotationNearTheSolutionReachesTheSameSolution) {
+  // On the Harman74 loadings (R's datasets via factanal): starting from a solution's own rotation
+  // matrix, or from it disturbed (and, for orthogonal methods, no longer orthogonal), reaches that
+  // solution again, which is how a bootstrap replicate uses the full-sample rotation.
+  const Matrix& a = harman(3);
+  auto rng = random_stream(17, 0);
+  for (auto m : {RotationMethod::oblimin, RotationMethod::quartimin, RotationMethod::geomin, RotationMethod::varimax,
+                 RotationMethod::quartimax}) {
+    SCOPED_TRACE(rotation_name(m));
+    auto o = opts(m);
+    o.random_starts = 0;
+    const RotationResult solution = rotate(a, o);
+    ASSERT_TRUE(solution.convergence.converged);
+    o.start = solution.rotation;
+    const RotationResult again = rotate(a, o);
+    EXPECT_LT(max_diff(again.pattern, solution.pattern), 1e-5);
+    EXPECT_LE(again.convergence.iterations, 3);
+    o.start = solution.rotation + 0.05 * standard_normal_matrix(3, 3, rng);
+    const RotationResult near = rotate(a, o);
+    ASSERT_TRUE(near.convergence.converged);
+    EXPECT_LT(max_diff(near.pattern, solution.pattern), 1e-5);
+    EXPECT_LT(max_diff(near.factor_correlations, solution.factor_correlations), 1e-5);
+  }
 }
 
 TEST(Rotation, NonConvergenceIsReported) {

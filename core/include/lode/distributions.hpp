@@ -27,7 +27,7 @@ double noncentral_chi_square_sf(double x, double df, double lambda);
 // even lambda = 0 gives a value below p (the cdf falls as lambda grows).
 double noncentrality_for_cdf(double x, double df, double p);
 
-// Quantile q in [0, 1] of `values` (sorted in place) by linear interpolation between order statistics
+// Quantile q in [0, 1] of `values` (reordered in place) by linear interpolation between order statistics
 // (type 7 of Hyndman & Fan 1996, the default of R's quantile and numpy's percentile). Throws
 // insufficient_data for no values.
 double quantile_type7(std::vector<double>& values, double q);
