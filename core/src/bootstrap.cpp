@@ -266,8 +266,9 @@ BootstrapResult bootstrap_factor_solution(const Matrix& data, int factors, const
   if (options.replicate_random_starts >= 0) rot.random_starts = options.replicate_random_starts;
   const bool rotating = factors >= 2 && rotation.method != RotationMethod::none;
   const bool warm = options.replicate_warm_start;
-  if (warm && (ext.method == ExtractionMethod::maximum_likelihood || ext.method == ExtractionMethod::minimum_residual))
+  if (warm && (ext.method == ExtractionMethod::maximum_likelihood || ext.method == ExtractionMethod::minimum_residual)) {
     ext.start_uniquenesses = full_extraction.uniquenesses;
+  }
   CarriedRotation carry;
   if (warm && rotating) carry = {&full_extraction.loadings, &full_rotation.rotation};
   auto fit = [&](const Matrix& rr) { return fit_solution(rr, factors, ext, rot, nullptr, nullptr, carry); };
