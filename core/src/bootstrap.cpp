@@ -4,6 +4,7 @@
 #include "lode/congruence.hpp"
 #include "lode/parallel.hpp"
 #include "lode/random.hpp"
+#include "correlation_detail.hpp"
 
 #include <fmt/format.h>
 
@@ -58,6 +59,7 @@ BootstrapResult bootstrap_solution(const Matrix& data, const FactorSolution& ful
   corr.threads = 1;               // the replicates are the parallel units
   corr.polychoric.progress = {};  // progress is reported per replicate, from the calling thread only
   const Matrix full_phi = phi_or_identity(full.factor_correlations, k);
+  const detail::ResampleCorrelation resampled(data, corr);
 
   std::vector<Replicate> reps(static_cast<std::size_t>(b));
   parallel_for(
@@ -69,8 +71,7 @@ BootstrapResult bootstrap_solution(const Matrix& data, const FactorSolution& ful
         std::vector<Index> rows(static_cast<std::size_t>(n));
         for (auto& r : rows) r = pick(rng);
         try {
-          const Matrix sample = data(rows, Eigen::all);
-          const CorrelationResult r = correlation(sample, corr);
+          const CorrelationResult r = resampled.resample(rows);
           FactorSolution s = fit(r.matrix);
           if (!s.converged) {
             rep.problem = s.problem.empty() ? std::string("the fit did not converge") : s.problem;

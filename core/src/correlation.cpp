@@ -239,6 +239,68 @@ void finish(CorrelationResult& result, const CorrelationOptions& options) {
   }
 }
 
+ResampleCorrelation::ResampleCorrelation(const Matrix& data, const CorrelationOptions& options)
+    : data_(data), options_(options) {
+  if (options.kind != CorrelationKind::pearson || data.array().isNaN().any()) return;
+  try {
+    validate_data(data, options);  // data that fail here fail in every resample too: leave them to correlation()
+  } catch (const Error&) {
+    return;
+  }
+  by_counts_ = true;
+  centred_ = data.rowwise() - data.colwise().mean();
+}
+
+CorrelationResult ResampleCorrelation::resample(const std::vector<Index>& rows) const {
+  if (!by_counts_) return correlation(data_(rows, Eigen::all), options_);
+  const Index n = data_.rows(), p = data_.cols();
+  std::vector<Index> count(static_cast<std::size_t>(n), 0);
+  for (Index i : rows) ++count[static_cast<std::size_t>(i)];
+  std::vector<Index> drawn;
+  for (Index i = 0; i < n; ++i)
+    if (count[static_cast<std::size_t>(i)] > 0) drawn.push_back(i);
+  const auto m = static_cast<Index>(drawn.size());
+  // A resample can hold one value only for an item (then its correlations are undefined); the same
+  // check and message as validate_data.
+  for (Index j = 0; j < p; ++j) {
+    const double first = data_(drawn.front(), j);
+    bool constant = true;
+    for (Index t = 1; t < m && constant; ++t) constant = data_(drawn[static_cast<std::size_t>(t)], j) == first;
+    if (constant)
+      throw Error(ErrorCode::insufficient_data,
+                  fmt::format("{} is constant (every answer is {}); remove it, it carries no information",
+                              item_label(options_.item_names, j), first));
+  }
+  // Cross-products of the drawn rows, each scaled by the square root of its count, and the resample's
+  // mean of the centred data: covariance * rows = Y'Y - rows * mean mean'.
+  Matrix y(m, p);
+  Vector sum = Vector::Zero(p);
+  for (Index t = 0; t < m; ++t) {
+    const Index i = drawn[static_cast<std::size_t>(t)];
+    const double c = static_cast<double>(count[static_cast<std::size_t>(i)]);
+    y.row(t) = std::sqrt(c) * centred_.row(i);
+    sum += c * centred_.row(i).transpose();
+  }
+  const double total = static_cast<double>(rows.size());
+  const Vector mean = sum / total;
+  Matrix s = Matrix::Zero(p, p);
+  s.selfadjointView<Eigen::Lower>().rankUpdate(y.transpose());
+  s.selfadjointView<Eigen::Lower>().rankUpdate(mean, -total);
+  s = s.selfadjointView<Eigen::Lower>();
+  const Vector inv_sd = s.diagonal().cwiseSqrt().cwiseInverse();
+  CorrelationResult result;
+  result.matrix = inv_sd.asDiagonal() * s * inv_sd.asDiagonal();
+  result.matrix.diagonal().setOnes();
+  result.n_obs = static_cast<Index>(rows.size());
+  result.kind = options_.kind;
+  result.missing = options_.missing;
+  result.report.rows_total = result.report.rows_complete = result.report.rows_used = result.n_obs;
+  result.report.pair_counts = IndexMatrix::Constant(p, p, result.n_obs);
+  result.report.min_pair_count = result.n_obs;
+  finish(result, options_);
+  return result;
+}
+
 }  // namespace detail
 
 using detail::check_pairs;

@@ -12,4 +12,22 @@ void check_pairs(const Matrix& r, const IndexMatrix& counts, const CorrelationOp
 // reported in the result's smoothing report and notes.
 void finish(CorrelationResult& result, const CorrelationOptions& options);
 
+// Correlation matrices of resamples of one data set (rows drawn with replacement, as the bootstrap
+// does): resample(rows) gives what correlation(data(rows, all), options) gives, the same checks and
+// messages included. For complete data and Pearson coefficients it works from how often each row was
+// drawn instead of copying the rows: the columns are centred once, and each resample's cross-products
+// are taken over the distinct rows drawn, weighted by their counts. Other data go through correlation().
+// Safe to call from several threads at once.
+class ResampleCorrelation {
+ public:
+  ResampleCorrelation(const Matrix& data, const CorrelationOptions& options);
+  CorrelationResult resample(const std::vector<Index>& rows) const;
+
+ private:
+  const Matrix& data_;
+  CorrelationOptions options_;
+  bool by_counts_ = false;
+  Matrix centred_;  // data minus the column means (by_counts_ only)
+};
+
 }  // namespace lode::detail

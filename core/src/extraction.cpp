@@ -327,7 +327,8 @@ ExtractionResult extract_factors(const Matrix& r_in, int factors, const Extracti
   CorrelationOptions co;
   co.item_names = options.item_names;
   check_options(options, r_in.rows());
-  const Matrix r = correlation_from_matrix(r_in, 0, co).matrix;
+  const CorrelationResult checked = correlation_from_matrix(r_in, 0, co);  // also tests positive definiteness
+  const Matrix& r = checked.matrix;
   const Index p = r.rows();
   const int k = factors;
   const auto method_name = to_string(options.method);
@@ -341,7 +342,7 @@ ExtractionResult extract_factors(const Matrix& r_in, int factors, const Extracti
                 fmt::format("too few observations: a correlation matrix of {} items from {} observations is singular; "
                             "at least {} observations are needed, and many more for stable factors",
                             p, options.n_obs, p + 1));
-  const bool pd = is_positive_definite(r);
+  const bool pd = checked.positive_definite;
   if (options.method == ExtractionMethod::maximum_likelihood) {
     const double df = factor_model_df(p, k);
     if (df < 0.0)

@@ -1,6 +1,7 @@
 // Correlation matrices and data intake, checked against R's base stats::cor and numpy.
 #include "lode/correlation.hpp"
 #include "lode/random.hpp"
+#include "../../core/src/correlation_detail.hpp"
 #include "support/external.hpp"
 
 #include <gtest/gtest.h>
@@ -159,4 +160,45 @@ TEST(Correlation, LargeDataAcrossChunksMatchesRAndIgnoresThreadCount) {
   EXPECT_LT((h1 - ref.at("holes")).cwiseAbs().maxCoeff(), 1e-12);
   EXPECT_EQ(f1, f2);  // bitwise: chunks are summed in a fixed order
   EXPECT_EQ(h1, h2);
+}
+
+TEST(Correlation, ResampledCorrelationsMatchNumpyAndCorrelationOfTheCopiedRows) {
+  // The bootstrap's resample correlations (from row counts, without copying rows) against
+  // numpy.corrcoef of the rows drawn (run live), and against correlation() of the copied rows; data with
+  // missing values take correlation()'s own path; a resample in which an item has one value only is
+  // refused with correlation()'s message.
+  const Matrix x = survey_like(200, 7, 12, 0.0);
+  const detail::ResampleCorrelation resampled(x, {});
+  auto rng = random_stream(3, 0);
+  std::uniform_int_distribution<Index> pick(0, x.rows() - 1);
+  std::vector<Index> rows(static_cast<std::size_t>(x.rows()));
+  for (auto& r : rows) r = pick(rng);
+  const Matrix got = resampled.resample(rows).matrix;
+  const Matrix copied = x(rows, Eigen::all);
+  const auto ref = run_python("emit('r', np.corrcoef(X, rowvar=False))", {{"X", copied}});
+  EXPECT_LT((got - ref.at("r")).cwiseAbs().maxCoeff(), 1e-13);
+  EXPECT_LT((got - correlation(copied).matrix).cwiseAbs().maxCoeff(), 1e-13);
+
+  const Matrix gaps = survey_like(200, 7, 13, 0.05);
+  const detail::ResampleCorrelation with_gaps(gaps, {});
+  EXPECT_EQ(with_gaps.resample(rows).matrix, correlation(gaps(rows, Eigen::all)).matrix);
+
+  Matrix rare = x;
+  rare.col(4).setConstant(3.0);
+  rare(17, 4) = 5.0;  // only row 18 differs
+  CorrelationOptions named;
+  named.item_names = {"a", "b", "c", "d", "trust", "f", "g"};
+  const detail::ResampleCorrelation rare_resampled(rare, named);
+  std::vector<Index> without(rows.size(), 0);
+  for (std::size_t t = 0; t < rows.size(); ++t) without[t] = rows[t] == 17 ? 16 : rows[t];
+  try {
+    rare_resampled.resample(without);
+    ADD_FAILURE() << "no error";
+  } catch (const Error& e) {
+    EXPECT_EQ(e.code(), ErrorCode::insufficient_data);
+    EXPECT_STREQ(e.what(), "item 'trust' is constant (every answer is 3); remove it, it carries no information");
+  }
+  without[0] = 17;
+  EXPECT_LT((rare_resampled.resample(without).matrix - correlation(rare(without, Eigen::all)).matrix).cwiseAbs().maxCoeff(),
+            1e-13);
 }
