@@ -187,15 +187,15 @@ std::string count_text(const lode_factor_count* f, int key) {
 }
 #endif
 
-CountResult count_factors(const lode_correlation* corr, const Options& o, const Progress& progress,
-                          const std::string& missing_feature) {
+CountResult count_factors(const lode_correlation* corr, const Options& o, const Progress& progress, double from,
+                          double to, const std::string& missing_feature) {
   CountResult r;
 #if LODE_REPORT_HAS_COUNT
   lode_factor_count_options opts;
   lode_factor_count_options_init(&opts, sizeof opts);
   opts.seed = o.seed;
   opts.threads = 1;  // the office's other work keeps a core
-  ProgressBridge bridge{&progress, "parallel analysis", 0.5, 0.9};
+  ProgressBridge bridge{&progress, "parallel analysis", from, to};
   opts.progress = &ProgressBridge::call;
   opts.progress_user = &bridge;
   lode_factor_count* raw = nullptr;
@@ -236,6 +236,8 @@ CountResult count_factors(const lode_correlation* corr, const Options& o, const 
   (void)corr;
   (void)o;
   (void)progress;
+  (void)from;
+  (void)to;
   r.reason = "parallel analysis is " + missing_feature;
 #endif
   return r;
@@ -277,34 +279,131 @@ double model_value(const lode_model* m, int key) {
 #endif
 
 #if LODE_REPORT_HAS_FIT
-// lode_fit with the run's extraction and rotation options; the caller owns the model (NULL with the
-// status on failure). `rotation_used` says which rotation was applied.
-lode_model* fit_raw(const lode_correlation* corr, const Options& o, int factors, std::string& rotation_used, int& status) {
+// The run's extraction and rotation options for lode_fit (and the bootstrap, which refits the same
+// way). Not copyable: fo.rotation points into the same object.
+struct FitSetup {
   lode_fit_options fo;
-  lode_fit_options_init(&fo, sizeof fo);
-  fo.factors = factors;
-  fo.method = o.extraction == "ml" ? LODE_ML : o.extraction == "paf" ? LODE_PAF : LODE_MINRES;
   lode_rotation_options ro;
-  lode_rotation_options_init(&ro, sizeof ro);
-  ro.seed = o.seed;
-  ro.threads = 1;
-  rotation_used = o.rotation;
-  if (o.rotation == "oblimin") {
-    ro.method = LODE_ROTATION_OBLIMIN;
-    ro.gamma = o.rotation_parameter;
-  } else if (o.rotation == "promax") {
-    ro.method = LODE_ROTATION_PROMAX;
-    if (o.rotation_parameter > 0) ro.power = o.rotation_parameter;
-  } else {
-    ro.method = LODE_ROTATION_VARIMAX;
+  std::string rotation_used;  // which rotation is applied, in the option's word
+  FitSetup(const Options& o, int factors) {
+    lode_fit_options_init(&fo, sizeof fo);
+    fo.factors = factors;
+    fo.method = o.extraction == "ml" ? LODE_ML : o.extraction == "paf" ? LODE_PAF : LODE_MINRES;
+    lode_rotation_options_init(&ro, sizeof ro);
+    ro.seed = o.seed;
+    ro.threads = 1;
+    rotation_used = o.rotation;
+    if (o.rotation == "oblimin") {
+      ro.method = LODE_ROTATION_OBLIMIN;
+      ro.gamma = o.rotation_parameter;
+    } else if (o.rotation == "promax") {
+      ro.method = LODE_ROTATION_PROMAX;
+      if (o.rotation_parameter > 0) ro.power = o.rotation_parameter;
+    } else {
+      ro.method = LODE_ROTATION_VARIMAX;
+    }
+    if (o.rotation != "none" && factors >= 2) fo.rotation = &ro;
+    else if (o.rotation != "none") rotation_used = "none (one factor cannot be rotated)";
   }
-  if (o.rotation != "none" && factors >= 2) fo.rotation = &ro;
-  else if (o.rotation != "none") rotation_used = "none (one factor cannot be rotated)";
+  FitSetup(const FitSetup&) = delete;
+  FitSetup& operator=(const FitSetup&) = delete;
+};
+
+// lode_fit with the run's options; the caller owns the model (NULL with the status on failure).
+lode_model* fit_raw(const lode_correlation* corr, const Options& o, int factors, std::string& rotation_used, int& status) {
+  FitSetup setup(o, factors);
+  rotation_used = setup.rotation_used;
   lode_model* raw = nullptr;
-  status = lode_fit(corr, &fo, &raw);
+  status = lode_fit(corr, &setup.fo, &raw);
   return status == LODE_OK ? raw : nullptr;
 }
 #endif
+
+// Bootstrap intervals of the fitted solution through the C ABI's lode_bootstrap when this liblode has
+// it (report.cmake sets LODE_REPORT_HAS_BOOTSTRAP from lode.h); otherwise `reason` says what is missing.
+struct BootResult {
+  bool available = false;
+  std::string reason;
+  double replicates = 0, used = 0, failed = 0, poorly_matched = 0, level = 0.95;
+  std::vector<double> estimate, lower, upper;        // items x factors (pattern loadings)
+  std::vector<double> phi_lower, phi_upper;          // factors x factors
+  std::string alignment;
+  std::vector<std::string> failures, notes;
+};
+
+#if LODE_REPORT_HAS_BOOTSTRAP
+struct BootFree {
+  void operator()(lode_bootstrap_result* p) const noexcept { lode_bootstrap_free(p); }
+};
+#endif
+
+BootResult bootstrap_intervals(const lode_correlation* corr, const Options& o, int factors, const Progress& progress,
+                               double from, double to, const std::string& missing_feature) {
+  BootResult r;
+#if LODE_REPORT_HAS_BOOTSTRAP && LODE_REPORT_HAS_FIT
+  FitSetup setup(o, factors);
+  lode_bootstrap_options bo;
+  lode_bootstrap_options_init(&bo, sizeof bo);
+  bo.replicates = o.bootstrap;
+  bo.seed = o.seed;
+  bo.threads = 1;  // the office's other work keeps a core
+  ProgressBridge bridge{&progress, "bootstrap resamples", from, to};
+  bo.progress = &ProgressBridge::call;
+  bo.progress_user = &bridge;
+  lode_bootstrap_result* raw = nullptr;
+  const int st = lode_bootstrap(corr, &setup.fo, &bo, &raw);
+  if (st == LODE_E_CANCELLED) throw Cancelled{};
+  if (st != LODE_OK) {
+    r.reason = lode_last_error();
+    return r;
+  }
+  std::unique_ptr<lode_bootstrap_result, BootFree> b(raw);
+  auto mat = [&](int key) {
+    std::int64_t a = 0, c = 0;
+    check(lode_bootstrap_matrix(b.get(), key, nullptr, 0, &a, &c), "reading the bootstrap");
+    std::vector<double> v(static_cast<std::size_t>(a * c));
+    check(lode_bootstrap_matrix(b.get(), key, v.data(), v.size(), &a, &c), "reading the bootstrap");
+    return v;
+  };
+  auto num = [&](int key) {
+    double v = kNaN;
+    check(lode_bootstrap_value(b.get(), key, &v), "reading the bootstrap");
+    return v;
+  };
+  auto text = [&](int key) {
+    size_t len = 0;
+    check(lode_bootstrap_text(b.get(), key, nullptr, 0, &len), "reading the bootstrap");
+    std::string t(len + 1, '\0');
+    check(lode_bootstrap_text(b.get(), key, t.data(), t.size(), &len), "reading the bootstrap");
+    t.resize(len);
+    return t;
+  };
+  r.estimate = mat(LODE_BOOTSTRAP_LOADINGS);
+  r.lower = mat(LODE_BOOTSTRAP_LOADINGS_LOWER);
+  r.upper = mat(LODE_BOOTSTRAP_LOADINGS_UPPER);
+  r.phi_lower = mat(LODE_BOOTSTRAP_FACTOR_CORRELATIONS_LOWER);
+  r.phi_upper = mat(LODE_BOOTSTRAP_FACTOR_CORRELATIONS_UPPER);
+  r.replicates = num(LODE_BOOTSTRAP_REPLICATES);
+  r.used = num(LODE_BOOTSTRAP_USED);
+  r.failed = num(LODE_BOOTSTRAP_FAILED);
+  r.poorly_matched = num(LODE_BOOTSTRAP_POORLY_MATCHED);
+  r.level = num(LODE_BOOTSTRAP_LEVEL);
+  r.alignment = text(LODE_BOOTSTRAP_ALIGNMENT);
+  r.failures = lines_of(text(LODE_BOOTSTRAP_FAILURES));
+  r.notes = lines_of(text(LODE_BOOTSTRAP_NOTES));
+  r.available = true;
+  (void)missing_feature;
+#else
+  (void)corr;
+  (void)o;
+  (void)factors;
+  (void)progress;
+  (void)from;
+  (void)to;
+  r.reason = "bootstrap intervals are " + missing_feature;
+#endif
+  return r;
+}
 
 ModelResult fit_model(const lode_correlation* corr, const Options& o, int factors, const std::string& missing_feature) {
   ModelResult r;
@@ -783,6 +882,9 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
     if (progress && !progress(phase, share)) throw Cancelled{};
   };
   step("reading the data", 0.0);
+  // Shares of the progress bar: the bootstrap, when asked for, is most of the work.
+  const bool boot = o.bootstrap > 0;
+  const double corr_to = boot ? 0.25 : 0.5, count_to = boot ? 0.45 : 0.9;
 
   // ---- the items ----------------------------------------------------------------------------
   const bool header = o.header == -1 ? detect_header(src) : o.header == 1;
@@ -837,13 +939,13 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   copts.kind = o.correlation == "spearman" ? LODE_SPEARMAN : o.correlation == "polychoric" ? LODE_POLYCHORIC : LODE_PEARSON;
   copts.missing = o.missing == "listwise" ? LODE_LISTWISE : LODE_PAIRWISE;
   copts.threads = 1;  // the office's other work keeps a core
-  ProgressBridge bridge{&progress, "computing correlations", 0.05, 0.5};
+  ProgressBridge bridge{&progress, "computing correlations", 0.05, corr_to};
   copts.progress = &ProgressBridge::call;
   copts.progress_user = &bridge;
   lode_correlation* raw_corr = nullptr;
   check(lode_correlate(data.get(), &copts, &raw_corr), "computing the correlations");
   std::unique_ptr<lode_correlation, CorrFree> corr(raw_corr);
-  step("laying out the report", 0.9);
+  step("assessing the correlations", corr_to);
 
   std::int64_t r_rows = 0, r_cols = 0;
   const std::vector<double> R = read_corr_matrix(corr.get(), LODE_CORRELATION_MATRIX, &r_rows, &r_cols);
@@ -885,13 +987,21 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
     if (e > 1.0) ++above_one;
   }
   const std::string missing_feature = not_yet();
-  const CountResult count = count_factors(corr.get(), o, progress, missing_feature);
-  step("fitting the factor model", 0.92);
+  const CountResult count = count_factors(corr.get(), o, progress, corr_to, count_to, missing_feature);
+  step("fitting the factor model", count_to + 0.02);
   const int k_decided = o.factors > 0 ? o.factors : count.available ? count.suggested : 0;
   ModelResult model;
   if (k_decided > 0) model = fit_model(corr.get(), o, k_decided, missing_feature);
   else model.reason = count.available ? "no factor stands out from random data" : count.reason;
   const std::size_t k = model.available ? static_cast<std::size_t>(model.factors) : 0;
+
+  // Bootstrap intervals of the loadings (and factor correlations), when asked for.
+  BootResult bootr;
+  if (boot) {
+    step("bootstrap resamples", 0.5);
+    if (model.available) bootr = bootstrap_intervals(corr.get(), o, model.factors, progress, 0.5, 0.93, missing_feature);
+    else bootr.reason = model.reason;
+  }
 
   // Reliability of each factor's scale, and factor scores when asked for.
   step("reliability of the scales", 0.94);
@@ -1105,7 +1215,7 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
     ov.blank();
     ov.line({Cell::txt("Factor scores", heading), Cell::txt("", heading), Cell::txt("", heading)});
     if (!scores.available) {
-      ov.line({Cell::txt("Factor scores", label), Cell::txt("not written: " + scores.reason, note)});
+      ov.line({Cell::txt("Scores", label), Cell::txt("not written: " + scores.reason, note)});
     } else {
       ov.line({Cell::txt("Method", label), Cell::txt(score_method_words(o.scores))});
       ov.line({Cell::txt("Written to", label), Cell::txt(scores_where)});
@@ -1127,8 +1237,33 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
       ov.line({Cell::txt(scores.cautions, caution)});
     }
   }
-  if (o.bootstrap > 0)
-    ov.line({Cell::txt("Bootstrap intervals were asked for: " + missing_feature + "; none were written.", note)});
+  if (boot) {
+    ov.blank();
+    ov.line({Cell::txt("Bootstrap intervals", heading), Cell::txt("", heading), Cell::txt("", heading)});
+    if (!bootr.available) {
+      ov.line({Cell::txt("Intervals", label), Cell::txt("not computed: " + bootr.reason, note)});
+    } else {
+      ov.line({Cell::txt("Resamples asked for", label), Cell::num(bootr.replicates),
+               Cell::txt("respondents drawn with replacement, each resample refitted the same way (Efron and "
+                         "Tibshirani 1993)",
+                         note)});
+      ov.line({Cell::txt("Resamples used", label), Cell::num(bootr.used)});
+      ov.line({Cell::txt("Resamples failed", label), Cell::num(bootr.failed),
+               Cell::txt(bootr.failed > 0 ? "left out of the intervals; the reasons follow" : "none failed", note)});
+      for (const std::string& f : bootr.failures) ov.line({Cell::txt("Why resamples failed", flag), Cell::txt(f, note)});
+      ov.line({Cell::txt("Interval", label), Cell::num(bootr.level, number),
+               Cell::txt("two-sided percentile intervals, beside the loadings on " + std::string(names::loadings), note)});
+      ov.line({Cell::txt("How resamples were aligned", label), Cell::txt(bootr.alignment, note)});
+      ov.line({Cell::txt("Resamples poorly matched", label), Cell::num(bootr.poorly_matched),
+               Cell::txt(bootr.poorly_matched > 0
+                             ? "some factor matched with congruence under 0.85 (Lorenzo-Seva and ten Berge 2006): its "
+                               "intervals mix different factors"
+                             : "every factor of every resample matched with congruence 0.85 or more (Lorenzo-Seva "
+                               "and ten Berge 2006)",
+                         bootr.poorly_matched > 0 ? flag : note)});
+      for (const std::string& n : bootr.notes) ov.line({Cell::txt("Note on the bootstrap", flag), Cell::txt(n, note)});
+    }
+  }
   rep.sheets.push_back(std::move(ov));
 
   // ---- 2. loadings --------------------------------------------------------------------------
@@ -1143,12 +1278,24 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
                        note)});
   } else {
     ld.line({Cell::txt("Items are grouped by the factor they load on most, largest loading first.", note)});
-    if (o.bootstrap > 0) ld.line({Cell::txt("Bootstrap intervals: " + missing_feature, note)});
+    if (boot && bootr.available)
+      ld.line({Cell::txt("Beside the loadings: " + fmt_num(100.0 * bootr.level, 0) + "% bootstrap intervals from " +
+                             fmt_num(bootr.used, 0) + " resamples (see " + names::overview + ", \"Bootstrap intervals\").",
+                         note)});
+    else if (boot)
+      ld.line({Cell::txt("Bootstrap intervals: not computed: " + bootr.reason, note)});
     ld.blank();
     std::vector<Cell> hdr{Cell::txt("Item", heading)};
     for (std::size_t f = 0; f < k; ++f) hdr.push_back(Cell::txt("Factor " + std::to_string(f + 1), heading));
     hdr.push_back(Cell::txt("Communality", heading));
     hdr.push_back(Cell::txt("Uniqueness", heading));
+    const bool intervals = boot && bootr.available;
+    const std::string pct = intervals ? fmt_num(100.0 * bootr.level, 0) + "%" : "";
+    if (intervals)
+      for (std::size_t f = 0; f < k; ++f) {
+        hdr.push_back(Cell::txt("Factor " + std::to_string(f + 1) + " " + pct + " from", heading));
+        hdr.push_back(Cell::txt("Factor " + std::to_string(f + 1) + " " + pct + " to", heading));
+      }
     ld.line(std::move(hdr));
     for (std::size_t j : loading_order(model.loadings, p, k)) {
       std::vector<Cell> row{Cell::txt(item_names[j], label)};
@@ -1158,6 +1305,13 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
       }
       row.push_back(Cell::num(model.communalities[j], number));
       row.push_back(Cell::num(model.uniquenesses[j], number));
+      if (intervals)
+        for (std::size_t f = 0; f < k; ++f) {
+          // an interval that reaches across zero: the sign of the loading is not settled by the data
+          const bool across = bootr.lower[j * k + f] <= 0.0 && bootr.upper[j * k + f] >= 0.0;
+          row.push_back(Cell::num(bootr.lower[j * k + f], across ? faint : number));
+          row.push_back(Cell::num(bootr.upper[j * k + f], across ? faint : number));
+        }
       ld.line(std::move(row));
     }
     std::vector<Cell> ssrow{Cell::txt("Sum of squared loadings", label)};
@@ -1190,6 +1344,19 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
         std::vector<Cell> row{Cell::txt("Factor " + std::to_string(a + 1), label)};
         for (std::size_t b = 0; b < k; ++b) row.push_back(Cell::num(model.phi[a * k + b], number));
         fc.line(std::move(row));
+      }
+      if (boot && bootr.available) {
+        fc.blank();
+        const std::string pct = fmt_num(100.0 * bootr.level, 0) + "%";
+        fc.line({Cell::txt("Factor correlations with " + pct + " bootstrap intervals", heading), Cell::txt("", heading),
+                 Cell::txt("", heading), Cell::txt("", heading)});
+        fc.line({Cell::txt("Factors", label), Cell::txt("Correlation", label), Cell::txt(pct + " from", label),
+                 Cell::txt(pct + " to", label)});
+        for (std::size_t a = 0; a < k; ++a)
+          for (std::size_t b = a + 1; b < k; ++b)
+            fc.line({Cell::txt("Factor " + std::to_string(a + 1) + " and factor " + std::to_string(b + 1), label),
+                     Cell::num(model.phi[a * k + b], number), Cell::num(bootr.phi_lower[a * k + b], number),
+                     Cell::num(bootr.phi_upper[a * k + b], number)});
       }
       fc.blank();
       fc.line({Cell::txt("Structure: correlations of items with factors", heading)});
@@ -1377,6 +1544,16 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   }
   rec("Scale membership (reliability)", Cell::txt("largest absolute loading; negative loaders reverse-scored"));
   rec("Bootstrap resamples", Cell::num(o.bootstrap));
+  if (boot) {
+    rec("Bootstrap seed", Cell::txt(std::to_string(o.seed) + " (resample i draws from stream i of it)"));
+    if (bootr.available) {
+      rec("Bootstrap resamples used", Cell::num(bootr.used));
+      rec("Bootstrap resamples failed", Cell::num(bootr.failed));
+      rec("Bootstrap interval level", Cell::num(bootr.level));
+    } else {
+      rec("Bootstrap intervals", Cell::txt("not computed: " + bootr.reason));
+    }
+  }
   rec("Strong loading from", Cell::num(o.salient));
   rec("Random seed", Cell::txt(std::to_string(o.seed)));
   rep.sheets.push_back(std::move(rr));
