@@ -1329,6 +1329,7 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   // ---- 3. factors, residuals, reliability ---------------------------------------------------
   Sheet fc;
   fc.base_name = names::factors;
+  fc.column_widths = {5200, 3300, 3300, 3300, 3300, 3300, 3300, 3300, 3300};
   fc.line({Cell::txt("Factors, residuals and reliability", title)});
   if (!model.available) {
     fc.line({Cell::txt("Factor correlations and structure: " + model.reason, note)});
