@@ -402,6 +402,9 @@ def test_background_run_finishes_and_reports(office, survey, service):
     (dict(Items=["ROL1", "NOPE"]), "NOPE"),
     (dict(Items=["respondent", "ROL1", "ROL2"]), "no numbers"),
     (dict(Colour="green"), "unknown option Colour"),
+    (dict(Scores="anderson"), "tenberge"),
+    (dict(ScoresPlace="below"), "ScoresPlace"),
+    (dict(Bootstrap=-5), "Bootstrap"),
 ])
 def test_bad_options_are_named_and_change_nothing(office, survey, service, opts, words):
     before = snapshot(survey)
