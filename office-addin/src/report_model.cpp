@@ -1270,6 +1270,11 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   Sheet ld;
   ld.base_name = names::loadings;
   ld.column_widths = {5000, 3000, 3000, 3000, 3000, 3000, 3000, 3000};
+  if (boot && bootr.available) {  // the intervals beside the loadings, communality and uniqueness
+    ld.column_widths.assign(1 + k + 2, 3000);
+    ld.column_widths[0] = 5000;
+    ld.column_widths.resize(1 + k + 2 + 2 * k, 3700);
+  }
   ld.line({Cell::txt("Loadings", title)});
   ld.line({Cell::txt("Strong loadings (at least " + fmt_num(o.salient, 2) + ") are shaded; small ones are grey.", note)});
   if (!model.available) {
