@@ -391,7 +391,6 @@ LODE_API int lode_fit(const lode_correlation* corr, const lode_fit_options* opts
       rot.ss_pattern = rot.ss_structure = m->extraction.loadings.colwise().squaredNorm().transpose();
       rot.convergence.converged = true;
     }
-    if (progress) progress(total, total);  // the final report; the work is done, so no cancel here
     (void)p;
     m->residual = residual_fit(r, m->extraction.loadings, m->extraction.uniquenesses);
     if (m->n_obs == 0) {
@@ -408,6 +407,7 @@ LODE_API int lode_fit(const lode_correlation* corr, const lode_fit_options* opts
         m->notes.push_back(fmt::format("fit statistics are not available: {}", e.what()));
       }
     }
+    if (progress) progress(total, total);  // the final report; the work is done, so no cancel here
     *out = m.release();
   });
 }
