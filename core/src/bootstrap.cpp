@@ -226,7 +226,8 @@ BootstrapResult bootstrap_factor_solution(const Matrix& data, int factors, const
                             "nothing",
                             full.problem));
   RotationOptions rot = rotation;
-  rot.threads = 1;  // the replicates are the parallel units
+  rot.threads = 1;     // the replicates are the parallel units
+  rot.progress = {};   // replicates run on worker threads; progress is reported per replicate instead
   if (options.replicate_random_starts >= 0) rot.random_starts = options.replicate_random_starts;
   auto fit = [&](const Matrix& rr) { return fit_factor_solution(rr, factors, ext, rot); };
   BootstrapResult out = bootstrap_solution(data, full, fit, options);
