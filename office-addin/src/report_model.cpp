@@ -146,17 +146,7 @@ const char* missing_words(const std::string& m) {
                          : "each pair of items uses everyone who answered both (pairwise)";
 }
 
-// What the C ABI of this build cannot compute yet; each line says so in the report.
-constexpr const char* kNotYet = "not in this liblode yet (C ABI ";
-
-std::string not_yet() {
-  const lode_version_info* v = lode_version();
-  return std::string(kNotYet) + std::to_string(v->abi_major) + "." + std::to_string(v->abi_minor) + ")";
-}
-
-
-// How many factors, through the C ABI's factor count when this liblode has it (report.cmake sets
-// LODE_REPORT_HAS_COUNT from lode.h); otherwise `reason` says what is missing.
+// How many factors, through the C ABI's factor count; when it fails, `reason` says why.
 struct CountResult {
   bool available = false;
   std::string reason;
@@ -173,7 +163,6 @@ struct CountResult {
   std::vector<std::string> notes;
 };
 
-#if LODE_REPORT_HAS_COUNT
 struct CountFree {
   void operator()(lode_factor_count* p) const noexcept { lode_factor_count_free(p); }
 };
@@ -185,12 +174,10 @@ std::string count_text(const lode_factor_count* f, int key) {
   s.resize(len);
   return s;
 }
-#endif
 
 CountResult count_factors(const lode_correlation* corr, const Options& o, const Progress& progress, double from,
-                          double to, const std::string& missing_feature) {
+                          double to) {
   CountResult r;
-#if LODE_REPORT_HAS_COUNT
   lode_factor_count_options opts;
   lode_factor_count_options_init(&opts, sizeof opts);
   opts.seed = o.seed;
@@ -231,20 +218,11 @@ CountResult count_factors(const lode_correlation* corr, const Options& o, const 
   }
   r.notes = lines_of(count_text(count.get(), LODE_COUNT_NOTES));
   r.available = true;
-  (void)missing_feature;
-#else
-  (void)corr;
-  (void)o;
-  (void)progress;
-  (void)from;
-  (void)to;
-  r.reason = "parallel analysis is " + missing_feature;
-#endif
   return r;
 }
 
-// The fitted model (extraction, rotation, fit, residuals) through the C ABI's lode_fit when this
-// liblode has it (report.cmake sets LODE_REPORT_HAS_FIT from lode.h); otherwise `reason` says why not.
+// The fitted model (extraction, rotation, fit, residuals) through the C ABI's lode_fit; when it fails,
+// `reason` holds the C ABI's error message.
 struct ModelResult {
   bool available = false;
   std::string reason;
@@ -257,10 +235,9 @@ struct ModelResult {
   std::string stats_reason;
   double chi2 = kNaN, df = kNaN, p = kNaN, rmsea = kNaN, rmsea_lo = kNaN, rmsea_hi = kNaN, tli = kNaN, bic = kNaN;
   std::vector<std::string> notes;
-  std::shared_ptr<lode_model> handle;  // for scores and reliability (null without LODE_REPORT_HAS_FIT)
+  std::shared_ptr<lode_model> handle;  // for scores and reliability (null when the fit failed)
 };
 
-#if LODE_REPORT_HAS_FIT
 struct ModelFree {
   void operator()(lode_model* p) const noexcept { lode_model_free(p); }
 };
@@ -276,9 +253,7 @@ double model_value(const lode_model* m, int key) {
   check(lode_model_value(m, key, &v), "reading the model");
   return v;
 }
-#endif
 
-#if LODE_REPORT_HAS_FIT
 // The run's extraction and rotation options for lode_fit (and the bootstrap, which refits the same
 // way). Not copyable: fo.rotation points into the same object.
 struct FitSetup {
@@ -317,10 +292,9 @@ lode_model* fit_raw(const lode_correlation* corr, const Options& o, int factors,
   status = lode_fit(corr, &setup.fo, &raw);
   return status == LODE_OK ? raw : nullptr;
 }
-#endif
 
-// Bootstrap intervals of the fitted solution through the C ABI's lode_bootstrap when this liblode has
-// it (report.cmake sets LODE_REPORT_HAS_BOOTSTRAP from lode.h); otherwise `reason` says what is missing.
+// Bootstrap intervals of the fitted solution through the C ABI's lode_bootstrap; when it fails,
+// `reason` says why.
 struct BootResult {
   bool available = false;
   std::string reason;
@@ -331,16 +305,13 @@ struct BootResult {
   std::vector<std::string> failures, notes;
 };
 
-#if LODE_REPORT_HAS_BOOTSTRAP
 struct BootFree {
   void operator()(lode_bootstrap_result* p) const noexcept { lode_bootstrap_free(p); }
 };
-#endif
 
 BootResult bootstrap_intervals(const lode_correlation* corr, const Options& o, int factors, const Progress& progress,
-                               double from, double to, const std::string& missing_feature) {
+                               double from, double to) {
   BootResult r;
-#if LODE_REPORT_HAS_BOOTSTRAP && LODE_REPORT_HAS_FIT
   FitSetup setup(o, factors);
   lode_bootstrap_options bo;
   lode_bootstrap_options_init(&bo, sizeof bo);
@@ -392,24 +363,12 @@ BootResult bootstrap_intervals(const lode_correlation* corr, const Options& o, i
   r.failures = lines_of(text(LODE_BOOTSTRAP_FAILURES));
   r.notes = lines_of(text(LODE_BOOTSTRAP_NOTES));
   r.available = true;
-  (void)missing_feature;
-#else
-  (void)corr;
-  (void)o;
-  (void)factors;
-  (void)progress;
-  (void)from;
-  (void)to;
-  r.reason = "bootstrap intervals are " + missing_feature;
-#endif
   return r;
 }
 
-ModelResult fit_model(const lode_correlation* corr, const Options& o, int factors, const std::string& missing_feature) {
+ModelResult fit_model(const lode_correlation* corr, const Options& o, int factors) {
   ModelResult r;
   r.factors = factors;
-#if LODE_REPORT_HAS_FIT
-  (void)missing_feature;
   int st = LODE_OK;
   lode_model* raw = fit_raw(corr, o, factors, r.rotation_used, st);
   if (st == LODE_E_CANCELLED) throw Cancelled{};
@@ -453,11 +412,6 @@ ModelResult fit_model(const lode_correlation* corr, const Options& o, int factor
     }
   }
   r.available = true;
-#else
-  (void)corr;
-  (void)o;
-  r.reason = "factor extraction is " + missing_feature;
-#endif
   return r;
 }
 
@@ -563,7 +517,6 @@ ReliabilityResult reliability(const ModelResult& model, const lode_correlation* 
       out.reversed_names.push_back(names[j]);
     }
   }
-#if LODE_REPORT_HAS_FIT
   if (!out.reversed_names.empty()) {
     // Omega with the reverse-scored items: refit D R D and match its factors to this solution. Scales
     // without a reversed item keep this model's omega.
@@ -640,11 +593,6 @@ ReliabilityResult reliability(const ModelResult& model, const lode_correlation* 
     }
     if (!why.empty()) out.omega_reason = why;
   }
-#else
-  (void)o;
-  (void)R;
-  (void)n_obs;
-#endif
 
   const std::vector<std::size_t> order = loading_order(model.loadings, p, k);
   for (std::size_t f = 0; f < k; ++f) {
@@ -986,12 +934,11 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
     total += e;
     if (e > 1.0) ++above_one;
   }
-  const std::string missing_feature = not_yet();
-  const CountResult count = count_factors(corr.get(), o, progress, corr_to, count_to, missing_feature);
+  const CountResult count = count_factors(corr.get(), o, progress, corr_to, count_to);
   step("fitting the factor model", count_to + 0.02);
   const int k_decided = o.factors > 0 ? o.factors : count.available ? count.suggested : 0;
   ModelResult model;
-  if (k_decided > 0) model = fit_model(corr.get(), o, k_decided, missing_feature);
+  if (k_decided > 0) model = fit_model(corr.get(), o, k_decided);
   else model.reason = count.available ? "no factor stands out from random data" : count.reason;
   const std::size_t k = model.available ? static_cast<std::size_t>(model.factors) : 0;
 
@@ -999,7 +946,7 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   BootResult bootr;
   if (boot) {
     step("bootstrap resamples", 0.5);
-    if (model.available) bootr = bootstrap_intervals(corr.get(), o, model.factors, progress, 0.5, 0.93, missing_feature);
+    if (model.available) bootr = bootstrap_intervals(corr.get(), o, model.factors, progress, 0.5, 0.93);
     else bootr.reason = model.reason;
   }
 

@@ -189,18 +189,14 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
     assert np.max(np.abs(eig - np.sort(np.linalg.eigvalsh(ref.matrix))[::-1])) < 1e-10
     assert np.max(np.abs(share - ref.eigenvalues / ref.eigenvalues.sum())) < TOL
     random_col = [ov[start + k][3] for k in range(p)]
-    if hasattr(lode, "n_factors"):  # the C ABI's factor count: parallel analysis with the run's seed
-        cnt = lode.n_factors(x, replicates=500, seed=4242, correlation="pearson", missing="pairwise", item_names=names)
-        assert np.max(np.abs(np.array(random_col) - cnt.parallel["random_pc_percentile"])) < TOL
-        decision = find_row(ov, "Decision")
-        assert decision[1] == cnt.suggested and decision[2] == cnt.reason
-        rules_at = [i for i, r in enumerate(ov) if r[:2] == ["Rule", "Factors"]][0] + 1
-        assert [(r["rule"], str(r["factors"])) for r in cnt.table] == \
-               [(ov[rules_at + i][0], ov[rules_at + i][1]) for i in range(len(cnt.table))]
-    else:  # not behind the C ABI yet: the report says so instead of a number
-        assert "not in this liblode yet" in random_col[0]
-        assert find_row(ov, "Eigenvalues above 1")[1] == int(np.sum(ref.eigenvalues > 1))
-        assert "not in this liblode yet" in find_row(ov, "Decision")[1]
+    # the C ABI's factor count: parallel analysis with the run's seed
+    cnt = lode.n_factors(x, replicates=500, seed=4242, correlation="pearson", missing="pairwise", item_names=names)
+    assert np.max(np.abs(np.array(random_col) - cnt.parallel["random_pc_percentile"])) < TOL
+    decision = find_row(ov, "Decision")
+    assert decision[1] == cnt.suggested and decision[2] == cnt.reason
+    rules_at = [i for i, r in enumerate(ov) if r[:2] == ["Rule", "Factors"]][0] + 1
+    assert [(r["rule"], str(r["factors"])) for r in cnt.table] == \
+           [(ov[rules_at + i][0], ov[rules_at + i][1]) for i in range(len(cnt.table))]
     # Factorability: the C library, and the textbook formulas in numpy/scipy (KMO: Kaiser 1974, from
     # the anti-image partial correlations; Bartlett 1950: -(n - 1 - (2p + 5)/6) log det R on p(p-1)/2 df).
     fa = lode.factorability(ref)
@@ -246,10 +242,7 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
     style = survey.StyleFamilies.getByName("CellStyles").getByName("Lode heading")
     assert style.CellBackColor == 0xDCE8D2 and not style.IsCellBackgroundTransparent
 
-    if hasattr(lode, "fit") and hasattr(lode, "n_factors"):
-        check_model(survey, ov, ld, x, names, cnt.suggested, salient=0.35, seed=4242)
-    else:  # extraction is not behind the C ABI yet: the report says so
-        assert any(isinstance(r[0], str) and "not in this liblode yet" in r[0] for r in ld)
+    check_model(survey, ov, ld, x, names, cnt.suggested, salient=0.35, seed=4242)
 
     fc = read_sheet(survey.Sheets.getByName("Lode factors"))
     top = [i for i, r in enumerate(fc) if r[:1] == ["Item correlations used"]][0] + 1
@@ -262,10 +255,8 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
     sc = read_sheet(sc_sheet)
     top = [i for i, r in enumerate(sc) if r[:2] == ["Factor", "Observed eigenvalue"]][0]
     assert np.max(np.abs(np.array([sc[top + 1 + k][1] for k in range(p)]) - ref.eigenvalues)) < TOL
-    lines = 2
-    if hasattr(lode, "n_factors"):  # the random-data line beside the observed one
-        lines = 3
-        assert np.max(np.abs(np.array([sc[top + 1 + k][2] for k in range(p)]) - cnt.parallel["random_pc_percentile"])) < TOL
+    lines = 3  # the random-data line beside the observed one
+    assert np.max(np.abs(np.array([sc[top + 1 + k][2] for k in range(p)]) - cnt.parallel["random_pc_percentile"])) < TOL
     charts = sc_sheet.getCharts()
     assert charts.getCount() == 1
     chart = charts.getByIndex(0)
@@ -751,9 +742,6 @@ def test_bootstrap_intervals_beside_the_loadings(office, survey, service):
     rr = read_sheet(survey.Sheets.getByName(new[4]))
     rec = {r[0]: r[1] for r in rr if r and len(r) > 1 and r[1] is not None}
     assert rec["Bootstrap resamples"] == B and rec["Bootstrap seed"].startswith("31 ")
-    if not hasattr(lode, "bootstrap"):  # not behind the C ABI yet: the report says so
-        assert "not in this liblode yet" in find_row(ov, "Intervals")[1]
-        return
     # The C library with the report's options: minres, oblimin (gamma 0), the run's seed for the
     # rotation's starts and the resamples, each resample's rotation from the unrotated loadings.
     b = lode.bootstrap(x, factors=K_FIXED, method="minres", rotation="oblimin", gamma=0.0, replicates=B, seed=31,
@@ -797,8 +785,6 @@ def test_bootstrap_intervals_beside_the_loadings(office, survey, service):
 
 
 def test_cancel_during_the_bootstrap_leaves_the_workbook_as_it_was(office, survey, service):
-    if not hasattr(lode, "bootstrap"):
-        pytest.skip("lode_bootstrap is not in this liblode yet")
     import unohelper
     from com.sun.star.task import XStatusIndicator
 
