@@ -347,6 +347,7 @@ LODE_API int lode_fit(const lode_correlation* corr, const lode_fit_options* opts
     m->correlation = corr->result.matrix;
     m->item_names = names;
     m->data = corr->data;
+    m->missing = corr->result.missing;
     int factors = setup.factors;
     if (factors == 0) {
       const FactorCountResult count = count_for(corr, read_factor_count_options(setup.factor_count));
@@ -584,6 +585,20 @@ LODE_API int lode_score(const lode_model* model, const lode_data* data, const lo
     if (content->values.cols() != model->correlation.cols())
       fail(LODE_E_INVALID_ARGUMENT, fmt::format("the data have {} items but the model has {}",
                                                 content->values.cols(), model->correlation.cols()));
+    // The model's own respondents under listwise deletion: standardise with the complete rows' means and
+    // standard deviations, the ones behind the correlation matrix (else every answered value of an item).
+    if (content == model->data.get() && model->missing == MissingPolicy::listwise) {
+      const Matrix& x = content->values;
+      std::vector<Index> complete;
+      for (Index i = 0; i < x.rows(); ++i)
+        if (x.row(i).array().isFinite().all()) complete.push_back(i);
+      if (complete.size() >= 2) {
+        const Matrix rows = x(complete, Eigen::all);
+        so.means = rows.colwise().mean().transpose();
+        const Matrix centred = rows.rowwise() - so.means.transpose();
+        so.sds = (centred.colwise().squaredNorm() / static_cast<double>(rows.rows() - 1)).cwiseSqrt().transpose();
+      }
+    }
     const Matrix phi = model->rotation.oblique ? model->rotation.factor_correlations : Matrix();
     auto s = std::make_unique<lode_scores>();
     s->result = factor_scores(content->values, model->correlation, model->rotation.pattern, phi,

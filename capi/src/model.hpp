@@ -35,6 +35,7 @@ struct lode_model {
   lode::Matrix correlation;  // the matrix the model was fitted to
   std::vector<std::string> item_names;
   std::shared_ptr<const lode::capi::DataContent> data;  // what the correlation came from (raw data for scores)
+  lode::MissingPolicy missing = lode::MissingPolicy::pairwise;  // how `correlation` treated missing answers
   lode::ExtractionResult extraction;
   lode::RotationResult rotation;  // method none and identity matrices when unrotated
   bool rotated = false;
