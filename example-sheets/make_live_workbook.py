@@ -8,7 +8,9 @@ Runs under Debian's /usr/bin/python3 (python3-uno). It starts a headless LibreOf
 profile and the built lode.oxt (the office tests' harness, tests/office/office.py), opens a copy of
 volunteer-survey.ods, adds the sheet, enters the formulas through Calc (so the file stores them the
 way Calc does), sizes every array formula to the result it gives, and saves the new workbook. The
-formulas refer to the Responses sheet's range; nothing is pasted as a value.
+formulas refer to the Responses sheet's range; nothing is pasted as a value. The reliability section
+reads a sheet "Scale items" of formulas over the Responses sheet: the items grouped by the factor the
+generator built them for (volunteer-survey-truth.json), reverse-keyed items reversed.
 
 A function the installed extension does not offer (its computation not yet behind the C ABI) is
 not entered; its place holds the text "LODE.X is not in this build of Lode yet". The test
@@ -17,6 +19,7 @@ is regenerated rather than left behind.
 """
 
 import argparse
+import json
 import os
 import shutil
 import sys
@@ -32,10 +35,8 @@ from com.sun.star.beans import PropertyValue  # noqa: E402
 from office import Office, address  # noqa: E402
 
 SHEET = "Live analysis"
+KEYED = "Scale items"  # the answers as scales read them: grouped by factor, reverse-keyed items reversed
 MISSING = "{} is not in this build of Lode yet"
-SCALES = [  # the five sections of the questionnaire (the Items sheet), six statements each
-    ("Your role", "ROL"), ("Your coordinator", "SUP"), ("Your work party", "TEM"),
-    ("Task days: safety and equipment", "SAF"), ("Being part of the trust", "VAL")]
 SEED = 2026
 BOLD = 150.0  # com.sun.star.awt.FontWeight.BOLD
 
@@ -133,6 +134,33 @@ def number_format(doc, code):
     return key if key != -1 else formats.addNew(code, locale)
 
 
+def keyed_sheet(doc, names, n, truth):
+    """Adds the sheet KEYED: row 1 the item codes, then one row per volunteer, every cell a formula over
+    the Responses sheet (empty where the answer is empty; reverse-keyed items reversed). Items are
+    grouped by the factor the generator built them for, in the order of its factors. Returns the scales
+    as (title, first column, last column, item codes)."""
+    doc.Sheets.insertNewByName(KEYED, doc.Sheets.Count)
+    sheet = doc.Sheets.getByName(KEYED)
+    top = len(truth["categories"]) + 1
+    order, scales = [], []
+    for factor in truth["factors"]:
+        items = [nm for nm in names if truth["intended_factor"].get(nm) == factor["code"]]
+        if items:
+            scales.append((factor["name"], col_name(len(order)), col_name(len(order) + len(items) - 1), items))
+            order += items
+    rows = [[f"=$Responses.{col_name(1 + names.index(nm))}$1" for nm in order]]
+    for r in range(2, n + 2):
+        row = []
+        for nm in order:
+            src = f"$Responses.{col_name(1 + names.index(nm))}{r}"
+            value = f"{top}-{src}" if nm in truth["reverse_keyed"] else src
+            row.append(f'=IF(ISBLANK({src});"";{value})')
+        rows.append(row)
+    sheet.getCellRangeByPosition(0, 0, len(order) - 1, n).setFormulaArray(tuple(tuple(r) for r in rows))
+    sheet.Columns.getByIndex(0).Width = 1800
+    return scales
+
+
 def build(office, doc, available):
     responses = doc.Sheets.getByName("Responses")
     cur = responses.createCursor()
@@ -223,6 +251,7 @@ def build(office, doc, available):
     # 3. Loadings
     w.heading("3. Which items belong to which factor?")
     factors_arg = k_cell or ""
+    k = 0
     w.line("Loadings (the pattern matrix): how strongly each factor drives each answer. Common practice "
            "counts |loading| of .40 or more as salient; an item salient on two factors, or on none, deserves a look.",
            italic=True)
@@ -264,29 +293,65 @@ def build(office, doc, available):
         w.row += rows
 
     # 5. Reliability
-    w.heading("5. How consistent is each section as a scale?")
+    truth = json.load(open(os.path.join(HERE, "volunteer-survey-truth.json")))
+    w.heading("5. How consistent is each scale?")
     w.line("Alpha and omega estimate how consistently a scale's items measure one thing; common practice "
            "reads .70 as adequate for group comparisons, .80 good, .90 needed before decisions about one "
            "person.", italic=True)
-    w.line("ROL4 and TEM4 are worded the other way round (reverse keyed); reverse them before scoring.", italic=True)
-    w.line("Section", "Items", "Alpha", "Omega", bold=True)
+    reversed_items = [nm for nm in names if nm in truth["reverse_keyed"]]
+    w.line(f"A scale is the items the survey was written to measure one factor with (the design, not the "
+           f"loadings above). {' and '.join(reversed_items)} are worded the other way round (reverse keyed): "
+           f"the sheet '{KEYED}' holds every answer as the scales read it, with those items reversed "
+           f"({len(truth['categories']) + 1} minus the answer), and the formulas below read that sheet.",
+           italic=True)
+    w.line("Alpha: Cronbach's alpha from the item variances, standardised alpha from the correlations, the "
+           "mean correlation between the items, and the volunteers who answered every item of the scale "
+           "(alpha leaves the others out).", italic=True)
+    w.line("Omega: McDonald's omega from a one-factor fit of the scale's items (each pair of items on the "
+           "volunteers who answered both); it does not assume that every item measures the factor equally "
+           "well.", italic=True)
+    w.line("Scale", "Items", "Alpha", "Standardised alpha", "Mean inter-item r", "Volunteers used", "Omega",
+           bold=True)
     alpha_ok = w.uses("LODE.ALPHA")
     omega_ok = w.uses("LODE.OMEGA")
-    for title, code in SCALES:
-        cols = [i for i, nm in enumerate(names) if nm.startswith(code)]
-        if not cols:
-            continue
-        first, last_c = col_name(1 + cols[0]), col_name(1 + cols[-1])
-        rng = f"$Responses.${first}$1:${last_c}${n + 1}"
+    scales = keyed_sheet(doc, names, n, truth)
+    for title, first, last_c, items in scales:
+        rng = f"$'{KEYED}'.${first}$1:${last_c}${n + 1}"
         w.text(0, title)
-        w.text(1, f"{names[cols[0]]} to {names[cols[-1]]}")
+        flagged = [it for it in items if it in truth["reverse_keyed"]]
+        w.text(1, f"{items[0]} to {items[-1]}" + (f" ({', '.join(flagged)} reversed)" if flagged else ""))
         if alpha_ok:
-            w.formula(2, f"=LODE.ALPHA({rng})", f2)
+            w.array(2, f"=LODE.ALPHA({rng})", 1, 4)
+            for c, fmt in [(2, f2), (3, f2), (4, f2)]:
+                w.cell(c, w.row).NumberFormat = fmt
         if omega_ok:
-            w.formula(3, f"=LODE.OMEGA({rng})", f2)
+            w.formula(6, f"=LODE.OMEGA({rng})", f2)
         w.row += 1
 
-    # 6. The cautions
+    # 6. Scores
+    w.heading("6. Factor scores: the first ten volunteers")
+    w.line("Each volunteer's estimated standing on each factor of the fit in section 3 (regression method, "
+           "answers standardised). A volunteer who skipped some statements is scored from the ones answered "
+           "when at least half were answered.", italic=True)
+    w.line("Factor scores are estimates, not measurements: each score carries error, and other scoring "
+           "methods give other scores. Before scores are used to select, rate or diagnose individuals, the "
+           "questionnaire needs validation for that purpose; see below.", bold=True)
+    if w.uses("LODE.SCORES") and k:
+        scores = f'=LODE.SCORES({data};{factors_arg};"minres";"oblimin";"regression")'
+        w.text(0, "Volunteer", bold=True)
+        for j in range(k):
+            w.text(1 + j, f"Factor {j + 1}", bold=True)
+        w.row += 1
+        shown = 10
+        for i in range(shown):
+            sheet.getCellByPosition(0, w.row + i).setFormula(f"=$Responses.$A{i + 2}")
+        with office.watchdog(600):
+            block = sheet.getCellRangeByPosition(1, w.row, k, w.row + shown - 1)
+            block.setArrayFormula(scores)
+            block.NumberFormat = f2
+        w.row += shown
+
+    # 7. The cautions
     w.heading("Before using scores about people")
     for t in ["Factor scores and scale scores are estimates with error, not measurements of a person.",
               "An instrument needs evidence of validity for the intended use before scores inform decisions "

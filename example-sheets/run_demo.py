@@ -1,7 +1,7 @@
 #!/usr/bin/python3
 """The end-to-end demo behind `./lode demo`: the analysis dialog's report service on the demo survey.
 
-    run_demo.py --oxt build/default/office-addin/lode.oxt --library build/default/capi/liblode.so
+    run_demo.py --oxt build/app/office-addin/lode.oxt --library build/app/capi/liblode.so
                 --out build/demo
 
 Runs under Debian's /usr/bin/python3 (python3-uno) with URE_MORE_TYPES naming the report service's
@@ -43,6 +43,8 @@ WORKBOOK = os.path.join(HERE, "volunteer-survey.ods")
 RESULT = "volunteer-survey-analysed.ods"
 REPORT_ONLY = "volunteer-survey-report.ods"
 SEED = 20261201  # the run's random seed, written into the run record
+BOOTSTRAP = 200  # resamples behind the bootstrap intervals of the loadings and factor correlations
+SCORES_SHEET = "Lode scores"  # the factor scores' own sheet (kept out of the PDF)
 
 
 def say(msg):
@@ -137,10 +139,12 @@ def run_report(office, out_dir):
         raise DemoError("the installed extension does not provide org.lode.calc.AnalysisReport")
     options = (prop("Correlation", "pearson"), prop("Missing", "pairwise"), prop("Factors", 0),
                prop("Extraction", "minres"), prop("Rotation", "oblimin"), prop("Salient", 0.40),
-               prop("Seed", SEED))
+               prop("Seed", SEED), prop("Scores", "regression"), prop("ScoresPlace", "sheet"),
+               prop("Bootstrap", BOOTSTRAP))
     say("running the report service (org.lode.calc.AnalysisReport, what the dialog's Run button starts) on "
         f"Responses, {src.EndRow} respondents x {src.EndColumn} items: Pearson correlations, pairwise missing, "
-        f"factor count suggested from the data, minres, oblimin, strong loadings from 0.40, seed {SEED}")
+        f"factor count suggested from the data, minres, oblimin, strong loadings from 0.40, regression factor "
+        f"scores on a sheet of their own, bootstrap intervals from {BOOTSTRAP} resamples, seed {SEED}")
     t0 = time.monotonic()
     with office.watchdog(300):
         said = service.run(doc, src, options)
@@ -155,7 +159,9 @@ def run_report(office, out_dir):
     summary = read_summary(doc, report_sheets)
     summary["answers"] = responses_values(doc)
 
-    # The report alone, each sheet fitted to the page width, for the PDF.
+    # The report alone, each sheet fitted to the page width, for the PDF; the factor scores (one row per
+    # respondent) stay in the workbook only.
+    report_sheets = [n for n in report_sheets if not n.startswith(SCORES_SHEET)]
     for name in list(doc.Sheets.ElementNames):
         if name not in report_sheets:
             doc.Sheets.removeByName(name)
@@ -210,7 +216,8 @@ def wrap_long_notes(sheet, area, page_width):
 
 def read_summary(doc, report_sheets):
     overview = used_rows(doc.Sheets.getByName(report_sheets[0]))
-    heads = ["Can these items be factored?", "How many factors", "How well the model fits", "Items to look at"]
+    heads = ["Can these items be factored?", "How many factors", "How well the model fits", "Items to look at",
+             "Factor scores", "Bootstrap intervals"]
     parts = sections(overview, set(heads) | {"Before using factor scores about people", "Data used"})
     data = {r[0]: r[1] for r in parts.get("Data used", []) if len(r) > 1}
     lines = []
@@ -228,8 +235,21 @@ def read_summary(doc, report_sheets):
         for r in rows:
             if h == "How many factors" and r[0] != "Decision":
                 continue  # the evidence (eigenvalues, each rule's count) is on the sheet; the summary keeps the decision
+            if str(r[0]).startswith("Note on the"):
+                continue  # the sheet keeps the notes; the summary keeps the figures and the cautions
             cells = [show(v, str(r[0])) for v in r if v is not None]
             lines.append("    " + ": ".join([cells[0], "  ".join(cells[1:])]) if len(cells) > 1 else "    " + cells[0])
+    # Reliability of each factor's scale, from the factors sheet (its header row starts with "Scale").
+    factors_sheet = [n for n in report_sheets if n.startswith("Lode factors")]
+    if factors_sheet:
+        rows = used_rows(doc.Sheets.getByName(factors_sheet[0]))
+        at = [i for i, r in enumerate(rows) if r[:3] == ["Scale", "Items", "Alpha"]]
+        if at:
+            lines.append("Reliability of each factor's scale (alpha, omega)")
+            for r in rows[at[0] + 1:]:
+                if not r or not isinstance(r[0], str) or not r[0].startswith("Factor"):
+                    break
+                lines.append(f"    {r[0]}: {show(r[1])} items, alpha {show(r[2])}, omega {show(r[4])}")
     # The first observed eigenvalue, read from the overview, against the C library on the same cells.
     factor_rows = [r for r in overview if len(r) > 1 and r[0] == 1.0 and isinstance(r[1], float)]
     return {"lines": lines, "first_eigenvalue": factor_rows[0][1] if factor_rows else None,

@@ -27,17 +27,3 @@ list(APPEND LODE_OXT_EXTRA ${GEN}/lode_report.rdb ${PKG}/Addons.xcu ${PKG}/Proto
 
 # For the office tests: the service's type library (their Python needs it) and the program folder.
 set_property(GLOBAL PROPERTY LODE_REPORT_RDB ${GEN}/lode_report.rdb)
-
-# Sections that light up when the C ABI offers them: detected from lode.h at configure time.
-set(_lode_h ${PROJECT_SOURCE_DIR}/capi/include/lode.h)
-set_property(DIRECTORY APPEND PROPERTY CMAKE_CONFIGURE_DEPENDS ${_lode_h})
-file(READ ${_lode_h} _lode_h_text)
-string(FIND "${_lode_h_text}" "lode_count_factors(" _has_count)
-if(_has_count GREATER -1)
-  set_property(SOURCE src/report_model.cpp APPEND PROPERTY COMPILE_DEFINITIONS LODE_REPORT_HAS_COUNT=1)
-endif()
-string(FIND "${_lode_h_text}" "lode_fit(" _has_fit)
-string(FIND "${_lode_h_text}" "LODE_MODEL_LOADINGS" _has_model_keys)
-if(_has_fit GREATER -1 AND _has_model_keys GREATER -1)
-  set_property(SOURCE src/report_model.cpp APPEND PROPERTY COMPILE_DEFINITIONS LODE_REPORT_HAS_FIT=1)
-endif()

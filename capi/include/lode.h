@@ -70,7 +70,7 @@ extern "C" {
 /* ABI version of this header. The major version is the shared object's SONAME suffix
  * (liblode.so.LODE_ABI_VERSION_MAJOR); the minor version counts compatible additions. */
 #define LODE_ABI_VERSION_MAJOR 1
-#define LODE_ABI_VERSION_MINOR 1
+#define LODE_ABI_VERSION_MINOR 2
 
 /* ------------------------------------------------------------------------------------------- */
 /* Status codes, version, errors                                                                */
@@ -459,6 +459,12 @@ typedef struct lode_fit_options {
   double interval_level;    /* of the RMSEA interval; default 0.90 */
   const lode_rotation_options* rotation;         /* NULL (default) = unrotated */
   const lode_factor_count_options* factor_count; /* used when factors == 0; NULL = defaults */
+  /* ABI 1.2: progress of extraction and rotation (the factor count, when factors == 0, reports
+     through factor_count's own callback). Units: the extraction counts one, each rotation start one
+     (lode_model_value LODE_MODEL_ROTATION_STARTS after the fact); reported before the extraction, after
+     it, as rotation starts finish, and once at the end. Optional; never changes a result. */
+  lode_progress_fn progress;
+  void* progress_user;                           /* passed to progress */
 } lode_fit_options;
 
 LODE_API int lode_fit_options_init(lode_fit_options* opts, size_t struct_size);
@@ -516,6 +522,7 @@ enum lode_model_key {
   LODE_MODEL_FINAL_CHANGE = 445,        /* extraction's convergence criterion at the last iteration */
   LODE_MODEL_TOLERANCE = 446,           /* what it was tested against */
   LODE_MODEL_MAX_ITERATIONS = 447,
+  LODE_MODEL_ROTATION_STARTS = 448,     /* ABI 1.2: starts the rotation ran (1 when unrotated) */
   /* text: lode_model_text */
   LODE_MODEL_NOTES = 450                /* remarks (Heywood cases, non-convergence, fit caveats) */
 };
@@ -553,7 +560,9 @@ typedef struct lode_scores lode_scores;
 
 /* Scores the respondents of `data` (raw data with the model's items in the same order; NULL = the raw
  * data the model was fitted to) on the model's factors. Items are standardised with the means and
- * standard deviations of `data`. Factor scores are estimates: the notes carry the cautions that go
+ * standard deviations of `data` (n - 1 denominator), each over its answered values; when `data` is the
+ * model's own and its correlations dropped incomplete rows (listwise), over the complete rows, the ones
+ * behind the correlation matrix. Factor scores are estimates: the notes carry the cautions that go
  * with using them to select, rate or diagnose people. */
 LODE_API int lode_score(const lode_model* model, const lode_data* data, const lode_score_options* opts,
                         lode_scores** out);
@@ -669,6 +678,148 @@ LODE_API int lode_comparison_matrix(const lode_comparison* comparison, int key, 
                                     int64_t* rows, int64_t* cols);
 LODE_API int lode_comparison_text(const lode_comparison* comparison, int key, char* out, size_t capacity,
                                   size_t* length);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Items to look at: cross-loadings, no salient loading, low communality, Heywood cases (ABI 1.2) */
+/* ------------------------------------------------------------------------------------------- */
+
+/* Kinds of flag. Each is a bit, so an item's code (LODE_ITEM_FLAGS_CODES) is the OR of its flags. */
+enum lode_item_flag_kind {
+  LODE_FLAG_CROSS_LOADING = 1,      /* a second loading salient too, or within cross_loading_gap of the largest */
+  LODE_FLAG_NO_SALIENT_LOADING = 2, /* the largest |loading| is below salient */
+  LODE_FLAG_LOW_COMMUNALITY = 4,    /* communality below low_communality */
+  LODE_FLAG_HEYWOOD_CASE = 8        /* uniqueness at or below heywood_uniqueness, or negative */
+};
+
+/* Thresholds. The defaults of the first three are rules of thumb of the trade (common practice), not
+ * results of a method; the notes say so. */
+typedef struct lode_item_flag_options {
+  size_t struct_size;
+  double salient;            /* a loading is salient when |loading| >= this; default 0.40 */
+  double cross_loading_gap;  /* a second loading within this of the largest (in |.|) cross-loads; default 0.20 */
+  double low_communality;    /* communality below this is low; default 0.20 */
+  double heywood_uniqueness; /* uniqueness at or below this is a Heywood case; default 0.005 (the lower
+                                bound of uniquenesses in lode_fit_options and R's stats::factanal) */
+} lode_item_flag_options;
+
+LODE_API int lode_item_flag_options_init(lode_item_flag_options* opts, size_t struct_size);
+
+typedef struct lode_item_flags lode_item_flags;
+
+/* Flags the items of a fitted model from its pattern loadings, factor correlations and uniquenesses
+ * (communality = 1 - uniqueness). Every threshold must lie in [0, 1]. */
+LODE_API int lode_flag_items(const lode_model* model, const lode_item_flag_options* opts, lode_item_flags** out);
+
+LODE_API void lode_item_flags_free(lode_item_flags* flags);
+
+enum lode_item_flags_key {
+  /* matrices: lode_item_flags_matrix */
+  LODE_ITEM_FLAGS_CODES = 1000,      /* items x 1: the OR of the item's enum lode_item_flag_kind values (0 = none) */
+  LODE_ITEM_FLAGS_TABLE = 1001,      /* flags x 5, one row per flag in item order: item (0-based), kind,
+                                        first factor, second factor (0-based; -1 where none), value (the
+                                        loading, communality or uniqueness that raised the flag; for a
+                                        cross-loading the second loading) */
+  LODE_ITEM_FLAGS_COMMUNALITIES = 1002, /* items x 1: the communalities the flags were judged on */
+  /* numbers: lode_item_flags_value */
+  LODE_ITEM_FLAGS_COUNT = 1020,      /* flags in all */
+  LODE_ITEM_FLAGS_ITEMS_FLAGGED = 1021,
+  LODE_ITEM_FLAGS_ITEMS = 1022,
+  LODE_ITEM_FLAGS_SALIENT = 1023,    /* the thresholds used */
+  LODE_ITEM_FLAGS_CROSS_LOADING_GAP = 1024,
+  LODE_ITEM_FLAGS_LOW_COMMUNALITY = 1025,
+  LODE_ITEM_FLAGS_HEYWOOD_UNIQUENESS = 1026,
+  /* text: lode_item_flags_text */
+  LODE_ITEM_FLAGS_NOTES = 1050       /* one plain-language note per flag, in the order of the table's rows */
+};
+
+LODE_API int lode_item_flags_matrix(const lode_item_flags* flags, int key, double* out, size_t capacity,
+                                    int64_t* rows, int64_t* cols);
+LODE_API int lode_item_flags_value(const lode_item_flags* flags, int key, double* value);
+LODE_API int lode_item_flags_text(const lode_item_flags* flags, int key, char* out, size_t capacity, size_t* length);
+/* The notes of one item (0-based), one per line; "" for an item without flags. */
+LODE_API int lode_item_flags_item_notes(const lode_item_flags* flags, int64_t item, char* out, size_t capacity,
+                                        size_t* length);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Bootstrap intervals for a rotated solution (ABI 1.2)                                         */
+/* ------------------------------------------------------------------------------------------- */
+
+typedef struct lode_bootstrap_options {
+  size_t struct_size;
+  int64_t replicates;          /* B: resamples of the respondents (at least 2); default 1000 */
+  double level;                /* two-sided coverage of the percentile intervals, in (0, 1); default 0.95 */
+  uint64_t seed;               /* replicate i resamples from stream i of this seed; default 1 */
+  int threads;                 /* 0 (default) = all cores; results do not depend on it */
+  int replicate_random_starts; /* random starts of the rotation in each replicate: 0 (default) = from the
+                                  unrotated loadings only (the alignment to the full sample follows);
+                                  -1 = as the fit's rotation options say. The full-sample rotation always
+                                  uses the fit's rotation options. */
+  int keep_replicates;         /* nonzero: keep every aligned replicate (LODE_BOOTSTRAP_REPLICATE_*);
+                                  memory B x items x factors; default 0 */
+  lode_progress_fn progress;   /* replicates done / B; optional. Cancelling returns LODE_E_CANCELLED and
+                                  no result. */
+  void* progress_user;         /* passed to progress */
+} lode_bootstrap_options;
+
+LODE_API int lode_bootstrap_options_init(lode_bootstrap_options* opts, size_t struct_size);
+
+typedef struct lode_bootstrap_result lode_bootstrap_result;
+
+/* Percentile bootstrap (Efron & Tibshirani 1993) of the factor solution that lode_fit(corr, fit) gives:
+ * the respondents behind `corr` (raw data; a correlation handle made from a matrix is refused) are
+ * resampled with replacement, their correlations recomputed with corr's options, and each replicate is
+ * extracted and rotated as `fit` says, then aligned to the full-sample solution (factors matched by
+ * Tucker's congruence and reflected; no further rotation: LODE_BOOTSTRAP_ALIGNMENT states it). Of
+ * `fit` these are read: factors (at least 1; 0 is refused), method, max_iterations, tolerance,
+ * min_uniqueness, rotation (NULL = unrotated); its progress is not used (`opts` has its own).
+ * Replicates that fail or do not converge are counted, named by reason and excluded. A full-sample fit
+ * that does not converge is LODE_E_NOT_CONVERGED; fewer than 2 usable replicates LODE_E_INSUFFICIENT_DATA. */
+LODE_API int lode_bootstrap(const lode_correlation* corr, const lode_fit_options* fit,
+                            const lode_bootstrap_options* opts, lode_bootstrap_result** out);
+
+LODE_API void lode_bootstrap_free(lode_bootstrap_result* result);
+
+enum lode_bootstrap_key {
+  /* matrices: lode_bootstrap_matrix. Estimates are the full-sample solution's; lower and upper the
+     percentile interval (type 7 quantiles of the used replicates); se their standard deviation. */
+  LODE_BOOTSTRAP_LOADINGS = 900,            /* items x factors: pattern */
+  LODE_BOOTSTRAP_LOADINGS_LOWER = 901,
+  LODE_BOOTSTRAP_LOADINGS_UPPER = 902,
+  LODE_BOOTSTRAP_LOADINGS_SE = 903,
+  LODE_BOOTSTRAP_UNIQUENESSES = 904,        /* items x 1 */
+  LODE_BOOTSTRAP_UNIQUENESSES_LOWER = 905,
+  LODE_BOOTSTRAP_UNIQUENESSES_UPPER = 906,
+  LODE_BOOTSTRAP_UNIQUENESSES_SE = 907,
+  LODE_BOOTSTRAP_FACTOR_CORRELATIONS = 908, /* factors x factors (identity with zero-width intervals when
+                                               orthogonal) */
+  LODE_BOOTSTRAP_FACTOR_CORRELATIONS_LOWER = 909,
+  LODE_BOOTSTRAP_FACTOR_CORRELATIONS_UPPER = 910,
+  LODE_BOOTSTRAP_FACTOR_CORRELATIONS_SE = 911,
+  LODE_BOOTSTRAP_MIN_CONGRUENCE = 912,      /* used x 1: each used replicate's smallest matched congruence */
+  /* kept replicates (keep_replicates; else LODE_E_INVALID_ARGUMENT): one row per used replicate */
+  LODE_BOOTSTRAP_REPLICATE_LOADINGS = 913,  /* used x (items * factors): aligned pattern, row-major */
+  LODE_BOOTSTRAP_REPLICATE_UNIQUENESSES = 914,        /* used x items */
+  LODE_BOOTSTRAP_REPLICATE_FACTOR_CORRELATIONS = 915, /* used x (factors * factors), aligned, row-major */
+  /* numbers: lode_bootstrap_value */
+  LODE_BOOTSTRAP_REPLICATES = 920,          /* requested */
+  LODE_BOOTSTRAP_USED = 921,                /* converged and aligned: the intervals come from these */
+  LODE_BOOTSTRAP_FAILED = 922,              /* excluded */
+  LODE_BOOTSTRAP_POORLY_MATCHED = 923,      /* used replicates with a matched congruence below 0.85 */
+  LODE_BOOTSTRAP_LEVEL = 924,
+  LODE_BOOTSTRAP_ITEMS = 925,
+  LODE_BOOTSTRAP_FACTORS = 926,
+  LODE_BOOTSTRAP_OBLIQUE = 927,             /* 1 when the rotation is oblique, else 0 */
+  /* text: lode_bootstrap_text */
+  LODE_BOOTSTRAP_ALIGNMENT = 950,           /* how replicates were aligned, in words */
+  LODE_BOOTSTRAP_FAILURES = 951,            /* one line per reason, most frequent first: "7 replicates: ..." */
+  LODE_BOOTSTRAP_NOTES = 952
+};
+
+LODE_API int lode_bootstrap_matrix(const lode_bootstrap_result* result, int key, double* out, size_t capacity,
+                                   int64_t* rows, int64_t* cols);
+LODE_API int lode_bootstrap_value(const lode_bootstrap_result* result, int key, double* value);
+LODE_API int lode_bootstrap_text(const lode_bootstrap_result* result, int key, char* out, size_t capacity,
+                                 size_t* length);
 
 #ifdef __cplusplus
 } /* extern "C" */

@@ -6,6 +6,7 @@
 #include "handles.hpp"
 #include "count.hpp"
 #include "results.hpp"
+#include "model.hpp"
 
 #include "lode/extraction.hpp"
 #include "lode/fit.hpp"
@@ -145,6 +146,8 @@ lode_fit_options fit_defaults() {
   d.interval_level = FitOptions{}.interval_level;
   d.rotation = nullptr;
   d.factor_count = nullptr;
+  d.progress = nullptr;
+  d.progress_user = nullptr;
   return d;
 }
 
@@ -170,26 +173,53 @@ int extraction_code_of(ExtractionMethod m) {
 
 }  // namespace
 
+FitSetup lode::capi::read_fit_options(const lode_fit_options* opts, const lode_correlation* corr) {
+  lode_fit_options o = fit_defaults();
+  if (opts) {
+    check_options_size(opts, "lode_fit_options");
+    LODE_OPTION_FIELD(o, opts, factors);
+    LODE_OPTION_FIELD(o, opts, method);
+    LODE_OPTION_FIELD(o, opts, max_iterations);
+    LODE_OPTION_FIELD(o, opts, tolerance);
+    LODE_OPTION_FIELD(o, opts, min_uniqueness);
+    LODE_OPTION_FIELD(o, opts, interval_level);
+    LODE_OPTION_FIELD(o, opts, rotation);
+    LODE_OPTION_FIELD(o, opts, factor_count);
+    LODE_OPTION_FIELD(o, opts, progress);  // ABI 1.2
+    LODE_OPTION_FIELD(o, opts, progress_user);
+  }
+  const auto& names = corr->options.item_names;
+  FitSetup setup;
+  ExtractionOptions& eo = setup.extraction;
+  eo.method = extraction_method_of(o.method);
+  if (o.max_iterations < 1)
+    fail(LODE_E_INVALID_ARGUMENT, fmt::format("max_iterations must be at least 1; it is {}", o.max_iterations));
+  eo.max_iterations = o.max_iterations;
+  if (!(o.tolerance > 0.0) || !std::isfinite(o.tolerance))
+    fail(LODE_E_INVALID_ARGUMENT, fmt::format("tolerance must be positive; it is {}", o.tolerance));
+  eo.tolerance = o.tolerance;
+  if (!(o.min_uniqueness >= 0.0 && o.min_uniqueness < 1.0))
+    fail(LODE_E_INVALID_ARGUMENT, fmt::format("min_uniqueness must be at least 0 and below 1; it is {}", o.min_uniqueness));
+  eo.min_uniqueness = o.min_uniqueness;
+  eo.n_obs = corr->result.n_obs;
+  eo.item_names = names;
+  if (!(o.interval_level > 0.0 && o.interval_level < 1.0))
+    fail(LODE_E_INVALID_ARGUMENT, fmt::format("interval_level must lie strictly between 0 and 1; it is {}", o.interval_level));
+  setup.interval_level = o.interval_level;
+  if (o.factors < 0) fail(LODE_E_INVALID_ARGUMENT, fmt::format("factors must be 0 (suggested) or more; it is {}", o.factors));
+  setup.factors = o.factors;
+  if (o.rotation) setup.rotation = read_rotation_options(o.rotation, names);
+  setup.factor_count = o.factor_count;
+  setup.progress = o.progress;
+  setup.progress_user = o.progress_user;
+  return setup;
+}
+
 // ---- handles -------------------------------------------------------------------------------------
 
 
 struct lode_rotation {
   RotationResult result;
-};
-
-struct lode_model {
-  Matrix correlation;  // the matrix the model was fitted to
-  std::vector<std::string> item_names;
-  std::shared_ptr<const DataContent> data;  // what the correlation came from (raw data for scores)
-  ExtractionResult extraction;
-  RotationResult rotation;   // method none and identity matrices when unrotated
-  bool rotated = false;
-  ResidualFit residual;
-  std::optional<FitResult> fit;
-  Unavailable fit_missing;
-  Index n_obs = 0;
-  int suggested_factors = 0;
-  std::vector<std::string> notes;
 };
 
 namespace {
@@ -306,47 +336,21 @@ LODE_API int lode_fit(const lode_correlation* corr, const lode_fit_options* opts
     require_pointer(corr, "corr");
     require_pointer(out, "out");
     *out = nullptr;
-    lode_fit_options o = fit_defaults();
-    if (opts) {
-      check_options_size(opts, "lode_fit_options");
-      LODE_OPTION_FIELD(o, opts, factors);
-      LODE_OPTION_FIELD(o, opts, method);
-      LODE_OPTION_FIELD(o, opts, max_iterations);
-      LODE_OPTION_FIELD(o, opts, tolerance);
-      LODE_OPTION_FIELD(o, opts, min_uniqueness);
-      LODE_OPTION_FIELD(o, opts, interval_level);
-      LODE_OPTION_FIELD(o, opts, rotation);
-      LODE_OPTION_FIELD(o, opts, factor_count);
-    }
+    // Read every option (the rotation's too) before any long work, so a bad option fails fast.
+    FitSetup setup = read_fit_options(opts, corr);
+    const ExtractionOptions& eo = setup.extraction;
+    std::optional<RotationOptions>& ro = setup.rotation;
     const auto& names = corr->options.item_names;
-    ExtractionOptions eo;
-    eo.method = extraction_method_of(o.method);
-    if (o.max_iterations < 1)
-      fail(LODE_E_INVALID_ARGUMENT, fmt::format("max_iterations must be at least 1; it is {}", o.max_iterations));
-    eo.max_iterations = o.max_iterations;
-    if (!(o.tolerance > 0.0) || !std::isfinite(o.tolerance))
-      fail(LODE_E_INVALID_ARGUMENT, fmt::format("tolerance must be positive; it is {}", o.tolerance));
-    eo.tolerance = o.tolerance;
-    if (!(o.min_uniqueness >= 0.0 && o.min_uniqueness < 1.0))
-      fail(LODE_E_INVALID_ARGUMENT, fmt::format("min_uniqueness must be at least 0 and below 1; it is {}", o.min_uniqueness));
-    eo.min_uniqueness = o.min_uniqueness;
-    eo.n_obs = corr->result.n_obs;
-    eo.item_names = names;
-    if (!(o.interval_level > 0.0 && o.interval_level < 1.0))
-      fail(LODE_E_INVALID_ARGUMENT, fmt::format("interval_level must lie strictly between 0 and 1; it is {}", o.interval_level));
-    if (o.factors < 0) fail(LODE_E_INVALID_ARGUMENT, fmt::format("factors must be 0 (suggested) or more; it is {}", o.factors));
-    // Read the rotation options before any long work, so a bad option fails fast.
-    std::optional<RotationOptions> ro;
-    if (o.rotation) ro = read_rotation_options(o.rotation, names);
 
     auto m = std::make_unique<lode_model>();
     m->n_obs = corr->result.n_obs;
     m->correlation = corr->result.matrix;
     m->item_names = names;
     m->data = corr->data;
-    int factors = o.factors;
+    m->missing = corr->result.missing;
+    int factors = setup.factors;
     if (factors == 0) {
-      const FactorCountResult count = count_for(corr, read_factor_count_options(o.factor_count));
+      const FactorCountResult count = count_for(corr, read_factor_count_options(setup.factor_count));
       if (count.suggested < 1)
         fail(LODE_E_INSUFFICIENT_DATA,
              fmt::format("the factor count suggests no common factor ({}); give the number of factors", count.reason));
@@ -354,9 +358,18 @@ LODE_API int lode_fit(const lode_correlation* corr, const lode_fit_options* opts
       m->suggested_factors = factors;
       m->notes.push_back(fmt::format("{} factor(s), as suggested: {}", factors, count.reason));
     }
+    // Progress (ABI 1.2): the extraction is one unit, each rotation start one.
+    const bool rotating = ro && !(ro->method != RotationMethod::none && factors < 2);
+    const std::int64_t total = 1 + (rotating ? rotation_start_count(*ro) : 0);
+    const ProgressFn progress = progress_of(setup.progress, setup.progress_user);
+    auto report = [&](std::int64_t done) {
+      if (progress && !progress(done, total)) throw Error(ErrorCode::cancelled, "cancelled by the caller");
+    };
+    report(0);
     const Matrix& r = corr->result.matrix;
     m->extraction = extract_factors(r, factors, eo);
     for (const auto& note : m->extraction.notes) m->notes.push_back(note);
+    report(1);
 
     const Index p = m->extraction.loadings.rows(), k = m->extraction.loadings.cols();
     if (ro && ro->method != RotationMethod::none && k < 2) {
@@ -364,7 +377,12 @@ LODE_API int lode_fit(const lode_correlation* corr, const lode_fit_options* opts
       ro.reset();
     }
     if (ro) {
+      if (progress)
+        ro->progress = [&](std::int64_t done, std::int64_t starts) {
+          return done >= starts || progress(1 + done, total);  // the final report is made below
+        };
       m->rotation = rotate(m->extraction.loadings, *ro);
+      ro->progress = {};
       m->rotated = true;
     } else {
       auto& rot = m->rotation;
@@ -382,7 +400,7 @@ LODE_API int lode_fit(const lode_correlation* corr, const lode_fit_options* opts
     } else {
       try {
         FitOptions fo;
-        fo.interval_level = o.interval_level;
+        fo.interval_level = setup.interval_level;
         m->fit = assess_fit(r, m->extraction.loadings, m->extraction.uniquenesses, m->n_obs, fo);
         for (const auto& note : m->fit->notes) m->notes.push_back(note);
       } catch (const Error& e) {
@@ -390,6 +408,7 @@ LODE_API int lode_fit(const lode_correlation* corr, const lode_fit_options* opts
         m->notes.push_back(fmt::format("fit statistics are not available: {}", e.what()));
       }
     }
+    if (progress) progress(total, total);  // the final report; the work is done, so no cancel here
     *out = m.release();
   });
 }
@@ -459,6 +478,7 @@ LODE_API int lode_model_value(const lode_model* model, int key, double* value) {
       case LODE_MODEL_FINAL_CHANGE: v = e.convergence.final_change; break;
       case LODE_MODEL_TOLERANCE: v = e.convergence.tolerance; break;
       case LODE_MODEL_MAX_ITERATIONS: v = static_cast<double>(e.convergence.max_iterations); break;
+      case LODE_MODEL_ROTATION_STARTS: v = static_cast<double>(rot.starts.starts); break;
       default: fail(LODE_E_INVALID_ARGUMENT, key_text(key, "lode_model number (lode_model_value)"));
     }
     *value = v;
@@ -565,6 +585,20 @@ LODE_API int lode_score(const lode_model* model, const lode_data* data, const lo
     if (content->values.cols() != model->correlation.cols())
       fail(LODE_E_INVALID_ARGUMENT, fmt::format("the data have {} items but the model has {}",
                                                 content->values.cols(), model->correlation.cols()));
+    // The model's own respondents under listwise deletion: standardise with the complete rows' means and
+    // standard deviations, the ones behind the correlation matrix (else every answered value of an item).
+    if (content == model->data.get() && model->missing == MissingPolicy::listwise) {
+      const Matrix& x = content->values;
+      std::vector<Index> complete;
+      for (Index i = 0; i < x.rows(); ++i)
+        if (x.row(i).array().isFinite().all()) complete.push_back(i);
+      if (complete.size() >= 2) {
+        const Matrix rows = x(complete, Eigen::all);
+        so.means = rows.colwise().mean().transpose();
+        const Matrix centred = rows.rowwise() - so.means.transpose();
+        so.sds = (centred.colwise().squaredNorm() / static_cast<double>(rows.rows() - 1)).cwiseSqrt().transpose();
+      }
+    }
     const Matrix phi = model->rotation.oblique ? model->rotation.factor_correlations : Matrix();
     auto s = std::make_unique<lode_scores>();
     s->result = factor_scores(content->values, model->correlation, model->rotation.pattern, phi,

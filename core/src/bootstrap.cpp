@@ -263,7 +263,8 @@ BootstrapResult bootstrap_factor_solution(const Matrix& data, int factors, const
                             "nothing",
                             full.problem));
   RotationOptions rot = rotation;
-  rot.threads = 1;  // the replicates are the parallel units
+  rot.threads = 1;     // the replicates are the parallel units
+  rot.progress = {};   // replicates run on worker threads; progress is reported per replicate instead
   if (options.replicate_random_starts >= 0) rot.random_starts = options.replicate_random_starts;
   const bool rotating = factors >= 2 && rotation.method != RotationMethod::none;
   const bool warm = options.replicate_warm_start;

@@ -66,6 +66,14 @@ int effective_random_starts(const RotationOptions& o) {
   }
 }
 
+}  // namespace
+
+int rotation_start_count(const RotationOptions& options) noexcept {
+  return uses_gpa(options.method) ? 1 + std::max(0, effective_random_starts(options)) : 1;
+}
+
+namespace {
+
 void validate(const Matrix& a, const RotationOptions& o) {
   if (a.cols() < 2)
     throw Error(ErrorCode::invalid_argument,
@@ -499,14 +507,17 @@ RotationResult rotate(const Matrix& loadings, const RotationOptions& options) {
         first = svd.matrixU() * svd.matrixV().transpose();
       }
     }
-    parallel_for(n, options.threads, [&](Index i) {
-      Matrix t0 = first;
-      if (i > 0) {
-        auto rng = random_stream(options.seed, static_cast<std::uint64_t>(i));
-        t0 = random_orthogonal(m, rng);
-      }
-      runs[static_cast<std::size_t>(i)] = gpa(a, t0, options, oblique);
-    });
+    parallel_for(
+        n, options.threads,
+        [&](Index i) {
+          Matrix t0 = first;
+          if (i > 0) {
+            auto rng = random_stream(options.seed, static_cast<std::uint64_t>(i));
+            t0 = random_orthogonal(m, rng);
+          }
+          runs[static_cast<std::size_t>(i)] = gpa(a, t0, options, oblique);
+        },
+        options.progress);
     // Best: the lowest criterion among converged starts (among all if none converged).
     std::size_t best = 0;
     bool best_converged = false;

@@ -97,7 +97,8 @@ const std::vector<Choice> kRotation = {{"Oblimin (factors may correlate)", "obli
                                        {"Promax (factors may correlate)", "promax"},
                                        {"Varimax (factors kept apart)", "varimax"},
                                        {"None", "none"}};
-const std::vector<Choice> kScores = {{"None", "none"}, {"Regression", "regression"}, {"Bartlett", "bartlett"}};
+const std::vector<Choice> kScores = {
+    {"None", "none"}, {"Regression", "regression"}, {"Bartlett", "bartlett"}, {"Correlation-preserving", "tenberge"}};
 const std::vector<Choice> kPlace = {{"Beside the data, if empty", "beside"},
                                     {"On a sheet of their own", "sheet"}};
 

@@ -258,6 +258,7 @@ struct FitOutputs {
   std::vector<std::pair<std::string, double>> statistics;  // LODE.FIT's rows
   std::string statistics_error;  // when the statistics could not be computed (e.g. n_obs unknown)
   std::int64_t heywood = 0;      // items with an improper solution
+  std::shared_ptr<const lode_model> model;  // kept for LODE.SCORES (the handle holds the raw data it was fitted to)
 };
 
 struct ParallelOutputs {
@@ -299,33 +300,50 @@ std::int64_t cached_nfactors(const Call& call, const Source& src, int rule, std:
       k.take(), [&] { return std::make_shared<const std::int64_t>(run_nfactors(corr.get(), rule, seed)); }, 64);
 }
 
-// Arguments of the fit family: data; [factors]; [method]; [rotation]; [n_obs].
-std::shared_ptr<const FitOutputs> fit(const Call& call) {
-  const Source src = read_source(call, 4);
+// What a fit-reading cell asks for: the source, the options, and the cache key of the fit.
+struct FitRequest {
+  Source src;
   FitSpec spec;
-  spec.factors = static_cast<int>(whole(call.args[1], "factors", 0, 0, kMaxFactors));
-  spec.method = method_arg(call.args[2]);
-  spec.rotation = rotation_arg(call.args[3]);
-  if (spec.factors == 0) spec.factors = static_cast<int>(cached_nfactors(call, src, 0, -1));
-  if (spec.factors == 0)
+  std::string key;
+};
+
+// Arguments of the fit family: data; [factors]; [method]; [rotation]; then n_obs at `n_obs_index`
+// (kNoArg for functions without it: LODE.SCORES takes raw data only).
+FitRequest read_fit_request(const Call& call, std::size_t n_obs_index) {
+  FitRequest req{read_source(call, n_obs_index), FitSpec{}, {}};
+  req.spec.factors = static_cast<int>(whole(call.args[1], "factors", 0, 0, kMaxFactors));
+  req.spec.method = method_arg(call.args[2]);
+  req.spec.rotation = rotation_arg(call.args[3]);
+  if (req.spec.factors == 0) req.spec.factors = static_cast<int>(cached_nfactors(call, req.src, 0, -1));
+  if (req.spec.factors == 0)
     throw CellError(Failure::bad_argument, "parallel analysis suggests no common factor in these data");
-  auto corr = correlation(call, src.input, src.spec);
   KeyBuilder k("fit");
-  k.add(source_key(src))
-      .add(static_cast<std::uint64_t>(spec.factors))
-      .add(static_cast<std::uint64_t>(spec.method))
-      .add(static_cast<std::uint64_t>(spec.rotation));
-  const std::size_t p = src.input.grid->cols;
-  return call.cache.get_or_compute<FitOutputs>(
-      k.take(), [&] { return run_fit(corr.get(), spec); },
-      (p * p * 2 + p * static_cast<std::size_t>(spec.factors) * 3) * sizeof(double) + 4096);
+  k.add(source_key(req.src))
+      .add(static_cast<std::uint64_t>(req.spec.factors))
+      .add(static_cast<std::uint64_t>(req.spec.method))
+      .add(static_cast<std::uint64_t>(req.spec.rotation));
+  req.key = k.take();
+  return req;
 }
 
-std::shared_ptr<const FitOutputs> converged_fit(const Call& call) {
-  auto f = fit(call);
+std::shared_ptr<const FitOutputs> fit(const Call& call, const FitRequest& req) {
+  auto corr = correlation(call, req.src.input, req.src.spec);
+  const std::size_t p = req.src.input.grid->cols;
+  const std::size_t k = static_cast<std::size_t>(req.spec.factors);
+  // The outputs copied out of the model, plus the model itself (its matrices, about 4 p x p).
+  return call.cache.get_or_compute<FitOutputs>(
+      req.key, [&] { return run_fit(corr.get(), req.spec); }, (p * p * 6 + p * k * 6) * sizeof(double) + 8192);
+}
+
+std::shared_ptr<const FitOutputs> fit(const Call& call) { return fit(call, read_fit_request(call, 4)); }
+
+std::shared_ptr<const FitOutputs> converged_fit(const Call& call, const FitRequest& req) {
+  auto f = fit(call, req);
   if (!f->converged) throw CellError(Failure::not_converged, f->convergence_note);
   return f;
 }
+
+std::shared_ptr<const FitOutputs> converged_fit(const Call& call) { return converged_fit(call, read_fit_request(call, 4)); }
 
 std::shared_ptr<const lode_factorability> factorability(const Call& call, std::size_t n_obs_index) {
   const Source src = read_source(call, n_obs_index);
@@ -379,6 +397,7 @@ std::shared_ptr<const FitOutputs> run_fit(const lode_correlation* corr, const Fi
   auto model = shared_handle<lode_model, lode_model_free>(raw);
   const lode_model* m = model.get();
   auto out = std::make_shared<FitOutputs>();
+  out->model = model;
   out->factors = static_cast<int>(model_value(m, LODE_MODEL_FACTORS, "factors"));
   out->pattern = read_matrix(m, LODE_MODEL_LOADINGS, lode_model_matrix, "loadings");
   out->structure = read_matrix(m, LODE_MODEL_STRUCTURE, lode_model_matrix, "structure");
@@ -569,6 +588,162 @@ Output fn_rotate(const Call& call) {
   if (call.args[1].kind == Arg::Kind::missing)
     throw CellError(Failure::bad_argument, "'rotation' is required, e.g. \"varimax\" or \"oblimin\"");
   return to_output(run_rotate(a.grid, rotation_arg(call.args[1]), call.args[2]));
+}
+
+// ---------------------------------------------------------------------------------------------
+// Scores, reliability, congruence
+// ---------------------------------------------------------------------------------------------
+namespace {
+
+const int kScoreMethods[] = {LODE_SCORES_REGRESSION, LODE_SCORES_BARTLETT, LODE_SCORES_TENBERGE};
+
+// Scores of the rows the model was fitted to (lode_score with data = NULL), with the C ABI's rule
+// for rows with missing items (LODE_SCORE_FROM_ANSWERED: a row that answered at least half of the
+// items is scored from the items it answered; the others are left NaN, shown as #NUM!).
+std::shared_ptr<const Matrix> run_scores(const lode_model* model, int method) {
+  lode_score_options so;
+  check(lode_score_options_init(&so, sizeof so), "score options");
+  so.method = kScoreMethods[method];
+  lode_scores* raw = nullptr;
+  check(lode_score(model, nullptr, &so, &raw), "factor scores");
+  auto s = shared_handle<lode_scores, lode_scores_free>(raw);
+  return std::make_shared<const Matrix>(read_matrix(s.get(), LODE_SCORES_VALUES, lode_scores_matrix, "factor scores"));
+}
+
+// One scale's items as raw answers (ALPHA) or as answers or a correlation matrix (OMEGA).
+Input read_scale(const Arg& a) {
+  const Input in = read_input(a, "items");
+  if (in.grid->cols < 2) throw CellError(Failure::bad_argument, "'items' must hold at least 2 items (columns)");
+  return in;
+}
+
+struct AlphaOutputs {
+  double alpha = 0.0, standardized = 0.0, mean_inter_item = 0.0, rows_used = 0.0;
+};
+
+std::shared_ptr<const AlphaOutputs> run_alpha(const Input& in) {
+  DataHandle data = make_data(in, 0);
+  lode_reliability* raw = nullptr;
+  check(lode_cronbach_alpha(data.get(), &raw), "Cronbach's alpha");
+  auto r = shared_handle<lode_reliability, lode_reliability_free>(raw);
+  auto value = [&](int key) {
+    double v = 0.0;
+    check(lode_reliability_value(r.get(), key, &v), "Cronbach's alpha");
+    return v;
+  };
+  auto out = std::make_shared<AlphaOutputs>();
+  out->alpha = value(LODE_ALPHA);
+  out->standardized = value(LODE_ALPHA_STANDARDIZED);
+  out->mean_inter_item = value(LODE_ALPHA_MEAN_INTER_ITEM);
+  out->rows_used = value(LODE_ALPHA_ROWS_USED);
+  return out;
+}
+
+struct OmegaOutputs {
+  double omega = 0.0;
+  bool converged = true;
+};
+
+std::shared_ptr<const OmegaOutputs> run_omega(const lode_correlation* corr) {
+  lode_reliability* raw = nullptr;
+  check(lode_omega_single_scale(corr, nullptr, &raw), "McDonald's omega");  // NULL: maximum likelihood, defaults
+  auto r = shared_handle<lode_reliability, lode_reliability_free>(raw);
+  auto out = std::make_shared<OmegaOutputs>();
+  const Matrix omega = read_matrix(r.get(), LODE_OMEGA, lode_reliability_matrix, "McDonald's omega");
+  if (omega.values.size() != 1) throw CellError(Failure::internal, "McDonald's omega: expected one scale");
+  out->omega = omega.values[0];
+  double converged = 0.0;
+  check(lode_reliability_value(r.get(), LODE_OMEGA_CONVERGED, &converged), "McDonald's omega");
+  out->converged = converged == 1.0;
+  return out;
+}
+
+const Grid& loading_block(const Arg& a, const char* name) {
+  if (a.kind != Arg::Kind::grid || a.grid.empty() || a.grid.number_cells != a.grid.rows * a.grid.cols)
+    throw CellError(Failure::bad_argument,
+                    std::string("'") + name + "' must be a block of numbers (items in rows, factors in columns)");
+  if (a.grid.rows < 2)
+    throw CellError(Failure::bad_argument, std::string("'") + name +
+                                               "' has one item (row); congruence over a single item is always 1 "
+                                               "or -1 and compares nothing");
+  return a.grid;
+}
+
+}  // namespace
+
+Output fn_scores(const Call& call) {
+  // Scores need the answers themselves: refuse a correlation matrix before any fit is attempted.
+  if (read_input(call.args[0], "data").is_correlation)
+    throw CellError(Failure::bad_argument,
+                    "factor scores need the respondents' answers (respondents in rows), not a correlation matrix");
+  const int method = choice(call.args[4], "score_method", {"regression", "bartlett", "tenberge"});
+  const FitRequest req = read_fit_request(call, kNoArg);
+  auto f = converged_fit(call, req);
+  KeyBuilder k("scores");
+  k.add(req.key).add(static_cast<std::uint64_t>(method));
+  auto scores = call.cache.get_or_compute<Matrix>(
+      k.take(), [&] { return run_scores(f->model.get(), method); },
+      req.src.input.grid->rows * static_cast<std::size_t>(f->factors) * sizeof(double) + 1024);
+  return to_output(*scores);
+}
+
+Output fn_alpha(const Call& call) {
+  const Input in = read_scale(call.args[0]);
+  if (in.is_correlation)
+    throw CellError(Failure::bad_argument,
+                    "Cronbach's alpha needs the respondents' answers (respondents in rows), not a correlation matrix");
+  KeyBuilder k("alpha");
+  add_grid(k, *in.grid);
+  auto a = call.cache.get_or_compute<AlphaOutputs>(k.take(), [&] { return run_alpha(in); }, sizeof(AlphaOutputs) + 256);
+  Output out = Output::table(1, 4);
+  out.at(0, 0) = OutCell::of(a->alpha);
+  out.at(0, 1) = OutCell::of(a->standardized);
+  out.at(0, 2) = OutCell::of(a->mean_inter_item);
+  out.at(0, 3) = OutCell::of(a->rows_used);
+  for (auto& c : out.cells)
+    if (!std::isfinite(c.number)) c.error = Failure::not_computable;
+  return out;
+}
+
+Output fn_omega(const Call& call) {
+  const Source src{read_scale(call.args[0]), CorrelationSpec{}};
+  auto corr = correlation(call, src.input, src.spec);
+  KeyBuilder k("omega");
+  k.add(source_key(src));
+  auto o = call.cache.get_or_compute<OmegaOutputs>(
+      k.take(), [&] { return run_omega(corr.get()); }, sizeof(OmegaOutputs) + 256);
+  if (!o->converged) throw CellError(Failure::not_converged, "the one-factor fit behind omega did not converge");
+  Output out = Output::number(o->omega);
+  if (!std::isfinite(o->omega)) out.cells[0].error = Failure::not_computable;
+  return out;
+}
+
+Output fn_congruence(const Call& call) {
+  const Grid& a = loading_block(call.args[0], "loadings_a");
+  const Grid& b = loading_block(call.args[1], "loadings_b");
+  if (a.rows != b.rows || a.cols != b.cols)
+    throw CellError(Failure::bad_argument, "'loadings_a' is " + std::to_string(a.rows) + " x " + std::to_string(a.cols) +
+                                               " but 'loadings_b' is " + std::to_string(b.rows) + " x " +
+                                               std::to_string(b.cols) + "; both need the same items and factors");
+  const auto items = static_cast<std::int64_t>(a.rows), factors = static_cast<std::int64_t>(a.cols);
+  lode_comparison* raw = nullptr;
+  check(lode_compare_loadings(a.values.data(), b.values.data(), items, factors, factors, 1, factors, 1, &raw),
+        "congruence");
+  auto c = shared_handle<lode_comparison, lode_comparison_free>(raw);
+  const Matrix matched =
+      read_matrix(c.get(), LODE_COMPARISON_MATCHED_CONGRUENCE, lode_comparison_matrix, "congruence");
+  const Matrix order = read_matrix(c.get(), LODE_COMPARISON_ORDER, lode_comparison_matrix, "congruence");
+  const Matrix signs = read_matrix(c.get(), LODE_COMPARISON_SIGNS, lode_comparison_matrix, "congruence");
+  Matrix table;
+  table.rows = factors;
+  table.cols = 3;
+  for (std::int64_t j = 0; j < factors; ++j) {
+    const auto i = static_cast<std::size_t>(j);
+    table.values.push_back(matched.values[i]);
+    table.values.push_back(order.values[i] + 1.0);  // the matched column of loadings_b, counted from 1
+    table.values.push_back(signs.values[i]);
+  }
+  return to_output(table);
 }
 
 }  // namespace lode::addin

@@ -22,5 +22,9 @@ Output fn_factorcorr(const Call& call);
 Output fn_residuals(const Call& call);
 Output fn_fit(const Call& call);
 Output fn_rotate(const Call& call);
+Output fn_scores(const Call& call);
+Output fn_alpha(const Call& call);
+Output fn_omega(const Call& call);
+Output fn_congruence(const Call& call);
 
 }  // namespace lode::addin

@@ -146,17 +146,7 @@ const char* missing_words(const std::string& m) {
                          : "each pair of items uses everyone who answered both (pairwise)";
 }
 
-// What the C ABI of this build cannot compute yet; each line says so in the report.
-constexpr const char* kNotYet = "not in this liblode yet (C ABI ";
-
-std::string not_yet() {
-  const lode_version_info* v = lode_version();
-  return std::string(kNotYet) + std::to_string(v->abi_major) + "." + std::to_string(v->abi_minor) + ")";
-}
-
-
-// How many factors, through the C ABI's factor count when this liblode has it (report.cmake sets
-// LODE_REPORT_HAS_COUNT from lode.h); otherwise `reason` says what is missing.
+// How many factors, through the C ABI's factor count; when it fails, `reason` says why.
 struct CountResult {
   bool available = false;
   std::string reason;
@@ -173,7 +163,6 @@ struct CountResult {
   std::vector<std::string> notes;
 };
 
-#if LODE_REPORT_HAS_COUNT
 struct CountFree {
   void operator()(lode_factor_count* p) const noexcept { lode_factor_count_free(p); }
 };
@@ -185,17 +174,15 @@ std::string count_text(const lode_factor_count* f, int key) {
   s.resize(len);
   return s;
 }
-#endif
 
-CountResult count_factors(const lode_correlation* corr, const Options& o, const Progress& progress,
-                          const std::string& missing_feature) {
+CountResult count_factors(const lode_correlation* corr, const Options& o, const Progress& progress, double from,
+                          double to) {
   CountResult r;
-#if LODE_REPORT_HAS_COUNT
   lode_factor_count_options opts;
   lode_factor_count_options_init(&opts, sizeof opts);
   opts.seed = o.seed;
   opts.threads = 1;  // the office's other work keeps a core
-  ProgressBridge bridge{&progress, "parallel analysis", 0.5, 0.9};
+  ProgressBridge bridge{&progress, "parallel analysis", from, to};
   opts.progress = &ProgressBridge::call;
   opts.progress_user = &bridge;
   lode_factor_count* raw = nullptr;
@@ -231,18 +218,11 @@ CountResult count_factors(const lode_correlation* corr, const Options& o, const 
   }
   r.notes = lines_of(count_text(count.get(), LODE_COUNT_NOTES));
   r.available = true;
-  (void)missing_feature;
-#else
-  (void)corr;
-  (void)o;
-  (void)progress;
-  r.reason = "parallel analysis is " + missing_feature;
-#endif
   return r;
 }
 
-// The fitted model (extraction, rotation, fit, residuals) through the C ABI's lode_fit when this
-// liblode has it (report.cmake sets LODE_REPORT_HAS_FIT from lode.h); otherwise `reason` says why not.
+// The fitted model (extraction, rotation, fit, residuals) through the C ABI's lode_fit; when it fails,
+// `reason` holds the C ABI's error message.
 struct ModelResult {
   bool available = false;
   std::string reason;
@@ -255,9 +235,9 @@ struct ModelResult {
   std::string stats_reason;
   double chi2 = kNaN, df = kNaN, p = kNaN, rmsea = kNaN, rmsea_lo = kNaN, rmsea_hi = kNaN, tli = kNaN, bic = kNaN;
   std::vector<std::string> notes;
+  std::shared_ptr<lode_model> handle;  // for scores and reliability (null when the fit failed)
 };
 
-#if LODE_REPORT_HAS_FIT
 struct ModelFree {
   void operator()(lode_model* p) const noexcept { lode_model_free(p); }
 };
@@ -273,41 +253,131 @@ double model_value(const lode_model* m, int key) {
   check(lode_model_value(m, key, &v), "reading the model");
   return v;
 }
-#endif
 
-ModelResult fit_model(const lode_correlation* corr, const Options& o, int factors, const std::string& missing_feature) {
-  ModelResult r;
-  r.factors = factors;
-#if LODE_REPORT_HAS_FIT
-  (void)missing_feature;
+// The run's extraction and rotation options for lode_fit (and the bootstrap, which refits the same
+// way). Not copyable: fo.rotation points into the same object.
+struct FitSetup {
   lode_fit_options fo;
-  lode_fit_options_init(&fo, sizeof fo);
-  fo.factors = factors;
-  fo.method = o.extraction == "ml" ? LODE_ML : o.extraction == "paf" ? LODE_PAF : LODE_MINRES;
   lode_rotation_options ro;
-  lode_rotation_options_init(&ro, sizeof ro);
-  ro.seed = o.seed;
-  ro.threads = 1;
-  r.rotation_used = o.rotation;
-  if (o.rotation == "oblimin") {
-    ro.method = LODE_ROTATION_OBLIMIN;
-    ro.gamma = o.rotation_parameter;
-  } else if (o.rotation == "promax") {
-    ro.method = LODE_ROTATION_PROMAX;
-    if (o.rotation_parameter > 0) ro.power = o.rotation_parameter;
-  } else {
-    ro.method = LODE_ROTATION_VARIMAX;
+  std::string rotation_used;  // which rotation is applied, in the option's word
+  FitSetup(const Options& o, int factors) {
+    lode_fit_options_init(&fo, sizeof fo);
+    fo.factors = factors;
+    fo.method = o.extraction == "ml" ? LODE_ML : o.extraction == "paf" ? LODE_PAF : LODE_MINRES;
+    lode_rotation_options_init(&ro, sizeof ro);
+    ro.seed = o.seed;
+    ro.threads = 1;
+    rotation_used = o.rotation;
+    if (o.rotation == "oblimin") {
+      ro.method = LODE_ROTATION_OBLIMIN;
+      ro.gamma = o.rotation_parameter;
+    } else if (o.rotation == "promax") {
+      ro.method = LODE_ROTATION_PROMAX;
+      if (o.rotation_parameter > 0) ro.power = o.rotation_parameter;
+    } else {
+      ro.method = LODE_ROTATION_VARIMAX;
+    }
+    if (o.rotation != "none" && factors >= 2) fo.rotation = &ro;
+    else if (o.rotation != "none") rotation_used = "none (one factor cannot be rotated)";
   }
-  if (o.rotation != "none" && factors >= 2) fo.rotation = &ro;
-  else if (o.rotation != "none") r.rotation_used = "none (one factor cannot be rotated)";
+  FitSetup(const FitSetup&) = delete;
+  FitSetup& operator=(const FitSetup&) = delete;
+};
+
+// lode_fit with the run's options; the caller owns the model (NULL with the status on failure).
+lode_model* fit_raw(const lode_correlation* corr, const Options& o, int factors, std::string& rotation_used, int& status) {
+  FitSetup setup(o, factors);
+  rotation_used = setup.rotation_used;
   lode_model* raw = nullptr;
-  const int st = lode_fit(corr, &fo, &raw);
+  status = lode_fit(corr, &setup.fo, &raw);
+  return status == LODE_OK ? raw : nullptr;
+}
+
+// Bootstrap intervals of the fitted solution through the C ABI's lode_bootstrap; when it fails,
+// `reason` says why.
+struct BootResult {
+  bool available = false;
+  std::string reason;
+  double replicates = 0, used = 0, failed = 0, poorly_matched = 0, level = 0.95;
+  std::vector<double> estimate, lower, upper;        // items x factors (pattern loadings)
+  std::vector<double> phi_lower, phi_upper;          // factors x factors
+  std::string alignment;
+  std::vector<std::string> failures, notes;
+};
+
+struct BootFree {
+  void operator()(lode_bootstrap_result* p) const noexcept { lode_bootstrap_free(p); }
+};
+
+BootResult bootstrap_intervals(const lode_correlation* corr, const Options& o, int factors, const Progress& progress,
+                               double from, double to) {
+  BootResult r;
+  FitSetup setup(o, factors);
+  lode_bootstrap_options bo;
+  lode_bootstrap_options_init(&bo, sizeof bo);
+  bo.replicates = o.bootstrap;
+  bo.seed = o.seed;
+  bo.threads = 1;  // the office's other work keeps a core
+  ProgressBridge bridge{&progress, "bootstrap resamples", from, to};
+  bo.progress = &ProgressBridge::call;
+  bo.progress_user = &bridge;
+  lode_bootstrap_result* raw = nullptr;
+  const int st = lode_bootstrap(corr, &setup.fo, &bo, &raw);
   if (st == LODE_E_CANCELLED) throw Cancelled{};
   if (st != LODE_OK) {
     r.reason = lode_last_error();
     return r;
   }
-  std::unique_ptr<lode_model, ModelFree> m(raw);
+  std::unique_ptr<lode_bootstrap_result, BootFree> b(raw);
+  auto mat = [&](int key) {
+    std::int64_t a = 0, c = 0;
+    check(lode_bootstrap_matrix(b.get(), key, nullptr, 0, &a, &c), "reading the bootstrap");
+    std::vector<double> v(static_cast<std::size_t>(a * c));
+    check(lode_bootstrap_matrix(b.get(), key, v.data(), v.size(), &a, &c), "reading the bootstrap");
+    return v;
+  };
+  auto num = [&](int key) {
+    double v = kNaN;
+    check(lode_bootstrap_value(b.get(), key, &v), "reading the bootstrap");
+    return v;
+  };
+  auto text = [&](int key) {
+    size_t len = 0;
+    check(lode_bootstrap_text(b.get(), key, nullptr, 0, &len), "reading the bootstrap");
+    std::string t(len + 1, '\0');
+    check(lode_bootstrap_text(b.get(), key, t.data(), t.size(), &len), "reading the bootstrap");
+    t.resize(len);
+    return t;
+  };
+  r.estimate = mat(LODE_BOOTSTRAP_LOADINGS);
+  r.lower = mat(LODE_BOOTSTRAP_LOADINGS_LOWER);
+  r.upper = mat(LODE_BOOTSTRAP_LOADINGS_UPPER);
+  r.phi_lower = mat(LODE_BOOTSTRAP_FACTOR_CORRELATIONS_LOWER);
+  r.phi_upper = mat(LODE_BOOTSTRAP_FACTOR_CORRELATIONS_UPPER);
+  r.replicates = num(LODE_BOOTSTRAP_REPLICATES);
+  r.used = num(LODE_BOOTSTRAP_USED);
+  r.failed = num(LODE_BOOTSTRAP_FAILED);
+  r.poorly_matched = num(LODE_BOOTSTRAP_POORLY_MATCHED);
+  r.level = num(LODE_BOOTSTRAP_LEVEL);
+  r.alignment = text(LODE_BOOTSTRAP_ALIGNMENT);
+  r.failures = lines_of(text(LODE_BOOTSTRAP_FAILURES));
+  r.notes = lines_of(text(LODE_BOOTSTRAP_NOTES));
+  r.available = true;
+  return r;
+}
+
+ModelResult fit_model(const lode_correlation* corr, const Options& o, int factors) {
+  ModelResult r;
+  r.factors = factors;
+  int st = LODE_OK;
+  lode_model* raw = fit_raw(corr, o, factors, r.rotation_used, st);
+  if (st == LODE_E_CANCELLED) throw Cancelled{};
+  if (st != LODE_OK) {
+    r.reason = lode_last_error();
+    return r;
+  }
+  std::shared_ptr<lode_model> m(raw, ModelFree{});
+  r.handle = m;
   r.loadings = model_matrix(m.get(), LODE_MODEL_LOADINGS);
   r.structure = model_matrix(m.get(), LODE_MODEL_STRUCTURE);
   r.phi = model_matrix(m.get(), LODE_MODEL_FACTOR_CORRELATIONS);
@@ -342,11 +412,6 @@ ModelResult fit_model(const lode_correlation* corr, const Options& o, int factor
     }
   }
   r.available = true;
-#else
-  (void)corr;
-  (void)o;
-  r.reason = "factor extraction is " + missing_feature;
-#endif
   return r;
 }
 
@@ -367,6 +432,326 @@ std::vector<std::size_t> loading_order(const std::vector<double>& L, std::size_t
   });
   return idx;
 }
+
+// ---- reliability of each factor's scale (C ABI: lode_mcdonald_omega, lode_cronbach_alpha) ----------
+
+struct RelFree {
+  void operator()(lode_reliability* p) const noexcept { lode_reliability_free(p); }
+};
+struct ModelFreeFn {
+  void operator()(lode_model* p) const noexcept { lode_model_free(p); }
+};
+struct CompFree {
+  void operator()(lode_comparison* p) const noexcept { lode_comparison_free(p); }
+};
+
+std::vector<double> rel_matrix(const lode_reliability* r, int key) {
+  std::int64_t a = 0, b = 0;
+  check(lode_reliability_matrix(r, key, nullptr, 0, &a, &b), "reading the reliability");
+  std::vector<double> out(static_cast<std::size_t>(a * b));
+  check(lode_reliability_matrix(r, key, out.data(), out.size(), &a, &b), "reading the reliability");
+  return out;
+}
+double rel_value(const lode_reliability* r, int key) {
+  double v = kNaN;
+  check(lode_reliability_value(r, key, &v), "reading the reliability");
+  return v;
+}
+std::vector<std::string> rel_notes(const lode_reliability* r) {
+  size_t len = 0;
+  if (lode_reliability_text(r, LODE_RELIABILITY_NOTES, nullptr, 0, &len) != LODE_OK) return {};
+  std::string t(len + 1, '\0');
+  if (lode_reliability_text(r, LODE_RELIABILITY_NOTES, t.data(), t.size(), &len) != LODE_OK) return {};
+  t.resize(len);
+  return lines_of(t);
+}
+
+struct ScaleReliability {
+  std::size_t factor = 0;
+  std::vector<std::size_t> items;  // indices into the analysed items, in loading order
+  std::vector<bool> reversed;      // per scale item: reverse-scored for these figures
+  double omega = kNaN;
+  bool have_alpha = false;
+  std::string alpha_reason;        // why alpha is missing
+  double alpha = kNaN, alpha_std = kNaN, mean_r = kNaN, rows_used = kNaN, rows_total = kNaN;
+  std::vector<double> item_total, alpha_if_deleted, alpha_std_if_deleted, means, sds;  // per scale item
+  std::vector<std::string> notes;  // the C library's notes on alpha
+};
+
+struct ReliabilityResult {
+  bool available = false;
+  std::string reason;
+  std::vector<ScaleReliability> scales;  // one per factor
+  std::vector<std::string> omega_notes;
+  std::vector<std::string> reversed_names;
+  std::string omega_reason;  // set when omega could not be computed with the reverse-scored items
+};
+
+// Each item belongs to the scale of the factor of its largest absolute loading (lode_mcdonald_omega's
+// own rule, whose assignment is used for alpha too). An item loading negatively on its factor is
+// reverse-scored, as a scale score adds it: for alpha its answers become (lowest + highest observed
+// answer) - answer; for omega the model is refitted to the correlations with those items' signs
+// reversed (D R D, D = diag(+-1)), which reverses exactly their rows of loadings, and its factors are
+// matched to this solution by Tucker's congruence (lode_compare_loadings).
+ReliabilityResult reliability(const ModelResult& model, const lode_correlation* corr, const Options& o,
+                              const std::vector<double>& R, double n_obs, const std::vector<double>& values,
+                              std::size_t n_rows, const std::vector<std::string>& names) {
+  ReliabilityResult out;
+  const std::size_t p = names.size(), k = static_cast<std::size_t>(model.factors);
+  (void)corr;
+  lode_reliability* raw = nullptr;
+  if (lode_mcdonald_omega(model.handle.get(), nullptr, 0, &raw) != LODE_OK) {
+    out.reason = lode_last_error();
+    return out;
+  }
+  std::unique_ptr<lode_reliability, RelFree> om(raw);
+  const std::vector<double> assignment = rel_matrix(om.get(), LODE_OMEGA_ASSIGNMENT);
+  std::vector<double> omega = rel_matrix(om.get(), LODE_OMEGA);
+  out.omega_notes = rel_notes(om.get());
+
+  std::vector<bool> reversed(p, false);
+  for (std::size_t j = 0; j < p; ++j) {
+    const double a = assignment[j];
+    if (a >= 0 && model.loadings[j * k + static_cast<std::size_t>(a)] < 0) {
+      reversed[j] = true;
+      out.reversed_names.push_back(names[j]);
+    }
+  }
+  if (!out.reversed_names.empty()) {
+    // Omega with the reverse-scored items: refit D R D and match its factors to this solution. Scales
+    // without a reversed item keep this model's omega.
+    std::vector<bool> touched(k, false);
+    for (std::size_t j = 0; j < p; ++j)
+      if (reversed[j]) touched[static_cast<std::size_t>(assignment[j])] = true;
+    const std::vector<double> own_omega = omega;
+    for (std::size_t f = 0; f < k; ++f)
+      if (touched[f]) omega[f] = kNaN;
+    std::vector<double> drd(R);
+    for (std::size_t i = 0; i < p; ++i)
+      for (std::size_t j = 0; j < p; ++j)
+        if (reversed[i] != reversed[j]) drd[i * p + j] = -drd[i * p + j];
+    std::string why;
+    lode_data* rd = nullptr;
+    lode_correlation* rc = nullptr;
+    std::unique_ptr<lode_data, DataFree> d2;
+    std::unique_ptr<lode_correlation, CorrFree> c2;
+    std::unique_ptr<lode_model, ModelFreeFn> m2;
+    const std::int64_t n = std::isfinite(n_obs) && n_obs > 0 ? static_cast<std::int64_t>(n_obs) : 0;
+    if (lode_data_from_correlation(drd.data(), static_cast<std::int64_t>(p), static_cast<std::int64_t>(p), 1, n, &rd) != LODE_OK)
+      why = lode_last_error();
+    d2.reset(rd);
+    if (why.empty()) {
+      std::vector<const char*> cn;
+      for (const std::string& s : names) cn.push_back(s.c_str());
+      lode_data_set_item_names(d2.get(), cn.data(), static_cast<std::int64_t>(p));
+      if (lode_correlate(d2.get(), nullptr, &rc) != LODE_OK) why = lode_last_error();
+      c2.reset(rc);
+    }
+    if (why.empty()) {
+      std::string rot;
+      int st = LODE_OK;
+      m2.reset(fit_raw(c2.get(), o, model.factors, rot, st));
+      if (st == LODE_E_CANCELLED) throw Cancelled{};
+      if (st != LODE_OK) why = lode_last_error();
+    }
+    if (why.empty()) {
+      std::vector<double> target(model.loadings);  // this solution with the reversed rows
+      for (std::size_t j = 0; j < p; ++j)
+        if (reversed[j])
+          for (std::size_t f = 0; f < k; ++f) target[j * k + f] = -target[j * k + f];
+      const std::vector<double> refit = model_matrix(m2.get(), LODE_MODEL_LOADINGS);
+      lode_comparison* rcmp = nullptr;
+      const auto kk = static_cast<std::int64_t>(k);
+      if (lode_compare_loadings(target.data(), refit.data(), static_cast<std::int64_t>(p), kk, kk, 1, kk, 1, &rcmp) != LODE_OK) {
+        why = lode_last_error();
+      } else {
+        std::unique_ptr<lode_comparison, CompFree> cmp(rcmp);
+        std::int64_t a = 0, b = 0;
+        std::vector<double> order(k), matched(k);
+        check(lode_comparison_matrix(cmp.get(), LODE_COMPARISON_ORDER, order.data(), k, &a, &b), "matching factors");
+        check(lode_comparison_matrix(cmp.get(), LODE_COMPARISON_MATCHED_CONGRUENCE, matched.data(), k, &a, &b),
+              "matching factors");
+        double worst = 1.0;
+        for (double c : matched) worst = std::min(worst, c);
+        if (worst < 0.999) {
+          why = "the refit with reverse-scored items did not reproduce this solution (congruence " + fmt_num(worst, 3) + ")";
+        } else {
+          std::vector<std::int64_t> assign2(p);
+          for (std::size_t j = 0; j < p; ++j)
+            assign2[j] = assignment[j] < 0 ? -1 : static_cast<std::int64_t>(order[static_cast<std::size_t>(assignment[j])]);
+          lode_reliability* r2 = nullptr;
+          if (lode_mcdonald_omega(m2.get(), assign2.data(), static_cast<std::int64_t>(p), &r2) != LODE_OK) {
+            why = lode_last_error();
+          } else {
+            std::unique_ptr<lode_reliability, RelFree> om2(r2);
+            const std::vector<double> w2 = rel_matrix(om2.get(), LODE_OMEGA);
+            for (std::size_t f = 0; f < k; ++f) omega[f] = touched[f] ? w2[static_cast<std::size_t>(order[f])] : own_omega[f];
+            out.omega_notes = rel_notes(om2.get());  // about the items as reverse-scored
+          }
+        }
+      }
+    }
+    if (!why.empty()) out.omega_reason = why;
+  }
+
+  const std::vector<std::size_t> order = loading_order(model.loadings, p, k);
+  for (std::size_t f = 0; f < k; ++f) {
+    ScaleReliability sr;
+    sr.factor = f;
+    sr.omega = omega[f];
+    for (std::size_t j : order)
+      if (assignment[j] == static_cast<double>(f)) {
+        sr.items.push_back(j);
+        sr.reversed.push_back(reversed[j]);
+      }
+    const std::size_t m = sr.items.size();
+    if (m < 2) {
+      sr.alpha_reason = m == 0 ? "no item loads most on this factor" : "alpha needs at least 2 items; this scale has 1";
+      out.scales.push_back(std::move(sr));
+      continue;
+    }
+    std::vector<double> x(n_rows * m, kNaN);
+    std::vector<const char*> cn;
+    for (std::size_t c = 0; c < m; ++c) {
+      const std::size_t j = sr.items[c];
+      cn.push_back(names[j].c_str());
+      double lo = kNaN, hi = kNaN;
+      for (std::size_t r = 0; r < n_rows; ++r) {
+        const double v = values[r * p + j];
+        if (std::isnan(v)) continue;
+        lo = std::isnan(lo) ? v : std::min(lo, v);
+        hi = std::isnan(hi) ? v : std::max(hi, v);
+      }
+      for (std::size_t r = 0; r < n_rows; ++r) {
+        const double v = values[r * p + j];
+        x[r * m + c] = sr.reversed[c] && !std::isnan(v) ? (lo + hi) - v : v;
+      }
+    }
+    lode_data* rd = nullptr;
+    check(lode_data_from_raw(x.data(), static_cast<std::int64_t>(n_rows), static_cast<std::int64_t>(m),
+                             static_cast<std::int64_t>(m), 1, &rd),
+          "reading a scale's items");
+    std::unique_ptr<lode_data, DataFree> d(rd);
+    check(lode_data_set_item_names(d.get(), cn.data(), static_cast<std::int64_t>(m)), "naming a scale's items");
+    lode_reliability* ra = nullptr;
+    if (lode_cronbach_alpha(d.get(), &ra) != LODE_OK) {
+      sr.alpha_reason = lode_last_error();
+      out.scales.push_back(std::move(sr));
+      continue;
+    }
+    std::unique_ptr<lode_reliability, RelFree> al(ra);
+    sr.have_alpha = true;
+    sr.alpha = rel_value(al.get(), LODE_ALPHA);
+    sr.alpha_std = rel_value(al.get(), LODE_ALPHA_STANDARDIZED);
+    sr.mean_r = rel_value(al.get(), LODE_ALPHA_MEAN_INTER_ITEM);
+    sr.rows_used = rel_value(al.get(), LODE_ALPHA_ROWS_USED);
+    sr.rows_total = rel_value(al.get(), LODE_ALPHA_ROWS_TOTAL);
+    sr.item_total = rel_matrix(al.get(), LODE_ALPHA_ITEM_TOTAL);
+    sr.alpha_if_deleted = rel_matrix(al.get(), LODE_ALPHA_IF_DELETED);
+    sr.alpha_std_if_deleted = rel_matrix(al.get(), LODE_ALPHA_STANDARDIZED_IF_DELETED);
+    sr.means = rel_matrix(al.get(), LODE_ALPHA_ITEM_MEANS);
+    sr.sds = rel_matrix(al.get(), LODE_ALPHA_ITEM_SDS);
+    sr.notes = rel_notes(al.get());
+    out.scales.push_back(std::move(sr));
+  }
+  out.available = true;
+  return out;
+}
+
+// Common-practice reading of alpha or omega (often traced to Nunnally 1978; README, "Reading the results").
+std::string reliability_words(double v) {
+  if (std::isnan(v)) return "";
+  if (v >= 0.90) return "high enough to consider individual use (0.90 or more; common practice)";
+  if (v >= 0.80) return "good for research and group comparisons (0.80 or more; common practice)";
+  if (v >= 0.70) return "adequate for research (0.70 or more; common practice)";
+  return "low: under 0.70 (common practice)";
+}
+
+// ---- factor scores (C ABI: lode_score) --------------------------------------------------------------
+
+struct ScoresFree {
+  void operator()(lode_scores* p) const noexcept { lode_scores_free(p); }
+};
+
+struct ScoreResult {
+  bool available = false;
+  std::string reason;
+  std::vector<double> values;  // rows x factors, NaN = left blank
+  std::vector<double> determinacy, validity, low;
+  double rows_total = 0, rows_complete = 0, rows_partial = 0, rows_missing = 0;
+  std::vector<std::string> notes;
+  std::string cautions;
+  std::string rule;  // which rows are left blank, in words
+};
+
+const char* score_method_words(const std::string& m) {
+  if (m == "bartlett") return "Bartlett (1937)";
+  if (m == "tenberge") return "correlation-preserving (ten Berge, Krijnen, Wansbeek and Shapiro 1999)";
+  return "regression (Thurstone 1935)";
+}
+const char* score_method_short(const std::string& m) {
+  if (m == "bartlett") return "Bartlett";
+  if (m == "tenberge") return "correlation-preserving";
+  return "regression";
+}
+
+// Respondents' scores on the model's factors. The missing-answer rule follows the run's missing
+// handling: listwise leaves a respondent with any skipped item unscored (as the correlations left
+// them out); pairwise scores from the answered items when at least half were answered.
+ScoreResult factor_scores(const ModelResult& model, const lode_data* data, const Options& o) {
+  ScoreResult r;
+  lode_score_options so;
+  lode_score_options_init(&so, sizeof so);
+  so.method = o.scores == "bartlett" ? LODE_SCORES_BARTLETT : o.scores == "tenberge" ? LODE_SCORES_TENBERGE : LODE_SCORES_REGRESSION;
+  if (o.missing == "listwise") {
+    so.missing = LODE_SCORE_LEAVE_MISSING;
+    r.rule = "a respondent who skipped any item gets no scores (blank cells), as the listwise correlations left "
+             "them out";
+  } else {
+    so.missing = LODE_SCORE_FROM_ANSWERED;
+    r.rule = "a respondent who skipped items is scored from the items answered, when at least " +
+             fmt_num(100.0 * so.min_answered_share, 0) + "% of them were answered; otherwise no scores (blank cells)";
+  }
+  lode_scores* raw = nullptr;
+  if (lode_score(model.handle.get(), data, &so, &raw) != LODE_OK) {
+    r.reason = lode_last_error();
+    return r;
+  }
+  std::unique_ptr<lode_scores, ScoresFree> sc(raw);
+  auto mat = [&](int key) {
+    std::int64_t a = 0, b = 0;
+    check(lode_scores_matrix(sc.get(), key, nullptr, 0, &a, &b), "reading the scores");
+    std::vector<double> v(static_cast<std::size_t>(a * b));
+    check(lode_scores_matrix(sc.get(), key, v.data(), v.size(), &a, &b), "reading the scores");
+    return v;
+  };
+  auto num = [&](int key) {
+    double v = kNaN;
+    check(lode_scores_value(sc.get(), key, &v), "reading the scores");
+    return v;
+  };
+  auto text = [&](int key) {
+    size_t len = 0;
+    check(lode_scores_text(sc.get(), key, nullptr, 0, &len), "reading the scores");
+    std::string t(len + 1, '\0');
+    check(lode_scores_text(sc.get(), key, t.data(), t.size(), &len), "reading the scores");
+    t.resize(len);
+    return t;
+  };
+  r.values = mat(LODE_SCORES_VALUES);
+  r.determinacy = mat(LODE_SCORES_DETERMINACY);
+  r.validity = mat(LODE_SCORES_VALIDITY);
+  r.low = mat(LODE_SCORES_LOW_DETERMINACY);
+  r.rows_total = num(LODE_SCORES_ROWS_TOTAL);
+  r.rows_complete = num(LODE_SCORES_ROWS_COMPLETE);
+  r.rows_partial = num(LODE_SCORES_ROWS_PARTIAL);
+  r.rows_missing = num(LODE_SCORES_ROWS_MISSING);
+  r.cautions = text(LODE_SCORES_CAUTIONS);
+  for (const std::string& n : lines_of(text(LODE_SCORES_NOTES)))
+    if (n != r.cautions) r.notes.push_back(n);
+  r.available = true;
+  return r;
+}
 }  // namespace
 
 void validate(const Options& o) {
@@ -375,7 +760,7 @@ void validate(const Options& o) {
   require("Missing", o.missing, {"pairwise", "listwise"});
   require("Extraction", o.extraction, {"minres", "ml", "paf"});
   require("Rotation", o.rotation, {"oblimin", "promax", "varimax", "none"});
-  require("Scores", o.scores, {"none", "regression", "bartlett"});
+  require("Scores", o.scores, {"none", "regression", "bartlett", "tenberge"});
   require("ScoresPlace", o.scores_place, {"beside", "sheet"});
   if (o.factors < 0 || o.factors > 100) throw std::invalid_argument("option Factors must be 0 (suggest) to 100");
   if (o.bootstrap < 0 || o.bootstrap > 100000) throw std::invalid_argument("option Bootstrap must be 0 (off) to 100000 resamples");
@@ -414,6 +799,12 @@ std::vector<Column> describe_columns(const SourceTable& t, bool header) {
   return out;
 }
 
+std::string column_name(std::size_t col) {
+  std::string s;
+  for (std::size_t c = col + 1; c > 0; c = (c - 1) / 26) s.insert(s.begin(), static_cast<char>('A' + (c - 1) % 26));
+  return s;
+}
+
 std::uint64_t hash_values(const std::vector<double>& values, const std::vector<std::string>& names) {
   std::uint64_t h = 0xcbf29ce484222325ULL;
   auto byte = [&h](unsigned char b) {
@@ -439,6 +830,9 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
     if (progress && !progress(phase, share)) throw Cancelled{};
   };
   step("reading the data", 0.0);
+  // Shares of the progress bar: the bootstrap, when asked for, is most of the work.
+  const bool boot = o.bootstrap > 0;
+  const double corr_to = boot ? 0.25 : 0.5, count_to = boot ? 0.45 : 0.9;
 
   // ---- the items ----------------------------------------------------------------------------
   const bool header = o.header == -1 ? detect_header(src) : o.header == 1;
@@ -493,13 +887,13 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   copts.kind = o.correlation == "spearman" ? LODE_SPEARMAN : o.correlation == "polychoric" ? LODE_POLYCHORIC : LODE_PEARSON;
   copts.missing = o.missing == "listwise" ? LODE_LISTWISE : LODE_PAIRWISE;
   copts.threads = 1;  // the office's other work keeps a core
-  ProgressBridge bridge{&progress, "computing correlations", 0.05, 0.5};
+  ProgressBridge bridge{&progress, "computing correlations", 0.05, corr_to};
   copts.progress = &ProgressBridge::call;
   copts.progress_user = &bridge;
   lode_correlation* raw_corr = nullptr;
   check(lode_correlate(data.get(), &copts, &raw_corr), "computing the correlations");
   std::unique_ptr<lode_correlation, CorrFree> corr(raw_corr);
-  step("laying out the report", 0.9);
+  step("assessing the correlations", corr_to);
 
   std::int64_t r_rows = 0, r_cols = 0;
   const std::vector<double> R = read_corr_matrix(corr.get(), LODE_CORRELATION_MATRIX, &r_rows, &r_cols);
@@ -540,14 +934,53 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
     total += e;
     if (e > 1.0) ++above_one;
   }
-  const std::string missing_feature = not_yet();
-  const CountResult count = count_factors(corr.get(), o, progress, missing_feature);
-  step("fitting the factor model", 0.92);
+  const CountResult count = count_factors(corr.get(), o, progress, corr_to, count_to);
+  step("fitting the factor model", count_to + 0.02);
   const int k_decided = o.factors > 0 ? o.factors : count.available ? count.suggested : 0;
   ModelResult model;
-  if (k_decided > 0) model = fit_model(corr.get(), o, k_decided, missing_feature);
+  if (k_decided > 0) model = fit_model(corr.get(), o, k_decided);
   else model.reason = count.available ? "no factor stands out from random data" : count.reason;
   const std::size_t k = model.available ? static_cast<std::size_t>(model.factors) : 0;
+
+  // Bootstrap intervals of the loadings (and factor correlations), when asked for.
+  BootResult bootr;
+  if (boot) {
+    step("bootstrap resamples", 0.5);
+    if (model.available) bootr = bootstrap_intervals(corr.get(), o, model.factors, progress, 0.5, 0.93);
+    else bootr.reason = model.reason;
+  }
+
+  // Reliability of each factor's scale, and factor scores when asked for.
+  step("reliability of the scales", 0.94);
+  ReliabilityResult rel;
+  if (model.available) rel = reliability(model, corr.get(), o, R, n_obs, values, n_rows, item_names);
+  else rel.reason = model.reason;
+  ScoreResult scores;
+  bool scores_beside = false, scores_sheet = false;
+  std::string scores_where, scores_moved;
+  if (o.scores != "none") {
+    step("factor scores", 0.96);
+    if (model.available) scores = factor_scores(model, data.get(), o);
+    else scores.reason = model.reason;
+    if (scores.available) {
+      if (o.scores_place == "beside") {
+        if (!header)
+          scores_moved = "the range has no row of item names, so score columns beside it would have no headings";
+        else if (src.free_columns_right < k)
+          scores_moved = "the " + std::to_string(k) + " columns right of the data are not all empty, and Lode never "
+                         "overwrites cells";
+        else
+          scores_beside = true;
+      }
+      scores_sheet = !scores_beside;
+      if (scores_beside)
+        scores_where = "columns " + column_name(src.first_column + src.cols) + " to " +
+                       column_name(src.first_column + src.cols + k - 1) + " of " + src.sheet_name +
+                       ", beside the data";
+      else
+        scores_where = names::scores;  // exactly the sheet's name, so the writer puts in the name it ends up with
+    }
+  }
   using namespace styles;
 
   // ---- 1. overview --------------------------------------------------------------------------
@@ -558,6 +991,8 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   ov.line({Cell::txt("Written " + timestamp + ". The sheets of this report:", note)});
   for (const char* s : {names::overview, names::loadings, names::factors, names::scree, names::record})
     ov.line({Cell::txt(s, label)});
+  if (scores_sheet) ov.line({Cell::txt(names::scores, label)});
+  if (scores_beside) ov.line({Cell::txt("Factor scores: " + scores_where, note)});
   ov.blank();
   ov.line({Cell::txt("Data used", heading), Cell::txt("", heading)});
   ov.line({Cell::txt("Source range", label), Cell::txt(src.address)});
@@ -723,16 +1158,70 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
         "Professional testing standards and local law govern such use; follow them, and prefer group summaries "
         "where a decision about one person is not needed."})
     ov.line({Cell::txt(s, caution)});
-  if (o.scores != "none")
-    ov.line({Cell::txt("Factor scores were asked for: " + missing_feature + "; none were written.", note)});
-  if (o.bootstrap > 0)
-    ov.line({Cell::txt("Bootstrap intervals were asked for: " + missing_feature + "; none were written.", note)});
+  if (o.scores != "none") {
+    ov.blank();
+    ov.line({Cell::txt("Factor scores", heading), Cell::txt("", heading), Cell::txt("", heading)});
+    if (!scores.available) {
+      ov.line({Cell::txt("Scores", label), Cell::txt("not written: " + scores.reason, note)});
+    } else {
+      ov.line({Cell::txt("Method", label), Cell::txt(score_method_words(o.scores))});
+      ov.line({Cell::txt("Written to", label), Cell::txt(scores_where)});
+      if (!scores_moved.empty())
+        ov.line({Cell::txt("Not beside the data", flag), Cell::txt("because " + scores_moved, note)});
+      ov.line({Cell::txt("Respondents scored from every item", label), Cell::num(scores.rows_complete)});
+      ov.line({Cell::txt("Respondents scored from the items they answered", label), Cell::num(scores.rows_partial)});
+      ov.line({Cell::txt("Respondents without scores (blank)", label), Cell::num(scores.rows_missing)});
+      ov.line({Cell::txt("Rule for skipped items", label), Cell::txt(scores.rule, note)});
+      ov.line({Cell::txt("Factor", label), Cell::txt("Determinacy", label), Cell::txt("Scores' correlation with the factor", label)});
+      for (std::size_t f = 0; f < k && f < scores.determinacy.size(); ++f)
+        ov.line({Cell::txt("Factor " + std::to_string(f + 1), label), Cell::num(scores.determinacy[f], number),
+                 Cell::num(scores.validity[f], number),
+                 scores.low[f] > 0.5 ? Cell::txt("low determinacy: scores on this factor are poorly determined by the "
+                                                 "answers (under 0.80; common practice)",
+                                                 flag)
+                                     : Cell::txt("")});
+      for (const std::string& n : scores.notes) ov.line({Cell::txt("Note on the scores", flag), Cell::txt(n, note)});
+      ov.line({Cell::txt(scores.cautions, caution)});
+    }
+  }
+  if (boot) {
+    ov.blank();
+    ov.line({Cell::txt("Bootstrap intervals", heading), Cell::txt("", heading), Cell::txt("", heading)});
+    if (!bootr.available) {
+      ov.line({Cell::txt("Intervals", label), Cell::txt("not computed: " + bootr.reason, note)});
+    } else {
+      ov.line({Cell::txt("Resamples asked for", label), Cell::num(bootr.replicates),
+               Cell::txt("respondents drawn with replacement, each resample refitted the same way (Efron and "
+                         "Tibshirani 1993)",
+                         note)});
+      ov.line({Cell::txt("Resamples used", label), Cell::num(bootr.used)});
+      ov.line({Cell::txt("Resamples failed", label), Cell::num(bootr.failed),
+               Cell::txt(bootr.failed > 0 ? "left out of the intervals; the reasons follow" : "none failed", note)});
+      for (const std::string& f : bootr.failures) ov.line({Cell::txt("Why resamples failed", flag), Cell::txt(f, note)});
+      ov.line({Cell::txt("Interval", label), Cell::num(bootr.level, number),
+               Cell::txt("two-sided percentile intervals, beside the loadings on " + std::string(names::loadings), note)});
+      ov.line({Cell::txt("How resamples were aligned", label), Cell::txt(bootr.alignment, note)});
+      ov.line({Cell::txt("Resamples poorly matched", label), Cell::num(bootr.poorly_matched),
+               Cell::txt(bootr.poorly_matched > 0
+                             ? "some factor matched with congruence under 0.85 (Lorenzo-Seva and ten Berge 2006): its "
+                               "intervals mix different factors"
+                             : "every factor of every resample matched with congruence 0.85 or more (Lorenzo-Seva "
+                               "and ten Berge 2006)",
+                         bootr.poorly_matched > 0 ? flag : note)});
+      for (const std::string& n : bootr.notes) ov.line({Cell::txt("Note on the bootstrap", flag), Cell::txt(n, note)});
+    }
+  }
   rep.sheets.push_back(std::move(ov));
 
   // ---- 2. loadings --------------------------------------------------------------------------
   Sheet ld;
   ld.base_name = names::loadings;
   ld.column_widths = {5000, 3000, 3000, 3000, 3000, 3000, 3000, 3000};
+  if (boot && bootr.available) {  // the intervals beside the loadings, communality and uniqueness
+    ld.column_widths.assign(1 + k + 2, 3000);
+    ld.column_widths[0] = 5000;
+    ld.column_widths.resize(1 + k + 2 + 2 * k, 3700);
+  }
   ld.line({Cell::txt("Loadings", title)});
   ld.line({Cell::txt("Strong loadings (at least " + fmt_num(o.salient, 2) + ") are shaded; small ones are grey.", note)});
   if (!model.available) {
@@ -741,12 +1230,24 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
                        note)});
   } else {
     ld.line({Cell::txt("Items are grouped by the factor they load on most, largest loading first.", note)});
-    if (o.bootstrap > 0) ld.line({Cell::txt("Bootstrap intervals: " + missing_feature, note)});
+    if (boot && bootr.available)
+      ld.line({Cell::txt("Beside the loadings: " + fmt_num(100.0 * bootr.level, 0) + "% bootstrap intervals from " +
+                             fmt_num(bootr.used, 0) + " resamples (see " + names::overview + ", \"Bootstrap intervals\").",
+                         note)});
+    else if (boot)
+      ld.line({Cell::txt("Bootstrap intervals: not computed: " + bootr.reason, note)});
     ld.blank();
     std::vector<Cell> hdr{Cell::txt("Item", heading)};
     for (std::size_t f = 0; f < k; ++f) hdr.push_back(Cell::txt("Factor " + std::to_string(f + 1), heading));
     hdr.push_back(Cell::txt("Communality", heading));
     hdr.push_back(Cell::txt("Uniqueness", heading));
+    const bool intervals = boot && bootr.available;
+    const std::string pct = intervals ? fmt_num(100.0 * bootr.level, 0) + "%" : "";
+    if (intervals)
+      for (std::size_t f = 0; f < k; ++f) {
+        hdr.push_back(Cell::txt("Factor " + std::to_string(f + 1) + " " + pct + " from", heading));
+        hdr.push_back(Cell::txt("Factor " + std::to_string(f + 1) + " " + pct + " to", heading));
+      }
     ld.line(std::move(hdr));
     for (std::size_t j : loading_order(model.loadings, p, k)) {
       std::vector<Cell> row{Cell::txt(item_names[j], label)};
@@ -756,6 +1257,13 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
       }
       row.push_back(Cell::num(model.communalities[j], number));
       row.push_back(Cell::num(model.uniquenesses[j], number));
+      if (intervals)
+        for (std::size_t f = 0; f < k; ++f) {
+          // an interval that reaches across zero: the sign of the loading is not settled by the data
+          const bool across = bootr.lower[j * k + f] <= 0.0 && bootr.upper[j * k + f] >= 0.0;
+          row.push_back(Cell::num(bootr.lower[j * k + f], across ? faint : number));
+          row.push_back(Cell::num(bootr.upper[j * k + f], across ? faint : number));
+        }
       ld.line(std::move(row));
     }
     std::vector<Cell> ssrow{Cell::txt("Sum of squared loadings", label)};
@@ -773,6 +1281,7 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   // ---- 3. factors, residuals, reliability ---------------------------------------------------
   Sheet fc;
   fc.base_name = names::factors;
+  fc.column_widths = {5200, 3300, 3300, 3300, 3300, 3300, 3300, 3300, 3300};
   fc.line({Cell::txt("Factors, residuals and reliability", title)});
   if (!model.available) {
     fc.line({Cell::txt("Factor correlations and structure: " + model.reason, note)});
@@ -788,6 +1297,19 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
         std::vector<Cell> row{Cell::txt("Factor " + std::to_string(a + 1), label)};
         for (std::size_t b = 0; b < k; ++b) row.push_back(Cell::num(model.phi[a * k + b], number));
         fc.line(std::move(row));
+      }
+      if (boot && bootr.available) {
+        fc.blank();
+        const std::string pct = fmt_num(100.0 * bootr.level, 0) + "%";
+        fc.line({Cell::txt("Factor correlations with " + pct + " bootstrap intervals", heading), Cell::txt("", heading),
+                 Cell::txt("", heading), Cell::txt("", heading)});
+        fc.line({Cell::txt("Factors", label), Cell::txt("Correlation", label), Cell::txt(pct + " from", label),
+                 Cell::txt(pct + " to", label)});
+        for (std::size_t a = 0; a < k; ++a)
+          for (std::size_t b = a + 1; b < k; ++b)
+            fc.line({Cell::txt("Factor " + std::to_string(a + 1) + " and factor " + std::to_string(b + 1), label),
+                     Cell::num(model.phi[a * k + b], number), Cell::num(bootr.phi_lower[a * k + b], number),
+                     Cell::num(bootr.phi_upper[a * k + b], number)});
       }
       fc.blank();
       fc.line({Cell::txt("Structure: correlations of items with factors", heading)});
@@ -815,7 +1337,85 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
       fc.line(std::move(row));
     }
   }
-  fc.line({Cell::txt("Reliability of each factor's scale (alpha, omega): " + missing_feature, note)});
+  fc.blank();
+  fc.line({Cell::txt("Reliability of each factor's scale", heading), Cell::txt("", heading), Cell::txt("", heading),
+           Cell::txt("", heading), Cell::txt("", heading), Cell::txt("", heading), Cell::txt("", heading)});
+  if (!rel.available) {
+    fc.line({Cell::txt("Reliability (alpha, omega): not computed: " + rel.reason, note)});
+  } else {
+    fc.line({Cell::txt("Each item counts in the scale of the factor it loads on most (its largest absolute loading), "
+                       "as on the loadings sheet.",
+                       note)});
+    if (!rel.reversed_names.empty()) {
+      std::string list;
+      for (const std::string& n : rel.reversed_names) list += (list.empty() ? "" : ", ") + n;
+      fc.line({Cell::txt("Reverse-scored for these figures, because they load negatively on their factor: " + list +
+                             " (lowest plus highest answer given, minus the answer), as a scale score would add them.",
+                         note)});
+    }
+    fc.line({Cell::txt("Alpha (Cronbach 1951) uses the respondents who answered every item of the scale; omega "
+                       "(McDonald 1999) comes from the model's loadings and uniquenesses.",
+                       note)});
+    if (!rel.omega_reason.empty()) fc.line({Cell::txt("Omega not available: " + rel.omega_reason, flag)});
+    fc.line({Cell::txt("Scale", heading), Cell::txt("Items", heading), Cell::txt("Alpha", heading),
+             Cell::txt("Standardised alpha", heading), Cell::txt("Omega", heading),
+             Cell::txt("Mean inter-item correlation", heading), Cell::txt("Respondents used", heading),
+             Cell::txt("Reading (omega)", heading)});
+    for (const ScaleReliability& sr : rel.scales) {
+      std::vector<Cell> row{Cell::txt("Factor " + std::to_string(sr.factor + 1), label),
+                            Cell::num(static_cast<double>(sr.items.size()))};
+      if (sr.have_alpha) {
+        row.push_back(Cell::num(sr.alpha, number));
+        row.push_back(Cell::num(sr.alpha_std, number));
+      } else {
+        row.push_back(Cell::txt(sr.alpha_reason, note));
+        row.push_back(Cell::txt(""));
+      }
+      row.push_back(std::isnan(sr.omega) ? Cell::txt(sr.items.empty() ? "no items" : "not available", note)
+                                         : Cell::num(sr.omega, number));
+      if (sr.have_alpha) {
+        row.push_back(Cell::num(sr.mean_r, number));
+        row.push_back(Cell::num(sr.rows_used));
+      } else {
+        row.push_back(Cell::txt(""));
+        row.push_back(Cell::txt(""));
+      }
+      row.push_back(Cell::txt(reliability_words(sr.omega), note));
+      fc.line(std::move(row));
+    }
+    for (const ScaleReliability& sr : rel.scales) {
+      if (sr.items.empty()) continue;
+      fc.blank();
+      fc.line({Cell::txt("Items of factor " + std::to_string(sr.factor + 1) + "'s scale", heading), Cell::txt("", heading),
+               Cell::txt("", heading), Cell::txt("", heading), Cell::txt("", heading), Cell::txt("", heading),
+               Cell::txt("", heading), Cell::txt("", heading)});
+      fc.line({Cell::txt("Item", label), Cell::txt("Loading", label), Cell::txt("Reverse-scored", label),
+               Cell::txt("Corrected item-total correlation", label), Cell::txt("Alpha if item deleted", label),
+               Cell::txt("Standardised alpha if item deleted", label), Cell::txt("Mean", label), Cell::txt("SD", label)});
+      for (std::size_t c = 0; c < sr.items.size(); ++c) {
+        const std::size_t j = sr.items[c];
+        std::vector<Cell> row{Cell::txt(item_names[j], label), Cell::num(model.loadings[j * k + sr.factor], number),
+                              Cell::txt(sr.reversed[c] ? "yes" : "no")};
+        if (sr.have_alpha) {
+          // under 0.30: the item hardly goes with the rest of its scale (common practice)
+          row.push_back(Cell::num(sr.item_total[c], sr.item_total[c] < 0.30 ? flag : number));
+          // above the scale's alpha: the scale would be more consistent without the item
+          row.push_back(std::isnan(sr.alpha_if_deleted[c]) ? Cell::txt("")
+                                                          : Cell::num(sr.alpha_if_deleted[c], sr.alpha_if_deleted[c] > sr.alpha ? flag : number));
+          row.push_back(std::isnan(sr.alpha_std_if_deleted[c]) ? Cell::txt("") : Cell::num(sr.alpha_std_if_deleted[c], number));
+          row.push_back(Cell::num(sr.means[c], number));
+          row.push_back(Cell::num(sr.sds[c], number));
+        }
+        fc.line(std::move(row));
+      }
+      for (const std::string& n : sr.notes) fc.line({Cell::txt("Note on the scale", flag), Cell::txt(n, note)});
+    }
+    if (std::any_of(rel.scales.begin(), rel.scales.end(), [](const ScaleReliability& x) { return x.have_alpha; }))
+      fc.line({Cell::txt("Flagged: a corrected item-total correlation under 0.30, or an alpha that would rise without "
+                         "the item (common practice).",
+                         note)});
+    for (const std::string& n : rel.omega_notes) fc.line({Cell::txt("Note on omega", flag), Cell::txt(n, note)});
+  }
   fc.blank();
   fc.line({Cell::txt("Item correlations used", heading)});
   {
@@ -891,13 +1491,87 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   rec("Rotation parameter", Cell::num(o.rotation_parameter));
   rec("Factor scores", Cell::txt(o.scores));
   rec("Factor scores placed", Cell::txt(o.scores_place));
+  if (o.scores != "none") {
+    rec("Factor scores written to", Cell::txt(scores.available ? scores_where : "not written: " + scores.reason));
+    rec("Rule for skipped items (scores)", Cell::txt(scores.available ? scores.rule : ""));
+  }
+  rec("Scale membership (reliability)", Cell::txt("largest absolute loading; negative loaders reverse-scored"));
   rec("Bootstrap resamples", Cell::num(o.bootstrap));
+  if (boot) {
+    rec("Bootstrap seed", Cell::txt(std::to_string(o.seed) + " (resample i draws from stream i of it)"));
+    if (bootr.available) {
+      rec("Bootstrap resamples used", Cell::num(bootr.used));
+      rec("Bootstrap resamples failed", Cell::num(bootr.failed));
+      rec("Bootstrap interval level", Cell::num(bootr.level));
+    } else {
+      rec("Bootstrap intervals", Cell::txt("not computed: " + bootr.reason));
+    }
+  }
   rec("Strong loading from", Cell::num(o.salient));
   rec("Random seed", Cell::txt(std::to_string(o.seed)));
   rep.sheets.push_back(std::move(rr));
 
+  // ---- 6. factor scores: beside the data, or on a sheet of their own ------------------------------
+  if (scores.available) {
+    const std::string method = score_method_short(o.scores);
+    auto score_header = [&](std::size_t f) { return "Factor " + std::to_string(f + 1) + " score (" + method + ")"; };
+    auto score_cell = [&](std::size_t r, std::size_t f) {
+      const double v = scores.values[r * k + f];
+      return std::isnan(v) ? Cell{} : Cell::num(v);
+    };
+    if (scores_beside) {
+      Beside b;
+      b.columns = k;
+      b.where = scores_where;
+      std::vector<Cell> hdr;
+      for (std::size_t f = 0; f < k; ++f) {
+        hdr.push_back(Cell::txt(score_header(f)));
+        b.header_comments.push_back("Written by Lode (" + std::string(score_method_words(o.scores)) + "), " + timestamp +
+                                    ". " + scores.cautions + " Blank cells: " + scores.rule + ".");
+      }
+      b.rows.push_back(std::move(hdr));
+      for (std::size_t r = 0; r < n_rows; ++r) {
+        std::vector<Cell> row;
+        for (std::size_t f = 0; f < k; ++f) row.push_back(score_cell(r, f));
+        b.rows.push_back(std::move(row));
+      }
+      rep.beside = std::move(b);
+    } else {
+      Sheet ss;
+      ss.base_name = names::scores;
+      ss.line({Cell::txt("Factor scores", title)});
+      ss.line({Cell::txt(scores.cautions, caution)});
+      ss.line({Cell::txt("Method: " + std::string(score_method_words(o.scores)) + ". Blank cells: " + scores.rule + ".", note)});
+      if (!scores_moved.empty()) ss.line({Cell::txt("On this sheet rather than beside the data because " + scores_moved + ".", note)});
+      ss.blank();
+      // Rows are those of the source range; columns of the range that were not analysed (such as a
+      // respondent code) come along so each row can be matched to its respondent.
+      std::vector<std::size_t> id_cols;
+      for (std::size_t c = 0; c < columns.size() && id_cols.size() < 3; ++c)
+        if (std::find(chosen.begin(), chosen.end(), c) == chosen.end()) id_cols.push_back(c);
+      std::vector<Cell> hdr{Cell::txt("Row in " + src.sheet_name, heading)};
+      for (std::size_t c : id_cols) hdr.push_back(Cell::txt(columns[c].name, heading));
+      for (std::size_t f = 0; f < k; ++f) hdr.push_back(Cell::txt(score_header(f), heading));
+      ss.line(std::move(hdr));
+      for (std::size_t r = 0; r < n_rows; ++r) {
+        std::vector<Cell> row{Cell::num(static_cast<double>(src.first_row + first + r + 1))};
+        for (std::size_t c : id_cols) {
+          const SourceCell& sc = src.at(first + r, c);
+          row.push_back(sc.kind == SourceCell::Kind::number ? Cell::num(sc.number)
+                        : sc.kind == SourceCell::Kind::text ? Cell::txt(sc.text)
+                                                           : Cell{});
+        }
+        for (std::size_t f = 0; f < k; ++f) row.push_back(score_cell(r, f));
+        ss.line(std::move(row));
+      }
+      ss.column_widths.assign(1 + id_cols.size() + k, 4200);
+      rep.sheets.push_back(std::move(ss));
+    }
+  }
+
   rep.summary = "Lode analysed " + std::to_string(p) + " items of " + std::to_string(static_cast<long long>(rows_used)) +
                 " respondents";
+  if (scores_beside) rep.summary += "; factor scores are in " + scores_where;
   step("writing the report", 1.0);
   return rep;
 }

@@ -22,12 +22,14 @@ struct Options {
   std::string extraction = "minres";     // minres | ml | paf
   std::string rotation = "oblimin";      // oblimin | promax | varimax | none
   double rotation_parameter = 0.0;       // oblimin gamma; promax power (0 = the method's usual value)
-  std::string scores = "none";           // none | regression | bartlett
+  std::string scores = "none";           // none | regression | bartlett | tenberge (correlation-preserving)
   std::string scores_place = "beside";   // beside (new columns right of the data, when empty) | sheet
   int bootstrap = 0;                     // resamples; 0 = off
   double salient = 0.30;                 // loadings at least this large (absolute) are emphasised
   std::uint64_t seed = 20261201;
-  int cancel_after_sheets = -1;          // tests only: cancel after writing this many sheets
+  int cancel_after_sheets = -1;          // tests only: cancel after this many writing steps (the score
+                                         // columns beside the data, when written, are the first step;
+                                         // then one step per sheet)
 };
 
 // Checks the option words; throws std::invalid_argument naming the option and the allowed words.
@@ -45,6 +47,12 @@ struct SourceTable {
   std::vector<SourceCell> cells;  // row-major
   std::string address;            // e.g. "$Responses.$A$1:$AE$301"
   std::vector<std::string> column_letters;  // "A", "B", ... of each column
+  std::string sheet_name;                   // the sheet holding the range
+  std::size_t first_column = 0;             // 0-based column of the range's left edge
+  std::size_t first_row = 0;                // 0-based row of the range's top edge
+  // Columns directly right of the range with no content (values, text, formulas, comments) in any of
+  // the range's rows, counted up to 101 and up to the sheet's last column.
+  std::size_t free_columns_right = 0;
   const SourceCell& at(std::size_t r, std::size_t c) const { return cells[r * cols + c]; }
 };
 
@@ -86,7 +94,17 @@ struct Sheet {
   Sheet& blank() { rows.emplace_back(); return *this; }
 };
 
+// Cells the report puts into the source sheet: new columns directly right of the range (only when
+// every one of them is empty; the writer checks again before writing). Row i is row i of the range.
+struct Beside {
+  std::size_t columns = 0;                   // how many columns, starting right of the range
+  std::vector<std::vector<Cell>> rows;       // one per row of the range
+  std::vector<std::string> header_comments;  // a comment (annotation) on each cell of row 0
+  std::string where;                         // in words, e.g. "columns AF to AJ of Responses"
+};
+
 struct Report {
+  std::optional<Beside> beside;       // written first, when present
   std::vector<Sheet> sheets;          // in the order they are written
   std::string summary;                // one line for the status bar and the caller
   std::uint64_t values_hash = 0;
@@ -107,6 +125,9 @@ Report build_report(const SourceTable& source, const Options& options, const std
 // or text cell as a quiet NaN with the bit pattern 0x7ff8000000000000), then the item names, each
 // followed by a NUL byte. The run record shows it in hexadecimal.
 std::uint64_t hash_values(const std::vector<double>& row_major, const std::vector<std::string>& names);
+
+// "A", "B", ..., "Z", "AA", ... of a 0-based column.
+std::string column_name(std::size_t col);
 
 // Sheet names the report uses (its own words).
 namespace names {

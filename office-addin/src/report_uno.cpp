@@ -27,7 +27,14 @@
 #include <com/sun/star/lang/XMultiServiceFactory.hpp>
 #include <com/sun/star/lang/XServiceInfo.hpp>
 #include <com/sun/star/awt/FontSlant.hpp>
+#include <com/sun/star/sheet/CellFlags.hpp>
 #include <com/sun/star/sheet/XCellRangeData.hpp>
+#include <com/sun/star/sheet/XCellRangesQuery.hpp>
+#include <com/sun/star/sheet/XSheetAnnotations.hpp>
+#include <com/sun/star/sheet/XSheetAnnotationsSupplier.hpp>
+#include <com/sun/star/sheet/XSheetCellRanges.hpp>
+#include <com/sun/star/sheet/XSheetOperation.hpp>
+#include <com/sun/star/table/CellAddress.hpp>
 #include <com/sun/star/sheet/XSpreadsheet.hpp>
 #include <com/sun/star/sheet/XSpreadsheets.hpp>
 #include <com/sun/star/sheet/XSpreadsheetView.hpp>
@@ -145,6 +152,34 @@ Options options_from(const Sequence<css::beans::PropertyValue>& props) {
 }
 
 // ---- reading the source range ------------------------------------------------------------------
+// What counts as content: a value, a date, text, a formula or a comment (formatting alone does not).
+constexpr sal_Int32 kContent = css::sheet::CellFlags::VALUE | css::sheet::CellFlags::DATETIME | css::sheet::CellFlags::STRING |
+                               css::sheet::CellFlags::ANNOTATION | css::sheet::CellFlags::FORMULA;
+
+// The first column in [from, to] (rows top..bottom) holding content, or to + 1 when none does.
+sal_Int32 first_filled_column(const Reference<css::sheet::XSpreadsheet>& sheet, sal_Int32 from, sal_Int32 to, sal_Int32 top,
+                              sal_Int32 bottom) {
+  Reference<css::sheet::XCellRangesQuery> q(sheet->getCellRangeByPosition(from, top, to, bottom), UNO_QUERY_THROW);
+  Reference<css::sheet::XSheetCellRanges> hits = q->queryContentCells(static_cast<sal_Int16>(kContent));
+  sal_Int32 first = to + 1;
+  // LibreOffice 7.4 can answer a query over columns that were never used with content from the last
+  // used column, outside the range asked about: only what lies inside the range counts.
+  if (hits.is())
+    for (const css::table::CellRangeAddress& r : hits->getRangeAddresses())
+      if (r.EndColumn >= from && r.StartColumn <= to && r.EndRow >= top && r.StartRow <= bottom)
+        first = std::min(first, std::max(r.StartColumn, from));
+  return first;
+}
+
+// Empty columns directly right of the range (over its rows), counted up to 101.
+std::size_t free_columns_right(const Reference<css::sheet::XSpreadsheet>& sheet, const css::table::CellRangeAddress& a) {
+  Reference<css::table::XColumnRowRange> crr(sheet, UNO_QUERY_THROW);
+  const sal_Int32 last = crr->getColumns()->getCount() - 1;
+  if (a.EndColumn >= last) return 0;
+  const sal_Int32 to = std::min(last, a.EndColumn + 101);
+  return static_cast<std::size_t>(first_filled_column(sheet, a.EndColumn + 1, to, a.StartRow, a.EndRow) - (a.EndColumn + 1));
+}
+
 SourceTable read_source(const Reference<css::sheet::XSpreadsheetDocument>& doc, const css::table::CellRangeAddress& a) {
   if (!doc.is()) throw std::invalid_argument("no document given");
   Reference<css::container::XIndexAccess> sheets(doc->getSheets(), UNO_QUERY_THROW);
@@ -178,6 +213,10 @@ SourceTable read_source(const Reference<css::sheet::XSpreadsheetDocument>& doc, 
       }
     }
   for (std::size_t c = 0; c < cols; ++c) t.column_letters.push_back(column_letters(a.StartColumn + static_cast<sal_Int32>(c)));
+  t.sheet_name = utf8(named->getName());
+  t.first_column = static_cast<std::size_t>(a.StartColumn);
+  t.first_row = static_cast<std::size_t>(a.StartRow);
+  t.free_columns_right = free_columns_right(sheet, a);
   t.address = sheet_ref(utf8(named->getName())) + ".$" + column_letters(a.StartColumn) + "$" + std::to_string(a.StartRow + 1) +
               ":$" + column_letters(a.EndColumn) + "$" + std::to_string(a.EndRow + 1);
   return t;
@@ -281,8 +320,42 @@ class Writer {
     return name;
   }
 
+  // The factor scores in new columns right of the source range, only if they are still empty (they
+  // were when the run began; the user may have typed there since). Recorded for rollback first.
+  void write_beside(const css::table::CellRangeAddress& source, const Beside& b) {
+    Reference<css::container::XIndexAccess> sheets(doc_->getSheets(), UNO_QUERY_THROW);
+    Reference<css::sheet::XSpreadsheet> sheet(sheets->getByIndex(source.Sheet), UNO_QUERY_THROW);
+    const sal_Int32 left = source.EndColumn + 1, right = source.EndColumn + static_cast<sal_Int32>(b.columns);
+    Reference<css::table::XColumnRowRange> crr(sheet, UNO_QUERY_THROW);
+    if (b.columns == 0 || right >= crr->getColumns()->getCount() ||
+        first_filled_column(sheet, left, right, source.StartRow, source.EndRow) <= right)
+      throw std::invalid_argument("the cells right of the data are no longer empty (" + b.where +
+                                  "); Lode never overwrites cells, so nothing was written");
+    beside_ = Reference<css::sheet::XSheetOperation>(
+        sheet->getCellRangeByPosition(left, source.StartRow, right, source.EndRow), UNO_QUERY_THROW);
+    for (std::size_t r = 0; r < b.rows.size(); ++r)
+      for (std::size_t c = 0; c < b.rows[r].size() && c < b.columns; ++c) {
+        const Cell& cell = b.rows[r][c];
+        if (cell.kind == Cell::Kind::empty) continue;
+        Reference<css::table::XCell> xc =
+            sheet->getCellByPosition(left + static_cast<sal_Int32>(c), source.StartRow + static_cast<sal_Int32>(r));
+        if (cell.kind == Cell::Kind::number) xc->setValue(cell.number);
+        else Reference<css::text::XText>(xc, UNO_QUERY_THROW)->setString(ustr(cell.text));
+      }
+    Reference<css::sheet::XSheetAnnotationsSupplier> ann(sheet, UNO_QUERY_THROW);
+    for (std::size_t c = 0; c < b.header_comments.size() && c < b.columns; ++c) {
+      css::table::CellAddress at;
+      at.Sheet = source.Sheet;
+      at.Column = left + static_cast<sal_Int32>(c);
+      at.Row = source.StartRow;
+      ann->getAnnotations()->insertNew(at, ustr(b.header_comments[c]));
+    }
+  }
+
   void rollback() noexcept {
     try {
+      if (beside_.is()) beside_->clearContents(kContent);  // the columns were empty before the run
+      beside_.clear();
       Reference<css::sheet::XSpreadsheets> sheets = doc_->getSheets();
       for (const OUString& n : created_sheets_)
         if (sheets->hasByName(n)) sheets->removeByName(n);
@@ -347,6 +420,7 @@ class Writer {
   bool was_modified_ = false;
   std::vector<OUString> created_sheets_;
   std::vector<OUString> created_styles_;
+  Reference<css::sheet::XSheetOperation> beside_;  // the score columns written beside the data
 };
 
 class AnalysisReport : public cppu::WeakImplHelper2<org::lode::calc::XAnalysisReport, css::lang::XServiceInfo> {
@@ -467,6 +541,12 @@ class AnalysisReport : public cppu::WeakImplHelper2<org::lode::calc::XAnalysisRe
       }
       std::string where;
       int written = 0;
+      if (rep.beside) {
+        if (cancel_.load() || opts.cancel_after_sheets == 0) throw Cancelled{};
+        say("writing the factor scores", 0.8);
+        writer->write_beside(source, *rep.beside);
+        ++written;
+      }
       for (std::size_t i = 0; i < rep.sheets.size(); ++i) {
         if (cancel_.load() || (opts.cancel_after_sheets >= 0 && written >= opts.cancel_after_sheets)) throw Cancelled{};
         say("writing " + rep.sheets[i].base_name, 0.8 + 0.2 * static_cast<double>(i) / static_cast<double>(rep.sheets.size()));

@@ -159,6 +159,52 @@ const std::vector<FunctionSpec> kTable = {
        "The rotation's parameter: oblimin gamma (default 0), promax power (default 4), geomin epsilon (default "
        "0.01); ignored by the others"}},
      "items x factors", "Err:523: no convergence", fn_rotate},
+    {"scores",
+     "LODE.SCORES",
+     "Factor scores of each respondent, rows x factors, from the factor model of LODE.LOADINGS with the same "
+     "arguments. Factor scores are estimates, not measurements: each respondent's score carries error, and "
+     "different scoring methods give different scores. An instrument needs validation for the purpose before its "
+     "scores are used to select, rate or diagnose individuals; local law and professional testing standards govern "
+     "such use.",
+     {{"data", ArgKind::range,
+       "Respondents in rows, items in columns: the answers themselves, not a correlation matrix (empty and text "
+       "cells are missing; a first row of names is used as item names and gets no row of scores)"},
+      {"factors", ArgKind::value, kFactorsHelp},
+      {"method", ArgKind::value, kMethodHelp},
+      {"rotation", ArgKind::value, kRotationHelp},
+      {"score_method", ArgKind::value,
+       "\"regression\" (default, Thurstone 1935), \"bartlett\" (Bartlett 1937) or \"tenberge\" (correlation-"
+       "preserving, ten Berge et al. 1999). A respondent who skipped items is scored from the items answered when "
+       "at least half were answered; otherwise the row shows #NUM!"}},
+     "rows x factors, one row per respondent", "#NUM! in a row: fewer than half of its items answered, not scored; "
+     "Err:502: a correlation matrix as `data`; Err:523: no convergence", fn_scores},
+    {"alpha",
+     "LODE.ALPHA",
+     "Cronbach's alpha of one scale: one row of raw alpha, standardised alpha (from the correlations), the mean "
+     "inter-item correlation and the number of respondents used (those who answered every item).",
+     {{"items", ArgKind::range,
+       "The scale's items: respondents in rows, one column per item, already reverse-scored where needed (empty "
+       "and text cells are missing; a respondent with a missing item is left out)"}},
+     "1 x 4: alpha, standardised alpha, mean inter-item correlation, respondents used", "none beyond Err:502",
+     fn_alpha},
+    {"omega",
+     "LODE.OMEGA",
+     "McDonald's omega of one scale, from a one-factor maximum likelihood fit of its items: (sum of loadings)^2 / "
+     "((sum of loadings)^2 + sum of uniquenesses).",
+     {{"items", ArgKind::range,
+       "The scale's items: respondents in rows, one column per item, already reverse-scored where needed (empty "
+       "and text cells are missing; correlations use each pair's answers), or their square correlation matrix"}},
+     "one number", "#NUM!: matrix not positive definite; Err:523: the one-factor fit did not converge", fn_omega},
+    {"congruence",
+     "LODE.CONGRUENCE",
+     "Tucker's congruence of two loading matrices for the same items: each factor of the first is matched to one "
+     "factor of the second (largest total congruence, reflecting where needed); one row per factor of the first: "
+     "congruence, matched column of the second, sign.",
+     {{"loadings_a", ArgKind::range, "Loadings: items in rows, factors in columns, every cell a number"},
+      {"loadings_b", ArgKind::range,
+       "Loadings of the same items in the same order, with as many factors, e.g. from another sample or method"}},
+     "factors x 3: congruence (0 to 1), matched column of `loadings_b`, sign (1 or -1)",
+     "Err:502: shapes differ, a factor with only zero loadings", fn_congruence},
 };
 
 bool iequal(std::string_view a, std::string_view b) {

@@ -1,6 +1,7 @@
 /* The C ABI from C: every entry point of lode.h, its results and its error paths (NULL pointers,
  * wrong sizes and strides, unknown keys, option structs of an older and a newer size, non-finite
- * input). Compiled as strict C99 (-std=c99 -pedantic -Werror), also under ASan+UBSan.
+ * input, cancelling through a progress callback). Compiled as strict C99 (-std=c99 -pedantic
+ * -Werror), also under ASan+UBSan.
  * Numerical agreement with outside references is checked by the Python suite (numpy, R); the
  * numbers checked here are a published example (Higham 2002) and identities of the interface. */
 #include "lode.h"
@@ -1320,6 +1321,547 @@ static void test_scores(void) {
   lode_data_free(dm);
 }
 
+/* ---- ABI 1.2: progress of lode_fit, item flags, bootstrap -------------------------------------- */
+
+/* What a progress callback saw; `cancel_at` >= 0 cancels at the first report with done >= it. */
+typedef struct progress_log {
+  int calls;
+  int64_t first_done, first_total, last_done, last_total;
+  int ordered; /* every report had 0 <= done <= total, the same total, and done never fell */
+  int64_t cancel_at;
+} progress_log;
+
+static void progress_log_init(progress_log* log, int64_t cancel_at) {
+  memset(log, 0, sizeof *log);
+  log->ordered = 1;
+  log->cancel_at = cancel_at;
+}
+
+static int log_progress(void* user, int64_t done, int64_t total) {
+  progress_log* log = (progress_log*)user;
+  if (log->calls == 0) {
+    log->first_done = done;
+    log->first_total = total;
+  } else if (total != log->last_total || done < log->last_done) {
+    log->ordered = 0;
+  }
+  if (done < 0 || done > total) log->ordered = 0;
+  ++log->calls;
+  log->last_done = done;
+  log->last_total = total;
+  return log->cancel_at >= 0 && done >= log->cancel_at;
+}
+
+static void test_fit_progress(void) {
+  lode_correlation* c = population_correlation(250);
+  lode_model *m = NULL, *plain = NULL;
+  lode_fit_options o;
+  lode_rotation_options ro;
+  progress_log log;
+  double l[12], lp[12], v;
+
+  OK(lode_fit_options_init(&o, sizeof o));
+  CHECK(o.progress == NULL && o.progress_user == NULL);
+  OK(lode_rotation_options_init(&ro, sizeof ro));
+  ro.method = LODE_ROTATION_OBLIMIN;
+  ro.random_starts = 3;
+  o.factors = 2;
+  o.rotation = &ro;
+  OK(lode_fit(c, &o, &plain));
+  /* units: the extraction, then 1 + 3 rotation starts */
+  progress_log_init(&log, -1);
+  o.progress = log_progress;
+  o.progress_user = &log;
+  OK(lode_fit(c, &o, &m));
+  CHECK(log.calls >= 3 && log.ordered);
+  CHECK(log.first_done == 0 && log.first_total == 5);
+  CHECK(log.last_done == 5 && log.last_total == 5);
+  OK(lode_model_value(m, LODE_MODEL_ROTATION_STARTS, &v));
+  CHECK(v == 4.0);
+  /* watching never changes a result */
+  OK(lode_model_matrix(m, LODE_MODEL_LOADINGS, l, 12, NULL, NULL));
+  OK(lode_model_matrix(plain, LODE_MODEL_LOADINGS, lp, 12, NULL, NULL));
+  CHECK(memcmp(l, lp, sizeof l) == 0);
+  lode_model_free(m);
+  m = NULL;
+  lode_model_free(plain);
+
+  /* cancelled before the extraction, after it, and during the rotation's starts: no model */
+  progress_log_init(&log, 0);
+  EXPECT(lode_fit(c, &o, &m), LODE_E_CANCELLED, "cancelled");
+  CHECK(m == NULL && log.calls == 1);
+  progress_log_init(&log, 1);
+  EXPECT(lode_fit(c, &o, &m), LODE_E_CANCELLED, "cancelled");
+  CHECK(m == NULL && log.calls == 2 && log.last_done == 1);
+  progress_log_init(&log, 2);
+  ro.random_starts = 100000; /* far more than 50 ms of work, so a report arrives mid-way */
+  EXPECT(lode_fit(c, &o, &m), LODE_E_CANCELLED, "cancelled");
+  CHECK(m == NULL && log.last_done >= 2 && log.last_done < 100002);
+  ro.random_starts = 3;
+
+  /* unrotated: one unit */
+  progress_log_init(&log, -1);
+  o.rotation = NULL;
+  OK(lode_fit(c, &o, &m));
+  CHECK(log.first_total == 1 && log.last_done == 1 && log.ordered);
+  OK(lode_model_value(m, LODE_MODEL_ROTATION_STARTS, &v));
+  CHECK(v == 1.0);
+  lode_model_free(m);
+  m = NULL;
+
+  /* a caller built against ABI 1.1 passes the struct without the progress fields: they are not read
+   * (here they would cancel at once) */
+  progress_log_init(&log, 0);
+  o.rotation = &ro;
+  o.struct_size = offsetof(lode_fit_options, progress);
+  OK(lode_fit(c, &o, &m));
+  CHECK(log.calls == 0 && m != NULL);
+  lode_model_free(m);
+  m = NULL;
+  /* and its init leaves bytes beyond its size alone */
+  {
+    lode_fit_options small;
+    memset(&small, 0xAB, sizeof small);
+    OK(lode_fit_options_init(&small, offsetof(lode_fit_options, progress)));
+    CHECK(small.struct_size == offsetof(lode_fit_options, progress) && small.factor_count == NULL);
+  }
+  /* a caller from a newer header: unknown trailing bytes must be zero */
+  {
+    struct {
+      lode_fit_options o;
+      double newer;
+    } big;
+    memset(&big, 0, sizeof big);
+    OK(lode_fit_options_init(&big.o, sizeof big));
+    big.o.factors = 2;
+    OK(lode_fit(c, &big.o, &m));
+    lode_model_free(m);
+    m = NULL;
+    big.newer = 1.0;
+    EXPECT(lode_fit(c, &big.o, &m), LODE_E_UNSUPPORTED, "newer");
+    CHECK(m == NULL);
+  }
+  lode_correlation_free(c);
+}
+
+static void test_item_flags(void) {
+  lode_correlation* c = population_correlation(250);
+  lode_model* m = NULL;
+  lode_item_flags* f = NULL;
+  lode_item_flag_options o;
+  lode_fit_options fo;
+  lode_rotation_options ro;
+  double codes[6], table[9 * 5], v;
+  char text[2048];
+  size_t len = 99;
+  int64_t rows = -1, cols = -1;
+  int i;
+
+  OK(lode_fit_options_init(&fo, sizeof fo));
+  OK(lode_rotation_options_init(&ro, sizeof ro));
+  fo.factors = 2;
+  fo.rotation = &ro;
+  OK(lode_fit(c, &fo, &m));
+
+  EXPECT(lode_item_flag_options_init(NULL, sizeof o), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
+  EXPECT(lode_item_flag_options_init(&o, 1), LODE_E_INVALID_ARGUMENT, "too small");
+  OK(lode_item_flag_options_init(&o, sizeof o));
+  /* the defaults (common practice) */
+  CHECK(o.salient == 0.40 && o.cross_loading_gap == 0.20 && o.low_communality == 0.20 && o.heywood_uniqueness == 0.005);
+
+  /* The population solution (loadings .8 .7 .6 / .7 .6 .5, no cross-loadings, communalities >= .25)
+   * raises no flag under the common-practice defaults. */
+  EXPECT(lode_flag_items(NULL, &o, &f), LODE_E_INVALID_ARGUMENT, "'model' is NULL");
+  EXPECT(lode_flag_items(m, &o, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  OK(lode_flag_items(m, NULL, &f));
+  OK(lode_item_flags_matrix(f, LODE_ITEM_FLAGS_TABLE, NULL, 0, &rows, &cols));
+  CHECK(rows == 0 && cols == 5);
+  OK(lode_item_flags_matrix(f, LODE_ITEM_FLAGS_CODES, codes, 6, &rows, &cols));
+  CHECK(rows == 6 && cols == 1);
+  for (i = 0; i < 6; ++i) CHECK(codes[i] == 0.0);
+  OK(lode_item_flags_value(f, LODE_ITEM_FLAGS_COUNT, &v));
+  CHECK(v == 0.0);
+  OK(lode_item_flags_text(f, LODE_ITEM_FLAGS_NOTES, text, sizeof text, &len));
+  CHECK(len == 0 && text[0] == '\0');
+  OK(lode_item_flags_item_notes(f, 5, text, sizeof text, &len));
+  CHECK(len == 0);
+  lode_item_flags_free(f);
+  f = NULL;
+
+  /* Stricter thresholds, the expected flags worked out by hand from the population loadings and
+   * the rules of item_flags.hpp: salient .65 leaves items 3, 5, 6 (largest .6, .6, .5) without a
+   * salient loading; communality below .40 flags items 3, 5, 6 (.36, .36, .25); uniqueness at or
+   * below .55 flags items 1, 2, 4 (.36, .51, .51) as Heywood cases. */
+  o.salient = 0.65;
+  o.low_communality = 0.40;
+  o.heywood_uniqueness = 0.55;
+  OK(lode_flag_items(m, &o, &f));
+  OK(lode_item_flags_matrix(f, LODE_ITEM_FLAGS_CODES, codes, 6, NULL, NULL));
+  CHECK(codes[0] == LODE_FLAG_HEYWOOD_CASE && codes[1] == LODE_FLAG_HEYWOOD_CASE &&
+        codes[3] == LODE_FLAG_HEYWOOD_CASE);
+  CHECK(codes[2] == (LODE_FLAG_NO_SALIENT_LOADING | LODE_FLAG_LOW_COMMUNALITY));
+  CHECK(codes[4] == codes[2] && codes[5] == codes[2]);
+  OK(lode_item_flags_value(f, LODE_ITEM_FLAGS_COUNT, &v));
+  CHECK(v == 9.0);
+  OK(lode_item_flags_value(f, LODE_ITEM_FLAGS_ITEMS_FLAGGED, &v));
+  CHECK(v == 6.0);
+  OK(lode_item_flags_value(f, LODE_ITEM_FLAGS_ITEMS, &v));
+  CHECK(v == 6.0);
+  OK(lode_item_flags_value(f, LODE_ITEM_FLAGS_SALIENT, &v));
+  CHECK(v == 0.65);
+  OK(lode_item_flags_value(f, LODE_ITEM_FLAGS_CROSS_LOADING_GAP, &v));
+  CHECK(v == 0.20);
+  OK(lode_item_flags_value(f, LODE_ITEM_FLAGS_LOW_COMMUNALITY, &v));
+  CHECK(v == 0.40);
+  OK(lode_item_flags_value(f, LODE_ITEM_FLAGS_HEYWOOD_UNIQUENESS, &v));
+  CHECK(v == 0.55);
+  OK(lode_item_flags_matrix(f, LODE_ITEM_FLAGS_TABLE, table, 9 * 5, &rows, &cols));
+  CHECK(rows == 9 && cols == 5);
+  /* rows in item order: item 3 (index 2) is rows 2 and 3: no salient loading (.6 on factor 1), then
+   * low communality (.36) */
+  CHECK(table[2 * 5 + 0] == 2.0 && table[2 * 5 + 1] == LODE_FLAG_NO_SALIENT_LOADING && table[2 * 5 + 2] == 0.0 &&
+        table[2 * 5 + 3] == -1.0 && fabs(table[2 * 5 + 4] - 0.6) < 1e-4);
+  CHECK(table[3 * 5 + 0] == 2.0 && table[3 * 5 + 1] == LODE_FLAG_LOW_COMMUNALITY && fabs(table[3 * 5 + 4] - 0.36) < 1e-4);
+  CHECK(table[0] == 0.0 && table[1] == LODE_FLAG_HEYWOOD_CASE && fabs(table[4] - 0.36) < 1e-4);
+  OK(lode_item_flags_matrix(f, LODE_ITEM_FLAGS_COMMUNALITIES, codes, 6, NULL, NULL));
+  CHECK(fabs(codes[0] - 0.64) < 1e-4 && fabs(codes[5] - 0.25) < 1e-4);
+  OK(lode_item_flags_text(f, LODE_ITEM_FLAGS_NOTES, NULL, 0, &len));
+  CHECK(len > 0);
+  OK(lode_item_flags_item_notes(f, 2, text, sizeof text, &len));
+  CHECK(strstr(text, "no salient loading") != NULL && strstr(text, "low communality") != NULL);
+  CHECK(strchr(text, '\n') != NULL && strlen(text) == len);
+  OK(lode_item_flags_item_notes(f, 0, text, sizeof text, NULL));
+  CHECK(strstr(text, "Heywood") != NULL && strchr(text, '\n') == NULL);
+  EXPECT(lode_item_flags_item_notes(f, 6, text, sizeof text, NULL), LODE_E_INVALID_ARGUMENT, "item 6 does not exist");
+  EXPECT(lode_item_flags_item_notes(f, -1, text, sizeof text, NULL), LODE_E_INVALID_ARGUMENT, "numbered 0 to 5");
+  EXPECT(lode_item_flags_item_notes(f, 2, text, 4, NULL), LODE_E_BUFFER_TOO_SMALL, "buffer holds 4");
+  EXPECT(lode_item_flags_item_notes(NULL, 2, text, sizeof text, NULL), LODE_E_INVALID_ARGUMENT, "'flags' is NULL");
+  EXPECT(lode_item_flags_matrix(f, LODE_ITEM_FLAGS_CODES, codes, 5, NULL, NULL), LODE_E_BUFFER_TOO_SMALL, "holds 5");
+  EXPECT(lode_item_flags_matrix(f, LODE_ITEM_FLAGS_TABLE, NULL, 3, NULL, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  EXPECT(lode_item_flags_matrix(f, LODE_ITEM_FLAGS_COUNT, codes, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "key 1020");
+  EXPECT(lode_item_flags_value(f, LODE_ITEM_FLAGS_CODES, &v), LODE_E_INVALID_ARGUMENT, "key 1000");
+  EXPECT(lode_item_flags_value(f, LODE_ITEM_FLAGS_COUNT, NULL), LODE_E_INVALID_ARGUMENT, "'value' is NULL");
+  EXPECT(lode_item_flags_text(f, LODE_ITEM_FLAGS_COUNT, text, sizeof text, NULL), LODE_E_INVALID_ARGUMENT, "key 1020");
+  EXPECT(lode_item_flags_matrix(NULL, LODE_ITEM_FLAGS_CODES, codes, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT(lode_item_flags_value(NULL, LODE_ITEM_FLAGS_COUNT, &v), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT(lode_item_flags_text(NULL, LODE_ITEM_FLAGS_NOTES, text, sizeof text, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  lode_item_flags_free(f);
+  f = NULL;
+
+  /* a gap of .75 makes every item whose largest loading is below .75 a cross-loading (its second
+   * loading is 0): items 2-6 */
+  OK(lode_item_flag_options_init(&o, sizeof o));
+  o.cross_loading_gap = 0.75;
+  OK(lode_flag_items(m, &o, &f));
+  OK(lode_item_flags_matrix(f, LODE_ITEM_FLAGS_CODES, codes, 6, NULL, NULL));
+  CHECK(codes[0] == 0.0);
+  for (i = 1; i < 6; ++i) CHECK(codes[i] == LODE_FLAG_CROSS_LOADING);
+  OK(lode_item_flags_matrix(f, LODE_ITEM_FLAGS_TABLE, table, 9 * 5, &rows, NULL));
+  CHECK(rows == 5 && table[3] >= 0.0 && table[3] != table[2] && fabs(table[4]) < 1e-4);
+  lode_item_flags_free(f);
+  f = NULL;
+
+  /* bad thresholds, non-finite thresholds, an older and a broken struct */
+  o.salient = 1.5;
+  EXPECT(lode_flag_items(m, &o, &f), LODE_E_INVALID_ARGUMENT, "thresholds must lie in [0, 1]");
+  o.salient = nan_value();
+  EXPECT(lode_flag_items(m, &o, &f), LODE_E_INVALID_ARGUMENT, "salient nan");
+  o.salient = 0.4;
+  o.low_communality = -0.1;
+  EXPECT(lode_flag_items(m, &o, &f), LODE_E_INVALID_ARGUMENT, "low communality -0.1");
+  CHECK(f == NULL);
+  o.struct_size = offsetof(lode_item_flag_options, low_communality); /* older: salient and gap only */
+  OK(lode_flag_items(m, &o, &f));
+  OK(lode_item_flags_value(f, LODE_ITEM_FLAGS_LOW_COMMUNALITY, &v));
+  CHECK(v == 0.20);
+  lode_item_flags_free(f);
+  f = NULL;
+  o.struct_size = 0;
+  EXPECT(lode_flag_items(m, &o, &f), LODE_E_INVALID_ARGUMENT, "lode_item_flag_options_init");
+  CHECK(f == NULL);
+  lode_item_flags_free(NULL);
+  lode_model_free(m);
+  lode_correlation_free(c);
+}
+
+/* Type 7 quantile (Hyndman & Fan 1996; R's default, numpy's "linear"), written out here. */
+static int compare_doubles(const void* a, const void* b) {
+  double x = *(const double*)a, y = *(const double*)b;
+  return x < y ? -1 : x > y ? 1 : 0;
+}
+static double quantile7(double* v, size_t n, double q) {
+  double h, lo;
+  size_t j;
+  qsort(v, n, sizeof *v, compare_doubles);
+  h = (double)(n - 1) * q;
+  lo = floor(h);
+  j = (size_t)lo;
+  return j + 1 < n ? v[j] + (h - lo) * (v[j + 1] - v[j]) : v[n - 1];
+}
+
+static void test_bootstrap(void) {
+  double x[N_ROWS * N_ITEMS], est[12], lo[12], hi[12], se[12], fitted[12], phi[4], philo[4], phihi[4], v;
+  double reps[40 * 12], col[40], other[12];
+  char text[4096];
+  size_t len = 0;
+  int64_t rows = -1, cols = -1, used, i, k;
+  lode_data *d = NULL, *dm = NULL;
+  lode_correlation *c = NULL, *cm = NULL;
+  lode_model* m = NULL;
+  lode_bootstrap_result *b = NULL, *b2 = NULL;
+  lode_bootstrap_options bo;
+  lode_fit_options fo;
+  lode_rotation_options ro;
+  progress_log log;
+
+  make_data(x);
+  x[9 * N_ITEMS + 4] = nan_value(); /* a missing answer: pairwise correlations in every replicate */
+  OK(lode_data_from_raw(x, N_ROWS, N_ITEMS, N_ITEMS, 1, &d));
+  OK(lode_correlate(d, NULL, &c));
+  OK(lode_fit_options_init(&fo, sizeof fo));
+  OK(lode_rotation_options_init(&ro, sizeof ro));
+  fo.factors = 2;
+  fo.rotation = &ro;
+
+  EXPECT(lode_bootstrap_options_init(NULL, sizeof bo), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
+  OK(lode_bootstrap_options_init(&bo, sizeof bo));
+  CHECK(bo.replicates == 1000 && bo.level == 0.95 && bo.seed == 1 && bo.threads == 0 &&
+        bo.replicate_random_starts == 0 && bo.keep_replicates == 0 && bo.progress == NULL);
+  bo.replicates = 40;
+  bo.seed = 11;
+  bo.keep_replicates = 1;
+  progress_log_init(&log, -1);
+  bo.progress = log_progress;
+  bo.progress_user = &log;
+
+  EXPECT(lode_bootstrap(NULL, &fo, &bo, &b), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
+  EXPECT(lode_bootstrap(c, &fo, &bo, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  EXPECT(lode_bootstrap(c, NULL, &bo, &b), LODE_E_INVALID_ARGUMENT, "number of factors");
+  CHECK(b == NULL && log.calls == 0);
+  OK(lode_bootstrap(c, &fo, &bo, &b));
+  CHECK(log.calls >= 2 && log.ordered && log.first_done == 0 && log.last_done == 40 && log.last_total == 40);
+
+  /* the estimates are lode_fit's solution with the same options */
+  OK(lode_fit(c, &fo, &m));
+  OK(lode_model_matrix(m, LODE_MODEL_LOADINGS, fitted, 12, NULL, NULL));
+  OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_LOADINGS, NULL, 0, &rows, &cols));
+  CHECK(rows == N_ITEMS && cols == 2);
+  OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_LOADINGS, est, 12, NULL, NULL));
+  CHECK(max_abs_diff(est, fitted, 12) < 1e-12);
+  OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_LOADINGS_LOWER, lo, 12, NULL, NULL));
+  OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_LOADINGS_UPPER, hi, 12, NULL, NULL));
+  OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_LOADINGS_SE, se, 12, NULL, NULL));
+  for (k = 0; k < 12; ++k) CHECK(lo[k] <= hi[k] && se[k] >= 0.0 && hi[k] - lo[k] < 2.0);
+  OK(lode_bootstrap_value(b, LODE_BOOTSTRAP_REPLICATES, &v));
+  CHECK(v == 40.0);
+  OK(lode_bootstrap_value(b, LODE_BOOTSTRAP_USED, &v));
+  used = (int64_t)v;
+  OK(lode_bootstrap_value(b, LODE_BOOTSTRAP_FAILED, &v));
+  CHECK(used + (int64_t)v == 40 && used >= 2);
+  OK(lode_bootstrap_value(b, LODE_BOOTSTRAP_POORLY_MATCHED, &v));
+  CHECK(v >= 0.0 && v <= (double)used);
+  OK(lode_bootstrap_value(b, LODE_BOOTSTRAP_LEVEL, &v));
+  CHECK(v == 0.95);
+  OK(lode_bootstrap_value(b, LODE_BOOTSTRAP_ITEMS, &v));
+  CHECK(v == N_ITEMS);
+  OK(lode_bootstrap_value(b, LODE_BOOTSTRAP_FACTORS, &v));
+  CHECK(v == 2.0);
+  OK(lode_bootstrap_value(b, LODE_BOOTSTRAP_OBLIQUE, &v));
+  CHECK(v == 0.0);
+  /* orthogonal: the identity with zero-width intervals */
+  OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_FACTOR_CORRELATIONS, phi, 4, &rows, &cols));
+  CHECK(rows == 2 && cols == 2 && phi[0] == 1.0 && phi[1] == 0.0);
+  OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_FACTOR_CORRELATIONS_LOWER, philo, 4, NULL, NULL));
+  OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_FACTOR_CORRELATIONS_UPPER, phihi, 4, NULL, NULL));
+  CHECK(fabs(philo[1]) < 1e-12 && fabs(phihi[1]) < 1e-12);
+  OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_FACTOR_CORRELATIONS_SE, phi, 4, NULL, NULL));
+  {
+    double u[N_ITEMS], ulo[N_ITEMS], uhi[N_ITEMS], use[N_ITEMS];
+    OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_UNIQUENESSES, u, N_ITEMS, &rows, &cols));
+    CHECK(rows == N_ITEMS && cols == 1);
+    OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_UNIQUENESSES_LOWER, ulo, N_ITEMS, NULL, NULL));
+    OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_UNIQUENESSES_UPPER, uhi, N_ITEMS, NULL, NULL));
+    OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_UNIQUENESSES_SE, use, N_ITEMS, NULL, NULL));
+    for (k = 0; k < N_ITEMS; ++k) CHECK(ulo[k] <= uhi[k] && ulo[k] > 0.0 && uhi[k] <= 1.0 && use[k] >= 0.0);
+  }
+  OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_MIN_CONGRUENCE, col, 40, &rows, &cols));
+  CHECK(rows == used && cols == 1 && col[0] > 0.0 && col[0] <= 1.0 + 1e-12);
+
+  /* kept replicates: the interval of each loading is the type 7 quantile pair of its column, the
+   * standard error the column's standard deviation (n - 1) */
+  OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_REPLICATE_LOADINGS, NULL, 0, &rows, &cols));
+  CHECK(rows == used && cols == 12);
+  OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_REPLICATE_LOADINGS, reps, 40 * 12, NULL, NULL));
+  for (k = 0; k < 12; ++k) {
+    double mean = 0.0, ss = 0.0;
+    for (i = 0; i < used; ++i) mean += col[i] = reps[i * 12 + k];
+    mean /= (double)used;
+    for (i = 0; i < used; ++i) ss += (col[i] - mean) * (col[i] - mean);
+    CHECK(fabs(sqrt(ss / (double)(used - 1)) - se[k]) < 1e-12);
+    CHECK(fabs(quantile7(col, (size_t)used, 0.025) - lo[k]) < 1e-12);
+    CHECK(fabs(quantile7(col, (size_t)used, 0.975) - hi[k]) < 1e-12);
+  }
+  OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_REPLICATE_UNIQUENESSES, NULL, 0, &rows, &cols));
+  CHECK(rows == used && cols == N_ITEMS);
+  OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_REPLICATE_FACTOR_CORRELATIONS, NULL, 0, &rows, &cols));
+  CHECK(rows == used && cols == 4);
+
+  OK(lode_bootstrap_text(b, LODE_BOOTSTRAP_ALIGNMENT, text, sizeof text, &len));
+  CHECK(strstr(text, "congruence") != NULL && strlen(text) == len);
+  OK(lode_bootstrap_text(b, LODE_BOOTSTRAP_NOTES, text, sizeof text, NULL));
+  CHECK(strstr(text, "percentile intervals") != NULL);
+  OK(lode_bootstrap_text(b, LODE_BOOTSTRAP_FAILURES, NULL, 0, &len));
+  OK(lode_bootstrap_value(b, LODE_BOOTSTRAP_FAILED, &v));
+  CHECK((len == 0) == (v == 0.0));
+
+  EXPECT(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_LOADINGS, est, 11, NULL, NULL), LODE_E_BUFFER_TOO_SMALL, "6 x 2");
+  EXPECT(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_USED, est, 12, NULL, NULL), LODE_E_INVALID_ARGUMENT, "key 921");
+  EXPECT(lode_bootstrap_value(b, LODE_BOOTSTRAP_LOADINGS, &v), LODE_E_INVALID_ARGUMENT, "key 900");
+  EXPECT(lode_bootstrap_value(b, LODE_BOOTSTRAP_USED, NULL), LODE_E_INVALID_ARGUMENT, "'value' is NULL");
+  EXPECT(lode_bootstrap_text(b, LODE_BOOTSTRAP_USED, text, sizeof text, NULL), LODE_E_INVALID_ARGUMENT, "key 921");
+  EXPECT(lode_bootstrap_text(b, LODE_BOOTSTRAP_NOTES, text, 3, NULL), LODE_E_BUFFER_TOO_SMALL, "buffer holds 3");
+  EXPECT(lode_bootstrap_matrix(NULL, LODE_BOOTSTRAP_LOADINGS, est, 12, NULL, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT(lode_bootstrap_value(NULL, LODE_BOOTSTRAP_USED, &v), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT(lode_bootstrap_text(NULL, LODE_BOOTSTRAP_NOTES, text, sizeof text, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+
+  /* the same seed gives the same intervals whatever the thread count; another seed other intervals */
+  bo.progress = NULL;
+  bo.keep_replicates = 0;
+  bo.threads = 1;
+  OK(lode_bootstrap(c, &fo, &bo, &b2));
+  OK(lode_bootstrap_matrix(b2, LODE_BOOTSTRAP_LOADINGS_LOWER, other, 12, NULL, NULL));
+  CHECK(memcmp(other, lo, sizeof other) == 0);
+  EXPECT(lode_bootstrap_matrix(b2, LODE_BOOTSTRAP_REPLICATE_LOADINGS, reps, 40 * 12, NULL, NULL),
+         LODE_E_INVALID_ARGUMENT, "keep_replicates");
+  lode_bootstrap_free(b2);
+  b2 = NULL;
+  bo.threads = 2;
+  bo.seed = 12;
+  OK(lode_bootstrap(c, &fo, &bo, &b2));
+  OK(lode_bootstrap_matrix(b2, LODE_BOOTSTRAP_LOADINGS_LOWER, other, 12, NULL, NULL));
+  CHECK(memcmp(other, lo, sizeof other) != 0);
+  lode_bootstrap_free(b2);
+  b2 = NULL;
+
+  /* oblique rotation: factor correlations with proper intervals; one factor: a 1 x 1 identity */
+  ro.method = LODE_ROTATION_OBLIMIN;
+  bo.replicates = 20;
+  OK(lode_bootstrap(c, &fo, &bo, &b2));
+  OK(lode_bootstrap_value(b2, LODE_BOOTSTRAP_OBLIQUE, &v));
+  CHECK(v == 1.0);
+  OK(lode_bootstrap_matrix(b2, LODE_BOOTSTRAP_FACTOR_CORRELATIONS_LOWER, philo, 4, NULL, NULL));
+  OK(lode_bootstrap_matrix(b2, LODE_BOOTSTRAP_FACTOR_CORRELATIONS_UPPER, phihi, 4, NULL, NULL));
+  CHECK(philo[1] < phihi[1] && fabs(philo[1] - philo[2]) < 1e-12);
+  lode_bootstrap_free(b2);
+  b2 = NULL;
+  fo.factors = 1;
+  OK(lode_bootstrap(c, &fo, &bo, &b2));
+  OK(lode_bootstrap_matrix(b2, LODE_BOOTSTRAP_FACTOR_CORRELATIONS, phi, 4, &rows, &cols));
+  CHECK(rows == 1 && cols == 1 && phi[0] == 1.0);
+  lode_bootstrap_free(b2);
+  b2 = NULL;
+  fo.factors = 2;
+  ro.method = LODE_ROTATION_VARIMAX;
+
+  /* cancelled through the callback: LODE_E_CANCELLED and no result */
+  progress_log_init(&log, 0);
+  bo.progress = log_progress;
+  bo.replicates = 100000;
+  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_CANCELLED, "cancelled");
+  CHECK(b2 == NULL && log.calls >= 1);
+  progress_log_init(&log, 3);
+  bo.replicates = 20000; /* far more than 50 ms of work, so a report arrives mid-way */
+  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_CANCELLED, "cancelled");
+  CHECK(b2 == NULL && log.last_done >= 3 && log.last_done < 20000);
+
+  /* bad options */
+  OK(lode_bootstrap_options_init(&bo, sizeof bo));
+  bo.replicates = 1;
+  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "replicates must be between 2 and 1000000; it is 1");
+  bo.replicates = 20;
+  bo.level = 1.0;
+  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "level");
+  bo.level = nan_value();
+  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "level");
+  bo.level = inf_value();
+  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "level");
+  bo.level = 0.9;
+  bo.threads = -1;
+  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "threads");
+  bo.threads = 1;
+  bo.replicate_random_starts = -2;
+  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "replicate_random_starts");
+  bo.replicate_random_starts = 0;
+  fo.method = 42;
+  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "unknown extraction method 42");
+  fo.method = LODE_ML;
+  ro.method = 99;
+  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "unknown rotation method 99");
+  ro.method = LODE_ROTATION_VARIMAX;
+  fo.factors = 5;
+  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_TOO_MANY_FACTORS, NULL);
+  fo.factors = 2;
+  /* a full-sample fit that does not converge is an error, not intervals around it */
+  fo.max_iterations = 1;
+  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_NOT_CONVERGED, "full-sample");
+  fo.max_iterations = 1000;
+  CHECK(b2 == NULL);
+  bo.struct_size = 1;
+  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "lode_bootstrap_options_init");
+  /* an older options struct (no keep_replicates or progress): those take their defaults */
+  progress_log_init(&log, 0);
+  OK(lode_bootstrap_options_init(&bo, sizeof bo));
+  bo.replicates = 10;
+  bo.keep_replicates = 1;
+  bo.progress = log_progress;
+  bo.progress_user = &log;
+  bo.struct_size = offsetof(lode_bootstrap_options, keep_replicates);
+  OK(lode_bootstrap(c, &fo, &bo, &b2));
+  CHECK(log.calls == 0);
+  EXPECT(lode_bootstrap_matrix(b2, LODE_BOOTSTRAP_REPLICATE_LOADINGS, reps, 40 * 12, NULL, NULL),
+         LODE_E_INVALID_ARGUMENT, "keep_replicates");
+  lode_bootstrap_free(b2);
+  b2 = NULL;
+  /* NULL options: the defaults (1000 replicates) */
+  OK(lode_bootstrap(c, &fo, NULL, &b2));
+  OK(lode_bootstrap_value(b2, LODE_BOOTSTRAP_REPLICATES, &v));
+  CHECK(v == 1000.0);
+  lode_bootstrap_free(b2);
+  b2 = NULL;
+  /* a newer caller's struct with a field this library lacks set */
+  {
+    struct {
+      lode_bootstrap_options o;
+      int64_t newer;
+    } big;
+    memset(&big, 0, sizeof big);
+    OK(lode_bootstrap_options_init(&big.o, sizeof big));
+    big.o.replicates = 5;
+    big.newer = 3;
+    EXPECT(lode_bootstrap(c, &fo, &big.o, &b2), LODE_E_UNSUPPORTED, "newer");
+    big.newer = 0;
+    OK(lode_bootstrap(c, &fo, &big.o, &b2));
+    lode_bootstrap_free(b2);
+    b2 = NULL;
+  }
+  /* a correlation given as a matrix has no respondents to resample */
+  {
+    double r[36];
+    population_matrix(r);
+    OK(lode_data_from_correlation(r, 6, 6, 1, 200, &dm));
+    OK(lode_correlate(dm, NULL, &cm));
+    EXPECT(lode_bootstrap(cm, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "raw data");
+    CHECK(b2 == NULL);
+  }
+  lode_bootstrap_free(NULL);
+  lode_bootstrap_free(b);
+  lode_model_free(m);
+  lode_correlation_free(c);
+  lode_correlation_free(cm);
+  lode_data_free(d);
+  lode_data_free(dm);
+}
+
 static void test_last_error_is_cleared(void) {
   lode_data* d = NULL;
   EXPECT(lode_data_from_raw(NULL, 1, 1, 1, 1, &d), LODE_E_INVALID_ARGUMENT, "NULL");
@@ -1343,6 +1885,9 @@ int main(void) {
   test_rotation();
   test_fit();
   test_scores();
+  test_fit_progress();
+  test_item_flags();
+  test_bootstrap();
   test_last_error_is_cleared();
   printf("%d checks, %d failures\n", checks, failures);
   return failures == 0 ? 0 : 1;

@@ -68,6 +68,26 @@ int main() {
     check(loadings[t] == loadings[0], "same loadings in every thread");
     check(errors[t].find(std::to_string(10 + t) + " factors") != std::string::npos, "each thread's own message");
   }
+  // Two bootstraps of the same handle at once (ABI 1.2): the same seed gives the same intervals.
+  std::vector<std::vector<double>> upper(2, std::vector<double>(p * 2));
+  threads.clear();
+  for (int t = 0; t < 2; ++t)
+    threads.emplace_back([&, t] {
+      lode_fit_options fo;
+      lode_fit_options_init(&fo, sizeof fo);
+      fo.factors = 2;
+      lode_bootstrap_options bo;
+      lode_bootstrap_options_init(&bo, sizeof bo);
+      bo.replicates = 30;
+      bo.threads = 1 + t;
+      lode_bootstrap_result* b = nullptr;
+      status[t] = lode_bootstrap(c, &fo, &bo, &b);
+      if (b) lode_bootstrap_matrix(b, LODE_BOOTSTRAP_LOADINGS_UPPER, upper[t].data(), upper[t].size(), nullptr, nullptr);
+      lode_bootstrap_free(b);
+    });
+  for (auto& th : threads) th.join();
+  check(status[0] == LODE_OK && status[1] == LODE_OK, "bootstrap in a thread");
+  check(upper[0] == upper[1], "same intervals in every thread, whatever the thread count");
   lode_correlation_free(c);
   std::printf("liblode %s, ABI %d.%d: %d failures\n", v->string, v->abi_major, v->abi_minor, failures);
   return failures == 0 ? 0 : 1;

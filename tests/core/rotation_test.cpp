@@ -13,6 +13,8 @@
 #include <cmath>
 #include <limits>
 #include <string>
+#include <utility>
+#include <vector>
 
 using namespace lode;
 using lode::testing::run_python;
@@ -312,6 +314,38 @@ TEST(Rotation, RandomStartsAreDeterministicAndThreadIndependent) {
   EXPECT_GE(one.starts.reached_best, 1);
   o.seed = 8;
   EXPECT_NE(rotate(a, o).starts.criteria, one.starts.criteria);
+}
+
+// Progress reports count the starts, never change the result, and a false return cancels.
+TEST(Rotation, ProgressCountsStartsAndCancels) {
+  const Matrix& a = harman(3);
+  auto o = opts(RotationMethod::geomin);
+  o.random_starts = 5;
+  o.seed = 3;
+  EXPECT_EQ(rotation_start_count(o), 6);
+  EXPECT_EQ(rotation_start_count(opts(RotationMethod::geomin)), 11);  // the method's default: 10 random starts
+  EXPECT_EQ(rotation_start_count(opts(RotationMethod::varimax)), 1);
+  EXPECT_EQ(rotation_start_count(opts(RotationMethod::promax)), 1);
+  const auto plain = rotate(a, o);
+  std::vector<std::pair<std::int64_t, std::int64_t>> reports;
+  o.progress = [&](std::int64_t done, std::int64_t total) {
+    reports.emplace_back(done, total);
+    return true;
+  };
+  const auto watched = rotate(a, o);
+  EXPECT_EQ(watched.pattern, plain.pattern);
+  EXPECT_EQ(watched.starts.criteria, plain.starts.criteria);
+  ASSERT_GE(reports.size(), 2u);
+  EXPECT_EQ(reports.front(), std::make_pair(std::int64_t{0}, std::int64_t{6}));
+  EXPECT_EQ(reports.back(), std::make_pair(std::int64_t{6}, std::int64_t{6}));
+  for (const auto& [done, total] : reports) EXPECT_TRUE(done >= 0 && done <= total && total == 6);
+  o.progress = [](std::int64_t, std::int64_t) { return false; };
+  try {
+    rotate(a, o);
+    ADD_FAILURE() << "a cancelled rotation returned";
+  } catch (const Error& e) {
+    EXPECT_EQ(e.code(), ErrorCode::cancelled);
+  }
 }
 
 // Each criterion's analytic gradient agrees with central finite differences of its value.

@@ -65,6 +65,63 @@ void read_correlation(const lode_correlation* c, Bytes& in) {
 }
 
 
+// A progress callback that cancels after a number of reports chosen by the input (negative: never).
+int fuzz_progress(void* user, int64_t done, int64_t total) {
+  auto* left = static_cast<int*>(user);
+  if (done < 0 || done > total) __builtin_trap();  // the interface promises 0 <= done <= total
+  if (*left < 0) return 0;
+  return (*left)-- == 0 ? 1 : 0;
+}
+
+// Item flags of a fitted model with thresholds chosen by the input (some outside [0, 1]), read back.
+void flag(const lode_model* m, Bytes& in) {
+  lode_item_flag_options o;
+  lode_item_flag_options_init(&o, sizeof o);
+  const uint8_t plan = in.byte();
+  if (plan & 1) o.salient = (in.byte() % 12) / 10.0;
+  if (plan & 2) o.cross_loading_gap = (in.byte() % 12) / 10.0 - 0.05;
+  if (plan & 4) o.low_communality = (in.byte() % 12) / 10.0;
+  if (plan & 8) o.heywood_uniqueness = (in.byte() % 12) / 10.0;
+  if (plan & 16) o.struct_size = offsetof(lode_item_flag_options, low_communality);
+  lode_item_flags* f = nullptr;
+  if (lode_flag_items(m, &o, &f) != LODE_OK) return;
+  double buf[512], v;
+  for (int key = 1000; key < 1003; ++key) lode_item_flags_matrix(f, key, buf, 512, nullptr, nullptr);
+  for (int key = 1020; key < 1027; ++key) lode_item_flags_value(f, key, &v);
+  char text[4096];
+  lode_item_flags_text(f, LODE_ITEM_FLAGS_NOTES, text, sizeof text, nullptr);
+  for (int64_t item = -1; item < 15; ++item) lode_item_flags_item_notes(f, item, text, sizeof text, nullptr);
+  lode_item_flags_free(f);
+}
+
+// The bootstrap of the fit's solution with a tiny number of replicates, read back in full.
+void bootstrap(const lode_correlation* c, const lode_fit_options& fit, Bytes& in) {
+  lode_bootstrap_options o;
+  lode_bootstrap_options_init(&o, sizeof o);
+  const uint8_t plan = in.byte();
+  o.replicates = plan % 5;  // 0 and 1 are refused
+  o.level = (plan & 8) ? 0.5 : 0.95;
+  o.seed = in.byte();
+  o.threads = 1 + (plan >> 7);
+  o.keep_replicates = (plan >> 4) & 1;
+  o.replicate_random_starts = ((plan >> 5) & 1) ? -1 : 0;
+  int cancel_after = (plan & 64) ? static_cast<int>(in.byte() % 3) : -1;
+  o.progress = fuzz_progress;
+  o.progress_user = &cancel_after;
+  lode_bootstrap_result* b = nullptr;
+  if (lode_bootstrap(c, &fit, &o, &b) != LODE_OK) return;
+  double buf[1024], v;
+  for (int key = 900; key < 916; ++key) {
+    int64_t rows = 0, cols = 0;
+    if (lode_bootstrap_matrix(b, key, nullptr, 0, &rows, &cols) == LODE_OK && rows * cols <= 1024)
+      lode_bootstrap_matrix(b, key, buf, static_cast<size_t>(rows * cols), nullptr, nullptr);
+  }
+  for (int key = 918; key < 930; ++key) lode_bootstrap_value(b, key, &v);
+  char text[4096];
+  for (int key = 949; key < 954; ++key) lode_bootstrap_text(b, key, text, sizeof text, nullptr);
+  lode_bootstrap_free(b);
+}
+
 // Factorability, a small factor count, a fit with the chosen method and rotation, and a rotation of
 // the fitted loadings, each read back in full.
 void analyse(const lode_correlation* c, Bytes& in) {
@@ -115,11 +172,25 @@ void analyse(const lode_correlation* c, Bytes& in) {
   fo.max_iterations = 200;
   fo.rotation = (plan & 4) ? &ro : nullptr;
   fo.factor_count = &co;
+  int cancel_after = (plan & 8) ? static_cast<int>(in.byte() % 4) : -1;
+  fo.progress = fuzz_progress;
+  fo.progress_user = &cancel_after;
   lode_model* m = nullptr;
   if (lode_fit(c, &fo, &m) != LODE_OK) return;
+  flag(m, in);
+  // The bootstrap of the same solution (needs a number of factors, so the one found when it was 0).
+  {
+    double k = 0.0;
+    lode_model_value(m, LODE_MODEL_FACTORS, &k);
+    lode_fit_options bf = fo;
+    bf.factors = static_cast<int>(k);
+    bf.progress = nullptr;
+    ro.struct_size = sizeof ro;
+    bootstrap(c, bf, in);
+  }
   double buf[256], v;
   for (int key = 400; key < 411; ++key) lode_model_matrix(m, key, buf, 256, nullptr, nullptr);
-  for (int key = 420; key < 445; ++key) lode_model_value(m, key, &v);
+  for (int key = 420; key < 450; ++key) lode_model_value(m, key, &v);
   char text[2048];
   lode_model_text(m, LODE_MODEL_NOTES, text, sizeof text, nullptr);
   int64_t rows = 0, cols = 0;

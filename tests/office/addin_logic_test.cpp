@@ -1,12 +1,15 @@
 // The add-in's UNO-free logic: the declarative table's consistency, the cache's bounds and thread
 // safety, and argument reading, without a LibreOffice.
 #include "cache.hpp"
+#include "functions.hpp"
 #include "table.hpp"
 
 #include <gtest/gtest.h>
 
 #include <atomic>
 #include <cctype>
+#include <cmath>
+#include <random>
 #include <set>
 #include <thread>
 #include <vector>
@@ -97,6 +100,91 @@ TEST(AddinCache, IsSafeFromManyThreads) {
   for (auto& th : threads) th.join();
   EXPECT_LE(cache.stats().entries, 8u);
   EXPECT_GT(cache.stats().hits, 0u);
+}
+
+// A block of answers for the cache tests below: two groups of three items, each group driven by its own
+// normal variable. Inputs only, from a seeded generator: these tests count cache hits, the numbers are
+// checked against references in tests/office/test_scores_reliability.py.
+Arg two_factor_answers(std::size_t rows) {
+  std::mt19937_64 gen(20260107);
+  std::normal_distribution<double> z;
+  Arg a;
+  a.kind = Arg::Kind::grid;
+  a.grid.rows = rows;
+  a.grid.cols = 6;
+  for (std::size_t i = 0; i < rows; ++i) {
+    const double f1 = z(gen), f2 = z(gen);
+    for (std::size_t j = 0; j < 6; ++j) a.grid.values.push_back(0.8 * (j < 3 ? f1 : f2) + 0.6 * z(gen));
+  }
+  a.grid.number_cells = a.grid.values.size();
+  return a;
+}
+
+Arg text_arg(const char* t) {
+  Arg a;
+  a.kind = Arg::Kind::text;
+  a.text = t;
+  return a;
+}
+
+TEST(AddinFunctions, ScoresReuseTheFitOfTheLoadings) {
+  std::vector<Arg> args(5);
+  args[0] = two_factor_answers(300);
+  args[1].kind = Arg::Kind::number;
+  args[1].number = 2;
+  args[2] = text_arg("ml");
+  args[3] = text_arg("varimax");
+  ResultCache cache;
+  const Call call{args, cache};
+  const Output loadings = fn_loadings(call);  // args[4] (n_obs) left out
+  ASSERT_EQ(loadings.rows, 6u);
+  ASSERT_EQ(loadings.cols, 2u);
+  const auto before = cache.stats();
+  const Output scores = fn_scores(call);  // args[4] (score_method) left out: regression
+  const auto after = cache.stats();
+  EXPECT_EQ(after.misses - before.misses, 1u);  // the scores themselves; the correlations and the fit were cached
+  EXPECT_EQ(after.hits - before.hits, 2u);
+  ASSERT_EQ(scores.rows, 300u);
+  ASSERT_EQ(scores.cols, 2u);
+  for (const auto& c : scores.cells) EXPECT_TRUE(std::isfinite(c.number) && !c.error);
+  const Output again = fn_scores(call);
+  EXPECT_EQ(cache.stats().misses, after.misses);  // all from the cache
+  for (std::size_t i = 0; i < again.cells.size(); ++i) EXPECT_EQ(again.cells[i].number, scores.cells[i].number);
+  args[4] = text_arg("bartlett");  // another score method: only the scores are computed anew
+  fn_scores(call);
+  EXPECT_EQ(cache.stats().misses, after.misses + 1);
+}
+
+TEST(AddinFunctions, ReliabilityIsComputedOncePerInput) {
+  std::vector<Arg> args(1);
+  args[0] = two_factor_answers(200);
+  ResultCache cache;
+  const Call call{args, cache};
+  const Output a1 = fn_alpha(call);
+  const Output o1 = fn_omega(call);
+  const auto s = cache.stats();
+  const Output a2 = fn_alpha(call);
+  const Output o2 = fn_omega(call);
+  EXPECT_EQ(cache.stats().misses, s.misses);
+  ASSERT_EQ(a1.rows, 1u);
+  ASSERT_EQ(a1.cols, 4u);
+  EXPECT_EQ(a1.cells[3].number, 200.0);  // every respondent answered every item
+  EXPECT_EQ(a2.cells[0].number, a1.cells[0].number);
+  EXPECT_EQ(o2.cells[0].number, o1.cells[0].number);
+}
+
+TEST(AddinFunctions, CongruenceRefusesBlocksOfDifferentShapes) {
+  std::vector<Arg> args(2);
+  args[0] = two_factor_answers(10);
+  args[1] = two_factor_answers(9);
+  ResultCache cache;
+  try {
+    fn_congruence(Call{args, cache});
+    FAIL() << "no error";
+  } catch (const CellError& e) {
+    EXPECT_EQ(e.failure(), Failure::bad_argument);
+    EXPECT_STREQ(e.what(), "'loadings_a' is 10 x 6 but 'loadings_b' is 9 x 6; both need the same items and factors");
+  }
 }
 
 }  // namespace

@@ -4,7 +4,8 @@ entry's URL (org.lode.calc:analyse) to the frame, finds the dialog among the too
 reads its controls through the accessibility tree, takes a screenshot into the build folder and
 presses Run. The report then runs in the background (status bar) and shows its overview when done;
 the test checks what the dialog passed on and takes screenshots of the finished report. Screenshots:
-$LODE_REPORT_DIR/lode-dialog.png, lode-report.png, lode-report-scree.png.
+$LODE_REPORT_DIR/lode-dialog.png, lode-report.png, lode-report-scree.png, lode-report-loadings.png,
+lode-report-reliability.png, lode-report-scores.png.
 """
 
 import os
@@ -20,7 +21,7 @@ import uno  # noqa: F401  (its local context has read URE_MORE_TYPES by now)
 # inherit it: it would replace the office's own list, which brings in the installed extensions' types.
 os.environ.pop("URE_MORE_TYPES", None)
 from com.sun.star.beans import PropertyValue
-from com.sun.star.accessibility.AccessibleRole import PUSH_BUTTON
+from com.sun.star.accessibility.AccessibleRole import CHECK_BOX, COMBO_BOX, PUSH_BUTTON
 from com.sun.star.connection import NoConnectException
 
 from office import SOFFICE, UNOPKG, Office, _run
@@ -120,17 +121,29 @@ def accessible_names(acc, depth=0, out=None):
     return out
 
 
-def find_accessible(acc, name, depth=0):
+def find_accessible(acc, name, depth=0, role=PUSH_BUTTON):
     ctx = acc.getAccessibleContext()
     if ctx is None or depth > 12:
         return None
-    if ctx.getAccessibleName() == name and ctx.getAccessibleRole() == PUSH_BUTTON:
+    if ctx.getAccessibleName() == name and ctx.getAccessibleRole() == role:
         return acc
     for i in range(ctx.getAccessibleChildCount()):
-        hit = find_accessible(ctx.getAccessibleChild(i), name, depth + 1)
+        hit = find_accessible(ctx.getAccessibleChild(i), name, depth + 1, role)
         if hit is not None:
             return hit
     return None
+
+
+def choose(dialog, dropdown, entry):
+    """Selects `entry` in the dropdown named `dropdown` through its accessible list (as a screen
+    reader would); returns the entries offered."""
+    combo = find_accessible(dialog, dropdown, role=COMBO_BOX)
+    assert combo is not None, f"no dropdown {dropdown!r}"
+    lst = combo.getAccessibleContext().getAccessibleChild(1).getAccessibleContext()
+    entries = [lst.getAccessibleChild(i).getAccessibleContext().getAccessibleName()
+               for i in range(lst.getAccessibleChildCount())]
+    lst.selectAccessibleChild(entries.index(entry))
+    return entries
 
 
 def find_dialog(office, timeout=60):
@@ -170,6 +183,14 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
     with windowed.watchdog(120):
         dialog = find_dialog(windowed)
         assert dialog is not None, f"the dialog did not appear ({errors})"
+        # Ask for factor scores (regression, beside the data) and bootstrap intervals (500 resamples,
+        # the field's default): the options this run must pass on.
+        offered = choose(dialog, "Factor scores", "Regression")
+        assert offered == ["None", "Regression", "Bartlett", "Correlation-preserving"], offered
+        assert choose(dialog, "Put the scores", "Beside the data, if empty")[1] == "On a sheet of their own"
+        box = find_accessible(dialog, "Bootstrap intervals", role=CHECK_BOX)
+        assert box is not None, "no Bootstrap intervals check box"
+        box.getAccessibleContext().doAccessibleAction(0)
         time.sleep(1.5)  # let it paint
         names = accessible_names(dialog)
     shot = screenshot("lode-dialog.png")
@@ -205,6 +226,11 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
         assert rec["Source range"] == "$Responses.$A$1:$AE$421" and rec["First row holds item names"] == "yes"
         assert rec["Items"].split(", ")[0] == "ROL1" and len(rec["Items"].split(", ")) == 30
         assert rec["Correlations"] == "pearson" and rec["Random seed"] == "20261201"
+        assert rec["Factor scores"] == "regression" and rec["Factor scores placed"] == "beside"
+        assert rec["Factor scores written to"].endswith("of Responses, beside the data")
+        assert rec["Bootstrap resamples"] == "500" and rec["Bootstrap seed"].startswith("20261201 ")
+        # the score columns start right of the answers (AE), with their headings
+        assert doc.Sheets.getByName("Responses").getCellRangeByName("AF1").String == "Factor 1 score (regression)"
     time.sleep(2)
     screenshot("lode-report.png")
     with windowed.watchdog(60):
@@ -215,6 +241,20 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
         ctrl.setActiveSheet(doc.Sheets.getByName("Lode loadings"))
     time.sleep(2)
     screenshot("lode-report-loadings.png")
+    with windowed.watchdog(60):
+        fs = doc.Sheets.getByName("Lode factors")
+        row = next(r for r in range(400) if fs.getCellByPosition(0, r).String == "Reliability of each factor's scale")
+        ctrl.setActiveSheet(fs)
+        ctrl.select(fs.getCellByPosition(0, row + 40))  # scrolls the section into view
+        ctrl.select(fs.getCellByPosition(0, row))
+    time.sleep(2)
+    screenshot("lode-report-reliability.png")
+    with windowed.watchdog(60):
+        resp = doc.Sheets.getByName("Responses")
+        ctrl.setActiveSheet(resp)
+        ctrl.select(resp.getCellRangeByName("AF1"))
+    time.sleep(2)
+    screenshot("lode-report-scores.png")
 
     # The service called directly writes a second report beside the first.
     svc = windowed.smgr.createInstanceWithContext("org.lode.calc.AnalysisReport", windowed.ctx)

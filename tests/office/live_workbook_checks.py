@@ -3,8 +3,10 @@ example-sheets/make_live_workbook.py) opened in a real headless LibreOffice with
 every formula on its "Live analysis" sheet evaluates without an error, each Lode formula's cells
 equal the C library on the same answers (its Python binding, capi/python/lode) and, where the
 definition is short, numpy/scipy; the loadings put each item on its intended factor as the demo's
-generator built it (volunteer-survey-truth.json); and the workbook lists no function as missing
-that the extension now offers (then it must be regenerated).
+generator built it (volunteer-survey-truth.json); the reliability section's scales are the items the
+generator built for each factor, read from the sheet "Scale items" whose formulas reverse the
+reverse-keyed items; and the workbook lists no function as missing that the extension now offers
+(then it must be regenerated).
 
 Run by ctest as office_live_workbook (tests/office/CMakeLists.txt). The file name keeps it out of
 the cell-function run.
@@ -28,6 +30,7 @@ HERE = os.path.dirname(os.path.abspath(__file__))
 SHEETS = os.path.join(HERE, "..", "..", "example-sheets")
 WORKBOOK = os.path.join(SHEETS, "volunteer-survey-live.ods")
 SHEET = "Live analysis"
+KEYED = "Scale items"  # make_live_workbook.py's sheet of answers as the scales read them
 SEED = 2026  # make_live_workbook.py's seed
 TOL = 1e-12  # the cells hold the C library's doubles
 # A Lode call as Calc's API gives it: by its programmatic name (ORG.LODE.CALC.CELLFUNCTIONS.KMO(...),
@@ -43,6 +46,49 @@ def answers():
     with open(os.path.join(SHEETS, "volunteer-survey-responses.csv"), newline="") as f:
         rows = list(csv.reader(f))
     return rows[0][1:], np.array([[float(v) if v != "" else np.nan for v in r[1:]] for r in rows[1:]])
+
+
+def demo_truth():
+    with open(os.path.join(SHEETS, "volunteer-survey-truth.json")) as f:
+        return json.load(f)
+
+
+def keyed_answers():
+    """The answers as a scale reads them: reverse-keyed items (the generator's list) reversed on the
+    five-point scale, (categories + 1) - answer."""
+    names, x = answers()
+    t = demo_truth()
+    x = x.copy()
+    for j, nm in enumerate(names):
+        if nm in t["reverse_keyed"]:
+            x[:, j] = len(t["categories"]) + 1 - x[:, j]
+    return names, x
+
+
+def column_index(letters):
+    n = 0
+    for ch in letters:
+        n = n * 26 + ord(ch) - ord("A") + 1
+    return n - 1
+
+
+RANGE = re.compile(r"\$?'?([^'.]+?)'?\.\$?([A-Z]+)\$?(\d+):\$?([A-Z]+)\$?(\d+)")
+
+
+@pytest.fixture(scope="module")
+def keyed_header(office, book):
+    """The item codes in the first row of the sheet KEYED, left to right."""
+    sheet = book.Sheets.getByName(KEYED)
+    with office.watchdog(60):
+        row = sheet.getCellRangeByPosition(0, 0, 60, 0).getDataArray()[0]
+    return [v for v in row if v != ""]
+
+
+def scale_items(formula, keyed_header):
+    """The item codes a Lode formula over the sheet KEYED reads (the columns of its range)."""
+    m = RANGE.search(formula)
+    assert m and m.group(1) == KEYED, formula
+    return keyed_header[column_index(m.group(2)):column_index(m.group(4)) + 1]
 
 
 @pytest.fixture(scope="module")
@@ -142,7 +188,30 @@ def test_no_function_is_left_out_that_the_extension_offers(cells, functions):
 
 def test_formulas_read_the_responses_range(blocks):
     for f in blocks:
-        assert "$Responses.$" in f or function_of(f) == "LODE.VERSION", f
+        if function_of(f) in ("LODE.ALPHA", "LODE.OMEGA"):
+            assert f"$'{KEYED}'.$" in f, f  # the scales read the answers with reverse-keyed items reversed
+        else:
+            assert "$Responses.$" in f or function_of(f) == "LODE.VERSION", f
+
+
+def test_scale_items_sheet_holds_the_keyed_answers(office, book, keyed_header):
+    """Every cell of the sheet KEYED is a formula over the Responses sheet; its values are the answers
+    with the reverse-keyed items reversed, empty where the answer is empty, items grouped by the
+    factor the generator built them for."""
+    names, x = keyed_answers()
+    t = demo_truth()
+    assert sorted(keyed_header) == sorted(names)
+    order = [t["intended_factor"][nm] for nm in keyed_header]
+    assert order == sorted(order, key=[f["code"] for f in t["factors"]].index)  # grouped by factor
+    sheet = book.Sheets.getByName(KEYED)
+    with office.watchdog(120):
+        got = sheet.getCellRangeByPosition(0, 1, len(names) - 1, x.shape[0]).getDataArray()
+        assert all(str(sheet.getCellByPosition(c, r).getFormula()).startswith("=")
+                   for c in (0, len(names) - 1) for r in (0, 1, x.shape[0]))
+    cells = np.array([[np.nan if v == "" else v for v in row] for row in got], dtype=float)
+    expected = x[:, [names.index(nm) for nm in keyed_header]]
+    assert np.array_equal(np.isnan(cells), np.isnan(expected))
+    assert np.array_equal(cells[~np.isnan(expected)], expected[~np.isnan(expected)])
 
 
 def test_the_answers_are_the_demo_data(office, book):
@@ -156,7 +225,7 @@ def test_the_answers_are_the_demo_data(office, book):
     assert np.array_equal(cells_x[~np.isnan(x)], x[~np.isnan(x)])
 
 
-def test_against_the_c_library(blocks):
+def test_against_the_c_library(blocks, keyed_header):
     names, x = answers()
     p = len(names)
     ref = lode.correlation(x, method="pearson", missing="pairwise", item_names=names)
@@ -250,10 +319,53 @@ def test_against_the_c_library(blocks):
             rmsr = [v for label, v in values.items() if "rmsr" in label or "root mean square residual" in label][0]
             assert abs(rmsr - model.statistics["rmsr"]) < 1e-9
             checked.add("LODE.FIT")
+        for f, _, m in by_function(blocks, "LODE.SCORES"):
+            s = numbers(m)
+            ref_scores = binding("scores")(None, model, "regression")
+            assert s.shape[1] == kk
+            assert np.max(np.abs(s - ref_scores.values[:s.shape[0]])) < 1e-9
+            # numpy: a volunteer who answered every item scores z W, z the answers standardised with each
+            # item's mean and standard deviation over its answers
+            z = (x - np.nanmean(x, axis=0)) / np.nanstd(x, axis=0, ddof=1)
+            complete = [i for i in range(s.shape[0]) if not np.isnan(x[i]).any()]
+            assert complete
+            assert np.max(np.abs(s[complete] - z[complete] @ ref_scores.weights)) < 1e-9
+            checked.add("LODE.SCORES")
+    keyed_names, keyed = keyed_answers()
+    t = demo_truth()
     for name in ["LODE.ALPHA", "LODE.OMEGA"]:
+        scales = set()
         for f, _, m in by_function(blocks, name):
-            cols = CALL.match(f).group(2)
-            pytest.fail(f"{name}({cols}) is on the sheet but this test has no reference for it yet")
+            items = scale_items(f, keyed_header)
+            # the items the generator built for one factor, all of them
+            codes = {t["intended_factor"][nm] for nm in items}
+            assert len(codes) == 1, (f, items)
+            assert set(items) == {nm for nm, c in t["intended_factor"].items() if c in codes}, (f, items)
+            scales |= codes
+            y = keyed[:, [keyed_names.index(nm) for nm in items]]
+            if name == "LODE.ALPHA":
+                cells = numbers(m)[0]
+                a = binding("alpha")(y)
+                assert np.max(np.abs(cells - [a.alpha, a.alpha_standardized, a.mean_inter_item_correlation,
+                                              a.rows_used])) < TOL
+                # Cronbach (1951) on the complete rows, numpy: k/(k-1) (1 - sum of item variances / variance
+                # of the total); standardised: k rbar / (1 + (k-1) rbar)
+                yc = y[~np.isnan(y).any(axis=1)]
+                q = yc.shape[1]
+                raw = q / (q - 1) * (1 - yc.var(axis=0, ddof=1).sum() / yc.sum(axis=1).var(ddof=1))
+                rbar = np.corrcoef(yc, rowvar=False)[np.triu_indices(q, 1)].mean()
+                assert abs(cells[0] - raw) < 1e-12 and abs(cells[2] - rbar) < 1e-12
+                assert abs(cells[1] - q * rbar / (1 + (q - 1) * rbar)) < 1e-12 and cells[3] == yc.shape[0]
+            else:
+                o = binding("omega")(X=y, missing="pairwise")
+                assert o.converged
+                assert abs(m[0][0] - o.omega[0]) < TOL
+                # McDonald (1999), numpy: (sum of loadings)^2 / ((sum of loadings)^2 + sum of uniquenesses)
+                sl = o.loadings.sum()
+                assert abs(m[0][0] - sl * sl / (sl * sl + o.uniquenesses.sum())) < 1e-12
+            checked.add(name)
+        if name in checked:  # one row per factor the generator built
+            assert scales == {fac["code"] for fac in t["factors"]}, (name, scales)
     present = {function_of(f) for f in blocks}
     assert present == checked, f"unchecked: {present - checked}"
     assert {"LODE.VERSION", "LODE.EIGEN"} <= checked or {"LODE.VERSION", "LODE.PARALLEL"} <= checked, checked

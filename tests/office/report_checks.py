@@ -189,18 +189,14 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
     assert np.max(np.abs(eig - np.sort(np.linalg.eigvalsh(ref.matrix))[::-1])) < 1e-10
     assert np.max(np.abs(share - ref.eigenvalues / ref.eigenvalues.sum())) < TOL
     random_col = [ov[start + k][3] for k in range(p)]
-    if hasattr(lode, "n_factors"):  # the C ABI's factor count: parallel analysis with the run's seed
-        cnt = lode.n_factors(x, replicates=500, seed=4242, correlation="pearson", missing="pairwise", item_names=names)
-        assert np.max(np.abs(np.array(random_col) - cnt.parallel["random_pc_percentile"])) < TOL
-        decision = find_row(ov, "Decision")
-        assert decision[1] == cnt.suggested and decision[2] == cnt.reason
-        rules_at = [i for i, r in enumerate(ov) if r[:2] == ["Rule", "Factors"]][0] + 1
-        assert [(r["rule"], str(r["factors"])) for r in cnt.table] == \
-               [(ov[rules_at + i][0], ov[rules_at + i][1]) for i in range(len(cnt.table))]
-    else:  # not behind the C ABI yet: the report says so instead of a number
-        assert "not in this liblode yet" in random_col[0]
-        assert find_row(ov, "Eigenvalues above 1")[1] == int(np.sum(ref.eigenvalues > 1))
-        assert "not in this liblode yet" in find_row(ov, "Decision")[1]
+    # the C ABI's factor count: parallel analysis with the run's seed
+    cnt = lode.n_factors(x, replicates=500, seed=4242, correlation="pearson", missing="pairwise", item_names=names)
+    assert np.max(np.abs(np.array(random_col) - cnt.parallel["random_pc_percentile"])) < TOL
+    decision = find_row(ov, "Decision")
+    assert decision[1] == cnt.suggested and decision[2] == cnt.reason
+    rules_at = [i for i, r in enumerate(ov) if r[:2] == ["Rule", "Factors"]][0] + 1
+    assert [(r["rule"], str(r["factors"])) for r in cnt.table] == \
+           [(ov[rules_at + i][0], ov[rules_at + i][1]) for i in range(len(cnt.table))]
     # Factorability: the C library, and the textbook formulas in numpy/scipy (KMO: Kaiser 1974, from
     # the anti-image partial correlations; Bartlett 1950: -(n - 1 - (2p + 5)/6) log det R on p(p-1)/2 df).
     fa = lode.factorability(ref)
@@ -246,10 +242,7 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
     style = survey.StyleFamilies.getByName("CellStyles").getByName("Lode heading")
     assert style.CellBackColor == 0xDCE8D2 and not style.IsCellBackgroundTransparent
 
-    if hasattr(lode, "fit") and hasattr(lode, "n_factors"):
-        check_model(survey, ov, ld, x, names, cnt.suggested, salient=0.35, seed=4242)
-    else:  # extraction is not behind the C ABI yet: the report says so
-        assert any(isinstance(r[0], str) and "not in this liblode yet" in r[0] for r in ld)
+    check_model(survey, ov, ld, x, names, cnt.suggested, salient=0.35, seed=4242)
 
     fc = read_sheet(survey.Sheets.getByName("Lode factors"))
     top = [i for i, r in enumerate(fc) if r[:1] == ["Item correlations used"]][0] + 1
@@ -262,10 +255,8 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
     sc = read_sheet(sc_sheet)
     top = [i for i, r in enumerate(sc) if r[:2] == ["Factor", "Observed eigenvalue"]][0]
     assert np.max(np.abs(np.array([sc[top + 1 + k][1] for k in range(p)]) - ref.eigenvalues)) < TOL
-    lines = 2
-    if hasattr(lode, "n_factors"):  # the random-data line beside the observed one
-        lines = 3
-        assert np.max(np.abs(np.array([sc[top + 1 + k][2] for k in range(p)]) - cnt.parallel["random_pc_percentile"])) < TOL
+    lines = 3  # the random-data line beside the observed one
+    assert np.max(np.abs(np.array([sc[top + 1 + k][2] for k in range(p)]) - cnt.parallel["random_pc_percentile"])) < TOL
     charts = sc_sheet.getCharts()
     assert charts.getCount() == 1
     chart = charts.getByIndex(0)
@@ -402,6 +393,9 @@ def test_background_run_finishes_and_reports(office, survey, service):
     (dict(Items=["ROL1", "NOPE"]), "NOPE"),
     (dict(Items=["respondent", "ROL1", "ROL2"]), "no numbers"),
     (dict(Colour="green"), "unknown option Colour"),
+    (dict(Scores="anderson"), "tenberge"),
+    (dict(ScoresPlace="below"), "ScoresPlace"),
+    (dict(Bootstrap=-5), "Bootstrap"),
 ])
 def test_bad_options_are_named_and_change_nothing(office, survey, service, opts, words):
     before = snapshot(survey)
@@ -436,3 +430,400 @@ def test_cell_functions_and_report_service_live_side_by_side(office, service):
     finally:
         with office.watchdog(60):
             doc.close(True)
+
+
+# --- reliability, factor scores -----------------------------------------------------------------------
+
+K_FIXED = 5  # the demo's designed factors (volunteer-survey-truth.json); fixed so the references need no count
+
+
+def survey_rows():
+    """The demo CSV as spreadsheet rows: the header, then respondent code and answers (None = empty)."""
+    with open(os.path.join(SHEETS, "volunteer-survey-responses.csv"), newline="") as f:
+        rows = list(csv.reader(f))
+    return [rows[0]] + [[r[0]] + [float(v) if v != "" else None for v in r[1:]] for r in rows[1:]]
+
+
+def new_book(office, rows, extra=()):
+    """A new workbook whose first sheet ('Answers') holds `rows` from A1; `extra` are (col, row, value)
+    cells written as well (to fill cells right of the data)."""
+    from office import fill
+    doc = office.new_calc()
+    with office.watchdog(120):
+        sheet = doc.Sheets.getByIndex(0)
+        sheet.Name = "Answers"
+        fill(sheet, 0, 0, rows)
+        for c, r, v in extra:
+            cell = sheet.getCellByPosition(c, r)
+            if isinstance(v, str):
+                cell.setString(v)
+            else:
+                cell.setValue(v)
+    return doc
+
+
+def range_of(doc, sheet_name, cols, rows):
+    a = uno.createUnoStruct("com.sun.star.table.CellRangeAddress")
+    a.Sheet = sheet_names(doc).index(sheet_name)
+    a.StartColumn, a.StartRow, a.EndColumn, a.EndRow = 0, 0, cols - 1, rows - 1
+    return a
+
+
+def cell_value(sheet, c, r):
+    cell = sheet.getCellByPosition(c, r)
+    t = cell.Type.value
+    return None if t == "EMPTY" else cell.String if t == "TEXT" else cell.Value
+
+
+def numpy_alpha(x):
+    """Cronbach (1951) from its definition, with numpy: k/(k-1) (1 - sum of item variances / variance
+    of the total), variances with n - 1; standardised alpha k rbar / (1 + (k-1) rbar)."""
+    k = x.shape[1]
+    raw = k / (k - 1) * (1 - x.var(axis=0, ddof=1).sum() / x.sum(axis=1).var(ddof=1))
+    r = np.corrcoef(x, rowvar=False)
+    rbar = r[~np.eye(k, dtype=bool)].mean()
+    return raw, k * rbar / (1 + (k - 1) * rbar), rbar
+
+
+def test_reliability_per_scale_matches_the_c_library_and_numpy(office, survey, service):
+    names, x = survey_values()
+    p = len(names)
+    before = sheet_names(survey)
+    with office.watchdog(300):
+        service.run(survey, source(survey), props(Factors=K_FIXED, Seed=77))
+    new = [n for n in sheet_names(survey) if n not in before]
+    fc = read_sheet(survey.Sheets.getByName(new[2]))
+    # The C library with the report's options (minres, oblimin gamma 0, pairwise Pearson, the seed).
+    m = lode.fit(x, factors=K_FIXED, method="minres", rotation="oblimin", seed=77, missing="pairwise",
+                 correlation="pearson", item_names=names, gamma=0.0)
+    L, psi = m.loadings, m.uniquenesses
+    home = np.argmax(np.abs(L), axis=1)  # numpy: the factor of each item's largest absolute loading
+    om = lode.omega(m)
+    assert list(om.assignment) == list(home)  # the C library's rule is the one the sheet states
+    reversed_ = L[np.arange(p), home] < 0
+    text = " ".join(str(v) for r in fc for v in r if isinstance(v, str))
+    assert "largest absolute loading" in text
+    rev_names = [n for n, r in zip(names, reversed_) if r]
+    assert rev_names, "the demo has reverse-keyed items (volunteer-survey-truth.json)"
+    assert "Reverse-scored for these figures, because they load negatively on their factor: " + \
+        ", ".join(rev_names) in text
+
+    at = [i for i, r in enumerate(fc) if r[:3] == ["Scale", "Items", "Alpha"]][0] + 1
+    order = sorted(range(p), key=lambda j: (home[j], -abs(L[j, home[j]])))
+    for f in range(K_FIXED):
+        row = fc[at + f]
+        items = [j for j in order if home[j] == f]
+        assert row[0] == f"Factor {f + 1}" and row[1] == len(items)
+        # Omega (McDonald 1999) from the loadings, with numpy: (sum lambda)^2 / ((sum lambda)^2 + sum psi),
+        # reverse-scored items entering with their loading's sign reversed.
+        lam = np.abs(L[items, f])
+        omega_np = lam.sum() ** 2 / (lam.sum() ** 2 + psi[items].sum())
+        if reversed_[items].any():  # from the refit to the reversed correlations: equal up to the fit's tolerance
+            assert abs(row[4] - omega_np) < 1e-6, (f, row[4], omega_np)
+        else:  # the C library's omega of this model, exactly
+            assert abs(row[4] - om.omega[f]) < 1e-12 and abs(row[4] - omega_np) < 1e-10
+        # Alpha on the scale's items, reverse-scored ones as (lowest + highest answer) - answer.
+        xs = x[:, items].copy()
+        for c, j in enumerate(items):
+            if reversed_[j]:
+                xs[:, c] = np.nanmin(x[:, j]) + np.nanmax(x[:, j]) - xs[:, c]
+        a = lode.alpha(xs, item_names=[names[j] for j in items])  # the C library
+        complete = xs[~np.isnan(xs).any(axis=1)]
+        raw, std, rbar = numpy_alpha(complete)
+        assert abs(row[2] - a.alpha) < 1e-12 and abs(row[2] - raw) < 1e-10
+        assert abs(row[3] - a.alpha_standardized) < 1e-12 and abs(row[3] - std) < 1e-10
+        assert abs(row[5] - rbar) < 1e-10 and row[6] == complete.shape[0] == a.rows_used
+        # The items of the scale: loading, reverse-scoring, corrected item-total correlation, alpha if
+        # deleted (numpy: alpha of the other items; the item against the sum of the others).
+        top = [i for i, r in enumerate(fc) if r[:1] == [f"Items of factor {f + 1}'s scale"]][0] + 2
+        for c, j in enumerate(items):
+            r = fc[top + c]
+            assert r[0] == names[j] and abs(r[1] - L[j, f]) < 1e-12 and r[2] == ("yes" if reversed_[j] else "no")
+            rest = np.delete(complete, c, axis=1)
+            itc = np.corrcoef(complete[:, c], rest.sum(axis=1))[0, 1]
+            assert abs(r[3] - a.item_total_correlation[c]) < 1e-12 and abs(r[3] - itc) < 1e-10
+            if len(items) > 2:
+                assert abs(r[4] - a.alpha_if_deleted[c]) < 1e-12 and abs(r[4] - numpy_alpha(rest)[0]) < 1e-10
+                assert abs(r[5] - numpy_alpha(rest)[1]) < 1e-10
+            assert abs(r[6] - complete[:, c].mean()) < 1e-10 and abs(r[7] - complete[:, c].std(ddof=1)) < 1e-10
+    rr = read_sheet(survey.Sheets.getByName(new[4]))
+    rec = {r[0]: r[1] for r in rr if r and len(r) > 1 and r[1] is not None}
+    assert rec["Scale membership (reliability)"].startswith("largest absolute loading")
+
+
+def scores_block(sheet, top, left, rows, cols):
+    return [[cell_value(sheet, left + c, top + r) for c in range(cols)] for r in range(rows)]
+
+
+def check_score_values(got, ref):
+    """Cells against the C library's scores: a number where it has one, an empty cell where it has NaN."""
+    for i, row in enumerate(got):
+        for f, v in enumerate(row):
+            if np.isnan(ref[i, f]):
+                assert v is None, (i, f, v)
+            else:
+                assert v is not None and abs(v - ref[i, f]) < 1e-12, (i, f, v, ref[i, f])
+
+
+def test_scores_beside_the_data_when_the_columns_are_empty(office, service):
+    names, x = survey_values()
+    rows = survey_rows()
+    doc = new_book(office, rows)
+    try:
+        n, cols = len(rows), len(rows[0])
+        before = snapshot(doc)
+        with office.watchdog(300):
+            said = service.run(doc, range_of(doc, "Answers", cols, n),
+                               props(Factors=K_FIXED, Scores="regression", ScoresPlace="beside", Seed=5))
+        assert "columns AF to AJ of Answers" in said
+        answers = doc.Sheets.getByName("Answers")
+        # The data block itself is unchanged; the only new cells of the sheet are the score columns.
+        (c0, r0, c1, r1), block = used_block(answers)
+        assert (c0, r0, c1, r1) == (0, 0, cols - 1 + K_FIXED, n - 1)
+        assert tuple(row[:cols] for row in block) == before["Answers"][1]
+        assert "Lode scores" not in sheet_names(doc)
+        hdr = scores_block(answers, 0, cols, 1, K_FIXED)[0]
+        assert hdr == [f"Factor {f + 1} score (regression)" for f in range(K_FIXED)]
+        m = lode.fit(x, factors=K_FIXED, method="minres", rotation="oblimin", seed=5, missing="pairwise",
+                     correlation="pearson", item_names=names, gamma=0.0)
+        s = lode.scores(x, m, "regression")  # the C library; pairwise runs score from the answered items
+        check_score_values(scores_block(answers, 1, cols, n - 1, K_FIXED), s.values)
+        assert s.rows_partial > 0  # respondents who skipped items, scored from what they answered
+        # (blank rows, left by the listwise rule, are checked in test_scores_never_overwrite_a_filled_column)
+        # the cautions next to the scores: a comment on each heading
+        anns = answers.getAnnotations()
+        notes = {(a.Position.Column, a.Position.Row): a.String for a in (anns.getByIndex(i) for i in range(anns.getCount()))}
+        assert sorted(notes) == [(cols + f, 0) for f in range(K_FIXED)]
+        for t in notes.values():
+            assert s.cautions in t and "at least 50%" in t
+        ov = read_sheet(doc.Sheets.getByName("Lode overview"))
+        assert find_row(ov, "Written to")[1] == "columns AF to AJ of Answers, beside the data"
+        assert find_row(ov, "Respondents scored from every item")[1] == s.rows_complete
+        assert find_row(ov, "Respondents scored from the items they answered")[1] == s.rows_partial
+        assert find_row(ov, "Respondents without scores (blank)")[1] == s.rows_missing
+        assert "at least 50%" in find_row(ov, "Rule for skipped items")[1]
+        assert [s.cautions] in [r[:1] for r in ov]
+        det = [i for i, r in enumerate(ov) if r[:2] == ["Factor", "Determinacy"]][0] + 1
+        for f in range(K_FIXED):
+            assert abs(ov[det + f][1] - s.determinacy[f]) < 1e-12 and abs(ov[det + f][2] - s.validity[f]) < 1e-12
+        rr = read_sheet(doc.Sheets.getByName("Lode run record"))
+        rec = {r[0]: r[1] for r in rr if r and len(r) > 1 and r[1] is not None}
+        assert rec["Factor scores"] == "regression" and rec["Factor scores placed"] == "beside"
+        assert rec["Factor scores written to"] == "columns AF to AJ of Answers, beside the data"
+
+        # A second run asking for scores beside the data finds those columns filled: its scores go to a
+        # sheet of their own and the first run's columns stay as they were.
+        first = snapshot(doc)
+        with office.watchdog(300):
+            said = service.run(doc, range_of(doc, "Answers", cols, n),
+                               props(Factors=K_FIXED, Scores="bartlett", ScoresPlace="beside", Seed=5))
+        assert used_block(answers) == first["Answers"]
+        assert "Lode scores" in sheet_names(doc) and "Lode scores" in said
+    finally:
+        with office.watchdog(60):
+            doc.close(True)
+
+
+def test_scores_never_overwrite_a_filled_column(office, service):
+    names, x = survey_values()
+    rows = survey_rows()
+    cols, n = len(rows[0]), len(rows)
+    # column AH (two right of the data) holds a note in one row: five score columns would cover it
+    doc = new_book(office, rows, extra=[(cols + 2, 57, "checked by hand")])
+    try:
+        before = snapshot(doc)
+        with office.watchdog(300):
+            said = service.run(doc, range_of(doc, "Answers", cols, n),
+                               props(Factors=K_FIXED, Scores="tenberge", ScoresPlace="beside", Missing="listwise",
+                                     Seed=9))
+        assert snapshot(doc)["Answers"] == before["Answers"]  # nothing written beside the data
+        assert "Lode scores" in said
+        ov = read_sheet(doc.Sheets.getByName("Lode overview"))
+        assert find_row(ov, "Written to")[1] == "Lode scores"
+        assert "not all empty" in find_row(ov, "Not beside the data")[1]
+        sc = read_sheet(doc.Sheets.getByName("Lode scores"))
+        m = lode.fit(x, factors=K_FIXED, method="minres", rotation="oblimin", seed=9, missing="listwise",
+                     correlation="pearson", item_names=names, gamma=0.0)
+        s = lode.scores(x, m, "tenberge", missing="leave_missing")  # listwise: any skipped item, no scores
+        assert s.rows_missing == int(np.isnan(x).any(axis=1).sum())  # numpy: the incomplete rows
+        text = " ".join(str(v) for r in sc[:6] for v in r if isinstance(v, str))
+        assert s.cautions in text and "skipped any item" in text and "not all empty" in text
+        hdr = [i for i, r in enumerate(sc) if r[:1] == ["Row in Answers"]][0]
+        assert sc[hdr][1:] == ["respondent"] + [f"Factor {f + 1} score (correlation-preserving)" for f in range(K_FIXED)]
+        body = sc[hdr + 1:hdr + n]
+        assert [r[0] for r in body] == list(range(2, n + 1))  # the sheet rows of the respondents
+        assert [r[1] for r in body] == [r[0] for r in rows[1:]]  # their codes, to match them up
+        check_score_values([r[2:2 + K_FIXED] for r in body], s.values)
+    finally:
+        with office.watchdog(60):
+            doc.close(True)
+
+
+def test_ml_varimax_regression_scores_match_r_factanal(office, service):
+    names, x = survey_values()
+    xc = x[~np.isnan(x).any(axis=1)]  # factanal needs complete data: the complete respondents alone
+    rows = [names] + xc.tolist()
+    doc = new_book(office, rows)
+    try:
+        with office.watchdog(300):
+            service.run(doc, range_of(doc, "Answers", len(names), len(rows)),
+                        props(Factors=K_FIXED, Extraction="ml", Rotation="varimax", Scores="regression",
+                              ScoresPlace="sheet"))
+        sc = read_sheet(doc.Sheets.getByName("Lode scores"))
+        hdr = [i for i, r in enumerate(sc) if r[:1] == ["Row in Answers"]][0]
+        got = np.array([r[1:1 + K_FIXED] for r in sc[hdr + 1:hdr + 1 + xc.shape[0]]], dtype=float)
+        ld = read_sheet(doc.Sheets.getByName("Lode loadings"))
+        lh = [i for i, r in enumerate(ld) if r[:2] == ["Item", "Factor 1"]][0]
+        lrows = {r[0]: r[1:1 + K_FIXED] for r in ld[lh + 1:lh + 1 + len(names)]}
+        L = np.array([lrows[nm] for nm in names], dtype=float)
+        # Correlation-preserving scores of an oblique solution on the same complete data: ten Berge,
+        # Krijnen, Wansbeek and Shapiro (1999) make them correlate exactly as the factors (numpy).
+        with office.watchdog(300):
+            service.run(doc, range_of(doc, "Answers", len(names), len(rows)),
+                        props(Factors=K_FIXED, Rotation="oblimin", Scores="tenberge", ScoresPlace="sheet"))
+        sc2 = read_sheet(doc.Sheets.getByName("Lode scores 2"))
+        h2 = [i for i, r in enumerate(sc2) if r[:1] == ["Row in Answers"]][0]
+        tb = np.array([r[1:1 + K_FIXED] for r in sc2[h2 + 1:h2 + 1 + xc.shape[0]]], dtype=float)
+        fs = read_sheet(doc.Sheets.getByName("Lode factors 2"))
+        at = [i for i, r in enumerate(fs) if r[:1] == ["Factor correlations"]][0] + 2
+        phi = np.array([fs[at + a][1:1 + K_FIXED] for a in range(K_FIXED)], dtype=float)
+        assert np.max(np.abs(phi - np.eye(K_FIXED))) > 0.05  # an oblique solution: the property has teeth
+        assert np.max(np.abs(np.corrcoef(tb, rowvar=False) - phi)) < 1e-8
+    finally:
+        with office.watchdog(60):
+            doc.close(True)
+    # Reference: R's stats::factanal, maximum likelihood with tight optimiser controls, varimax run to
+    # eps = 1e-14 (its default 1e-5 would move the scores by about 1e-2), regression (Thomson) scores.
+    from refs import run_r
+    ref = run_r(f"""
+        ctl <- list(nstart = 1, lower = 0.005, opt = list(factr = 1, pgtol = 0, maxit = 10000),
+                    rotate = list(eps = 1e-14))
+        f <- factanal(X, factors = {K_FIXED}, rotation = "varimax", scores = "regression", control = ctl)
+        emit("s", f$scores); emit("l", unclass(f$loadings))
+    """, {"X": xc})
+    order = [int(np.argmax(np.abs(L.T @ ref["l"][:, j]))) for j in range(K_FIXED)]
+    assert sorted(order) == list(range(K_FIXED))
+    signs = np.sign(np.sum(L[:, order] * ref["l"], axis=0))
+    assert np.max(np.abs(L[:, order] * signs - ref["l"])) < 1e-4
+    assert np.max(np.abs(got[:, order] * signs - ref["s"])) < 1e-3
+
+
+def test_cancelled_run_removes_the_score_columns_it_wrote(office, service):
+    rows = survey_rows()
+    doc = new_book(office, rows)
+    try:
+        before = snapshot(doc)
+        styles = cell_styles(doc)
+        for after in (0, 1, 3):  # before anything, after the score columns, after two sheets as well
+            with office.watchdog(300), pytest.raises(IllegalArgumentException) as e:
+                service.run(doc, range_of(doc, "Answers", len(rows[0]), len(rows)),
+                            props(Factors=K_FIXED, Scores="regression", CancelAfterSheets=after))
+            assert "cancelled" in e.value.Message
+            assert snapshot(doc) == before, after
+            assert cell_styles(doc) == styles
+            assert doc.Sheets.getByName("Answers").getAnnotations().getCount() == 0
+    finally:
+        with office.watchdog(60):
+            doc.close(True)
+
+
+# --- bootstrap intervals --------------------------------------------------------------------------------
+
+
+def test_bootstrap_intervals_beside_the_loadings(office, survey, service):
+    names, x = survey_values()
+    p, B = len(names), 40
+    before = sheet_names(survey)
+    with office.watchdog(600):
+        service.run(survey, source(survey), props(Factors=K_FIXED, Bootstrap=B, Seed=31))
+    new = [n for n in sheet_names(survey) if n not in before]
+    ov = read_sheet(survey.Sheets.getByName(new[0]))
+    ld = read_sheet(survey.Sheets.getByName(new[1]))
+    rr = read_sheet(survey.Sheets.getByName(new[4]))
+    rec = {r[0]: r[1] for r in rr if r and len(r) > 1 and r[1] is not None}
+    assert rec["Bootstrap resamples"] == B and rec["Bootstrap seed"].startswith("31 ")
+    # The C library with the report's options: minres, oblimin (gamma 0), the run's seed for the
+    # rotation's starts and the resamples, each resample's rotation from the unrotated loadings.
+    b = lode.bootstrap(x, factors=K_FIXED, method="minres", rotation="oblimin", gamma=0.0, replicates=B, seed=31,
+                       missing="pairwise", correlation="pearson", item_names=names, keep_replicates=True)
+    m = lode.fit(x, factors=K_FIXED, method="minres", rotation="oblimin", seed=31, missing="pairwise",
+                 correlation="pearson", item_names=names, gamma=0.0)
+    assert np.max(np.abs(b.loadings - m.loadings)) < 1e-12  # intervals around the solution shown
+    # numpy: percentile intervals are the type-7 quantiles (numpy's default) of the aligned resamples
+    lo, hi = np.percentile(b.replicate_loadings, [2.5, 97.5], axis=0)
+    assert np.max(np.abs(lo - b.loadings_lower)) < 1e-12 and np.max(np.abs(hi - b.loadings_upper)) < 1e-12
+    hdr = [i for i, r in enumerate(ld) if r[:2] == ["Item", "Factor 1"]][0]
+    want = [f"Factor {f + 1}" for f in range(K_FIXED)] + ["Communality", "Uniqueness"]
+    for f in range(K_FIXED):
+        want += [f"Factor {f + 1} 95% from", f"Factor {f + 1} 95% to"]
+    assert ld[hdr][1:] == want
+    for r in ld[hdr + 1:hdr + 1 + p]:
+        j = names.index(r[0])
+        assert np.max(np.abs(np.array(r[1:1 + K_FIXED]) - m.loadings[j])) < 1e-12
+        got = np.array(r[3 + K_FIXED:3 + 3 * K_FIXED]).reshape(K_FIXED, 2)
+        assert np.max(np.abs(got[:, 0] - b.loadings_lower[j])) < 1e-12
+        assert np.max(np.abs(got[:, 1] - b.loadings_upper[j])) < 1e-12
+        assert np.all(got[:, 0] <= got[:, 1])
+    assert find_row(ov, "Resamples asked for")[1] == B
+    assert find_row(ov, "Resamples used")[1] == b.replicates_used
+    assert find_row(ov, "Resamples failed")[1] == b.replicates_failed
+    assert b.replicates_used + b.replicates_failed == B
+    assert find_row(ov, "How resamples were aligned")[1] == b.alignment and "congruence" in b.alignment
+    assert find_row(ov, "Resamples poorly matched")[1] == b.replicates_poorly_matched
+    assert rec["Bootstrap resamples used"] == b.replicates_used
+    # numpy: the poorly matched count from the replicates' smallest matched congruence (under 0.85)
+    assert b.replicates_poorly_matched == int(np.sum(b.min_congruence < 0.85))
+    fc = read_sheet(survey.Sheets.getByName(new[2]))
+    at = [i for i, r in enumerate(fc) if r[:1] == ["Factor correlations with 95% bootstrap intervals"]][0] + 2
+    pairs = [(a, c) for a in range(K_FIXED) for c in range(a + 1, K_FIXED)]
+    for i, (a, c) in enumerate(pairs):
+        r = fc[at + i]
+        assert r[0] == f"Factor {a + 1} and factor {c + 1}"
+        assert abs(r[1] - m.factor_correlations[a, c]) < 1e-12
+        assert abs(r[2] - b.factor_correlations_lower[a, c]) < 1e-12
+        assert abs(r[3] - b.factor_correlations_upper[a, c]) < 1e-12
+
+
+def test_cancel_during_the_bootstrap_leaves_the_workbook_as_it_was(office, survey, service):
+    import unohelper
+    from com.sun.star.task import XStatusIndicator
+
+    class Indicator(unohelper.Base, XStatusIndicator):
+        """Records what the service shows in the status bar."""
+
+        def __init__(self):
+            self.texts, self.values = [], []
+
+        def start(self, text, rng):
+            self.texts.append(text)
+
+        def end(self):
+            pass
+
+        def setText(self, text):
+            self.texts.append(text)
+
+        def setValue(self, value):
+            self.values.append(value)
+
+        def reset(self):
+            pass
+
+    before = snapshot(survey)
+    styles = cell_styles(survey)
+    ind = Indicator()
+    with office.watchdog(300):
+        assert service.start(survey, source(survey), props(Factors=K_FIXED, Bootstrap=100000, Seed=3), ind)
+        deadline = time.monotonic() + 200
+        while not any("bootstrap" in t for t in ind.texts) and time.monotonic() < deadline:
+            time.sleep(0.05)
+        time.sleep(1.0)  # some resamples done
+        service.cancel()
+        while service.isRunning() and time.monotonic() < deadline:
+            time.sleep(0.05)
+    assert not service.isRunning()
+    assert any("bootstrap" in t for t in ind.texts), ind.texts
+    assert len(set(ind.values)) > 2 and max(ind.values) < 95  # progress moved, and the run did not finish
+    assert service.lastOutcome().startswith("stopped: the analysis was cancelled"), service.lastOutcome()
+    assert snapshot(survey) == before
+    assert cell_styles(survey) == styles

@@ -60,6 +60,23 @@ def test_tenberge_scores_and_determinacy():
     assert np.max(np.abs(reg.validity - det)) < 1e-10
 
 
+def test_listwise_model_scores_standardise_with_the_complete_rows():
+    x = survey(400, 8, seed=35, missing=0.05, factors=2, loading=0.7)
+    m = lode.fit(x, factors=2, method="ml", rotation="oblimin", seed=3, missing="listwise")
+    complete = np.all(np.isfinite(x), axis=1)
+    xc = x[complete]
+    # numpy: the listwise correlation matrix and the z-scores behind it (complete rows, ddof = 1)
+    z = (xc - xc.mean(axis=0)) / xc.std(axis=0, ddof=1)
+    r = np.corrcoef(xc, rowvar=False)
+    st = m.loadings @ m.factor_correlations
+    reg = lode.scores(None, m, "regression")
+    # Regression scores Z R^-1 Lambda Phi (Thurstone 1935), computed here with numpy
+    assert np.max(np.abs(reg.values[complete] - z @ np.linalg.solve(r, st))) < 1e-10
+    # ten Berge, Krijnen, Wansbeek & Shapiro (1999): on the rows behind R the scores correlate as Phi
+    tb = lode.scores(None, m, "tenberge")
+    assert np.max(np.abs(np.corrcoef(tb.values[complete], rowvar=False) - m.factor_correlations)) < 1e-8
+
+
 def test_missing_item_rules():
     x = survey(200, 6, seed=35, factors=2, loading=0.75)
     m = lode.fit(x, factors=2, method="ml", rotation="varimax")

@@ -147,7 +147,14 @@ class RotationOptions(ctypes.Structure):
 class FitOptions(ctypes.Structure):
     _fields_ = [("struct_size", c_size_t), ("factors", c_int), ("method", c_int), ("max_iterations", c_int),
                 ("tolerance", c_double), ("min_uniqueness", c_double), ("interval_level", c_double),
-                ("rotation", ctypes.POINTER(RotationOptions)), ("factor_count", ctypes.POINTER(FactorCountOptions))]
+                ("rotation", ctypes.POINTER(RotationOptions)), ("factor_count", ctypes.POINTER(FactorCountOptions)),
+                # ABI 1.2
+                ("progress", PROGRESS_FN), ("progress_user", c_void_p)]
+
+
+# The size of lode_fit_options before ABI 1.2 (without the progress fields): what is passed to an
+# older library, which would refuse the larger struct only if its new fields were set.
+FIT_OPTIONS_SIZE_1_1 = FitOptions.progress.offset
 
 
 _getters = {}
@@ -286,3 +293,41 @@ def make_progress(callback):
         return 0 if (result is None or result) else 1
 
     return PROGRESS_FN(trampoline)
+
+
+# ---- ABI 1.2: item flags, bootstrap ---------------------------------------------------------------
+
+class ItemFlagOptions(ctypes.Structure):
+    _fields_ = [("struct_size", c_size_t), ("salient", c_double), ("cross_loading_gap", c_double),
+                ("low_communality", c_double), ("heywood_uniqueness", c_double)]
+
+
+class BootstrapOptions(ctypes.Structure):
+    _fields_ = [("struct_size", c_size_t), ("replicates", c_int64), ("level", c_double), ("seed", ctypes.c_uint64),
+                ("threads", c_int), ("replicate_random_starts", c_int), ("keep_replicates", c_int),
+                ("progress", PROGRESS_FN), ("progress_user", c_void_p)]
+
+
+_abi_1_2 = {
+    "lode_item_flag_options_init": (c_int, [ctypes.POINTER(ItemFlagOptions), c_size_t]),
+    "lode_flag_items": (c_int, [c_void_p, ctypes.POINTER(ItemFlagOptions), P_void_p]),
+    "lode_item_flags_item_notes": (c_int, [c_void_p, c_int64, c_char_p, c_size_t, P_size_t]),
+    "lode_bootstrap_options_init": (c_int, [ctypes.POINTER(BootstrapOptions), c_size_t]),
+    "lode_bootstrap": (c_int, [c_void_p, ctypes.POINTER(FitOptions), ctypes.POINTER(BootstrapOptions), P_void_p]),
+}
+for _kind in ("item_flags", "bootstrap"):
+    _abi_1_2[f"lode_{_kind}_matrix"] = (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64])
+    _abi_1_2[f"lode_{_kind}_value"] = (c_int, [c_void_p, c_int, P_double])
+    _abi_1_2[f"lode_{_kind}_text"] = (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t])
+    _abi_1_2[f"lode_{_kind}_free"] = (None, [c_void_p])
+# Declared only where the loaded library has them (as for ABI 1.1 above).
+declare({name: sig for name, sig in _abi_1_2.items() if hasattr(lib, name)})
+
+ABI_MINOR = _info.abi_minor
+
+
+def require(name, abi_minor):
+    """Raises LodeError when the loaded liblode lacks a function of a later ABI minor version."""
+    if not hasattr(lib, name):
+        raise LodeError(10, "unsupported", f"{name} needs liblode ABI {ABI_MAJOR}.{abi_minor}; the loaded library "
+                                           f"has ABI {ABI_MAJOR}.{ABI_MINOR}")

@@ -77,6 +77,10 @@ struct RotationOptions {
                                      // pattern loading differs by more than this
   int threads = 1;              // for random starts (0 = all cores); results do not depend on it
   std::vector<std::string> item_names;  // optional, for error messages (row i is item i)
+  // Starts done / rotation_start_count(options), reported from the calling thread (parallel_for);
+  // returning false cancels (Error cancelled). Only the methods with starts (gradient projection)
+  // report; none, varimax_kaiser and promax run one short start without reports. Never changes a result.
+  ProgressFn progress;
   // Gradient projection methods: the rotation matrix T (factors x factors, see the convention above)
   // that start 0 begins at; empty = the identity (the unrotated loadings). Orthogonal methods start
   // from the orthogonal matrix nearest to it (its polar factor), oblique ones from it with columns
@@ -84,6 +88,10 @@ struct RotationOptions {
   // bootstrap resample) saves iterations. Random starts are unaffected.
   Matrix start;
 };
+
+// How many starts rotate() runs for these options: 1 + the random starts for the gradient projection
+// methods (random_starts, or the method's default when -1), 1 for none, varimax_kaiser and promax.
+int rotation_start_count(const RotationOptions& options) noexcept;
 
 // What the random starts found. Start 0 begins at options.start (by default the unrotated loadings,
 // T = I); start i >= 1 at a uniformly random orthogonal matrix drawn from random_stream(seed, i).

@@ -1,0 +1,48 @@
+// The fitted model handle and the reading of lode_fit_options, shared by lode_fit, the item flags and
+// the bootstrap. Internal to liblode.
+#pragma once
+
+#include "handles.hpp"
+#include "results.hpp"
+#include "lode.h"
+#include "lode/extraction.hpp"
+#include "lode/fit.hpp"
+#include "lode/rotation.hpp"
+
+#include <memory>
+#include <optional>
+#include <string>
+#include <vector>
+
+namespace lode::capi {
+
+// lode_fit_options, read (older struct sizes included) and checked.
+struct FitSetup {
+  int factors = 0;  // 0 = suggested by the factor count
+  ExtractionOptions extraction;          // with corr's n_obs and item names
+  std::optional<RotationOptions> rotation;  // empty when the caller gave none
+  double interval_level = 0.90;
+  const lode_factor_count_options* factor_count = nullptr;
+  lode_progress_fn progress = nullptr;
+  void* progress_user = nullptr;
+};
+
+FitSetup read_fit_options(const lode_fit_options* opts, const lode_correlation* corr);
+
+}  // namespace lode::capi
+
+struct lode_model {
+  lode::Matrix correlation;  // the matrix the model was fitted to
+  std::vector<std::string> item_names;
+  std::shared_ptr<const lode::capi::DataContent> data;  // what the correlation came from (raw data for scores)
+  lode::MissingPolicy missing = lode::MissingPolicy::pairwise;  // how `correlation` treated missing answers
+  lode::ExtractionResult extraction;
+  lode::RotationResult rotation;  // method none and identity matrices when unrotated
+  bool rotated = false;
+  lode::ResidualFit residual;
+  std::optional<lode::FitResult> fit;
+  lode::capi::Unavailable fit_missing;
+  lode::Index n_obs = 0;
+  int suggested_factors = 0;
+  std::vector<std::string> notes;
+};
