@@ -161,6 +161,24 @@ ExtractionMethod extraction_method_of(int m) {
   }
 }
 
+// The extraction fields of lode_fit_options, checked, for the matrix behind `corr`.
+ExtractionOptions extraction_options_of(const lode_fit_options& o, const lode_correlation* corr) {
+  ExtractionOptions eo;
+  eo.method = extraction_method_of(o.method);
+  if (o.max_iterations < 1)
+    fail(LODE_E_INVALID_ARGUMENT, fmt::format("max_iterations must be at least 1; it is {}", o.max_iterations));
+  eo.max_iterations = o.max_iterations;
+  if (!(o.tolerance > 0.0) || !std::isfinite(o.tolerance))
+    fail(LODE_E_INVALID_ARGUMENT, fmt::format("tolerance must be positive; it is {}", o.tolerance));
+  eo.tolerance = o.tolerance;
+  if (!(o.min_uniqueness >= 0.0 && o.min_uniqueness < 1.0))
+    fail(LODE_E_INVALID_ARGUMENT, fmt::format("min_uniqueness must be at least 0 and below 1; it is {}", o.min_uniqueness));
+  eo.min_uniqueness = o.min_uniqueness;
+  eo.n_obs = corr->result.n_obs;
+  eo.item_names = corr->options.item_names;
+  return eo;
+}
+
 int extraction_code_of(ExtractionMethod m) {
   switch (m) {
     case ExtractionMethod::maximum_likelihood: return LODE_ML;
@@ -190,19 +208,7 @@ FitSetup lode::capi::read_fit_options(const lode_fit_options* opts, const lode_c
   }
   const auto& names = corr->options.item_names;
   FitSetup setup;
-  ExtractionOptions& eo = setup.extraction;
-  eo.method = extraction_method_of(o.method);
-  if (o.max_iterations < 1)
-    fail(LODE_E_INVALID_ARGUMENT, fmt::format("max_iterations must be at least 1; it is {}", o.max_iterations));
-  eo.max_iterations = o.max_iterations;
-  if (!(o.tolerance > 0.0) || !std::isfinite(o.tolerance))
-    fail(LODE_E_INVALID_ARGUMENT, fmt::format("tolerance must be positive; it is {}", o.tolerance));
-  eo.tolerance = o.tolerance;
-  if (!(o.min_uniqueness >= 0.0 && o.min_uniqueness < 1.0))
-    fail(LODE_E_INVALID_ARGUMENT, fmt::format("min_uniqueness must be at least 0 and below 1; it is {}", o.min_uniqueness));
-  eo.min_uniqueness = o.min_uniqueness;
-  eo.n_obs = corr->result.n_obs;
-  eo.item_names = names;
+  setup.extraction = extraction_options_of(o, corr);
   if (!(o.interval_level > 0.0 && o.interval_level < 1.0))
     fail(LODE_E_INVALID_ARGUMENT, fmt::format("interval_level must lie strictly between 0 and 1; it is {}", o.interval_level));
   setup.interval_level = o.interval_level;
@@ -716,19 +722,7 @@ LODE_API int lode_omega_single_scale(const lode_correlation* corr, const lode_fi
       LODE_OPTION_FIELD(o, opts, tolerance);
       LODE_OPTION_FIELD(o, opts, min_uniqueness);
     }
-    ExtractionOptions eo;
-    eo.method = extraction_method_of(o.method);
-    if (o.max_iterations < 1)
-      fail(LODE_E_INVALID_ARGUMENT, fmt::format("max_iterations must be at least 1; it is {}", o.max_iterations));
-    eo.max_iterations = o.max_iterations;
-    if (!(o.tolerance > 0.0) || !std::isfinite(o.tolerance))
-      fail(LODE_E_INVALID_ARGUMENT, fmt::format("tolerance must be positive; it is {}", o.tolerance));
-    eo.tolerance = o.tolerance;
-    if (!(o.min_uniqueness >= 0.0 && o.min_uniqueness < 1.0))
-      fail(LODE_E_INVALID_ARGUMENT, fmt::format("min_uniqueness must be at least 0 and below 1; it is {}", o.min_uniqueness));
-    eo.min_uniqueness = o.min_uniqueness;
-    eo.n_obs = corr->result.n_obs;
-    eo.item_names = corr->options.item_names;
+    const ExtractionOptions eo = extraction_options_of(o, corr);
     auto r = std::make_unique<lode_reliability>();
     r->is_alpha = false;
     r->single = true;
