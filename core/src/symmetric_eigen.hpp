@@ -35,7 +35,7 @@ struct QlState {
     constexpr double eps2 = std::numeric_limits<double>::epsilon() * std::numeric_limits<double>::epsilon();
     while (l < n) {
       // The first negligible off-diagonal entry at or after l (four tests per branch).
-      auto small = [&](Index j) { return std::abs(e2[j]) <= eps2 * std::abs(d[j] * d[j + 1]); };
+      auto small = [&](Index j) { return static_cast<int>(std::abs(e2[j]) <= eps2 * std::abs(d[j] * d[j + 1])); };
       Index mm = l;
       for (; mm + 4 <= n - 1; mm += 4)
         if (small(mm) | small(mm + 1) | small(mm + 2) | small(mm + 3)) break;
