@@ -376,8 +376,9 @@ def write_report(results_dir, out_path, elapsed_s=None, filter_regex=None):
     w("Written by `./lode bench` (tests/bench/report.py); rerun it to replace this file. Times are medians "
       "of wall-clock time; \"Lode is N x faster\" is the alternative's median divided by Lode's. "
       "Lode's CPU time is the process's, summed over all its threads (the work done, whatever else runs "
-      "on the machine). Lode and the alternatives read the same seeded input files "
-      "(tests/bench/make_inputs.py).")
+      "on the machine): on a shared, loaded machine wall-clock times are inflated, since the processes "
+      "wait for a core, while the CPU time is not. Lode and the alternatives read the same seeded input "
+      "files (tests/bench/make_inputs.py).")
     w("")
 
     # Machine
