@@ -560,9 +560,9 @@ typedef struct lode_scores lode_scores;
 
 /* Scores the respondents of `data` (raw data with the model's items in the same order; NULL = the raw
  * data the model was fitted to) on the model's factors. Items are standardised with the means and
- * standard deviations of `data` (n - 1 denominator), each over its answered values; when `data` is the
- * model's own and its correlations dropped incomplete rows (listwise), over the complete rows, the ones
- * behind the correlation matrix. Factor scores are estimates: the notes carry the cautions that go
+ * standard deviations of `data` (n - 1 denominator), each over its answered values; when `data` holds
+ * the model's own respondents (NULL, the same handle or the same values) and its correlations dropped
+ * incomplete rows (listwise), over the complete rows, the ones behind the correlation matrix. Factor scores are estimates: the notes carry the cautions that go
  * with using them to select, rate or diagnose people. */
 LODE_API int lode_score(const lode_model* model, const lode_data* data, const lode_score_options* opts,
                         lode_scores** out);

@@ -591,9 +591,15 @@ LODE_API int lode_score(const lode_model* model, const lode_data* data, const lo
     if (content->values.cols() != model->correlation.cols())
       fail(LODE_E_INVALID_ARGUMENT, fmt::format("the data have {} items but the model has {}",
                                                 content->values.cols(), model->correlation.cols()));
-    // The model's own respondents under listwise deletion: standardise with the complete rows' means and
-    // standard deviations, the ones behind the correlation matrix (else every answered value of an item).
-    if (content == model->data.get() && model->missing == MissingPolicy::listwise) {
+    // The model's own respondents (its data handle, or the same values passed again) under listwise
+    // deletion: standardise with the complete rows' means and standard deviations, the ones behind the
+    // correlation matrix (else every answered value of an item).
+    const auto same_values = [](const Matrix& a, const Matrix& b) {
+      return a.rows() == b.rows() && a.cols() == b.cols() &&
+             ((a.array() == b.array()) || (a.array().isNaN() && b.array().isNaN())).all();
+    };
+    if (model->missing == MissingPolicy::listwise && model->data &&
+        (content == model->data.get() || same_values(content->values, model->data->values))) {
       const Matrix& x = content->values;
       std::vector<Index> complete;
       for (Index i = 0; i < x.rows(); ++i)

@@ -75,6 +75,11 @@ def test_listwise_model_scores_standardise_with_the_complete_rows():
     # ten Berge, Krijnen, Wansbeek & Shapiro (1999): on the rows behind R the scores correlate as Phi
     tb = lode.scores(None, m, "tenberge")
     assert np.max(np.abs(np.corrcoef(tb.values[complete], rowvar=False) - m.factor_correlations)) < 1e-8
+    # The same respondents passed again score the same; other respondents use their own standardisation.
+    assert np.array_equal(lode.scores(x.copy(), m, "tenberge").values, tb.values, equal_nan=True)
+    other = lode.scores(x[:300], m, "regression").values[complete[:300]]
+    z_other = (x[:300][complete[:300]] - np.nanmean(x[:300], axis=0)) / np.nanstd(x[:300], axis=0, ddof=1)
+    assert np.max(np.abs(other - z_other @ np.linalg.solve(r, st))) < 1e-10
 
 
 def test_missing_item_rules():
