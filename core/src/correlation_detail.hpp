@@ -5,6 +5,17 @@
 
 namespace lode::detail {
 
+// Which cross-product kernel centred_cross_products uses: the one this machine's processor supports
+// best (automatic), or a named one (tests compare them).
+enum class CrossProductKernel { automatic, portable, avx2 };
+
+// Whether this processor runs the AVX2 + FMA kernel.
+bool avx2_cross_products_available();
+
+// Sums of squares and cross-products about the column means of complete, finite data (the lower
+// triangle is filled; the upper is not meaningful). Independent of the thread count.
+Matrix centred_cross_products(const Matrix& x, int threads, CrossProductKernel kernel);
+
 // Fails when a pair has fewer than options.min_pair_observations rows or a non-finite correlation.
 void check_pairs(const Matrix& r, const IndexMatrix& counts, const CorrelationOptions& options);
 

@@ -202,3 +202,84 @@ TEST(Correlation, ResampledCorrelationsMatchNumpyAndCorrelationOfTheCopiedRows) 
   EXPECT_LT((rare_resampled.resample(without).matrix - correlation(rare(without, Eigen::all)).matrix).cwiseAbs().maxCoeff(),
             1e-13);
 }
+
+TEST(Correlation, CrossProductKernelsAgreeAndMatchNumpy) {
+  // Row and column counts that are not multiples of the kernel's tiles (4 x 2 columns, 4 rows) nor of its
+  // blocks (256 rows) or chunks (8192 rows); the mean of one column far from zero.
+  Matrix x = survey_like(17003, 13, 31, 0.0);
+  x.col(4).array() += 250.0;
+  // Reference: numpy.cov (two-pass, about the mean) times n - 1 = sums of squares and cross-products.
+  const auto ref = run_python("emit('s', np.cov(X, rowvar=False) * (X.shape[0] - 1))", {{"X", x}});
+  const Matrix reference = ref.at("s");
+  const Vector scale = reference.diagonal().cwiseSqrt();
+  auto relative_gap = [&](const Matrix& lower) {
+    double worst = 0.0;
+    for (Index a = 0; a < x.cols(); ++a)
+      for (Index b = 0; b <= a; ++b)
+        worst = std::max(worst, std::abs(lower(a, b) - reference(a, b)) / (scale(a) * scale(b)));
+    return worst;
+  };
+  const Matrix portable = detail::centred_cross_products(x, 2, detail::CrossProductKernel::portable);
+  EXPECT_LT(relative_gap(portable), 1e-13);
+  if (!detail::avx2_cross_products_available()) GTEST_SKIP() << "this processor has no AVX2 + FMA";
+  const Matrix avx2 = detail::centred_cross_products(x, 2, detail::CrossProductKernel::avx2);
+  EXPECT_LT(relative_gap(avx2), 1e-13);
+  double gap = 0.0;  // the two kernels, relative to the scale of each entry
+  for (Index a = 0; a < x.cols(); ++a)
+    for (Index b = 0; b <= a; ++b)
+      gap = std::max(gap, std::abs(avx2(a, b) - portable(a, b)) / (scale(a) * scale(b)));
+  EXPECT_LT(gap, 1e-13);
+  EXPECT_EQ(avx2, detail::centred_cross_products(x, 1, detail::CrossProductKernel::avx2).eval());
+}
+
+TEST(Correlation, LargeOffsetColumnMatchesNumpyCorrcoef) {
+  // A column of values around 1e6 with small noise (sd 0.01) tied to the others: the sums are
+  // taken about each chunk's mean and combined exactly, so the offset costs no accuracy.
+  Matrix x = survey_like(30000, 6, 41, 0.0);
+  auto rng = random_stream(41, 1);
+  const Matrix noise = standard_normal_matrix(x.rows(), 1, rng);
+  x.col(5) = (1e6 + 0.01 * (x.col(0) + noise.col(0)).array()).matrix();
+  // Reference: numpy.corrcoef (columns as variables).
+  const auto ref = run_python("emit('r', np.corrcoef(X, rowvar=False))", {{"X", x}});
+  EXPECT_LT((correlation(x).matrix - ref.at("r")).cwiseAbs().maxCoeff(), 1e-10);
+}
+
+TEST(CorrelationErrors, CompleteDataChecksAcrossChunksWordAsTheInputChecks) {
+  // The checks folded into the summing pass must fail as validate_data does, on problems placed in
+  // later chunks (rows beyond 8192).
+  const Matrix x = survey_like(20000, 5, 51, 0.0);
+  auto message_of = [](auto&& f) {
+    try {
+      f();
+    } catch (const Error& e) {
+      return std::string(e.what());
+    }
+    return std::string("no error");
+  };
+  CorrelationOptions named;
+  named.item_names = {"a", "b", "c", "d", "e"};
+  Matrix inf = x;
+  inf(17000, 3) = -INFINITY;
+  inf(9000, 3) = INFINITY;
+  inf(12000, 4) = INFINITY;
+  const std::string inf_message = message_of([&] { correlation(inf, named); });
+  EXPECT_NE(inf_message.find("'d' holds an infinite value in row 9001"), std::string::npos) << inf_message;
+  EXPECT_EQ(inf_message, message_of([&] { validate_data(inf, named); }));
+  Matrix constant = x;
+  constant.col(1).setConstant(2.0);
+  constant.col(2).setConstant(3.0);
+  constant(19999, 2) = 4.0;  // not constant: differs in the last chunk only
+  const std::string constant_message = message_of([&] { correlation(constant, named); });
+  EXPECT_NE(constant_message.find("'b' is constant (every answer is 2)"), std::string::npos) << constant_message;
+  EXPECT_EQ(constant_message, message_of([&] { validate_data(constant, named); }));
+  constant.col(1) = x.col(1);
+  EXPECT_EQ(message_of([&] { correlation(constant, named); }), "no error");
+  CorrelationOptions demanding;
+  demanding.min_pair_observations = 30000;
+  const std::string few = message_of([&] { correlation(x, demanding); });
+  EXPECT_NE(few.find("answered in only 20000 of 20000 rows"), std::string::npos) << few;
+  EXPECT_EQ(few, message_of([&] { validate_data(x, demanding); }));
+  Matrix huge = x;  // finite values whose sums overflow: not a silent number
+  huge.col(0).array() *= 1e306;
+  EXPECT_NE(message_of([&] { correlation(huge); }), "no error");
+}
