@@ -30,7 +30,7 @@ SECTIONS = [
         ("corr_n100000_p100", "n = 100,000, p = 100"),
         ("corr_n100000_p200", "n = 100,000, p = 200"),
         ("corr_n100000_p50_missing", "n = 100,000, p = 50, 5% missing, pairwise"),
-        ("corr_checks_n1000000_p50", "of which the input checks alone (validate_data), n = 1,000,000, p = 50"),
+        ("corr_checks_n1000000_p50", "the separate input checks (validate_data; complete data now check in the summing pass), n = 1,000,000, p = 50"),
     ]),
     ("Extraction from a correlation matrix (n = 2000)", [
         (f"{m}_p{p}_k{k}", f"{label}, p = {p}, k = {k}")
