@@ -7,6 +7,8 @@
 #include "support/external.hpp"
 
 #include <fmt/format.h>
+#include "support/errors.hpp"
+
 #include <gtest/gtest.h>
 
 #include <atomic>
@@ -14,20 +16,10 @@
 #include <thread>
 
 using namespace lode;
+using lode::testing::error_message;
 using lode::testing::run_python;
 
 namespace {
-
-template <class F>
-std::string error_message(F&& f, ErrorCode* code = nullptr) {
-  try {
-    f();
-  } catch (const Error& e) {
-    if (code) *code = e.code();
-    return e.what();
-  }
-  return "(no error)";
-}
 
 // A simple one-factor fit for exercising the engine: the first principal component scaled to loadings,
 // uniquenesses 1 - loading^2.

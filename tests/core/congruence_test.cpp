@@ -5,25 +5,18 @@
 #include "lode/random.hpp"
 #include "support/external.hpp"
 
+#include "support/errors.hpp"
+
 #include <gtest/gtest.h>
 
 #include <algorithm>
 #include <numeric>
 
 using namespace lode;
+using lode::testing::error_message;
 using lode::testing::run_python;
 
 namespace {
-
-template <class F>
-std::string error_message(F&& f) {
-  try {
-    f();
-  } catch (const Error& e) {
-    return e.what();
-  }
-  return "(no error)";
-}
 
 Matrix some_loadings() {
   Matrix l(9, 3);

@@ -2,21 +2,14 @@
 // fires exactly as documented, on loadings built for the purpose, and that the notes name the item.
 #include "lode/item_flags.hpp"
 
+#include "support/errors.hpp"
+
 #include <gtest/gtest.h>
 
 using namespace lode;
+using lode::testing::error_message;
 
 namespace {
-
-template <class F>
-std::string error_message(F&& f) {
-  try {
-    f();
-  } catch (const Error& e) {
-    return e.what();
-  }
-  return "(no error)";
-}
 
 std::vector<ItemFlag> of_item(const std::vector<ItemFlag>& flags, Index item) {
   std::vector<ItemFlag> out;

@@ -4,25 +4,18 @@
 #include "core/factor_simulation.hpp"
 #include "support/external.hpp"
 
+#include "support/errors.hpp"
+
 #include <gtest/gtest.h>
 
 #include <cmath>
 
 using namespace lode;
+using lode::testing::error_message;
 using lode::testing::run_python;
 using lode::testing::run_r;
 
 namespace {
-
-template <class F>
-std::string error_message(F&& f) {
-  try {
-    f();
-  } catch (const Error& e) {
-    return e.what();
-  }
-  return "(no error)";
-}
 
 // Five-point items from a one-factor model, with different spreads so raw and standardised alpha differ.
 Matrix likert_scale(Index n, std::uint64_t seed) {

@@ -6,11 +6,14 @@
 #include "lode/correlation.hpp"
 #include "support/external.hpp"
 
+#include "support/errors.hpp"
+
 #include <gtest/gtest.h>
 
 #include <cmath>
 
 using namespace lode;
+using lode::testing::error_message;
 using lode::testing::run_python;
 using lode::testing::run_r;
 using lode::testing::scalar;
@@ -22,17 +25,6 @@ double max_abs(const Matrix& a, const Matrix& b) {
   EXPECT_EQ(a.cols(), b.cols());
   if (a.rows() != b.rows() || a.cols() != b.cols()) return INFINITY;
   return (a - b).cwiseAbs().maxCoeff();
-}
-
-template <class F>
-std::string error_message(F&& f, ErrorCode* code = nullptr) {
-  try {
-    f();
-  } catch (const Error& e) {
-    if (code) *code = e.code();
-    return e.what();
-  }
-  return "(no error)";
 }
 
 Matrix simulated(Index n, std::uint64_t seed) {
