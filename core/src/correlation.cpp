@@ -7,6 +7,7 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <atomic>
 #include <cmath>
 #include <limits>
 #include <numeric>
@@ -151,7 +152,8 @@ bool use_avx2_cross_products() {
 // order with the exact pairwise update of Chan, Golub & LeVeque (1979, "Updating formulae and a pairwise
 // algorithm for computing sample variances"): M = M_A + M_B + d d' n_A n_B / n, d = mean_B - mean_A,
 // so neither the thread count nor a large common offset in a column changes the result materially.
-// A chunk holding a missing or infinite value is only checked (the caller takes another path then).
+// A chunk holding a missing or infinite value is only checked, and once a value is missing the chunks
+// not yet started are skipped (the caller takes the general path then).
 constexpr Index kBlockRows = 256;
 
 Matrix centred_cross_products(const Matrix& x, int threads, ColumnChecks* checks, detail::CrossProductKernel kernel) {
@@ -168,7 +170,10 @@ Matrix centred_cross_products(const Matrix& x, int threads, ColumnChecks* checks
     bool missing = false, nonfinite = false;
   };
   std::vector<Part> parts(static_cast<std::size_t>(chunks));
+  // Once a chunk has found a missing value the caller takes the general path: later chunks skip their work.
+  std::atomic<bool> missing_seen{false};
   parallel_for(chunks, threads, [&](Index c) {
+    if (checks && missing_seen.load(std::memory_order_relaxed)) return;
     Part& part = parts[static_cast<std::size_t>(c)];
     const Index begin = c * kChunkRows, rows = std::min(kChunkRows, n - begin);
     part.rows = rows;
@@ -197,6 +202,7 @@ Matrix centred_cross_products(const Matrix& x, int threads, ColumnChecks* checks
             }
           }
           if (!found) part.missing = true;  // finite values whose sum overflows: leave them to the general path
+          if (part.missing) missing_seen.store(true, std::memory_order_relaxed);
         }
       }
       part.mean(j) = sum / static_cast<double>(rows);
@@ -228,6 +234,10 @@ Matrix centred_cross_products(const Matrix& x, int threads, ColumnChecks* checks
     part.m.topLeftCorner(p, p).selfadjointView<Eigen::Lower>().rankUpdate(residual, -1.0 / static_cast<double>(rows));
     part.mean += residual / static_cast<double>(rows);
   });
+  if (checks && missing_seen.load()) {
+    checks->any_missing = true;
+    return Matrix();
+  }
   Matrix total = Matrix::Zero(pp, pp);
   Vector mean = Vector::Zero(p);
   double count = 0.0;
