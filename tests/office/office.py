@@ -42,9 +42,15 @@ def _as_nobody():
 
 
 def _run(cmd, timeout, env=None, user=None):
+    """Runs cmd (as `user` when given) and returns its output; raises with the output on failure.
+    As another user it starts in "/": runuser keeps the current folder, and a checkout in a folder that
+    user cannot enter (root's home, any mktemp -d folder: mode 0700) would stop soffice's start script."""
+    cwd = None
     if user:
         cmd = ["runuser", "-u", user, "--"] + cmd
-    proc = subprocess.run(cmd, stdout=subprocess.PIPE, stderr=subprocess.STDOUT, timeout=timeout, env=env, text=True)
+        cwd = "/"
+    proc = subprocess.run(cmd, stdout=subprocess.PIPE, stderr=subprocess.STDOUT, timeout=timeout, env=env, text=True,
+                          cwd=cwd)
     if proc.returncode != 0:
         raise RuntimeError(f"{' '.join(cmd)} failed ({proc.returncode}):\n{proc.stdout}")
     return proc.stdout
