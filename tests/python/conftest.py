@@ -5,3 +5,4 @@ import sys
 # sets LODE_LIBRARY to the freshly built liblode.
 sys.path.insert(0, os.path.join(os.path.dirname(__file__), "..", "..", "capi", "python"))
 sys.path.insert(0, os.path.dirname(__file__))
+sys.path.insert(0, os.path.join(os.path.dirname(__file__), "..", "support"))  # bounds.py
