@@ -207,7 +207,9 @@ enum lode_correlation_key {
                                                  LODE_E_NOT_POSITIVE_DEFINITE when SMCs are undefined */
   LODE_CORRELATION_SMC = 104,              /* squared multiple correlations (items x 1); same error */
   LODE_CORRELATION_STANDARD_ERRORS = 105,  /* polychoric only: standard error of each estimate (before
-                                              smoothing); 0 on the diagonal, NaN at the bound */
+                                              smoothing); 0 on the diagonal, NaN at the bound. Two-step:
+                                              the thresholds are taken as known, so it runs smaller
+                                              than a full maximum likelihood standard error */
   LODE_CORRELATION_THRESHOLDS = 106,       /* polychoric only: items x (most categories - 1), each item's
                                               thresholds from the left, NaN-padded */
   /* numbers: lode_correlation_value */
@@ -415,7 +417,7 @@ enum lode_rotation_key {
   LODE_ROTATION_SS_STRUCTURE = 505,        /* factors x 1: sums of squared structure loadings */
   LODE_ROTATION_START_CRITERIA = 506,      /* starts x 1: final criterion of every start */
   /* numbers: lode_rotation_value */
-  LODE_ROTATION_CRITERION = 520,
+  LODE_ROTATION_CRITERION = 520,           /* with normalize: the criterion of the Kaiser-normalised loadings */
   LODE_ROTATION_CONVERGED = 521,           /* 1 or 0 */
   LODE_ROTATION_ITERATIONS = 522,
   LODE_ROTATION_OBLIQUE = 523,             /* 1 or 0 */
@@ -602,9 +604,16 @@ typedef struct lode_reliability lode_reliability;
  * reverse-scored where needed); rows with a missing item are left out. */
 LODE_API int lode_cronbach_alpha(const lode_data* data, lode_reliability** out);
 
-/* McDonald's (1999) omega total for the scale of each factor of `model`. `assignment` gives each
- * item's factor (0-based; -1 = in no scale), `count` the number of items; NULL with count 0 assigns
- * each item to the factor of its largest absolute loading (stated in the notes). */
+/* McDonald's (1999) omega for the scale (the sum) of each factor's items S of `model`, both as ratios
+ * to the model-implied variance of that sum, 1' Sigma_SS 1 with Sigma = Lambda Phi Lambda' + Psi:
+ * omega total, 1' (Lambda Phi Lambda')_SS 1 / 1' Sigma_SS 1 (LODE_OMEGA: every common factor counts,
+ * cross-loadings and factor correlations included), and the factor's share, (sum over S of the
+ * loadings on the scale's factor)^2 / 1' Sigma_SS 1 (LODE_RELIABILITY_OMEGA_FACTOR_SHARE). With one
+ * factor both are (sum lambda)^2 / ((sum lambda)^2 + sum psi). Earlier builds gave as LODE_OMEGA of a
+ * several-factor model (sum lambda)^2 / ((sum lambda)^2 + sum psi), which is neither (a bug).
+ * `assignment` gives each item's factor (0-based; -1 = in no scale), `count` the number of items;
+ * NULL with count 0 assigns each item to the factor of its largest absolute loading (stated in the
+ * notes). */
 LODE_API int lode_mcdonald_omega(const lode_model* model, const int64_t* assignment, int64_t count,
                                  lode_reliability** out);
 
@@ -638,6 +647,8 @@ enum lode_reliability_key {
   LODE_OMEGA_SUM_UNIQUENESSES = 743,    /* factors x 1 */
   LODE_OMEGA_LOADINGS = 744,            /* single scale only: items x 1, the one-factor loadings */
   LODE_OMEGA_UNIQUENESSES = 745,        /* single scale only: items x 1 */
+  LODE_RELIABILITY_OMEGA_FACTOR_SHARE = 746,   /* factors x 1: the factor's share of its scale's variance */
+  LODE_RELIABILITY_OMEGA_SCALE_VARIANCE = 747, /* factors x 1: 1' Sigma_SS 1, the model-implied variance of the sum */
   /* omega - numbers */
   LODE_OMEGA_CONVERGED = 760,           /* single scale: the one-factor fit converged (1 or 0); model: 1 */
   /* text, both kinds */

@@ -709,6 +709,7 @@ LODE_API int lode_mcdonald_omega(const lode_model* model, const int64_t* assignm
     auto r = std::make_unique<lode_reliability>();
     r->is_alpha = false;
     r->factors = factors;
+    oo.factor_correlations = model->rotation.factor_correlations;
     r->omega = omega_from_loadings(model->rotation.pattern, model->extraction.uniquenesses, oo);
     *out = r.release();
   });
@@ -744,6 +745,8 @@ LODE_API int lode_omega_single_scale(const lode_correlation* corr, const lode_fi
     scale.sum_loadings = s.loadings.sum();
     scale.sum_uniquenesses = s.uniquenesses.sum();
     scale.omega = s.omega;
+    scale.factor_share = s.omega;  // one factor: omega total and the factor's share agree
+    scale.scale_variance = scale.sum_loadings * scale.sum_loadings + scale.sum_uniquenesses;
     r->omega.scales.push_back(scale);
     r->omega.notes = s.notes;
     *out = r.release();
@@ -757,7 +760,8 @@ LODE_API int lode_reliability_matrix(const lode_reliability* rel, int key, doubl
   return guarded([&] {
     require_pointer(rel, "reliability");
     const bool alpha_key = key >= LODE_ALPHA_IF_DELETED && key <= LODE_ALPHA_ITEM_SDS;
-    const bool omega_key = key >= LODE_OMEGA && key <= LODE_OMEGA_UNIQUENESSES;
+    const bool omega_key = (key >= LODE_OMEGA && key <= LODE_OMEGA_UNIQUENESSES) ||
+                           key == LODE_RELIABILITY_OMEGA_FACTOR_SHARE || key == LODE_RELIABILITY_OMEGA_SCALE_VARIANCE;
     if ((alpha_key && !rel->is_alpha) || (omega_key && rel->is_alpha))
       fail(LODE_E_INVALID_ARGUMENT, fmt::format("key {} belongs to {} results; this is {} result", key,
                                                 alpha_key ? "alpha" : "omega", rel->is_alpha ? "an alpha" : "an omega"));
@@ -780,6 +784,12 @@ LODE_API int lode_reliability_matrix(const lode_reliability* rel, int key, doubl
         break;
       case LODE_OMEGA_SUM_UNIQUENESSES:
         write_matrix(per_scale([](const ScaleOmega& s) { return s.sum_uniquenesses; }), out, capacity, rows, cols);
+        break;
+      case LODE_RELIABILITY_OMEGA_FACTOR_SHARE:
+        write_matrix(per_scale([](const ScaleOmega& s) { return s.factor_share; }), out, capacity, rows, cols);
+        break;
+      case LODE_RELIABILITY_OMEGA_SCALE_VARIANCE:
+        write_matrix(per_scale([](const ScaleOmega& s) { return s.scale_variance; }), out, capacity, rows, cols);
         break;
       case LODE_OMEGA_LOADINGS:
       case LODE_OMEGA_UNIQUENESSES:

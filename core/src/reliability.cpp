@@ -160,14 +160,25 @@ OmegaResult omega_from_loadings(const Matrix& loadings, const Vector& uniqueness
       out.notes.push_back("Each item was assigned to the scale of the factor on which it has its largest absolute "
                           "loading.");
   }
+  const Matrix& phi_in = options.factor_correlations;
+  if (phi_in.size() != 0) {
+    if (phi_in.rows() != k || phi_in.cols() != k)
+      throw Error(ErrorCode::invalid_argument, fmt::format("the factor correlations are {} x {} for {} factors",
+                                                           phi_in.rows(), phi_in.cols(), k));
+    if (!phi_in.allFinite())
+      throw Error(ErrorCode::invalid_argument, "the factor correlations contain a missing or infinite value");
+  }
+  const Matrix phi = phi_in.size() != 0 ? phi_in : Matrix(Matrix::Identity(k, k));
   for (Index f = 0; f < k; ++f) {
     ScaleOmega sc;
     sc.factor = f;
+    Vector lambda_sum = Vector::Zero(k);  // Lambda_S' 1: the scale's loadings on every factor, summed
     for (Index i = 0; i < p; ++i)
       if (out.assignment[static_cast<std::size_t>(i)] == f) {
         sc.items.push_back(i);
         sc.sum_loadings += loadings(i, f);
         sc.sum_uniquenesses += uniquenesses(i);
+        lambda_sum += loadings.row(i).transpose();
         if (loadings(i, f) < 0.0)
           out.notes.push_back(fmt::format("{} loads negatively ({:.2f}) on factor {}: omega sums loadings as they are; "
                                           "reverse-score the item if the scale score is to add it.",
@@ -177,8 +188,10 @@ OmegaResult omega_from_loadings(const Matrix& loadings, const Vector& uniqueness
                                           "overstated.",
                                           item_label(names, i), uniquenesses(i), f + 1));
       }
-    const double t = sc.sum_loadings * sc.sum_loadings;
-    sc.omega = sc.items.empty() ? kNaN : t / (t + sc.sum_uniquenesses);
+    const double common = lambda_sum.dot(phi * lambda_sum);  // 1' Lambda_S Phi Lambda_S' 1
+    sc.scale_variance = common + sc.sum_uniquenesses;          // 1' Sigma_SS 1
+    sc.omega = sc.items.empty() ? kNaN : common / sc.scale_variance;
+    sc.factor_share = sc.items.empty() ? kNaN : sc.sum_loadings * sc.sum_loadings / sc.scale_variance;
     if (sc.items.empty())
       out.notes.push_back(fmt::format("No item was assigned to factor {}; it has no scale and no omega.", f + 1));
     else if (sc.items.size() < 3)
@@ -187,8 +200,10 @@ OmegaResult omega_from_loadings(const Matrix& loadings, const Vector& uniqueness
     out.scales.push_back(std::move(sc));
   }
   if (k > 1)
-    out.notes.push_back("Omega treats each scale as measuring its own factor only; loadings on other factors are not "
-                        "credited to the scale.");
+    out.notes.push_back("Omega total is the share of the variance of a scale's sum (as the model implies it) that all "
+                        "the common factors explain, the scale items' loadings on other factors and the factor "
+                        "correlations included; the factor's share is the part due to the scale's own factor alone, "
+                        "(sum of the items' loadings on it)^2 over the same variance.");
   return out;
 }
 

@@ -394,7 +394,7 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     b.label("SalientLabel", "Strong loading from", L, 180, 82);
     b.number("Salient", 0.30, 0.05, 0.95, 2, F, 180, W);
     b.label("SeedLabel", "Random seed", L, 195, 82);
-    b.number("Seed", 20261201, 0, 9007199254740991.0, 0, F, 195, W);
+    b.number("Seed", 20260101, 0, 9007199254740991.0, 0, F, 195, W);
 
     b.add("com.sun.star.awt.UnoControlButtonModel", "Run", 276, 230, 54, 14,
           {{"Label", Any(A("Run"))}, {"PushButtonType", Any(sal_Int16(1))}, {"DefaultButton", Any(true)}});

@@ -470,7 +470,9 @@ std::shared_ptr<const ParallelOutputs> run_parallel(const lode_correlation* corr
 
 std::int64_t run_nfactors(const lode_correlation* corr, int rule, std::int64_t seed) {
   auto c = run_count(corr, 0, 0.0, seed);
-  const int keys[] = {LODE_COUNT_PARALLEL_PC, LODE_COUNT_MAP_SQUARED_SUGGESTED, LODE_COUNT_KAISER,
+  // "parallel" is the library's suggested count (parallel analysis of the reduced-matrix factor eigenvalues
+  // against the 95th percentile), the one rule lode_fit, the report and Python use when factors is 0.
+  const int keys[] = {LODE_COUNT_SUGGESTED, LODE_COUNT_MAP_SQUARED_SUGGESTED, LODE_COUNT_KAISER,
                       LODE_COUNT_EMPIRICAL_KAISER};
   double v = 0.0;
   check(lode_factor_count_value(c.get(), keys[rule], &v), "factor count");

@@ -470,7 +470,8 @@ struct ScaleReliability {
   std::size_t factor = 0;
   std::vector<std::size_t> items;  // indices into the analysed items, in loading order
   std::vector<bool> reversed;      // per scale item: reverse-scored for these figures
-  double omega = kNaN;
+  double omega = kNaN;         // omega total of the scale (McDonald 1999)
+  double omega_share = kNaN;   // the factor's share of the scale's variance
   bool have_alpha = false;
   std::string alpha_reason;        // why alpha is missing
   double alpha = kNaN, alpha_std = kNaN, mean_r = kNaN, rows_used = kNaN, rows_total = kNaN;
@@ -507,6 +508,7 @@ ReliabilityResult reliability(const ModelResult& model, const lode_correlation* 
   std::unique_ptr<lode_reliability, RelFree> om(raw);
   const std::vector<double> assignment = rel_matrix(om.get(), LODE_OMEGA_ASSIGNMENT);
   std::vector<double> omega = rel_matrix(om.get(), LODE_OMEGA);
+  std::vector<double> share = rel_matrix(om.get(), LODE_RELIABILITY_OMEGA_FACTOR_SHARE);
   out.omega_notes = rel_notes(om.get());
 
   std::vector<bool> reversed(p, false);
@@ -523,9 +525,9 @@ ReliabilityResult reliability(const ModelResult& model, const lode_correlation* 
     std::vector<bool> touched(k, false);
     for (std::size_t j = 0; j < p; ++j)
       if (reversed[j]) touched[static_cast<std::size_t>(assignment[j])] = true;
-    const std::vector<double> own_omega = omega;
+    const std::vector<double> own_omega = omega, own_share = share;
     for (std::size_t f = 0; f < k; ++f)
-      if (touched[f]) omega[f] = kNaN;
+      if (touched[f]) omega[f] = share[f] = kNaN;
     std::vector<double> drd(R);
     for (std::size_t i = 0; i < p; ++i)
       for (std::size_t j = 0; j < p; ++j)
@@ -585,7 +587,12 @@ ReliabilityResult reliability(const ModelResult& model, const lode_correlation* 
           } else {
             std::unique_ptr<lode_reliability, RelFree> om2(r2);
             const std::vector<double> w2 = rel_matrix(om2.get(), LODE_OMEGA);
-            for (std::size_t f = 0; f < k; ++f) omega[f] = touched[f] ? w2[static_cast<std::size_t>(order[f])] : own_omega[f];
+            const std::vector<double> s2 = rel_matrix(om2.get(), LODE_RELIABILITY_OMEGA_FACTOR_SHARE);
+            for (std::size_t f = 0; f < k; ++f) {
+              const auto g = static_cast<std::size_t>(order[f]);
+              omega[f] = touched[f] ? w2[g] : own_omega[f];
+              share[f] = touched[f] ? s2[g] : own_share[f];
+            }
             out.omega_notes = rel_notes(om2.get());  // about the items as reverse-scored
           }
         }
@@ -599,6 +606,7 @@ ReliabilityResult reliability(const ModelResult& model, const lode_correlation* 
     ScaleReliability sr;
     sr.factor = f;
     sr.omega = omega[f];
+    sr.omega_share = share[f];
     for (std::size_t j : order)
       if (assignment[j] == static_cast<double>(f)) {
         sr.items.push_back(j);
@@ -657,6 +665,12 @@ ReliabilityResult reliability(const ModelResult& model, const lode_correlation* 
   out.available = true;
   return out;
 }
+
+// The chi-square family of a minimum residual or principal axis solution (stated wherever those figures appear).
+constexpr const char* kNotLikelihoodRatio =
+    "The extraction is not maximum likelihood: chi-square, p-value, RMSEA, TLI and BIC are the maximum likelihood "
+    "discrepancy evaluated at this solution, not a likelihood-ratio test; the p-value is approximate (it runs a "
+    "little small) and the figures describe fit rather than test it. RMSR needs no such caveat.";
 
 // Common-practice reading of alpha or omega (often traced to Nunnally 1978; README, "Reading the results").
 std::string reliability_words(double v) {
@@ -1091,6 +1105,8 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
                                                                : "weak (under 0.90; common practice)",
                          note)});
       ov.line({Cell::txt("BIC", label), Cell::num(model.bic, number), Cell::txt("lower is better when comparing models", note)});
+      if (o.extraction != "ml")
+        ov.line({Cell::txt("About these figures", label), Cell::txt(kNotLikelihoodRatio, flag)});
     } else {
       ov.line({Cell::txt("Chi-square, RMSEA, TLI", label), Cell::txt("not available: " + model.stats_reason, note)});
     }
@@ -1339,7 +1355,8 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   }
   fc.blank();
   fc.line({Cell::txt("Reliability of each factor's scale", heading), Cell::txt("", heading), Cell::txt("", heading),
-           Cell::txt("", heading), Cell::txt("", heading), Cell::txt("", heading), Cell::txt("", heading)});
+           Cell::txt("", heading), Cell::txt("", heading), Cell::txt("", heading), Cell::txt("", heading),
+           Cell::txt("", heading), Cell::txt("", heading)});
   if (!rel.available) {
     fc.line({Cell::txt("Reliability (alpha, omega): not computed: " + rel.reason, note)});
   } else {
@@ -1354,13 +1371,19 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
                          note)});
     }
     fc.line({Cell::txt("Alpha (Cronbach 1951) uses the respondents who answered every item of the scale; omega "
-                       "(McDonald 1999) comes from the model's loadings and uniquenesses.",
+                       "(McDonald 1999) comes from the model's loadings, factor correlations and uniquenesses, as a "
+                       "share of the variance of the scale's sum that the model implies.",
+                       note)});
+    fc.line({Cell::txt("Omega total: the share due to all the common factors (the items' loadings on other factors "
+                       "and the factor correlations count). Factor's share: the part due to the scale's own factor "
+                       "alone, (sum of the items' loadings on it) squared over the same variance. With one factor "
+                       "the two agree.",
                        note)});
     if (!rel.omega_reason.empty()) fc.line({Cell::txt("Omega not available: " + rel.omega_reason, flag)});
     fc.line({Cell::txt("Scale", heading), Cell::txt("Items", heading), Cell::txt("Alpha", heading),
-             Cell::txt("Standardised alpha", heading), Cell::txt("Omega", heading),
+             Cell::txt("Standardised alpha", heading), Cell::txt("Omega total", heading),
              Cell::txt("Mean inter-item correlation", heading), Cell::txt("Respondents used", heading),
-             Cell::txt("Reading (omega)", heading)});
+             Cell::txt("Reading (omega total)", heading), Cell::txt("Omega, factor's share", heading)});
     for (const ScaleReliability& sr : rel.scales) {
       std::vector<Cell> row{Cell::txt("Factor " + std::to_string(sr.factor + 1), label),
                             Cell::num(static_cast<double>(sr.items.size()))};
@@ -1381,6 +1404,8 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
         row.push_back(Cell::txt(""));
       }
       row.push_back(Cell::txt(reliability_words(sr.omega), note));
+      row.push_back(std::isnan(sr.omega_share) ? Cell::txt(sr.items.empty() ? "no items" : "not available", note)
+                                               : Cell::num(sr.omega_share, number));
       fc.line(std::move(row));
     }
     for (const ScaleReliability& sr : rel.scales) {

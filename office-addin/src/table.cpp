@@ -11,7 +11,8 @@ namespace {
 
 // Argument help shared by several rows.
 constexpr std::string_view kFactorsHelp =
-    "Number of factors; left out or 0: the count parallel analysis suggests (see LODE.NFACTORS)";
+    "Number of factors; left out or 0: the count parallel analysis suggests (factor eigenvalues against the 95th "
+    "percentile of 500 random data sets, as LODE.NFACTORS)";
 constexpr std::string_view kMethodHelp =
     "Extraction: \"ml\" maximum likelihood (default), \"paf\" principal axis, \"minres\" minimum residual";
 constexpr std::string_view kRotationHelp =
@@ -67,8 +68,9 @@ const std::vector<FunctionSpec> kTable = {
      fn_sphericity},
     {"parallel",
      "LODE.PARALLEL",
-     "Parallel analysis: per position, the observed eigenvalue, the mean and a percentile of eigenvalues of random "
-     "data of the same size.",
+     "Parallel analysis: per position, the observed eigenvalue of the correlation matrix, the mean and a percentile "
+     "of eigenvalues of random data of the same size (component eigenvalues; the suggested count, LODE.NFACTORS, "
+     "compares the reduced-matrix factor eigenvalues instead).",
      {{"data", ArgKind::range, kDataHelp},
       {"replicates", ArgKind::value, "Number of random data sets, 10 to 10000 (default 500)"},
       {"percentile", ArgKind::value, "Percentile of the random eigenvalues, between 0 and 100 (default 95)"},
@@ -80,8 +82,10 @@ const std::vector<FunctionSpec> kTable = {
      "The suggested number of factors by one rule.",
      {{"data", ArgKind::range, kDataHelp},
       {"rule", ArgKind::value,
-       "\"parallel\" (default: parallel analysis), \"map\" (Velicer's minimum average partial), \"kaiser\" "
-       "(eigenvalues above one), \"ekc\" (empirical Kaiser criterion)"},
+       "\"parallel\" (default: parallel analysis of the reduced-matrix factor eigenvalues against the 95th "
+       "percentile of 500 random data sets, the count every Lode function uses when factors is left out), \"map\" "
+       "(Velicer's minimum average partial), \"kaiser\" (eigenvalues above one), \"ekc\" (empirical Kaiser "
+       "criterion)"},
       {"seed", ArgKind::value, kSeedHelp}},
      "one number", "#NUM!: matrix not positive definite (map)", fn_nfactors},
     {"loadings",
@@ -142,7 +146,9 @@ const std::vector<FunctionSpec> kTable = {
     {"fit",
      "LODE.FIT",
      "How well the factors fit: two columns, a label and a value per row (chi-square, df, p, RMSEA and its "
-     "interval, TLI, BIC, RMSR, convergence, Heywood cases).",
+     "interval, TLI, BIC, RMSR, convergence, Heywood cases). With \"paf\" or \"minres\" the chi-square, p, "
+     "RMSEA, TLI and BIC are the maximum likelihood discrepancy evaluated at that solution, not a likelihood-ratio "
+     "test: read them as descriptive.",
      {{"data", ArgKind::range, kDataHelp},
       {"factors", ArgKind::value, kFactorsHelp},
       {"method", ArgKind::value, kMethodHelp},

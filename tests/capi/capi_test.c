@@ -1199,6 +1199,15 @@ static void test_scores(void) {
   OK(lode_reliability_matrix(rel, LODE_OMEGA_ASSIGNMENT, buf, N_ITEMS, &rows, NULL));
   CHECK(rows == N_ITEMS);
   OK(lode_reliability_matrix(rel, LODE_OMEGA_SUM_LOADINGS, det, 2, NULL, NULL));
+  {
+    /* the factor's share is (sum of loadings)^2 over the model-implied variance of the sum (McDonald 1999) */
+    double share[2], var[2];
+    OK(lode_reliability_matrix(rel, LODE_RELIABILITY_OMEGA_FACTOR_SHARE, share, 2, &rows, &cols));
+    CHECK(rows == 2 && cols == 1);
+    OK(lode_reliability_matrix(rel, LODE_RELIABILITY_OMEGA_SCALE_VARIANCE, var, 2, &rows, &cols));
+    CHECK(rows == 2 && cols == 1);
+    for (i = 0; i < 2; ++i) CHECK(fabs(share[i] * var[i] - det[i] * det[i]) < 1e-12 * var[i]);
+  }
   OK(lode_reliability_matrix(rel, LODE_OMEGA_SUM_UNIQUENESSES, det, 2, NULL, NULL));
   OK(lode_reliability_text(rel, LODE_RELIABILITY_NOTES, text, sizeof text, NULL));
   EXPECT(lode_reliability_value(rel, LODE_ALPHA, &v), LODE_E_INVALID_ARGUMENT, "alpha");
@@ -1234,6 +1243,8 @@ static void test_scores(void) {
     OK(lode_reliability_matrix(rel, LODE_OMEGA_UNIQUENESSES, psi, 3, NULL, NULL));
     sl = lam[0] + lam[1] + lam[2];
     CHECK(fabs(om - sl * sl / (sl * sl + psi[0] + psi[1] + psi[2])) < 1e-12);
+    OK(lode_reliability_matrix(rel, LODE_RELIABILITY_OMEGA_FACTOR_SHARE, &sl, 1, NULL, NULL));
+    CHECK(sl == om); /* one factor: omega total and the factor's share agree */
     OK(lode_reliability_matrix(rel, LODE_OMEGA_ASSIGNMENT, buf, 3, &rows, NULL));
     CHECK(rows == 3 && buf[0] == 0.0 && buf[2] == 0.0);
     OK(lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v));

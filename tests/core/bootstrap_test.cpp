@@ -307,3 +307,25 @@ TEST(Bootstrap, WarmStartsReachTheSameReplicateSolutionsAsFittingFromScratch) {
   EXPECT_NE(warm.notes.at(1).find("each fit started from the full-sample solution"), std::string::npos);
   EXPECT_EQ(cold.notes.at(1).find("each fit started from the full-sample solution"), std::string::npos);
 }
+
+TEST(Bootstrap, ReplicatesWithAUniquenessHeldAtTheBoundConvergeAndAreKept) {
+  // Six items, two factors of three, n = 120: some resamples have their ML optimum with a uniqueness at the
+  // lower bound 0.005 (a Heywood optimum). Those replicates converge (the search treats the bound-held
+  // uniqueness as fixed) and count as used, so the intervals keep that tail instead of trimming it.
+  Matrix l(6, 2);
+  l << 0.85, 0.0, 0.7, 0.0, 0.6, 0.0, 0.0, 0.85, 0.0, 0.7, 0.0, 0.6;
+  const Matrix x = lode::testing::simulate_factor_data(l, lode::testing::two_factor_phi(0.3), 120, 63).x;
+  ExtractionOptions ext;  // maximum likelihood, the default cap of 1,000 iterations and tolerance 1e-9
+  RotationOptions rot;
+  rot.method = RotationMethod::oblimin;
+  BootstrapOptions o;
+  o.replicates = 300;
+  o.seed = 8;
+  o.keep_replicates = true;
+  const auto b = bootstrap_factor_solution(x, 2, ext, rot, o);
+  EXPECT_EQ(b.replicates_failed, 0);
+  EXPECT_EQ(b.replicates_used, 300);
+  int at_bound = 0;
+  for (const Vector& u : b.replicate_uniquenesses) at_bound += u.minCoeff() <= ext.min_uniqueness * (1.0 + 1e-6);
+  EXPECT_GT(at_bound, 0) << "the design is meant to produce Heywood optima in some resamples";
+}

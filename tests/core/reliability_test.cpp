@@ -89,35 +89,56 @@ TEST(Reliability, ReverseKeyedItemIsNoted) {
 }
 
 TEST(Reliability, OmegaMatchesItsFormulaInNumpy) {
-  // Loadings and uniquenesses from R's stats::factanal (2 factors, promax) on simulated data; omega per
-  // factor computed independently in numpy: items to the factor of their largest |loading|, then
-  // (sum lambda)^2 / ((sum lambda)^2 + sum psi) (McDonald 1999).
+  // Loadings, uniquenesses and factor correlations from R's stats::factanal (2 factors, promax; Phi =
+  // (U'U)^-1 for its rotation matrix U) on simulated data; omega per factor computed independently in
+  // numpy: items to the factor of their largest |loading|, Sigma = L Phi L' + Psi, omega total =
+  // 1' (L Phi L')_SS 1 / 1' Sigma_SS 1 and the factor's share (sum_S lambda_f)^2 / 1' Sigma_SS 1
+  // (McDonald 1999; Revelle & Zinbarg 2009 for omega total with several factors).
   const Matrix x = lode::testing::simulate_factor_data(lode::testing::two_factor_loadings(),
                                                        lode::testing::two_factor_phi(0.3), 400, 34)
                        .x;
   const auto fa = run_r(R"(
     f <- factanal(X, factors = 2, rotation = "promax")
-    emit("L", unclass(f$loadings)); emit("u", f$uniquenesses)
+    emit("L", unclass(f$loadings)); emit("u", f$uniquenesses); emit("phi", solve(crossprod(f$rotmat)))
     f1 <- factanal(X[, 1:4], factors = 1)
     emit("L1", unclass(f1$loadings)); emit("u1", f1$uniquenesses)
   )", {{"X", x}});
   const auto py = run_python(R"(
 a = np.abs(L).argmax(axis=1)
-om = []
+common = L @ phi @ L.T
+sigma = common + np.diag(u[:, 0])
+om, share, var = [], [], []
 for f in range(L.shape[1]):
-    s = L[a == f, f].sum()
-    om.append(s * s / (s * s + u[a == f, 0].sum()))
-emit('omega', om); emit('assign', a)
+    S = np.ix_(a == f, a == f)
+    v = sigma[S].sum()
+    om.append(common[S].sum() / v); share.append(L[a == f, f].sum() ** 2 / v); var.append(v)
+emit('omega', om); emit('share', share); emit('var', var); emit('assign', a)
 s1 = L1[:, 0].sum(); emit('omega1', [s1 * s1 / (s1 * s1 + u1[:, 0].sum())])
-)", {{"L", fa.at("L")}, {"u", fa.at("u")}, {"L1", fa.at("L1")}, {"u1", fa.at("u1")}});
-  const auto om = omega_from_loadings(fa.at("L"), fa.at("u").col(0));
+)", {{"L", fa.at("L")}, {"u", fa.at("u")}, {"phi", fa.at("phi")}, {"L1", fa.at("L1")}, {"u1", fa.at("u1")}});
+  OmegaOptions o;
+  o.factor_correlations = fa.at("phi");
+  const auto om = omega_from_loadings(fa.at("L"), fa.at("u").col(0), o);
   ASSERT_EQ(om.scales.size(), 2u);
-  for (Index f = 0; f < 2; ++f) EXPECT_NEAR(om.scales[static_cast<std::size_t>(f)].omega, py.at("omega")(f, 0), 1e-12);
+  for (Index f = 0; f < 2; ++f) {
+    const auto& sc = om.scales[static_cast<std::size_t>(f)];
+    // sums of 8 x 2 x 2 products of numbers below 1 in magnitude: rounding far below 1e-12
+    EXPECT_NEAR(sc.omega, py.at("omega")(f, 0), 1e-12);
+    EXPECT_NEAR(sc.factor_share, py.at("share")(f, 0), 1e-12);
+    EXPECT_NEAR(sc.scale_variance, py.at("var")(f, 0), 1e-12);
+  }
   for (Index i = 0; i < 8; ++i) EXPECT_EQ(om.assignment[static_cast<std::size_t>(i)], static_cast<Index>(py.at("assign")(i, 0)));
-  // A one-factor fit: omega of that single scale.
+  // A one-factor fit: omega of that single scale; omega total and the factor's share agree.
   const auto one = omega_from_loadings(fa.at("L1"), fa.at("u1").col(0));
   EXPECT_NEAR(one.scales[0].omega, py.at("omega1")(0, 0), 1e-12);
+  EXPECT_NEAR(one.scales[0].factor_share, py.at("omega1")(0, 0), 1e-12);
   EXPECT_EQ(one.scales[0].items.size(), 4u);
+  // Factor correlations of the wrong size are refused.
+  o.factor_correlations = Matrix::Identity(3, 3);
+  EXPECT_EQ(error_message([&] { omega_from_loadings(fa.at("L"), fa.at("u").col(0), o); }),
+            "the factor correlations are 3 x 3 for 2 factors");
+  o.factor_correlations = Matrix::Constant(2, 2, NAN);
+  EXPECT_EQ(error_message([&] { omega_from_loadings(fa.at("L"), fa.at("u").col(0), o); }),
+            "the factor correlations contain a missing or infinite value");
 }
 
 TEST(Reliability, OmegaWithGivenAssignmentAndNotes) {
@@ -129,8 +150,12 @@ TEST(Reliability, OmegaWithGivenAssignmentAndNotes) {
   o.item_names = {"w", "x", "y", "z"};
   const auto om = omega_from_loadings(l, u, o);
   EXPECT_EQ(om.scales[1].items, std::vector<Index>{2});
-  const double s = 0.7 - 0.6;
-  EXPECT_NEAR(om.scales[0].omega, s * s / (s * s + u(0) + u(1)), 1e-15);  // the formula, by hand
+  // By hand, uncorrelated factors: the scale's loadings sum to (0.7 - 0.6, 0.1 + 0) = (0.1, 0.1), so the
+  // common variance of its sum is 0.1^2 + 0.1^2 and the factor's own part 0.1^2.
+  const double common = 0.01 + 0.01, var = common + u(0) + u(1);
+  EXPECT_NEAR(om.scales[0].omega, common / var, 1e-15);
+  EXPECT_NEAR(om.scales[0].factor_share, 0.01 / var, 1e-15);
+  EXPECT_NEAR(om.scales[0].scale_variance, var, 1e-15);
   bool negative_noted = false;
   for (const auto& n : om.notes) negative_noted = negative_noted || n.find("item 'x' loads negatively") != std::string::npos;
   EXPECT_TRUE(negative_noted);

@@ -225,10 +225,10 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
         rec = {rr.getCellByPosition(0, r).String: rr.getCellByPosition(1, r).String for r in range(40)}
         assert rec["Source range"] == "$Responses.$A$1:$AE$421" and rec["First row holds item names"] == "yes"
         assert rec["Items"].split(", ")[0] == "ROL1" and len(rec["Items"].split(", ")) == 30
-        assert rec["Correlations"] == "pearson" and rec["Random seed"] == "20261201"
+        assert rec["Correlations"] == "pearson" and rec["Random seed"] == "20260101"
         assert rec["Factor scores"] == "regression" and rec["Factor scores placed"] == "beside"
         assert rec["Factor scores written to"].endswith("of Responses, beside the data")
-        assert rec["Bootstrap resamples"] == "500" and rec["Bootstrap seed"].startswith("20261201 ")
+        assert rec["Bootstrap resamples"] == "500" and rec["Bootstrap seed"].startswith("20260101 ")
         # the score columns start right of the answers (AE), with their headings
         assert doc.Sheets.getByName("Responses").getCellRangeByName("AF1").String == "Factor 1 score (regression)"
     time.sleep(2)

@@ -284,12 +284,11 @@ def test_against_the_c_library(blocks, keyed_header):
     k = None
     for f, _, m in by_function(blocks, "LODE.NFACTORS"):
         k = int(m[0][0])
-        if par:  # Horn (1965): the leading run of observed eigenvalues above the random percentile
-            cells = numbers(par[0][2])
-            above = cells[:, 0] > cells[:, 2]
-            assert k == (int(np.argmin(above)) if not above.all() else len(above))
         nf = binding("n_factors")(x, replicates=500, seed=SEED)  # the cells' replicates and seed
-        assert k == nf.parallel["suggested_pc"]
+        # Horn (1965) on the reduced-matrix eigenvalues (the count rule of every surface): the leading run
+        # of observed eigenvalues above the random percentile
+        above = nf.parallel["observed_factor"] > nf.parallel["random_factor_percentile"]
+        assert k == (int(np.argmin(above)) if not above.all() else len(above)) == nf.suggested
         # the generator built five factors (volunteer-survey-truth.json); parallel analysis finds them
         assert k == len(json.load(open(os.path.join(SHEETS, "volunteer-survey-truth.json")))["factors"])
         checked.add("LODE.NFACTORS")

@@ -301,6 +301,8 @@ def check_model(doc, ov, ld, x, names, k, salient, seed):
     assert abs(find_row(ov, "Root mean square residual (RMSR)")[1] - m.statistics["rmsr"]) < 1e-12
     assert abs(find_row(ov, "RMSEA")[1] - m.statistics["rmsea"]) < 1e-12
     assert abs(find_row(ov, "TLI")[1] - m.statistics["tli"]) < 1e-12
+    # minres: the chi-square family is the ML discrepancy at a non-ML solution, and the sheet says so
+    assert "not a likelihood-ratio test" in find_row(ov, "About these figures")[1]
     fs = read_sheet(doc.Sheets.getByName("Lode factors"))
     if m.oblique:
         at = [i for i, r in enumerate(fs) if r[:1] == ["Factor correlations"]][0] + 2
@@ -514,14 +516,21 @@ def test_reliability_per_scale_matches_the_c_library_and_numpy(office, survey, s
         row = fc[at + f]
         items = [j for j in order if home[j] == f]
         assert row[0] == f"Factor {f + 1}" and row[1] == len(items)
-        # Omega (McDonald 1999) from the loadings, with numpy: (sum lambda)^2 / ((sum lambda)^2 + sum psi),
-        # reverse-scored items entering with their loading's sign reversed.
-        lam = np.abs(L[items, f])
-        omega_np = lam.sum() ** 2 / (lam.sum() ** 2 + psi[items].sum())
+        # Omega (McDonald 1999) with numpy, over the model-implied variance of the scale's sum
+        # 1' Sigma_SS 1, Sigma = L Phi L' + Psi, reverse-scored items entering with their rows of
+        # loadings reversed: omega total = 1' (L Phi L')_SS 1 / 1' Sigma_SS 1, the factor's share =
+        # (sum of the loadings on f)^2 / 1' Sigma_SS 1.
+        Lr = L * np.where(reversed_, -1.0, 1.0)[:, None]
+        common = (Lr @ m.factor_correlations @ Lr.T)[np.ix_(items, items)].sum()
+        var = common + psi[items].sum()
+        omega_np, share_np = common / var, Lr[items, f].sum() ** 2 / var
+        assert fc[at - 1][4] == "Omega total" and fc[at - 1][8] == "Omega, factor's share"
         if reversed_[items].any():  # from the refit to the reversed correlations: equal up to the fit's tolerance
             assert abs(row[4] - omega_np) < 1e-6, (f, row[4], omega_np)
+            assert abs(row[8] - share_np) < 1e-6, (f, row[8], share_np)
         else:  # the C library's omega of this model, exactly
             assert abs(row[4] - om.omega[f]) < 1e-12 and abs(row[4] - omega_np) < 1e-10
+            assert abs(row[8] - om.factor_share[f]) < 1e-12 and abs(row[8] - share_np) < 1e-10
         # Alpha on the scale's items, reverse-scored ones as (lowest + highest answer) - answer.
         xs = x[:, items].copy()
         for c, j in enumerate(items):
@@ -827,3 +836,55 @@ def test_cancel_during_the_bootstrap_leaves_the_workbook_as_it_was(office, surve
     assert service.lastOutcome().startswith("stopped: the analysis was cancelled"), service.lastOutcome()
     assert snapshot(survey) == before
     assert cell_styles(survey) == styles
+
+
+# --- one factor count on every surface ------------------------------------------------------------------
+
+
+def harman74_data():
+    """145 rows whose Pearson correlations are exactly datasets::Harman74.cor (R's datasets; Harman 1976,
+    24 tests, n = 145), up to rounding: seeded normal draws, whitened to identity sample covariance with
+    numpy, then given Harman74's covariance through its Cholesky factor. The report needs raw data."""
+    from refs import run_r
+    r = run_r('emit("r", Harman74.cor$cov)')["r"]
+    rng = np.random.default_rng(74)
+    z = rng.standard_normal((145, 24))
+    z -= z.mean(axis=0)
+    z = z @ np.linalg.inv(np.linalg.cholesky(np.cov(z, rowvar=False))).T
+    x = z @ np.linalg.cholesky(r).T
+    assert np.max(np.abs(np.corrcoef(x, rowvar=False) - r)) < 1e-12
+    return r, x
+
+
+def test_one_factor_count_on_every_surface(office, service):
+    """The same count from the cells (LODE.NFACTORS, and LODE.LOADINGS with factors left out), the report
+    service with its defaults (what the dialog starts with) and Python (n_factors, fit(factors=0)), on raw
+    data and on the correlation matrix: parallel analysis of the reduced-matrix eigenvalues against the
+    95th percentile of 500 normal random data sets, seed 20260101, with every surface's defaults."""
+    from office import array_formula
+    r, x = harman74_data()
+    names = [f"T{j + 1:02d}" for j in range(24)]
+    doc = new_book(office, [names] + [list(row) for row in x])
+    try:
+        with office.watchdog(300):
+            service.run(doc, range_of(doc, "Answers", 24, 146), props())
+        ov = read_sheet(doc.Sheets.getByName("Lode overview"))
+        report = find_row(ov, "Decision")[1]
+        sheet = doc.Sheets.getByName("Answers")
+        with office.watchdog(120):
+            cell = sheet.getCellByPosition(30, 0)
+            cell.setFormula("=LODE.NFACTORS($Answers.$A$1:$X$146)")
+            assert cell.getError() == 0
+            cells = cell.getValue()
+            # evaluated as an array formula, so COLUMNS sees the whole loading matrix
+            array_formula(sheet, 31, 0, 1, 1, "=COLUMNS(LODE.LOADINGS($Answers.$A$1:$X$146))")
+            assert sheet.getCellByPosition(31, 0).getError() == 0
+            fitted = sheet.getCellByPosition(31, 0).getValue()
+    finally:
+        with office.watchdog(60):
+            doc.close(True)
+    python_count = lode.n_factors(x).suggested
+    python_fit = lode.fit(x, factors=0, method="minres", rotation="oblimin").factors
+    from_matrix = lode.fit(corr=r, n_obs=145, factors=0).factors
+    assert report == cells == fitted == python_count == python_fit == from_matrix == 4, \
+        (report, cells, fitted, python_count, python_fit, from_matrix)

@@ -133,7 +133,9 @@ def test_nfactors(book, functions, attitude, harman):
     # Kaiser's rule: eigenvalues above one (numpy)
     assert book.value(f'=LODE.NFACTORS({rng};"kaiser")') == float(np.sum(eig > 1))
     nf = lode.n_factors(x, replicates=500, seed=3)  # the C library with the cells' replicates and seed
-    expected = {"parallel": nf.parallel["suggested_pc"], "map": nf.map["suggested_squared"], "kaiser": nf.kaiser,
+    # "parallel" is the one count rule of every surface: the suggested count (reduced-matrix eigenvalues)
+    assert nf.suggested == nf.parallel["suggested_factor"]
+    expected = {"parallel": nf.suggested, "map": nf.map["suggested_squared"], "kaiser": nf.kaiser,
                 "ekc": nf.empirical_kaiser}
     for rule, count in expected.items():
         assert book.value(f'=LODE.NFACTORS({rng};"{rule}";3)') == float(count), rule

@@ -142,23 +142,59 @@ def test_alpha_matches_formula():
         lode.alpha(x[:, :1])
 
 
+def _omega_by_formula(loadings, phi, psi, items, f):
+    """McDonald (1999) for the sum of `items`, written here with numpy: Sigma = L Phi L' + Psi (the
+    model-implied covariances); omega total = 1' (L Phi L')_SS 1 / 1' Sigma_SS 1 (all common factors,
+    as in Revelle & Zinbarg 2009); the factor's share = (sum of the items' loadings on f)^2 / 1' Sigma_SS 1."""
+    common = loadings @ phi @ loadings.T
+    sigma = common + np.diag(psi)
+    idx = np.ix_(items, items)
+    var = sigma[idx].sum()
+    return common[idx].sum() / var, loadings[items, f].sum() ** 2 / var, var
+
+
 def test_omega_matches_formula():
     x = survey(400, 8, seed=33, factors=2, loading=0.7)
     m = lode.fit(x, factors=2, method="ml", rotation="oblimin", seed=2)
     o = lode.omega(m)
-    # McDonald (1999): (sum lambda)^2 / ((sum lambda)^2 + sum psi) per scale, items by largest
-    # loading, computed here with numpy.
+    # Items by largest absolute loading; both omegas from the formulas above.
     assign = np.argmax(np.abs(m.loadings), axis=1)
     assert np.array_equal(o.assignment, assign)
     for f in range(2):
-        lam, psi = m.loadings[assign == f, f].sum(), m.uniquenesses[assign == f].sum()
-        assert o.omega[f] == pytest.approx(lam**2 / (lam**2 + psi), abs=1e-12)
+        total, share, var = _omega_by_formula(m.loadings, m.factor_correlations, m.uniquenesses,
+                                              np.flatnonzero(assign == f), f)
+        assert o.omega[f] == pytest.approx(total, abs=1e-12)
+        assert o.factor_share[f] == pytest.approx(share, abs=1e-12)
+        assert o.scale_variance[f] == pytest.approx(var, rel=1e-12)
     given = np.array([0, 1, 0, 1, 0, 1, 0, -1])
     og = lode.omega(m, assignment=given)
-    lam, psi = m.loadings[given == 0, 0].sum(), m.uniquenesses[given == 0].sum()
-    assert og.omega[0] == pytest.approx(lam**2 / (lam**2 + psi), abs=1e-12)
+    total, share, _ = _omega_by_formula(m.loadings, m.factor_correlations, m.uniquenesses, np.flatnonzero(given == 0), 0)
+    assert og.omega[0] == pytest.approx(total, abs=1e-12) and og.factor_share[0] == pytest.approx(share, abs=1e-12)
     with pytest.raises(lode.LodeError, match="assigned to factor"):
         lode.omega(m, assignment=[0, 1, 0, 1, 0, 1, 0, 7])
+
+
+def test_omega_per_factor_on_harman74_oblique():
+    # datasets::Harman74.cor (R's datasets; Harman 1976, 24 tests, n = 145), 4 factors, maximum
+    # likelihood + oblimin: omega total and each factor's share against the numpy formulas. The
+    # scales here have cross-loadings and correlated factors, so the two differ, and the old
+    # (sum lambda)^2 / ((sum lambda)^2 + sum psi) is neither.
+    r = run_r("emit('r', Harman74.cor$cov)")["r"]
+    m = lode.fit(corr=r, n_obs=145, factors=4, method="ml", rotation="oblimin")
+    assert m.converged
+    o = lode.omega(m)
+    assign = np.argmax(np.abs(m.loadings), axis=1)
+    assert np.array_equal(o.assignment, assign)
+    for f in range(4):
+        items = np.flatnonzero(assign == f)
+        total, share, var = _omega_by_formula(m.loadings, m.factor_correlations, m.uniquenesses, items, f)
+        # Sums of at most 24 x 4 products of numbers below 1: rounding far below 1e-12.
+        assert o.omega[f] == pytest.approx(total, abs=1e-12)
+        assert o.factor_share[f] == pytest.approx(share, abs=1e-12)
+        assert o.scale_variance[f] == pytest.approx(var, rel=1e-12)
+        old = o.sum_loadings[f] ** 2 / (o.sum_loadings[f] ** 2 + o.sum_uniquenesses[f])
+        assert share < old < total  # the old ratio left cross-loading variance out of the denominator
+    assert any("factor's share" in n for n in o.notes)
 
 
 def test_single_scale_omega_matches_factanal():
@@ -173,6 +209,7 @@ def test_single_scale_omega_matches_factanal():
     lam, psi = np.abs(ref["l"].ravel()).sum(), ref["u"].ravel().sum()
     assert o.omega.shape == (1,) and o.converged
     assert o.omega[0] == pytest.approx(lam**2 / (lam**2 + psi), abs=1e-5)
+    assert o.factor_share[0] == pytest.approx(o.omega[0], abs=1e-15)  # one factor: the two agree
     assert np.max(np.abs(np.abs(o.loadings) - np.abs(ref["l"].ravel()))) < 1e-4
     # The same from the correlation matrix alone.
     oc = lode.omega(corr=np.corrcoef(x, rowvar=False), n_obs=300)

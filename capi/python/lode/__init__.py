@@ -103,7 +103,9 @@ class Correlation(_native.Handle):
     count), ``rows_total``, ``rows_complete``, ``rows_used``, ``min_pair_count``,
     ``missing_fraction``, ``positive_definite``, ``smoothed`` and ``smoothing`` (a dict describing
     the Higham smoothing when it was applied), ``notes`` (plain-language remarks). For polychoric
-    correlations of raw data also ``standard_errors`` (items x items, before smoothing),
+    correlations of raw data also ``standard_errors`` (items x items, before smoothing; two-step:
+    the thresholds are taken as known, so they run smaller than full maximum likelihood standard
+    errors, by about 8% in one simulated pair),
     ``thresholds`` (a list with each item's thresholds) and ``polychoric`` (a dict counting pairs
     ``not_converged``, ``at_bound`` and ``zero_cell_corrected``); otherwise these are None.
     ``numpy.asarray(result)`` gives the matrix.
@@ -332,11 +334,12 @@ def _count_options(replicates, seed, percentile, threshold, source, threads, pro
     return o, callback
 
 
-def n_factors(X=None, *, corr=None, cov=None, n_obs=None, replicates=1000, seed=None, percentile=95.0,
+def n_factors(X=None, *, corr=None, cov=None, n_obs=None, replicates=None, seed=None, percentile=95.0,
               threshold="percentile", source="normal", correlation="pearson", missing="pairwise", smooth=False,
               threads=0, progress=None, item_names=None):
     """How many factors to extract: parallel analysis (Horn 1965; ``replicates`` random data sets,
-    ``source`` "normal" or "permutation", compared with the ``percentile`` or the mean), Velicer's
+    None = the library's default of 500, ``source`` "normal" or "permutation", compared with the
+    ``percentile`` or the mean), Velicer's
     MAP test (squared and fourth power), eigenvalues above one and the empirical Kaiser criterion,
     with a suggested count and its reason. ``seed`` None uses Lode's fixed default seed (results are
     reproducible either way). ``progress(done, total)`` is called during the work; returning False
@@ -349,7 +352,7 @@ def n_factors(X=None, *, corr=None, cov=None, n_obs=None, replicates=1000, seed=
     return FactorCount(ptr.value)
 
 
-def parallel_analysis(X=None, *, corr=None, cov=None, n_obs=None, replicates=1000, seed=None, percentile=95.0,
+def parallel_analysis(X=None, *, corr=None, cov=None, n_obs=None, replicates=None, seed=None, percentile=95.0,
                       threshold="percentile", source="normal", **kwargs):
     """Parallel analysis (Horn 1965) alone: a dict with the observed component and factor
     (reduced-matrix) eigenvalues, the random-data means and percentiles by position, and the
@@ -405,7 +408,8 @@ class Rotation(_native.Handle):
 
     Attributes: ``loadings`` (the pattern, items x factors), ``structure``,
     ``factor_correlations`` (identity when orthogonal), ``rotation_matrix`` (T: pattern = A T
-    orthogonal, A inv(T)' oblique), ``criterion``, ``converged``, ``iterations``, ``oblique``,
+    orthogonal, A inv(T)' oblique), ``criterion`` (with ``normalize=True`` the criterion of the
+    Kaiser-normalised loadings, the ones minimised), ``converged``, ``iterations``, ``oblique``,
     ``method``, ``convergence`` (a dict: ``converged``, ``iterations``, ``final_change``,
     ``tolerance``, ``max_iterations``), ``ss_loadings`` and ``ss_structure`` (per factor), ``starts`` (a dict: ``starts``,
     ``converged``, ``reached_best``, ``distinct_solutions``, ``criteria``).
@@ -476,7 +480,12 @@ class Model(_native.Handle):
     ``converged``, ``iterations``, ``final_change``, ``tolerance``, ``max_iterations``). ``statistics`` is a dict with
     ``chi_square``, ``df``, ``p_value``, ``rmsea``, ``rmsea_ci`` (lower, upper), ``tli``, ``bic``,
     ``rmsr``, ``null_chi_square``, ``null_df``; entries that need n_obs are None without it (the
-    reason is in ``statistics_unavailable``).
+    reason is in ``statistics_unavailable``). For a "paf" or "minres" model the chi-square and
+    everything built on it (p_value, rmsea, tli, bic) is the maximum likelihood discrepancy evaluated
+    at that solution, not a likelihood-ratio test. ``convergence["final_change"]`` is the criterion
+    tested against ``tolerance``: for "ml" and "minres" the largest component of the projected
+    gradient (uniquenesses held at their lower bound count as converged there), for "paf" the
+    largest change of a communality.
     """
 
     _free = "lode_model_free"
@@ -533,15 +542,19 @@ class Model(_native.Handle):
 
 def fit(X=None, *, corr=None, cov=None, n_obs=None, factors, method="ml", rotation="none", missing="pairwise",
         correlation="pearson", smooth=False, seed=None, max_iterations=1000, tolerance=1e-9, min_uniqueness=0.005,
-        interval_level=0.90, replicates=1000, progress=None, item_names=None, **rotation_keywords):
+        interval_level=0.90, replicates=None, progress=None, item_names=None, **rotation_keywords):
     """Fits an exploratory factor model.
 
     Data: raw ``X`` (rows are respondents, NaN missing; ``missing`` "pairwise" or "listwise",
     ``correlation`` "pearson" or "spearman", ``smooth`` a non-positive-definite matrix), or a
     correlation matrix ``corr`` / covariance matrix ``cov`` with ``n_obs``, or a
-    :class:`Correlation`. ``factors``: how many (0 = the count parallel analysis suggests, with
-    ``replicates`` and ``seed``). ``method``: "ml" (maximum likelihood), "paf" (principal axis),
-    "minres" (minimum residual) or "pca" (components, for comparison). ``rotation`` and the
+    :class:`Correlation`. ``factors``: how many (0 = the count parallel analysis suggests: reduced-matrix
+    factor eigenvalues against the 95th percentile of ``replicates`` random data sets, None = 500, with
+    ``seed``; the rule the cell functions and the report use too). ``method``: "ml" (maximum
+    likelihood), "paf" (principal axis), "minres" (minimum residual) or "pca" (components, for
+    comparison). With "paf" and "minres" the chi-square, p-value, RMSEA, TLI and BIC in ``statistics``
+    are the maximum likelihood discrepancy evaluated at that solution, not a likelihood-ratio test
+    (descriptive; the p-value runs small). ``rotation`` and the
     ``rotation_keywords`` (normalize, gamma, kappa, epsilon, power, target, random_starts) as in
     :func:`rotate`; ``seed`` seeds the random starts and the factor count. ``progress(done, total)``
     is called during the work (by the factor count when ``factors`` is 0, with its replicates; then
@@ -680,10 +693,14 @@ def alpha(X, *, item_names=None):
 
 
 class Omega(_native.Handle):
-    """McDonald's omega total per factor's scale: ``omega`` (per factor; NaN for a factor without
-    items), ``assignment`` (each item's factor, -1 = none), ``sum_loadings``,
-    ``sum_uniquenesses``, ``notes`` (the assignment rule and caveats). For a single scale also
-    ``loadings`` and ``uniquenesses`` of its one-factor fit and ``converged`` (None otherwise)."""
+    """McDonald's (1999) omega per factor's scale (the sum of the items S assigned to the factor),
+    as shares of the model-implied variance of that sum, ``scale_variance`` = 1' Sigma_SS 1 with
+    Sigma = Lambda Phi Lambda' + Psi: ``omega`` is omega total, 1' (Lambda Phi Lambda')_SS 1 over it
+    (every common factor counts); ``factor_share`` is (sum of the items' loadings on the scale's
+    factor)^2 over it. Both are per factor, NaN for a factor without items, and equal for one factor.
+    Also ``assignment`` (each item's factor, -1 = none), ``sum_loadings``, ``sum_uniquenesses``,
+    ``notes`` (the assignment rule and caveats). For a single scale also ``loadings`` and
+    ``uniquenesses`` of its one-factor fit and ``converged`` (None otherwise)."""
 
     _free = "lode_reliability_free"
 
@@ -695,6 +712,8 @@ class Omega(_native.Handle):
         self.assignment = col(741).astype(np.int64)
         self.sum_loadings = col(742)
         self.sum_uniquenesses = col(743)
+        self.factor_share = col(746)
+        self.scale_variance = col(747)
         self.loadings = col(744) if single else None
         self.uniquenesses = col(745) if single else None
         self.converged = bool(_native.get_value(lib.lode_reliability_value, pointer, 760)) if single else None
@@ -706,7 +725,7 @@ class Omega(_native.Handle):
 
 def omega(model=None, *, X=None, corr=None, n_obs=None, assignment=None, method="ml", missing="pairwise",
           correlation="pearson", max_iterations=1000, tolerance=1e-9, min_uniqueness=0.005, item_names=None):
-    """McDonald's (1999) omega total.
+    """McDonald's (1999) omega total (and, per factor, the factor's share; see :class:`Omega`).
 
     With ``model`` (a :class:`Model` from :func:`fit`): omega for the scale of each factor, items
     assigned by ``assignment`` (each item's 0-based factor, -1 = none) or, when None, to the factor

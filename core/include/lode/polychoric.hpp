@@ -20,7 +20,9 @@ struct PolychoricPair {
   Index item_a = 0, item_b = 0;  // columns of the data (a < b); 0, 1 for a table given directly
   double rho = 0.0;
   // 1 / sqrt(observed information), the second derivative of the log-likelihood in rho at the
-  // estimate with the thresholds taken as known (as in the two-step method). NaN at the bound.
+  // estimate with the thresholds taken as known (as in the two-step method), so it leaves out the
+  // thresholds' sampling error and runs smaller than the full maximum likelihood standard error
+  // (Olsson 1979). NaN at the bound.
   double standard_error = 0.0;
   Index n = 0;                     // observations in the table (before any zero-cell addition)
   Index rows = 0, cols = 0;        // categories of a and b present in the table (empty ones dropped)

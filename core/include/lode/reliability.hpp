@@ -1,5 +1,6 @@
 // Reliability of scales: Cronbach's alpha (Cronbach 1951), raw and standardised, with alpha if an item is
-// deleted and corrected item-total correlations; McDonald's omega total (McDonald 1999) from fitted loadings.
+// deleted and corrected item-total correlations; McDonald's omega total and each factor's share
+// of a scale (McDonald 1999) from fitted loadings.
 #pragma once
 
 #include "lode/common.hpp"
@@ -45,15 +46,27 @@ struct OmegaOptions {
   // largest absolute pattern loading (the rule stated in the notes).
   std::vector<Index> assignment;
   std::vector<std::string> item_names;
+  // Factor correlations Phi (factors x factors) of an oblique solution; empty = uncorrelated factors.
+  Matrix factor_correlations;
 };
 
+// Two figures for the scale (the sum) of the items S assigned to factor f, both ratios to the variance of
+// that sum implied by the model, 1' Sigma_SS 1 with Sigma = Lambda Phi Lambda' + Psi (McDonald 1999,
+// "Test theory: a unified treatment"; the several-factor form of omega total as in Revelle & Zinbarg 2009,
+// Psychometrika 74, 145-154, here with the model-implied rather than the observed variance of the sum):
+//   omega total    = 1' (Lambda Phi Lambda')_SS 1 / 1' Sigma_SS 1: the share of the sum's variance due to all
+//                    the common factors (its loadings on other factors and the factor correlations count);
+//   factor share   = (sum_{i in S} lambda_if)^2 / 1' Sigma_SS 1: the share due to factor f alone.
+// With one factor (or a scale whose items load on their factor only, factors uncorrelated) the two agree
+// and equal (sum lambda)^2 / ((sum lambda)^2 + sum psi).
 struct ScaleOmega {
   Index factor = 0;            // 0-based factor the scale belongs to
   std::vector<Index> items;    // 0-based items of the scale
   double sum_loadings = 0.0;   // sum of the items' loadings on the factor (signed)
   double sum_uniquenesses = 0.0;
-  // (sum lambda)^2 / ((sum lambda)^2 + sum psi) (McDonald 1999): NaN when the scale has no items.
-  double omega = 0.0;
+  double scale_variance = 0.0;  // 1' Sigma_SS 1, the model-implied variance of the scale's sum
+  double omega = 0.0;           // omega total (see above); NaN when the scale has no items
+  double factor_share = 0.0;    // the factor's share (see above); NaN when the scale has no items
 };
 
 struct OmegaResult {
@@ -62,12 +75,11 @@ struct OmegaResult {
   std::vector<std::string> notes;
 };
 
-// Omega total for the scale of each factor, from fitted pattern loadings (items x factors) and
-// uniquenesses, e.g. of a correlation-matrix fit. The formula treats each scale as measuring its factor
-// alone (congeneric): loadings of the scale's items on other factors are not credited, and cross-loading
-// items inflate the error part only through their uniquenesses. Negative loadings on the scale's factor
-// are summed as they are; the notes name such items (reverse-score them and refit).
-// With a one-factor fit this is omega for that single scale.
+// Omega total and the factor's share for the scale of each factor, from fitted pattern loadings (items x
+// factors), uniquenesses and (oblique solutions) the factor correlations, e.g. of a correlation-matrix fit.
+// Negative loadings are used as they are (the scale adds the item as scored); the notes name items loading
+// negatively on their scale's factor (reverse-score them and refit). With a one-factor fit this is omega for
+// that single scale.
 OmegaResult omega_from_loadings(const Matrix& loadings, const Vector& uniquenesses, const OmegaOptions& options = {});
 
 // Omega for a single scale from a one-factor fit of its items' correlation matrix (maximum likelihood by
