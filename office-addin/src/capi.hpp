@@ -8,8 +8,11 @@
 
 #include <chrono>
 #include <cstdint>
+#include <functional>
+#include <future>
 #include <memory>
 #include <string>
+#include <thread>
 #include <vector>
 
 namespace lode::addin {
@@ -17,13 +20,30 @@ namespace lode::addin {
 // Each C ABI status becomes the failure shown in the cell (README, "Cell functions", "Errors").
 Failure failure_of_status(int status) noexcept;
 
-// The time a single formula may compute: long calls are cancelled through the C ABI's progress
-// callback (deadline_progress with a Deadline as its user pointer) and show Err:502.
-inline constexpr std::chrono::seconds kTimeLimit{30};
-struct Deadline {
-  std::chrono::steady_clock::time_point until = std::chrono::steady_clock::now() + kTimeLimit;
-};
+// The C ABI's progress callback for a formula's Deadline (its user pointer): cancels the call once
+// the time limit has passed, which `check` shows as Err:502 with the reason.
 int deadline_progress(void* user, std::int64_t done, std::int64_t total);
+
+// Throws the time-limit error of `what` when the formula's deadline has passed (before a stage).
+void check_time(const Deadline& deadline, const char* what);
+[[noreturn]] void time_limit_passed(const char* what);
+
+// Runs `work` on a thread of its own and waits for its result until `deadline`, so a stage the C ABI
+// cannot interrupt (an extraction, one rotation start, the fit statistics, lode_rotate) never blocks
+// the office past the time limit: past it the cell shows the time-limit error at once, and the work
+// ends on its own thread (at its next progress report when it has one) with its result dropped.
+// `work` must own everything it reads (capture by value, shared handles): the caller's frame is gone
+// by then. Its exceptions (CellError from `check`, which reads the C ABI's thread-local last error on
+// that thread) reach the caller.
+template <class T>
+std::shared_ptr<const T> within_time(const Deadline& deadline, const char* what,
+                                     std::function<std::shared_ptr<const T>()> work) {
+  auto task = std::make_shared<std::packaged_task<std::shared_ptr<const T>()>>(std::move(work));
+  std::future<std::shared_ptr<const T>> result = task->get_future();
+  std::thread([task] { (*task)(); }).detach();
+  if (result.wait_until(deadline.until) != std::future_status::ready) time_limit_passed(what);
+  return result.get();
+}
 
 // Throws CellError with lode_last_error()'s text when `status` is not LODE_OK.
 void check(int status, const char* what);

@@ -2,6 +2,7 @@
 // into these at the boundary, so everything behind it is plain C++ over the C ABI.
 #pragma once
 
+#include <chrono>
 #include <cmath>
 #include <cstddef>
 #include <exception>
@@ -77,6 +78,15 @@ struct Output {
   static Output number(double v) { return Output{1, 1, true, {OutCell::of(v)}}; }
   static Output table(std::size_t rows, std::size_t cols) { return Output{rows, cols, false, std::vector<OutCell>(rows * cols)}; }
   OutCell& at(std::size_t r, std::size_t c) { return cells[r * cols + c]; }
+};
+
+// The time one formula may compute (README: "Cell functions", time limit). One Deadline is set when
+// the formula starts and every stage of its computation checks it: the C ABI's long calls through
+// their progress callback (deadline_progress), the add-in before each stage it starts.
+inline constexpr std::chrono::seconds kTimeLimit{30};
+struct Deadline {
+  std::chrono::steady_clock::time_point until = std::chrono::steady_clock::now() + kTimeLimit;
+  bool passed() const { return std::chrono::steady_clock::now() > until; }
 };
 
 }  // namespace lode::addin

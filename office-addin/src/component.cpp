@@ -111,7 +111,7 @@ class CellFunctions : public cppu::WeakImplHelper4<org::lode::calc::XCellFunctio
         args.push_back(a.range ? arg_from_range(*a.range, f.args[i].name) : arg_from_value(*a.value, f.args[i].name));
         ++i;
       }
-      return to_any(f.compute(Call{args, cache_}));
+      return to_any(f.compute(Call{args, cache_, Deadline{}}));
     } catch (const CellError& e) {
       failure = e.failure();
       message = e.what();

@@ -1,11 +1,13 @@
 #include "functions.hpp"
 
+#include "arguments.hpp"
 #include "capi.hpp"
 
 #include <algorithm>
 #include <cctype>
 #include <chrono>
 #include <cmath>
+#include <cstdio>
 #include <initializer_list>
 #include <string>
 
@@ -33,12 +35,19 @@ Failure failure_of_status(int status) noexcept {
   }
 }
 
+void time_limit_passed(const char* what) {
+  throw CellError(Failure::too_large, std::string(what) + ": stopped after " + std::to_string(kTimeLimit.count()) +
+                                          " s, the time limit of a cell function; use fewer rows, items or "
+                                          "replicates");
+}
+
+void check_time(const Deadline& deadline, const char* what) {
+  if (deadline.passed()) time_limit_passed(what);
+}
+
 void check(int status, const char* what) {
   if (status == LODE_OK) return;
-  if (status == LODE_E_CANCELLED)
-    throw CellError(Failure::too_large, std::string(what) + ": stopped after " + std::to_string(kTimeLimit.count()) +
-                                            " s, the time limit of a cell function; use fewer rows, items or "
-                                            "replicates");
+  if (status == LODE_E_CANCELLED) time_limit_passed(what);
   const char* detail = lode_last_error();
   throw CellError(failure_of_status(status),
                   std::string(what) + ": " + (detail && *detail ? detail : lode_status_name(status)));
@@ -55,79 +64,10 @@ Output to_output(const Matrix& m) {
 }
 
 int deadline_progress(void* user, std::int64_t, std::int64_t) {
-  return std::chrono::steady_clock::now() > static_cast<const Deadline*>(user)->until ? 1 : 0;
+  return static_cast<const Deadline*>(user)->passed() ? 1 : 0;
 }
 
 namespace {
-
-// ---------------------------------------------------------------------------------------------
-// Reading arguments
-// ---------------------------------------------------------------------------------------------
-
-std::string lower(std::string s) {
-  std::transform(s.begin(), s.end(), s.begin(), [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
-  return s;
-}
-
-std::string join(std::initializer_list<const char*> words) {
-  std::string s;
-  for (const char* w : words) s += (s.empty() ? "\"" : ", \"") + std::string(w) + "\"";
-  return s;
-}
-
-// A text option: one of `choices` (case-insensitive), or the first choice when left out.
-int choice(const Arg& a, const char* name, std::initializer_list<const char*> choices) {
-  if (a.kind == Arg::Kind::missing) return 0;
-  if (a.kind == Arg::Kind::text) {
-    const std::string t = lower(a.text);
-    int i = 0;
-    for (const char* c : choices) {
-      if (t == c) return i;
-      ++i;
-    }
-  }
-  throw CellError(Failure::bad_argument, std::string("'") + name + "' must be one of " + join(choices));
-}
-
-// A whole number in [lo, hi], or `fallback` when left out.
-[[maybe_unused]] std::int64_t whole(const Arg& a, const char* name, std::int64_t fallback, std::int64_t lo, std::int64_t hi) {
-  if (a.kind == Arg::Kind::missing) return fallback;
-  if (a.kind != Arg::Kind::number || a.number != std::floor(a.number) || a.number < static_cast<double>(lo) ||
-      a.number > static_cast<double>(hi))
-    throw CellError(Failure::bad_argument, std::string("'") + name + "' must be a whole number from " +
-                                               std::to_string(lo) + " to " + std::to_string(hi));
-  return static_cast<std::int64_t>(a.number);
-}
-
-// A yes/no option: TRUE/FALSE, 1/0, or left out (= fallback).
-bool flag(const Arg& a, const char* name, bool fallback) {
-  if (a.kind == Arg::Kind::missing) return fallback;
-  if (a.kind == Arg::Kind::number && (a.number == 0.0 || a.number == 1.0)) return a.number == 1.0;
-  throw CellError(Failure::bad_argument, std::string("'") + name + "' must be TRUE or FALSE (1 or 0)");
-}
-
-// The data argument: raw responses, or a correlation matrix (square, symmetric, ones on the
-// diagonal, every cell a number in [-1, 1]).
-struct Input {
-  const Grid* grid = nullptr;
-  bool is_correlation = false;
-};
-
-Input read_input(const Arg& a, const char* name) {
-  if (a.kind != Arg::Kind::grid || a.grid.empty() || a.grid.number_cells == 0)
-    throw CellError(Failure::bad_argument, std::string("'") + name + "' holds no numbers");
-  const Grid& g = a.grid;
-  Input in{&g, false};
-  if (g.rows != g.cols || g.number_cells != g.rows * g.cols || g.rows < 2) return in;
-  constexpr double tol = 1e-9;  // typed or rounded values are symmetric to far better than this
-  for (std::size_t i = 0; i < g.rows; ++i) {
-    if (std::fabs(g.at(i, i) - 1.0) > tol) return in;
-    for (std::size_t j = 0; j < i; ++j)
-      if (std::fabs(g.at(i, j) - g.at(j, i)) > tol || std::fabs(g.at(i, j)) > 1.0) return in;
-  }
-  in.is_correlation = true;
-  return in;
-}
 
 KeyBuilder& add_grid(KeyBuilder& k, const Grid& g) {
   k.add(static_cast<std::uint64_t>(g.rows)).add(static_cast<std::uint64_t>(g.cols));
@@ -173,14 +113,14 @@ std::shared_ptr<const lode_correlation> correlation(const Call& call, const Inpu
   return call.cache.get_or_compute<lode_correlation>(
       k.take(),
       [&]() -> std::shared_ptr<const lode_correlation> {
+        check_time(call.deadline, "correlation");
         DataHandle data = make_data(in, spec.n_obs);
         lode_correlation_options opts;
         check(lode_correlation_options_init(&opts, sizeof opts), "correlation options");
         opts.kind = spec.kind;
         opts.missing = spec.missing;
-        Deadline deadline;
         opts.progress = deadline_progress;
-        opts.progress_user = &deadline;
+        opts.progress_user = const_cast<Deadline*>(&call.deadline);
         lode_correlation* c = nullptr;
         check(lode_correlate(data.get(), &opts, &c), "correlation");
         return std::shared_ptr<const lode_correlation>(c, [](const lode_correlation* p) {
@@ -265,10 +205,10 @@ struct ParallelOutputs {
   Matrix table;  // items x 3: observed, random mean, random percentile
 };
 
-std::shared_ptr<const FitOutputs> run_fit(const lode_correlation* corr, const FitSpec& spec);
+std::shared_ptr<const FitOutputs> run_fit(const lode_correlation* corr, const FitSpec& spec, const Deadline& deadline);
 std::shared_ptr<const ParallelOutputs> run_parallel(const lode_correlation* corr, std::int64_t replicates,
-                                                    double percentile, std::int64_t seed);
-std::int64_t run_nfactors(const lode_correlation* corr, int rule, std::int64_t seed);
+                                                    double percentile, std::int64_t seed, const Deadline& deadline);
+std::int64_t run_nfactors(const lode_correlation* corr, int rule, std::int64_t seed, const Deadline& deadline);
 Matrix run_rotate(const Grid& loadings, int rotation, const Arg& parameter);
 
 // The data argument plus n_obs (argument `n_obs_index`; it matters only for a correlation matrix).
@@ -297,7 +237,7 @@ std::int64_t cached_nfactors(const Call& call, const Source& src, int rule, std:
   KeyBuilder k("nfactors");
   k.add(source_key(src)).add(static_cast<std::uint64_t>(rule)).add(static_cast<std::uint64_t>(seed));
   return *call.cache.get_or_compute<std::int64_t>(
-      k.take(), [&] { return std::make_shared<const std::int64_t>(run_nfactors(corr.get(), rule, seed)); }, 64);
+      k.take(), [&] { return std::make_shared<const std::int64_t>(run_nfactors(corr.get(), rule, seed, call.deadline)); }, 64);
 }
 
 // What a fit-reading cell asks for: the source, the options, and the cache key of the fit.
@@ -332,7 +272,14 @@ std::shared_ptr<const FitOutputs> fit(const Call& call, const FitRequest& req) {
   const std::size_t k = static_cast<std::size_t>(req.spec.factors);
   // The outputs copied out of the model, plus the model itself (its matrices, about 4 p x p).
   return call.cache.get_or_compute<FitOutputs>(
-      req.key, [&] { return run_fit(corr.get(), req.spec); }, (p * p * 6 + p * k * 6) * sizeof(double) + 8192);
+      req.key,
+      [&] {
+        // lode_fit reports no progress inside one extraction, one rotation start or the fit statistics
+        return within_time<FitOutputs>(call.deadline, "factor analysis",
+                                       [corr, spec = req.spec, deadline = call.deadline] {
+                                         return run_fit(corr.get(), spec, deadline);
+                                       });
+      }, (p * p * 6 + p * k * 6) * sizeof(double) + 8192);
 }
 
 std::shared_ptr<const FitOutputs> fit(const Call& call) { return fit(call, read_fit_request(call, 4)); }
@@ -345,6 +292,11 @@ std::shared_ptr<const FitOutputs> converged_fit(const Call& call, const FitReque
 
 std::shared_ptr<const FitOutputs> converged_fit(const Call& call) { return converged_fit(call, read_fit_request(call, 4)); }
 
+template <class T, void (*Free)(T*)>
+std::shared_ptr<const T> shared_handle(T* h) {
+  return std::shared_ptr<const T>(h, [](const T* p) { Free(const_cast<T*>(p)); });
+}
+
 std::shared_ptr<const lode_factorability> factorability(const Call& call, std::size_t n_obs_index) {
   const Source src = read_source(call, n_obs_index);
   auto corr = correlation(call, src.input, src.spec);
@@ -352,11 +304,13 @@ std::shared_ptr<const lode_factorability> factorability(const Call& call, std::s
   k.add(source_key(src));
   return call.cache.get_or_compute<lode_factorability>(
       k.take(),
-      [&]() -> std::shared_ptr<const lode_factorability> {
-        lode_factorability* f = nullptr;
-        check(lode_assess_factorability(corr.get(), &f), "factorability");
-        return std::shared_ptr<const lode_factorability>(
-            f, [](const lode_factorability* h) { lode_factorability_free(const_cast<lode_factorability*>(h)); });
+      [&] {
+        check_time(call.deadline, "factorability");
+        return within_time<lode_factorability>(call.deadline, "factorability", [corr] {
+          lode_factorability* f = nullptr;
+          check(lode_assess_factorability(corr.get(), &f), "factorability");
+          return shared_handle<lode_factorability, lode_factorability_free>(f);
+        });
       },
       src.input.grid->cols * 2 * sizeof(double) + 1024);
 }
@@ -365,11 +319,6 @@ double factorability_value(const lode_factorability* f, int key, const char* wha
   double v = 0.0;
   check(lode_factorability_value(f, key, &v), what);
   return v;
-}
-
-template <class T, void (*Free)(T*)>
-std::shared_ptr<const T> shared_handle(T* h) {
-  return std::shared_ptr<const T>(h, [](const T* p) { Free(const_cast<T*>(p)); });
 }
 
 const int kRotationMethods[] = {LODE_ROTATION_OBLIMIN, LODE_ROTATION_NONE,    LODE_ROTATION_VARIMAX,
@@ -383,7 +332,8 @@ double model_value(const lode_model* m, int key, const char* what) {
   return v;
 }
 
-std::shared_ptr<const FitOutputs> run_fit(const lode_correlation* corr, const FitSpec& spec) {
+std::shared_ptr<const FitOutputs> run_fit(const lode_correlation* corr, const FitSpec& spec, const Deadline& deadline) {
+  check_time(deadline, "factor analysis");
   lode_rotation_options ro;
   check(lode_rotation_options_init(&ro, sizeof ro), "rotation options");
   ro.method = kRotationMethods[spec.rotation];
@@ -392,6 +342,8 @@ std::shared_ptr<const FitOutputs> run_fit(const lode_correlation* corr, const Fi
   fo.factors = spec.factors;
   fo.method = kExtractionMethods[spec.method];
   fo.rotation = &ro;
+  fo.progress = deadline_progress;  // checked before and after the extraction and at every rotation start
+  fo.progress_user = const_cast<Deadline*>(&deadline);
   lode_model* raw = nullptr;
   check(lode_fit(corr, &fo, &raw), "factor analysis");
   auto model = shared_handle<lode_model, lode_model_free>(raw);
@@ -436,23 +388,23 @@ std::shared_ptr<const FitOutputs> run_fit(const lode_correlation* corr, const Fi
 }
 
 std::shared_ptr<const lode_factor_count> run_count(const lode_correlation* corr, std::int64_t replicates,
-                                                   double percentile, std::int64_t seed) {
+                                                   double percentile, std::int64_t seed, const Deadline& deadline) {
+  check_time(deadline, "factor count");
   lode_factor_count_options o;
   check(lode_factor_count_options_init(&o, sizeof o), "factor count options");
   if (replicates > 0) o.replicates = replicates;
   if (percentile > 0) o.percentile = percentile;
   if (seed >= 0) o.seed = static_cast<std::uint64_t>(seed);
-  Deadline deadline;
   o.progress = deadline_progress;
-  o.progress_user = &deadline;
+  o.progress_user = const_cast<Deadline*>(&deadline);
   lode_factor_count* raw = nullptr;
   check(lode_count_factors(corr, &o, &raw), "factor count");
   return shared_handle<lode_factor_count, lode_factor_count_free>(raw);
 }
 
 std::shared_ptr<const ParallelOutputs> run_parallel(const lode_correlation* corr, std::int64_t replicates,
-                                                    double percentile, std::int64_t seed) {
-  auto c = run_count(corr, replicates, percentile, seed);
+                                                    double percentile, std::int64_t seed, const Deadline& deadline) {
+  auto c = run_count(corr, replicates, percentile, seed, deadline);
   const Matrix observed = read_matrix(c.get(), LODE_COUNT_OBSERVED_PC, lode_factor_count_matrix, "eigenvalues");
   const Matrix mean = read_matrix(c.get(), LODE_COUNT_RANDOM_PC_MEAN, lode_factor_count_matrix, "random eigenvalues");
   const Matrix pct =
@@ -468,8 +420,8 @@ std::shared_ptr<const ParallelOutputs> run_parallel(const lode_correlation* corr
   return out;
 }
 
-std::int64_t run_nfactors(const lode_correlation* corr, int rule, std::int64_t seed) {
-  auto c = run_count(corr, 0, 0.0, seed);
+std::int64_t run_nfactors(const lode_correlation* corr, int rule, std::int64_t seed, const Deadline& deadline) {
+  auto c = run_count(corr, 0, 0.0, seed, deadline);
   // "parallel" is the library's suggested count (parallel analysis of the reduced-matrix factor eigenvalues
   // against the 95th percentile), the one rule lode_fit, the report and Python use when factors is 0.
   const int keys[] = {LODE_COUNT_SUGGESTED, LODE_COUNT_MAP_SQUARED_SUGGESTED, LODE_COUNT_KAISER,
@@ -540,7 +492,7 @@ Output fn_parallel(const Call& call) {
   KeyBuilder k("parallel");
   k.add(source_key(src)).add(static_cast<std::uint64_t>(replicates)).add(percentile).add(static_cast<std::uint64_t>(seed));
   auto pa = call.cache.get_or_compute<ParallelOutputs>(
-      k.take(), [&] { return run_parallel(corr.get(), replicates, percentile, seed); },
+      k.take(), [&] { return run_parallel(corr.get(), replicates, percentile, seed, call.deadline); },
       src.input.grid->cols * 3 * sizeof(double) + 256);
   return to_output(pa->table);
 }
@@ -587,9 +539,14 @@ Output fn_rotate(const Call& call) {
   const Arg& a = call.args[0];
   if (a.kind != Arg::Kind::grid || a.grid.empty() || a.grid.number_cells != a.grid.rows * a.grid.cols)
     throw CellError(Failure::bad_argument, "'loadings' must be a block of numbers (items in rows, factors in columns)");
-  if (call.args[1].kind == Arg::Kind::missing)
-    throw CellError(Failure::bad_argument, "'rotation' is required, e.g. \"varimax\" or \"oblimin\"");
-  return to_output(run_rotate(a.grid, rotation_arg(call.args[1]), call.args[2]));
+  // `rotation` left out or empty: oblimin, the default of every function that rotates.
+  check_time(call.deadline, "rotation");
+  const int rotation = rotation_arg(call.args[1]);
+  // lode_rotate reports no progress: it runs on a thread of its own, waited for until the deadline
+  auto rotated = within_time<Matrix>(call.deadline, "rotation", [loadings = a.grid, rotation, parameter = call.args[2]] {
+    return std::make_shared<const Matrix>(run_rotate(loadings, rotation, parameter));
+  });
+  return to_output(*rotated);
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -684,7 +641,13 @@ Output fn_scores(const Call& call) {
   KeyBuilder k("scores");
   k.add(req.key).add(static_cast<std::uint64_t>(method));
   auto scores = call.cache.get_or_compute<Matrix>(
-      k.take(), [&] { return run_scores(f->model.get(), method); },
+      k.take(),
+      [&] {
+        check_time(call.deadline, "factor scores");
+        return within_time<Matrix>(call.deadline, "factor scores", [model = f->model, method] {
+          return run_scores(model.get(), method);
+        });
+      },
       req.src.input.grid->rows * static_cast<std::size_t>(f->factors) * sizeof(double) + 1024);
   return to_output(*scores);
 }
@@ -696,7 +659,10 @@ Output fn_alpha(const Call& call) {
                     "Cronbach's alpha needs the respondents' answers (respondents in rows), not a correlation matrix");
   KeyBuilder k("alpha");
   add_grid(k, *in.grid);
-  auto a = call.cache.get_or_compute<AlphaOutputs>(k.take(), [&] { return run_alpha(in); }, sizeof(AlphaOutputs) + 256);
+  auto a = call.cache.get_or_compute<AlphaOutputs>(k.take(), [&] {
+    check_time(call.deadline, "Cronbach's alpha");
+    return run_alpha(in);
+  }, sizeof(AlphaOutputs) + 256);
   Output out = Output::table(1, 4);
   out.at(0, 0) = OutCell::of(a->alpha);
   out.at(0, 1) = OutCell::of(a->standardized);
@@ -713,7 +679,12 @@ Output fn_omega(const Call& call) {
   KeyBuilder k("omega");
   k.add(source_key(src));
   auto o = call.cache.get_or_compute<OmegaOutputs>(
-      k.take(), [&] { return run_omega(corr.get()); }, sizeof(OmegaOutputs) + 256);
+      k.take(),
+      [&] {
+        check_time(call.deadline, "McDonald's omega");  // a one-factor fit without progress reports
+        return within_time<OmegaOutputs>(call.deadline, "McDonald's omega", [corr] { return run_omega(corr.get()); });
+      },
+      sizeof(OmegaOutputs) + 256);
   if (!o->converged) throw CellError(Failure::not_converged, "the one-factor fit behind omega did not converge");
   Output out = Output::number(o->omega);
   if (!std::isfinite(o->omega)) out.cells[0].error = Failure::not_computable;
@@ -728,6 +699,7 @@ Output fn_congruence(const Call& call) {
                                                " but 'loadings_b' is " + std::to_string(b.rows) + " x " +
                                                std::to_string(b.cols) + "; both need the same items and factors");
   const auto items = static_cast<std::int64_t>(a.rows), factors = static_cast<std::int64_t>(a.cols);
+  check_time(call.deadline, "congruence");
   lode_comparison* raw = nullptr;
   check(lode_compare_loadings(a.values.data(), b.values.data(), items, factors, factors, 1, factors, 1, &raw),
         "congruence");

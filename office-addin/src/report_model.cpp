@@ -374,6 +374,10 @@ ModelResult fit_model(const lode_correlation* corr, const Options& o, int factor
   if (st == LODE_E_CANCELLED) throw Cancelled{};
   if (st != LODE_OK) {
     r.reason = lode_last_error();
+    // A number of factors the person fixed that the items cannot carry is a bad option, refused
+    // before anything is written; a fit the data do not allow is reported inside the report.
+    if (o.factors > 0 && (st == LODE_E_TOO_MANY_FACTORS || st == LODE_E_INVALID_ARGUMENT))
+      throw std::invalid_argument("option Factors is " + std::to_string(o.factors) + ": " + r.reason);
     return r;
   }
   std::shared_ptr<lode_model> m(raw, ModelFree{});
@@ -776,8 +780,11 @@ void validate(const Options& o) {
   require("Rotation", o.rotation, {"oblimin", "promax", "varimax", "none"});
   require("Scores", o.scores, {"none", "regression", "bartlett", "tenberge"});
   require("ScoresPlace", o.scores_place, {"beside", "sheet"});
-  if (o.factors < 0 || o.factors > 100) throw std::invalid_argument("option Factors must be 0 (suggest) to 100");
-  if (o.bootstrap < 0 || o.bootstrap > 100000) throw std::invalid_argument("option Bootstrap must be 0 (off) to 100000 resamples");
+  if (o.factors < 0 || o.factors > kMaxReportFactors) throw std::invalid_argument("option Factors must be 0 (suggest) to 100");
+  // One resample gives no interval (the C ABI's lode_bootstrap needs at least 2).
+  if (o.bootstrap < 0 || o.bootstrap == 1 || o.bootstrap > kMaxReportBootstrap)
+    throw std::invalid_argument("option Bootstrap is " + std::to_string(o.bootstrap) +
+                                "; it must be 0 (off) or 2 to 100000 resamples");
   if (!(o.salient > 0.0 && o.salient < 1.0)) throw std::invalid_argument("option Salient must lie between 0 and 1");
   if (!std::isfinite(o.rotation_parameter)) throw std::invalid_argument("option RotationParameter must be a number");
 }

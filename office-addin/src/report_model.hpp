@@ -11,6 +11,10 @@
 
 namespace lode::addin::report {
 
+// The ranges of the integer options (checked when the named values are read and again by validate).
+inline constexpr int kMaxReportFactors = 100;
+inline constexpr int kMaxReportBootstrap = 100000;
+
 // Everything the dialog (or any UNO caller) can choose. Text values are the option words of the
 // README's table ("pearson", "pairwise", ...); parse_* functions check them.
 struct Options {

@@ -57,7 +57,10 @@
 #include <cctype>
 #include <memory>
 #include <chrono>
+#include <cmath>
+#include <cstdio>
 #include <ctime>
+#include <limits>
 #include <mutex>
 #include <stdexcept>
 #include <thread>
@@ -78,6 +81,20 @@ constexpr const char kImplementationName[] = "org.lode.calc.AnalysisReportImpl";
 
 OUString ustr(const std::string& s) { return OUString(s.data(), static_cast<sal_Int32>(s.size()), RTL_TEXTENCODING_UTF8); }
 std::string utf8(const OUString& s) { return std::string(OUStringToOString(s, RTL_TEXTENCODING_UTF8).getStr()); }
+
+// A whole number held in a double, written out in full (4294967298, not 4.29e+09).
+std::string fmt_whole(double d) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.0f", d);
+  return buf;
+}
+
+// The text without the white space around it: option words are trimmed, as the C ABI's name lookups do.
+std::string trimmed(const std::string& s) {
+  const auto first = s.find_first_not_of(" \t\r\n\v\f");
+  if (first == std::string::npos) return std::string();
+  return s.substr(first, s.find_last_not_of(" \t\r\n\v\f") - first + 1);
+}
 
 std::string column_letters(sal_Int32 col) {
   std::string s;
@@ -112,40 +129,49 @@ Options options_from(const Sequence<css::beans::PropertyValue>& props) {
     auto text = [&]() {
       OUString s;
       if (!(p.Value >>= s)) throw std::invalid_argument("option " + n + " must be text");
-      return utf8(s).empty() ? std::string() : utf8(s);
+      return trimmed(utf8(s));
     };
-    auto integer = [&]() {
+    // A whole number in [lo, hi], refused by name otherwise (never wrapped into a smaller type).
+    auto integer = [&](sal_Int64 lo, sal_Int64 hi, const char* range) {
       sal_Int64 i = 0;
       double d = 0;
-      if (p.Value >>= i) return i;
-      if ((p.Value >>= d) && d == static_cast<double>(static_cast<sal_Int64>(d))) return static_cast<sal_Int64>(d);
-      throw std::invalid_argument("option " + n + " must be a whole number");
+      bool whole = false;
+      if (p.Value >>= i) {
+        whole = true;
+      } else if ((p.Value >>= d) && std::isfinite(d) && d == std::floor(d)) {
+        if (d < static_cast<double>(lo) || d > static_cast<double>(hi))
+          throw std::invalid_argument("option " + n + " is " + fmt_whole(d) + "; it must be " + range);
+        i = static_cast<sal_Int64>(d);
+        whole = true;
+      }
+      if (!whole) throw std::invalid_argument("option " + n + " must be a whole number, " + range);
+      if (i < lo || i > hi) throw std::invalid_argument("option " + n + " is " + std::to_string(i) + "; it must be " + range);
+      return i;
     };
+    auto small = [&](sal_Int64 lo, sal_Int64 hi, const char* range) { return static_cast<int>(integer(lo, hi, range)); };
     auto number = [&]() {
       double d = 0;
       if (p.Value >>= d) return d;
       throw std::invalid_argument("option " + n + " must be a number");
     };
-    if (n == "HeaderRow") o.header = static_cast<int>(integer());
+    if (n == "HeaderRow") o.header = small(-1, 1, "-1 (detect), 0 or 1");
     else if (n == "Items") {
       Sequence<OUString> items;
       if (!(p.Value >>= items)) throw std::invalid_argument("option Items must be a list of item names");
       for (const OUString& s : items) o.items.push_back(utf8(s));
     } else if (n == "Correlation") o.correlation = text();
     else if (n == "Missing") o.missing = text();
-    else if (n == "Factors") o.factors = static_cast<int>(integer());
+    else if (n == "Factors") o.factors = small(0, kMaxReportFactors, "0 (suggest) to 100");
     else if (n == "Extraction") o.extraction = text();
     else if (n == "Rotation") o.rotation = text();
     else if (n == "RotationParameter") o.rotation_parameter = number();
     else if (n == "Scores") o.scores = text();
     else if (n == "ScoresPlace") o.scores_place = text();
-    else if (n == "Bootstrap") o.bootstrap = static_cast<int>(integer());
+    else if (n == "Bootstrap") o.bootstrap = small(0, kMaxReportBootstrap, "0 (off) or 2 to 100000 resamples");
     else if (n == "Salient") o.salient = number();
     else if (n == "Seed") {
-      sal_Int64 s = integer();
-      if (s < 0) throw std::invalid_argument("option Seed must not be negative");
-      o.seed = static_cast<std::uint64_t>(s);
-    } else if (n == "CancelAfterSheets") o.cancel_after_sheets = static_cast<int>(integer());
+      o.seed = static_cast<std::uint64_t>(integer(0, std::numeric_limits<sal_Int64>::max(), "0 or more"));
+    } else if (n == "CancelAfterSheets") o.cancel_after_sheets = small(-1, 1000, "-1 (never) to 1000");
     else throw std::invalid_argument("unknown option " + n);
   }
   return o;
@@ -427,11 +453,18 @@ class AnalysisReport : public cppu::WeakImplHelper2<org::lode::calc::XAnalysisRe
  public:
   OUString SAL_CALL run(const Reference<css::sheet::XSpreadsheetDocument>& doc, const css::table::CellRangeAddress& source,
                         const Sequence<css::beans::PropertyValue>& options) override {
+    {
+      // A cancel() made while nothing ran, or aimed at an earlier run, does not stop this one.
+      std::lock_guard<std::mutex> lock(mutex_);
+      if (!running_ && synchronous_ == 0) cancel_ = false;
+      ++synchronous_;
+    }
     std::string outcome;
     bool ok = execute(doc, source, options, nullptr, outcome);
     {
       std::lock_guard<std::mutex> lock(mutex_);
       last_outcome_ = outcome;
+      --synchronous_;
     }
     if (!ok) throw css::lang::IllegalArgumentException(ustr(outcome), static_cast<cppu::OWeakObject*>(this), 0);
     return ustr(outcome);
@@ -456,7 +489,12 @@ class AnalysisReport : public cppu::WeakImplHelper2<org::lode::calc::XAnalysisRe
     return true;
   }
 
-  void SAL_CALL cancel() override { cancel_ = true; }
+  // Stops the run in progress (start's, or a run() on another thread); with nothing running it does
+  // nothing, so it never stops a later run.
+  void SAL_CALL cancel() override {
+    std::lock_guard<std::mutex> lock(mutex_);
+    if (running_ || synchronous_ > 0) cancel_ = true;
+  }
   sal_Bool SAL_CALL isRunning() override {
     std::lock_guard<std::mutex> lock(mutex_);
     return running_;
@@ -594,7 +632,8 @@ class AnalysisReport : public cppu::WeakImplHelper2<org::lode::calc::XAnalysisRe
   }
 
   std::mutex mutex_;
-  bool running_ = false;
+  bool running_ = false;   // a run started by start() is in progress
+  int synchronous_ = 0;    // run() calls in progress
   std::atomic<bool> cancel_{false};
   std::string last_outcome_;
   std::thread worker_;

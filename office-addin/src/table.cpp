@@ -159,8 +159,7 @@ const std::vector<FunctionSpec> kTable = {
      "LODE.ROTATE",
      "Rotates a loading matrix you already have; returns the rotated loadings (pattern), items x factors.",
      {{"loadings", ArgKind::range, "Loadings: items in rows, factors in columns, every cell a number"},
-      {"rotation", ArgKind::value, "Required: \"varimax\", \"quartimax\", \"equamax\", \"promax\", "
-                                   "\"oblimin\", \"quartimin\", \"geomin\" or \"none\""},
+      {"rotation", ArgKind::value, kRotationHelp},
       {"parameter", ArgKind::value,
        "The rotation's parameter: oblimin gamma (default 0), promax power (default 4), geomin epsilon (default "
        "0.01); ignored by the others"}},

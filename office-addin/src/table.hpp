@@ -22,11 +22,13 @@ struct ArgSpec {
   std::string_view help;
 };
 
-// What a compute function gets: the arguments as typed (missing ones included, in table order) and
-// the component's cache of analyses.
+// What a compute function gets: the arguments as typed (missing ones included, in table order),
+// the component's cache of analyses, and the formula's deadline (set when the call starts; every
+// stage of the computation checks it).
 struct Call {
   const std::vector<Arg>& args;
   ResultCache& cache;
+  Deadline deadline{};
 };
 
 using ComputeFn = Output (*)(const Call& call);

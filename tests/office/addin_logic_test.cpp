@@ -1,12 +1,15 @@
 // The add-in's UNO-free logic: the declarative table's consistency, the cache's bounds and thread
 // safety, and argument reading, without a LibreOffice.
+#include "arguments.hpp"
 #include "cache.hpp"
+#include "capi.hpp"
 #include "functions.hpp"
 #include "table.hpp"
 
 #include <gtest/gtest.h>
 
 #include <atomic>
+#include <chrono>
 #include <cctype>
 #include <cmath>
 #include <random>
@@ -127,6 +130,100 @@ Arg text_arg(const char* t) {
   return a;
 }
 
+Arg block(std::size_t rows, std::size_t cols, std::vector<double> values) {
+  Arg a;
+  a.kind = Arg::Kind::grid;
+  a.grid.rows = rows;
+  a.grid.cols = cols;
+  a.grid.values = std::move(values);
+  a.grid.number_cells = a.grid.values.size();
+  return a;
+}
+
+std::string refusal(const std::vector<double>& square, bool& is_correlation) {
+  return classify_square(block(3, 3, square).grid, is_correlation);
+}
+
+TEST(AddinArguments, SquareBlocksReadAsCorrelationsAnswersOrAreRefusedWhenAlmostCorrelations) {
+  bool corr = false;
+  EXPECT_EQ(refusal({1, 0.3, 0.2, 0.3, 1, 0.4, 0.2, 0.4, 1}, corr), "");
+  EXPECT_TRUE(corr);
+  EXPECT_EQ(refusal({1, 0.03, 0.2, 0.3, 1, 0.4, 0.2, 0.4, 1}, corr),
+            "looks like a correlation matrix, but it is not symmetric: row 2, column 1 holds 0.3 but row 1, column 2 "
+            "holds 0.03; correct it, or give the answers themselves (respondents in rows, more rows than items)");
+  EXPECT_FALSE(corr);
+  EXPECT_NE(refusal({2, 0.3, 0.2, 0.3, 2, 0.4, 0.2, 0.4, 2}, corr).find("its diagonal holds 2 in row 1, column 1"),
+            std::string::npos);
+  EXPECT_NE(refusal({1, 1.4, 0.2, 1.4, 1, 0.4, 0.2, 0.4, 1}, corr).find("row 1, column 2 holds 1.4"), std::string::npos);
+  // answers: whole numbers (0/1, here with ones on the diagonal), a Likert block, two misses
+  EXPECT_EQ(refusal({1, 0, 1, 1, 1, 0, 0, 1, 1}, corr), "");
+  EXPECT_FALSE(corr);
+  EXPECT_EQ(refusal({3, 4, 2, 5, 1, 2, 4, 4, 3}, corr), "");
+  EXPECT_EQ(refusal({2, 0.3, 0.2, 0.5, 2, 0.4, 0.2, 0.4, 2}, corr), "");  // diagonal and symmetry both off
+  EXPECT_FALSE(corr);
+  try {
+    read_input(block(3, 3, {1, 0.03, 0.2, 0.3, 1, 0.4, 0.2, 0.4, 1}), "items");
+    FAIL() << "no error";
+  } catch (const CellError& e) {
+    EXPECT_EQ(e.failure(), Failure::bad_argument);
+    EXPECT_EQ(std::string(e.what()).rfind("'items' looks like a correlation matrix", 0), 0u) << e.what();
+  }
+}
+
+TEST(AddinTimeLimit, AFormulaPastItsDeadlineStartsNoFurtherStage) {
+  std::vector<Arg> args(5);
+  args[0] = two_factor_answers(200);
+  ResultCache cache;
+  Deadline gone;
+  gone.until = std::chrono::steady_clock::now() - std::chrono::seconds(1);
+  for (auto fn : {fn_loadings, fn_fit, fn_kmo, fn_corr}) {
+    try {
+      const Output out = fn(Call{args, cache, gone});
+      ASSERT_EQ(out.cells.size(), 2u);  // LODE.FIT writes the failure into its cells
+      EXPECT_NE(out.cells[1].text.find("time limit of a cell function"), std::string::npos) << out.cells[1].text;
+    } catch (const CellError& e) {
+      EXPECT_EQ(e.failure(), Failure::too_large);
+      EXPECT_NE(std::string(e.what()).find("time limit of a cell function"), std::string::npos) << e.what();
+    }
+  }
+  EXPECT_EQ(cache.stats().entries, 0u);  // nothing was computed
+}
+
+TEST(AddinTimeLimit, WorkTheCAbiCannotInterruptIsWaitedForOnlyUntilTheDeadline) {
+  Deadline soon;
+  soon.until = std::chrono::steady_clock::now() + std::chrono::milliseconds(200);
+  const auto t0 = std::chrono::steady_clock::now();
+  try {
+    within_time<int>(soon, "slow stage", [] {
+      std::this_thread::sleep_for(std::chrono::seconds(3));  // stands for an uninterruptible C call
+      return std::make_shared<const int>(1);
+    });
+    FAIL() << "no error";
+  } catch (const CellError& e) {
+    EXPECT_EQ(e.failure(), Failure::too_large);
+    EXPECT_EQ(std::string(e.what()).rfind("slow stage: stopped after 30 s", 0), 0u) << e.what();
+  }
+  EXPECT_LT(std::chrono::steady_clock::now() - t0, std::chrono::milliseconds(2000));
+  // a result in time comes back, and so does the work's own error
+  Deadline later;
+  EXPECT_EQ(*within_time<int>(later, "quick", [] { return std::make_shared<const int>(7); }), 7);
+  EXPECT_THROW(within_time<int>(later, "failing", []() -> std::shared_ptr<const int> {
+                 throw CellError(Failure::bad_argument, "bad");
+               }),
+               CellError);
+}
+
+TEST(AddinFunctions, RotateWithoutARotationIsOblimin) {
+  std::vector<Arg> args(3);
+  args[0] = block(6, 2, {0.7, 0.2, 0.6, 0.3, 0.65, 0.1, 0.2, 0.7, 0.3, 0.6, 0.1, 0.75});
+  ResultCache cache;
+  const Output left_out = fn_rotate(Call{args, cache, Deadline{}});
+  args[1] = text_arg("oblimin");
+  const Output named = fn_rotate(Call{args, cache, Deadline{}});
+  ASSERT_EQ(left_out.cells.size(), 12u);
+  for (std::size_t i = 0; i < 12; ++i) EXPECT_EQ(left_out.cells[i].number, named.cells[i].number);
+}
+
 TEST(AddinFunctions, ScoresReuseTheFitOfTheLoadings) {
   std::vector<Arg> args(5);
   args[0] = two_factor_answers(300);
@@ -135,7 +232,7 @@ TEST(AddinFunctions, ScoresReuseTheFitOfTheLoadings) {
   args[2] = text_arg("ml");
   args[3] = text_arg("varimax");
   ResultCache cache;
-  const Call call{args, cache};
+  const Call call{args, cache, Deadline{}};
   const Output loadings = fn_loadings(call);  // args[4] (n_obs) left out
   ASSERT_EQ(loadings.rows, 6u);
   ASSERT_EQ(loadings.cols, 2u);
@@ -159,7 +256,7 @@ TEST(AddinFunctions, ReliabilityIsComputedOncePerInput) {
   std::vector<Arg> args(1);
   args[0] = two_factor_answers(200);
   ResultCache cache;
-  const Call call{args, cache};
+  const Call call{args, cache, Deadline{}};
   const Output a1 = fn_alpha(call);
   const Output o1 = fn_omega(call);
   const auto s = cache.stats();
@@ -179,7 +276,7 @@ TEST(AddinFunctions, CongruenceRefusesBlocksOfDifferentShapes) {
   args[1] = two_factor_answers(9);
   ResultCache cache;
   try {
-    fn_congruence(Call{args, cache});
+    fn_congruence(Call{args, cache, Deadline{}});
     FAIL() << "no error";
   } catch (const CellError& e) {
     EXPECT_EQ(e.failure(), Failure::bad_argument);

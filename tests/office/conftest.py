@@ -86,6 +86,10 @@ class Book:
         assert not bad, f"{formula} gave non-numbers: {bad[:5]}"
         return np.array(res)
 
+    def still_answers(self):
+        assert self.office.alive(), "LibreOffice died"
+        assert self.value("=1+1") == 2.0
+
     def close(self):
         with self.office.watchdog(60):
             self.doc.close(True)
@@ -105,6 +109,19 @@ def _read(sheet, top, rows, cols):
             else:
                 row.append(cell.getValue())
         out.append(row)
+    return out
+
+
+@pytest.fixture(scope="session")
+def lode_functions(office):
+    """Every LODE.* function of Calc's Function Wizard: name -> [(argument, optional)]."""
+    fd = office.smgr.createInstanceWithContext("com.sun.star.sheet.FunctionDescriptions", office.ctx)
+    out = {}
+    for i in range(fd.getCount()):
+        props = {p.Name: p.Value for p in fd.getByIndex(i)}
+        if props["Name"].startswith("LODE."):
+            out[props["Name"]] = [(a.Name, a.IsOptional) for a in (props["Arguments"] or ())]
+    assert len(out) >= 3
     return out
 
 

@@ -14,15 +14,8 @@ LONG_WAIT = 180  # seconds a single huge-range formula may take before the watch
 
 
 @pytest.fixture(scope="module")
-def functions(office):
-    fd = office.smgr.createInstanceWithContext("com.sun.star.sheet.FunctionDescriptions", office.ctx)
-    out = {}
-    for i in range(fd.getCount()):
-        props = {p.Name: p.Value for p in fd.getByIndex(i)}
-        if props["Name"].startswith("LODE."):
-            out[props["Name"]] = [(a.Name, a.IsOptional) for a in (props["Arguments"] or ())]
-    assert len(out) >= 3
-    return out
+def functions(lode_functions):
+    return lode_functions
 
 
 @pytest.fixture(scope="module")
@@ -60,15 +53,18 @@ def _formula(name, args, first):
 
 
 def _still_answers(book):
-    assert book.office.alive(), "LibreOffice died"
-    assert book.value("=1+1") == 2.0
+    book.still_answers()
 
 
 BAD_DATA = ["empty", "text", "one", "row", "column", "constant", "mixed", "overflow"]
 # Inputs that are bad data for an analysis but a valid argument for a function: the value it must give.
 # LODE.CONGRUENCE of a block of numbers with itself (several items, every column nonzero): each factor
 # matches itself, congruence 1.
-USABLE = {("LODE.CONGRUENCE", "column"): 1.0, ("LODE.CONGRUENCE", "constant"): 1.0}
+# LODE.ROTATE (rotation left out: oblimin) of the constant block, every row (1, 2, 7): rotation keeps
+# each row's communality, 1 + 4 + 49 = 54, and simple structure puts it on one factor, so the first
+# loading is sqrt(54), to the rotation's convergence tolerance (1e-6 on the gradient).
+USABLE = {("LODE.CONGRUENCE", "column"): (1.0, 1e-12), ("LODE.CONGRUENCE", "constant"): (1.0, 1e-12),
+          ("LODE.ROTATE", "constant"): (54 ** 0.5, 1e-6)}
 
 
 @pytest.mark.parametrize("bad", BAD_DATA)
@@ -79,7 +75,8 @@ def test_bad_data_gives_an_error_value(book, functions, ranges, bad):
         formula = _formula(name, args, ranges[bad])
         result = book.value(formula)
         if (name, bad) in USABLE:
-            assert isinstance(result, float) and abs(result - USABLE[(name, bad)]) < 1e-12, (name, bad, result)
+            want, tol = USABLE[(name, bad)]
+            assert isinstance(result, float) and abs(result - want) < tol, (name, bad, result)
             continue
         if name == "LODE.FIT" and result == "error":  # LODE.FIT writes the reason into its cells
             reason = book.array(formula, 1, 2)[0][1]
@@ -203,4 +200,115 @@ def test_scores_reliability_and_congruence_on_malformed_input(book, functions, r
         assert isinstance(result, tuple) and result[0] == "error", (formula, result)
         if "overflow" not in formula and ranges["overflow"] not in formula:
             assert result[1] == ERR_INVALID_ARGUMENT, (formula, result)
+    _still_answers(book)
+
+
+# --- issue 22: a crash, the time limit, almost-correlation matrices, error cells, option words -------
+
+TIME_LIMIT = 30  # seconds: the cell functions' time limit (README, "Using them"; kTimeLimit in cells.hpp)
+
+
+def _disjoint_spearman_block(book):
+    """A1:B4 = {1,2;2,3;3,1;4,4} and C5:C8 = {1;2;3;5}: the third item is never answered together
+    with the first two, so pairwise correlations with it have no rows at all."""
+    x = np.full((8, 3), np.nan)
+    x[:4, :2] = [[1, 2], [2, 3], [3, 1], [4, 4]]
+    x[4:, 2] = [1, 2, 3, 5]
+    return book.put(x)
+
+
+def test_pairwise_spearman_with_items_never_answered_together_is_an_error(book):
+    block = _disjoint_spearman_block(book)
+    for kind in ["pearson", "spearman", "polychoric"]:
+        for missing in ["pairwise", "listwise"]:
+            result = book.array(f'=LODE.CORR({block};"{kind}";"{missing}")', 3, 3)
+            assert all(isinstance(v, tuple) and v[0] == "error" for row in result for v in row), (kind, missing, result)
+    _still_answers(book)
+
+
+def test_a_huge_sample_size_returns_within_the_time_limit(office, book):
+    """n_obs = 1E9 with a correlation matrix: the fit statistics (the RMSEA interval) take no time in
+    proportion to n_obs, and in any case no formula blocks the office past the time limit."""
+    rng = np.random.default_rng(20261203)  # seeded input for a timing check
+    f = rng.uniform(0.4, 0.8, size=(8, 2)) * (np.arange(8)[:, None] % 2 == np.arange(2)[None, :])
+    x = rng.normal(size=(500, 2)) @ f.T + rng.normal(size=(500, 8)) * 0.6
+    r = np.corrcoef(x, rowvar=False)
+    block = book.put(r)
+    for formula, rows, cols in [(f"=LODE.LOADINGS({block};2;;;1E9)", 8, 2), (f"=LODE.FIT({block};2;;;1E9)", 13, 2)]:
+        t0 = time.monotonic()
+        with office.watchdog(TIME_LIMIT + 20):  # soffice is killed (and the test fails) past this
+            result = book.array(formula, rows, cols)
+        took = time.monotonic() - t0
+        assert took < TIME_LIMIT + 5, f"{formula} blocked the office for {took:.1f} s"
+        assert took < 5, f"{formula} took {took:.1f} s; the time of the fit must not grow with n_obs"
+        if "LOADINGS" in formula:
+            assert all(isinstance(v, float) for row in result for v in row), result
+        else:
+            # the RMSEA and its interval bounds: the rows whose label starts with "RMSEA", estimate first
+            rmsea = [row[1] for row in result if isinstance(row[0], str) and row[0].startswith("RMSEA")]
+            assert len(rmsea) == 3 and all(isinstance(v, float) for v in rmsea), result
+            assert min(rmsea[1:]) <= rmsea[0] <= max(rmsea[1:]) and min(rmsea) >= 0, result
+    _still_answers(book)
+
+
+def _square(book, m):
+    return book.put(np.asarray(m, dtype=float))
+
+
+def test_an_almost_correlation_matrix_is_refused_with_the_reason(book):
+    """A square block that misses exactly one property of a correlation matrix (ones on the
+    diagonal, symmetric, entries in [-1, 1]) and holds fractions is refused (Err:502) rather than
+    read as answers; the rule is stated in the README."""
+    good = np.array([[1, 0.3, 0.2, 0.1], [0.3, 1, 0.4, 0.2], [0.2, 0.4, 1, 0.5], [0.1, 0.2, 0.5, 1]])
+    asym = good.copy()
+    asym[0, 1] = 0.03  # a typo in one cell
+    diag2 = good + np.eye(4)  # a diagonal of 2
+    outside = good.copy()
+    outside[1, 2] = outside[2, 1] = 1.4
+    cases = {"asymmetric": asym, "diagonal of 2": diag2, "entry outside [-1, 1]": outside}
+    for what, m in cases.items():
+        block = _square(book, m)
+        for name in ["LODE.ALPHA", "LODE.KMO", "LODE.OMEGA", "LODE.EIGEN"]:
+            result = book.value(f"={name}({block})")
+            assert result == ("error", ERR_INVALID_ARGUMENT), (what, name, result)
+    # the correlation matrix itself is read as one (omega from it is a number in (0, 1))
+    omega = book.value(f"=LODE.OMEGA({_square(book, good)})")
+    assert isinstance(omega, float) and 0 < omega < 1, omega
+    # whole-number answers in a square block (here 0/1 with ones on the diagonal) are still answers
+    answers = np.array([[1, 0, 1, 1], [1, 1, 0, 0], [0, 1, 1, 1], [1, 0, 1, 1]])
+    alpha = book.value(f"=LODE.ALPHA({_square(book, answers)})")
+    assert isinstance(alpha, float), alpha
+    _still_answers(book)
+
+
+def test_rotate_without_a_rotation_uses_oblimin(book):
+    """LODE.ROTATE's `rotation` is optional: left out or empty it is "oblimin", the default of every
+    function that rotates (README table)."""
+    loadings = np.array([[0.7, 0.2], [0.6, 0.3], [0.65, 0.1], [0.2, 0.7], [0.3, 0.6], [0.1, 0.75]])
+    block = book.put(loadings)
+    named = book.numbers(f'=LODE.ROTATE({block};"oblimin")', 6, 2)
+    for formula in [f"=LODE.ROTATE({block})", f"=LODE.ROTATE({block};)", f"=LODE.ROTATE({block};;0)"]:
+        got = book.numbers(formula, 6, 2)
+        assert np.array_equal(got, named), (formula, got, named)
+
+
+def test_option_words_with_spaces_around_them_are_trimmed(book, ranges):
+    """The project's rule (README): white space around an option word is ignored, in the cells as
+    in the C library's name lookups."""
+    plain = book.numbers(f'=LODE.CORR({ranges["good"]};"spearman";"pairwise")', 5, 5)
+    padded = book.numbers(f'=LODE.CORR({ranges["good"]};" spearman";"pairwise ")', 5, 5)
+    assert np.array_equal(plain, padded)
+
+
+def test_a_range_holding_an_error_value_shows_calcs_error(book):
+    """Calc does not call an add-in function whose range argument holds an error value: the cell
+    shows Err:504 (error in the parameter list), whatever the error in the range (README, Errors)."""
+    rng = np.random.default_rng(11)
+    for err_formula in ["=1/0", "=NA()", "=1E308*10"]:
+        block = book.put(rng.normal(size=(12, 4)))
+        col = book.next_col - 5
+        book.data.getCellByPosition(col + 1, 3).setFormula(err_formula)
+        for name in ["LODE.CORR", "LODE.ALPHA", "LODE.LOADINGS"]:
+            result = book.value(f"={name}({block})")
+            assert result == ("error", 504), (err_formula, name, result)
     _still_answers(book)
