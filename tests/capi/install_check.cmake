@@ -1,8 +1,10 @@
 # Installs the build into WORK/prefix and builds EXAMPLE against it through pkg-config and through
-# the CMake package, then runs both programs. Fails on any step.
-file(REMOVE_RECURSE ${WORK})
+# the CMake package, then runs both programs. Fails on any step. With -DPREFIX=DIR (an unpacked
+# release tarball, tests/package/check_tarball.cmake) it uses DIR as it is and installs nothing.
+if(NOT PREFIX)
+  file(REMOVE_RECURSE ${WORK})
+endif()
 file(MAKE_DIRECTORY ${WORK})
-set(prefix ${WORK}/prefix)
 function(run)
   execute_process(COMMAND ${ARGV} RESULT_VARIABLE rc OUTPUT_VARIABLE out ERROR_VARIABLE err)
   if(NOT rc EQUAL 0)
@@ -10,7 +12,12 @@ function(run)
   endif()
   set(last_output "${out}" PARENT_SCOPE)
 endfunction()
-run(${CMAKE_COMMAND} --install ${BUILD_DIR} --prefix ${prefix} --component capi)
+if(PREFIX)
+  set(prefix ${PREFIX})
+else()
+  set(prefix ${WORK}/prefix)
+  run(${CMAKE_COMMAND} --install ${BUILD_DIR} --prefix ${prefix} --component capi)
+endif()
 
 # pkg-config
 file(GLOB_RECURSE pcs ${prefix}/*/lode.pc)

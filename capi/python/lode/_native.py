@@ -3,6 +3,7 @@
 import ctypes
 import ctypes.util
 import os
+import sys
 
 import numpy as np
 
@@ -45,21 +46,29 @@ class CorrelationOptions(ctypes.Structure):
                 ("progress", PROGRESS_FN), ("progress_user", c_void_p)]
 
 
-def _candidates():
+def _candidates(here=None, platform=None):
+    """Where liblode is looked for, in order: LODE_LIBRARY; beside the package (the wheel); the
+    library folder of an installed prefix (the package sits in <libdir>/lode/python/lode); on
+    Windows also <prefix>/bin (the zip's layout); then the platform's own search (on Windows
+    ctypes.util.find_library looks through PATH for lode.dll)."""
     env = os.environ.get("LODE_LIBRARY")
     if env:
         yield env
         return
-    here = os.path.dirname(os.path.abspath(__file__))
-    # Beside the package (a wheel-like layout), then the library directory of an installed prefix
-    # (the package is installed under <libdir>/lode/python/lode).
-    for folder in (here, os.path.dirname(here), os.path.normpath(os.path.join(here, "..", "..", ".."))):
-        for name in ("liblode.so.1", "liblode.so", "liblode.dylib", "lode.dll"):
+    here = here or os.path.dirname(os.path.abspath(__file__))
+    windows = (platform or sys.platform) == "win32"
+    names = ("lode.dll",) if windows else ("liblode.so.1", "liblode.so", "liblode.dylib")
+    libdir = os.path.normpath(os.path.join(here, "..", "..", ".."))
+    folders = [here, os.path.dirname(here), libdir]
+    if windows:
+        folders.append(os.path.join(os.path.dirname(libdir), "bin"))
+    for folder in folders:
+        for name in names:
             path = os.path.join(folder, name)
             if os.path.exists(path):
                 yield path
     found = ctypes.util.find_library("lode")
-    yield found or "liblode.so.1"
+    yield found or names[0]
 
 
 def _load():

@@ -1,0 +1,26 @@
+# cmake -DTARBALL=... -DREADME=... -DWORK=... -DCAPI_TESTS=tests/capi -P check_tarball.cmake
+# Unpacks the release tarball into WORK and builds the README's C example against it alone, through
+# its pkg-config file and through its CMake package, then runs both (tests/capi/install_check.cmake
+# with PREFIX set to the unpacked folder).
+file(REMOVE_RECURSE ${WORK})
+file(MAKE_DIRECTORY ${WORK}/unpacked)
+execute_process(COMMAND ${CMAKE_COMMAND} -E tar xzf ${TARBALL} WORKING_DIRECTORY ${WORK}/unpacked RESULT_VARIABLE rc)
+if(NOT rc EQUAL 0)
+  message(FATAL_ERROR "could not unpack ${TARBALL}")
+endif()
+file(GLOB top LIST_DIRECTORIES true ${WORK}/unpacked/*)
+list(LENGTH top n)
+if(NOT n EQUAL 1 OR NOT IS_DIRECTORY "${top}")
+  message(FATAL_ERROR "the tarball must hold one folder, it holds: ${top}")
+endif()
+foreach(f include/lode.h lib/pkgconfig/lode.pc lib/cmake/lode/lodeConfig.cmake)
+  if(NOT EXISTS ${top}/${f})
+    message(FATAL_ERROR "the tarball lacks ${f}")
+  endif()
+endforeach()
+set(MARKER lode-c-example)
+set(OUT ${WORK}/readme_example.c)
+include(${CAPI_TESTS}/extract_example.cmake)
+set(EXAMPLE ${OUT})
+set(PREFIX ${top})
+include(${CAPI_TESTS}/install_check.cmake)
