@@ -70,7 +70,7 @@ extern "C" {
 /* ABI version of this header. The major version is the shared object's SONAME suffix
  * (liblode.so.LODE_ABI_VERSION_MAJOR); the minor version counts compatible additions. */
 #define LODE_ABI_VERSION_MAJOR 1
-#define LODE_ABI_VERSION_MINOR 2
+#define LODE_ABI_VERSION_MINOR 3
 
 /* ------------------------------------------------------------------------------------------- */
 /* Status codes, version, errors                                                                */
@@ -831,6 +831,91 @@ LODE_API int lode_bootstrap_matrix(const lode_bootstrap_result* result, int key,
 LODE_API int lode_bootstrap_value(const lode_bootstrap_result* result, int key, double* value);
 LODE_API int lode_bootstrap_text(const lode_bootstrap_result* result, int key, char* out, size_t capacity,
                                  size_t* length);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Summaries: the answers reduced to counts, moments and tables, mergeable (ABI 1.3)            */
+/* ------------------------------------------------------------------------------------------- */
+
+/* A summary of blocks of rows holds, per item and per pair of items, the rows answering both with
+ * each item's mean and sum of squares about that mean over those rows and the pair's co-moment, and
+ * for items with at most max_categories distinct values the count of each value and every pair's
+ * contingency table. It gives Pearson, Spearman and polychoric correlations exactly as the rows
+ * would (lode_summary_to_data, then lode_correlate), merges exactly up to rounding in any order, and
+ * has a documented portable byte form (README, "Summaries"). A summary is changed by
+ * lode_summary_add and lode_summary_merge: do not use one handle from several threads while either
+ * runs. */
+typedef struct lode_summary lode_summary;
+
+typedef struct lode_summary_options {
+  size_t struct_size;  /* set by lode_summary_options_init */
+  int max_categories;  /* items with at most this many distinct values keep category counts and
+                          tables; 2..100, default 11 */
+  int listwise;        /* nonzero: only rows with every item answered contribute; default 0 */
+} lode_summary_options;
+
+LODE_API int lode_summary_options_init(lode_summary_options* opts, size_t struct_size);
+
+/* An empty summary of `items` items; `names` (NULL, or `items` UTF-8 strings, NULL entries unnamed)
+ * name them in messages and must match for a merge. */
+LODE_API int lode_summary_create(int64_t items, const char* const* names, const lode_summary_options* opts,
+                                 lode_summary** out);
+
+/* Adds a block of rows (respondents x items, strides as for input matrices, NaN = skipped). */
+LODE_API int lode_summary_add(lode_summary* summary, const double* values, int64_t rows, int64_t cols,
+                              int64_t row_stride, int64_t col_stride);
+
+/* Adds `other` into `into` (which may be `other` itself). Summaries of different items, category
+ * limits or missing-value policies are refused, naming the difference; `into` is then unchanged. */
+LODE_API int lode_summary_merge(lode_summary* into, const lode_summary* other);
+
+/* The portable byte form, under the size-query rule: with out == NULL and capacity 0 only *length
+ * is set; a smaller buffer gives LODE_E_BUFFER_TOO_SMALL. */
+LODE_API int lode_summary_to_bytes(const lode_summary* summary, uint8_t* out, size_t capacity, size_t* length);
+
+/* Reads the byte form; a truncated, corrupted or other-version form is LODE_E_INVALID_ARGUMENT
+ * with a message saying what is wrong. */
+LODE_API int lode_summary_from_bytes(const uint8_t* bytes, size_t length, lode_summary** out);
+
+/* A data handle for lode_correlate (and everything built on a correlation: factorability, factor
+ * count, fit, omega). Its correlation's missing option must match the summary's policy. Scores,
+ * alpha and the bootstrap need rows and refuse it. The data handle keeps its own copy. */
+LODE_API int lode_summary_to_data(const lode_summary* summary, lode_data** out);
+
+LODE_API void lode_summary_free(lode_summary* summary);
+
+enum lode_summary_key {
+  /* matrices: lode_summary_matrix */
+  LODE_SUMMARY_PAIR_COUNTS = 1100,     /* items x items: rows answering both */
+  LODE_SUMMARY_MEANS = 1101,           /* items x items: (i, j) mean of item i over the rows answering i and j */
+  LODE_SUMMARY_SUMS_OF_SQUARES = 1102, /* items x items: (i, j) sum of squares of item i about that mean */
+  LODE_SUMMARY_COMOMENTS = 1103,       /* items x items: sums of products of deviations about the pair's means */
+  LODE_SUMMARY_CATEGORIES = 1104,      /* items x max_categories: each item's values ascending, NaN-padded
+                                          (a row of NaN: over the limit) */
+  LODE_SUMMARY_CATEGORY_COUNTS = 1105, /* items x max_categories: their counts, NaN-padded */
+  /* numbers: lode_summary_value */
+  LODE_SUMMARY_N_ROWS = 1120,          /* rows added */
+  LODE_SUMMARY_ROWS_COMPLETE = 1121,   /* rows with every item answered */
+  LODE_SUMMARY_ROWS_ANSWERED = 1122,   /* rows with at least one item answered */
+  LODE_SUMMARY_MISSING_CELLS = 1123,
+  LODE_SUMMARY_ITEMS = 1124,
+  LODE_SUMMARY_MAX_CATEGORIES = 1125,
+  LODE_SUMMARY_LISTWISE = 1126,        /* 1 for a listwise summary, else 0 */
+  LODE_SUMMARY_FORMAT_VERSION = 1127   /* the byte form's version this library writes */
+};
+
+LODE_API int lode_summary_matrix(const lode_summary* summary, int key, double* out, size_t capacity, int64_t* rows,
+                                 int64_t* cols);
+LODE_API int lode_summary_value(const lode_summary* summary, int key, double* value);
+
+/* The contingency table of items a and b (0-based, a != b): rows the categories of a, columns those
+ * of b (as LODE_SUMMARY_CATEGORIES lists them). LODE_E_INVALID_ARGUMENT when either item is over
+ * the category limit. */
+LODE_API int lode_summary_table(const lode_summary* summary, int64_t a, int64_t b, double* out, size_t capacity,
+                                int64_t* rows, int64_t* cols);
+
+/* The name of item `index` (0-based; "" when unnamed), under the text size-query rule. */
+LODE_API int lode_summary_item_name(const lode_summary* summary, int64_t index, char* out, size_t capacity,
+                                    size_t* length);
 
 #ifdef __cplusplus
 } /* extern "C" */

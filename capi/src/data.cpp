@@ -43,6 +43,24 @@ int make_matrix_data(DataSource source, const double* values, int64_t items, int
 
 }  // namespace
 
+namespace lode::capi {
+
+void keep_polychoric(lode_correlation& c, PolychoricResult&& pr) {
+  c.result = std::move(pr.correlation);
+  c.polychoric = true;
+  c.standard_errors = std::move(pr.standard_errors);
+  Index most = 0;
+  for (const auto& t : pr.thresholds) most = std::max(most, t.size());
+  c.thresholds = Matrix::Constant(static_cast<Index>(pr.thresholds.size()), most, std::numeric_limits<double>::quiet_NaN());
+  for (std::size_t j = 0; j < pr.thresholds.size(); ++j)
+    c.thresholds.row(static_cast<Index>(j)).head(pr.thresholds[j].size()) = pr.thresholds[j].transpose();
+  c.pairs_not_converged = pr.pairs_not_converged;
+  c.pairs_at_bound = pr.pairs_at_bound;
+  c.pairs_zero_cell_corrected = pr.pairs_zero_cell_corrected;
+}
+
+}  // namespace lode::capi
+
 extern "C" {
 
 LODE_API const lode_version_info* lode_version(void) {
@@ -209,23 +227,12 @@ LODE_API int lode_correlate(const lode_data* data, const lode_correlation_option
     c->data = content;
     switch (content->source) {
       case DataSource::raw:
-        if (co.kind == CorrelationKind::polychoric) {
-          PolychoricResult pr = polychoric_correlation(content->values, co);
-          c->result = std::move(pr.correlation);
-          c->polychoric = true;
-          c->standard_errors = std::move(pr.standard_errors);
-          Index most = 0;
-          for (const auto& t : pr.thresholds) most = std::max(most, t.size());
-          c->thresholds = Matrix::Constant(static_cast<Index>(pr.thresholds.size()), most,
-                                           std::numeric_limits<double>::quiet_NaN());
-          for (std::size_t j = 0; j < pr.thresholds.size(); ++j)
-            c->thresholds.row(static_cast<Index>(j)).head(pr.thresholds[j].size()) = pr.thresholds[j].transpose();
-          c->pairs_not_converged = pr.pairs_not_converged;
-          c->pairs_at_bound = pr.pairs_at_bound;
-          c->pairs_zero_cell_corrected = pr.pairs_zero_cell_corrected;
-        } else {
-          c->result = correlation(content->values, co);
-        }
+        if (co.kind == CorrelationKind::polychoric) keep_polychoric(*c, polychoric_correlation(content->values, co));
+        else c->result = correlation(content->values, co);
+        break;
+      case DataSource::summary:
+        if (co.kind == CorrelationKind::polychoric) keep_polychoric(*c, polychoric_from_summary(*content->summary, co));
+        else c->result = correlation_from_summary(*content->summary, co);
         break;
       case DataSource::correlation: c->result = correlation_from_matrix(content->values, content->n_obs, co); break;
       case DataSource::covariance: c->result = correlation_from_covariance(content->values, content->n_obs, co); break;

@@ -3,6 +3,8 @@
 
 #include "lode.h"
 #include "lode/correlation.hpp"
+#include "lode/polychoric.hpp"
+#include "lode/summary.hpp"
 
 #include <memory>
 #include <string>
@@ -10,7 +12,7 @@
 
 namespace lode::capi {
 
-enum class DataSource { raw, correlation, covariance };
+enum class DataSource { raw, correlation, covariance, summary };
 
 // What a lode_data holds. Shared (immutable) with the results computed from it, so the caller may
 // free the data handle while results live on.
@@ -19,6 +21,7 @@ struct DataContent {
   Matrix values;      // raw: rows x items; matrix input: items x items
   Index n_obs = 0;    // raw: rows; matrix input: as given
   std::vector<std::string> item_names;
+  std::shared_ptr<const Summary> summary;  // summary: what the correlations come from (values is 0 x items)
 };
 
 }  // namespace lode::capi
@@ -40,3 +43,14 @@ struct lode_correlation {
   lode::Matrix thresholds;           // items x most thresholds, NaN-padded
   lode::Index pairs_not_converged = 0, pairs_at_bound = 0, pairs_zero_cell_corrected = 0;
 };
+
+struct lode_summary {
+  lode::Summary summary;
+};
+
+namespace lode::capi {
+
+// Keeps a polychoric result in a correlation handle (matrix, standard errors, thresholds, counters).
+void keep_polychoric(lode_correlation& c, PolychoricResult&& pr);
+
+}  // namespace lode::capi

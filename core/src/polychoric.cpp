@@ -1,6 +1,7 @@
 #include "lode/polychoric.hpp"
 
 #include "correlation_detail.hpp"
+#include "polychoric_detail.hpp"
 #include "lode/bivariate_normal.hpp"
 #include "lode/parallel.hpp"
 
@@ -396,6 +397,32 @@ PolychoricResult polychoric_correlation(const Matrix& data, const CorrelationOpt
     detail::check_pairs(Matrix::Zero(p, p), cr.report.pair_counts, options);
   }
 
+  detail::estimate_polychoric_pairs(
+      result,
+      [&](Index a, Index b) {
+        Matrix counts = Matrix::Zero(categories[static_cast<std::size_t>(a)].size(),
+                                     categories[static_cast<std::size_t>(b)].size());
+        const std::int16_t* ca = code.data() + a * m;
+        const std::int16_t* cb = code.data() + b * m;
+        for (Index k = 0; k < m; ++k)
+          if (ca[k] >= 0 && cb[k] >= 0) counts(ca[k], cb[k]) += 1.0;
+        return counts;
+      },
+      options);
+  return result;
+}
+
+namespace detail {
+
+Vector polychoric_thresholds(const Vector& counts) { return thresholds_of(counts); }
+
+void check_polychoric_options(const PolychoricOptions& options) { check_options(options); }
+
+void estimate_polychoric_pairs(PolychoricResult& result, const std::function<Matrix(Index, Index)>& table_of,
+                               const CorrelationOptions& options) {
+  const PolychoricOptions& po = options.polychoric;
+  CorrelationResult& cr = result.correlation;
+  const Index p = static_cast<Index>(result.thresholds.size());
   const Index n_pairs = p * (p - 1) / 2;
   std::vector<std::pair<Index, Index>> index;
   index.reserve(static_cast<std::size_t>(n_pairs));
@@ -408,14 +435,7 @@ PolychoricResult polychoric_correlation(const Matrix& data, const CorrelationOpt
       n_pairs, options.threads,
       [&](Index u) {
         const auto [a, b] = index[static_cast<std::size_t>(u)];
-        const Index ra = categories[static_cast<std::size_t>(a)].size();
-        const Index rb = categories[static_cast<std::size_t>(b)].size();
-        Matrix counts = Matrix::Zero(ra, rb);
-        const std::int16_t* ca = code.data() + a * m;
-        const std::int16_t* cb = code.data() + b * m;
-        for (Index k = 0; k < m; ++k)
-          if (ca[k] >= 0 && cb[k] >= 0) counts(ca[k], cb[k]) += 1.0;
-        const Matrix table = drop_empty(counts);
+        const Matrix table = drop_empty(table_of(a, b));
         if (table.rows() < 2 || table.cols() < 2) {
           const bool a_single = table.rows() < 2;
           failures[static_cast<std::size_t>(u)] = Error(
@@ -445,7 +465,7 @@ PolychoricResult polychoric_correlation(const Matrix& data, const CorrelationOpt
     if (pr.zero_cell_corrected) ++result.pairs_zero_cell_corrected;
   }
   cr.matrix = result.estimates;
-  cr.n_obs = listwise ? m : cr.report.min_pair_count;
+  cr.n_obs = options.missing == MissingPolicy::listwise ? cr.report.rows_used : cr.report.min_pair_count;
 
   cr.notes.push_back(
       "polychoric correlations (two-step: thresholds from each pair's margins, then the maximum-likelihood "
@@ -467,9 +487,10 @@ PolychoricResult polychoric_correlation(const Matrix& data, const CorrelationOpt
     cr.notes.push_back(fmt::format(
         "{} pair(s) did not converge within {} iterations: {}", result.pairs_not_converged, po.max_iterations,
         pair_list(result.pairs, options.item_names, [](const PolychoricPair& q) { return !q.convergence.converged; })));
-  detail::finish(cr, options);
-  return result;
+  finish(cr, options);
 }
+
+}  // namespace detail
 
 Matrix resample_categories(const Matrix& data, RandomEngine& engine, Index rows) {
   const Index n = data.rows(), p = data.cols();

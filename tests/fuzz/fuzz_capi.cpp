@@ -264,6 +264,71 @@ void reliability(const lode_data* d, const lode_correlation* c) {
   }
 }
 
+// Summaries: built from the rows, merged, written, damaged and read back; and the rest of the input
+// read as a summary's byte form directly. Whatever gets read is correlated.
+void correlate_summary(const lode_summary* s, Bytes& in) {
+  lode_data* d = nullptr;
+  if (lode_summary_to_data(s, &d) != LODE_OK) return;
+  lode_correlation_options o;
+  lode_correlation_options_init(&o, sizeof o);
+  const uint8_t flags = in.byte();
+  o.kind = flags % 3;
+  o.missing = (flags & 4) ? LODE_LISTWISE : LODE_PAIRWISE;
+  o.threads = 1;
+  lode_correlation* c = nullptr;
+  if (lode_correlate(d, &o, &c) == LODE_OK) {
+    read_correlation(c, in);
+    lode_correlation_free(c);
+  }
+  lode_data_free(d);
+  for (int key = 1098; key < 1130; ++key) {
+    double v;
+    lode_summary_value(s, key, &v);
+    int64_t rows = 0, cols = 0;
+    if (lode_summary_matrix(s, key, nullptr, 0, &rows, &cols) == LODE_OK) {
+      std::vector<double> buf(static_cast<size_t>(rows * cols) + 1);
+      lode_summary_matrix(s, key, buf.data(), buf.size(), &rows, &cols);
+    }
+  }
+  int64_t rows = 0, cols = 0;
+  lode_summary_table(s, in.byte() % 4, in.byte() % 4, nullptr, 0, &rows, &cols);
+}
+
+void fuzz_summary(const std::vector<double>& values, int64_t rows, int64_t cols, int64_t row_stride,
+                  int64_t col_stride, Bytes& in) {
+  lode_summary_options o;
+  lode_summary_options_init(&o, sizeof o);
+  const uint8_t flags = in.byte();
+  o.max_categories = flags % 12;
+  o.listwise = (flags & 16) != 0;
+  lode_summary* s = nullptr;
+  if (lode_summary_create(cols, nullptr, &o, &s) == LODE_OK) {
+    const int64_t half = rows / 2;
+    lode_summary_add(s, values.data(), half, cols, row_stride, col_stride);
+    lode_summary_add(s, values.data() + half * row_stride, rows - half, cols, row_stride, col_stride);
+    lode_summary_merge(s, s);
+    size_t length = 0;
+    if (lode_summary_to_bytes(s, nullptr, 0, &length) == LODE_OK) {
+      std::vector<uint8_t> bytes(length + 1);
+      lode_summary_to_bytes(s, bytes.data(), bytes.size(), &length);
+      const size_t cut = length == 0 ? 0 : in.byte() % (length + 1);
+      if (length > 0 && (flags & 32)) bytes[in.byte() % length] ^= static_cast<uint8_t>(1u << (in.byte() % 8));
+      lode_summary* back = nullptr;
+      if (lode_summary_from_bytes(bytes.data(), (flags & 64) ? cut : length, &back) == LODE_OK) {
+        correlate_summary(back, in);
+        lode_summary_free(back);
+      }
+    }
+    correlate_summary(s, in);
+    lode_summary_free(s);
+  }
+  lode_summary* raw = nullptr;
+  if (lode_summary_from_bytes(in.p, in.n, &raw) == LODE_OK) {
+    correlate_summary(raw, in);
+    lode_summary_free(raw);
+  }
+}
+
 }  // namespace
 
 extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
@@ -284,6 +349,11 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
   for (int64_t i = 0; i < rows; ++i)
     for (int64_t j = 0; j < cols; ++j)
       values[static_cast<size_t>(i * row_stride + j * col_stride)] = likert ? coded(in.byte()) : in.real();
+
+  if ((mode & 0xE0) == 0xE0) {
+    fuzz_summary(values, rows, cols, row_stride, col_stride, in);
+    return 0;
+  }
 
   lode_data* d = nullptr;
   int status;

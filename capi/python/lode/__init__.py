@@ -12,11 +12,13 @@ import numpy as np
 
 from . import _native
 from ._native import LodeError, lib, check
+from .summary import Summary, accepts_summary
+from .summary_sql import summary_from_sql
 
 __all__ = ["LodeError", "version", "correlation", "Correlation", "factorability", "Factorability",
            "n_factors", "parallel_analysis", "map_test", "FactorCount", "rotate", "Rotation", "fit", "Model",
            "scores", "Scores", "alpha", "Alpha", "omega", "Omega", "congruence", "Comparison", "item_flags",
-           "ItemFlags", "bootstrap", "Bootstrap"]
+           "ItemFlags", "bootstrap", "Bootstrap", "Summary", "summary_from_sql"]
 
 # Keys of lode.h (enum lode_correlation_key).
 _CORRELATION_MATRIX = 100
@@ -67,6 +69,8 @@ def _names_of(X, item_names):
 
 
 def _make_data(X=None, corr=None, cov=None, n_obs=None, item_names=None):
+    if isinstance(X, Summary) and corr is None and cov is None and n_obs is None:
+        return X._data()
     given = [a is not None for a in (X, corr, cov)]
     if sum(given) != 1:
         raise ValueError("give exactly one of X (raw data), corr (a correlation matrix) or cov (a covariance matrix)")
@@ -185,6 +189,7 @@ def _correlate(data, method, missing, smooth, min_eigenvalue=1e-6, min_pair_obse
     return Correlation(ptr.value)
 
 
+@accepts_summary
 def correlation(X=None, *, corr=None, cov=None, n_obs=None, method="pearson", missing="pairwise", smooth=False,
                 min_eigenvalue=1e-6, min_pair_observations=3, item_names=None, threads=0, max_categories=10,
                 zero_cells="at_bound", zero_cell_add=0.5, progress=None):
@@ -255,6 +260,7 @@ def _correlation_of(X, corr, cov, n_obs, correlation, missing, smooth, item_name
     return _correlate(data, correlation, missing, smooth, 1e-6, 3)
 
 
+@accepts_summary
 def factorability(X=None, *, corr=None, cov=None, n_obs=None, correlation="pearson", missing="pairwise",
                   smooth=False, item_names=None):
     """Kaiser-Meyer-Olkin (overall and per item), Bartlett's test of sphericity, the determinant and
@@ -334,6 +340,7 @@ def _count_options(replicates, seed, percentile, threshold, source, threads, pro
     return o, callback
 
 
+@accepts_summary
 def n_factors(X=None, *, corr=None, cov=None, n_obs=None, replicates=None, seed=None, percentile=95.0,
               threshold="percentile", source="normal", correlation="pearson", missing="pairwise", smooth=False,
               threads=0, progress=None, item_names=None):
@@ -352,6 +359,7 @@ def n_factors(X=None, *, corr=None, cov=None, n_obs=None, replicates=None, seed=
     return FactorCount(ptr.value)
 
 
+@accepts_summary
 def parallel_analysis(X=None, *, corr=None, cov=None, n_obs=None, replicates=None, seed=None, percentile=95.0,
                       threshold="percentile", source="normal", **kwargs):
     """Parallel analysis (Horn 1965) alone: a dict with the observed component and factor
@@ -361,6 +369,7 @@ def parallel_analysis(X=None, *, corr=None, cov=None, n_obs=None, replicates=Non
                      threshold=threshold, source=source, **kwargs).parallel
 
 
+@accepts_summary
 def map_test(X=None, *, corr=None, cov=None, n_obs=None, **kwargs):
     """Velicer's (1976) minimum average partial test and its fourth-power variant (Velicer, Eaton &
     Fava 2000): a dict with ``average_squared`` and ``average_fourth`` (entry m: after removing m
@@ -540,6 +549,7 @@ class Model(_native.Handle):
         return f"<lode.Model {self.method} {self.factors} factor(s), {self.rotation}>"
 
 
+@accepts_summary
 def fit(X=None, *, corr=None, cov=None, n_obs=None, factors, method="ml", rotation="none", missing="pairwise",
         correlation="pearson", smooth=False, seed=None, max_iterations=1000, tolerance=1e-9, min_uniqueness=0.005,
         interval_level=0.90, replicates=None, progress=None, item_names=None, **rotation_keywords):
@@ -643,6 +653,7 @@ class Scores(_native.Handle):
         return f"<lode.Scores {self.values.shape}>"
 
 
+@accepts_summary(needs_rows="scores")
 def scores(X, model, method="regression", *, missing="from_answered", min_answered_share=0.5, low_determinacy=0.80):
     """Factor scores of the respondents in ``X`` (rows; the model's items in its order; NaN missing)
     on the factors of ``model`` (a :class:`Model` from :func:`fit`). ``X`` None scores the data the
@@ -683,6 +694,7 @@ class Alpha(_native.Handle):
         return f"<lode.Alpha {self.alpha:.3f}>"
 
 
+@accepts_summary(needs_rows="alpha")
 def alpha(X, *, item_names=None):
     """Cronbach's (1951) alpha of the scale whose items are the columns of ``X`` (already
     reverse-scored where needed; rows with a missing item are left out). Returns :class:`Alpha`."""
@@ -723,6 +735,7 @@ class Omega(_native.Handle):
         return f"<lode.Omega {np.round(self.omega, 3)}>"
 
 
+@accepts_summary
 def omega(model=None, *, X=None, corr=None, n_obs=None, assignment=None, method="ml", missing="pairwise",
           correlation="pearson", max_iterations=1000, tolerance=1e-9, min_uniqueness=0.005, item_names=None):
     """McDonald's (1999) omega total (and, per factor, the factor's share; see :class:`Omega`).
@@ -902,6 +915,7 @@ class Bootstrap(_native.Handle):
         return f"<lode.Bootstrap {self.replicates_used} of {self.replicates} replicates, level {self.level}>"
 
 
+@accepts_summary(needs_rows="bootstrap replicates")
 def bootstrap(X, *, factors, method="ml", rotation="none", replicates=1000, level=0.95, seed=None, progress=None,
               missing="pairwise", correlation="pearson", smooth=False, max_iterations=1000, tolerance=1e-9,
               min_uniqueness=0.005, threads=0, replicate_random_starts=0, keep_replicates=False, item_names=None,
