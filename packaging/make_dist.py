@@ -38,7 +38,9 @@ def run(cmd, **kw):
 
 
 def install(cmake, build, prefix):
-    run([cmake, "--install", build, "--prefix", prefix, "--component", "capi", "--strip"])
+    # SOURCE_DATE_EPOCH: strip writes it, not the current time, into the PE header of lode.dll.
+    run([cmake, "--install", build, "--prefix", prefix, "--component", "capi", "--strip"],
+        env=dict(os.environ, SOURCE_DATE_EPOCH=str(EPOCH)))
 
 
 def files_under(root):

@@ -156,7 +156,7 @@ def main():
         pe = out(["x86_64-w64-mingw32-objdump", "-p", dll])
         imports = sorted({m.lower() for m in re.findall(r"DLL Name: (\S+)", pe)})
         check(set(imports) <= WINDOWS_SYSTEM_DLLS, f"lode.dll imports Windows system DLLs only: {imports}")
-        table = pe.split("[Ordinal/Name Pointer] Table", 1)[-1]
+        table = pe.split("[Ordinal/Name Pointer] Table", 1)[-1].split("\n\n", 1)[0]  # up to its blank line
         dll_exports = re.findall(r"\[\s*\d+\]\s+(\S+)", table)
         check(dll_exports and all(e.startswith("lode_") for e in dll_exports),
               f"lode.dll exports only lode_* ({len(dll_exports)}; others: {[e for e in dll_exports if not e.startswith('lode_')][:5]})")
