@@ -31,6 +31,26 @@ void ResultCache::insert(const std::string& key, std::shared_ptr<const void> val
   }
 }
 
+ResultCache::Work ResultCache::start_or_join(const std::string& key,
+                                             std::function<std::shared_ptr<const void>()> compute) {
+  std::lock_guard lock(mutex_);
+  if (auto it = running_.find(key); it != running_.end()) return it->second;
+  auto task = std::make_shared<std::packaged_task<std::shared_ptr<const void>()>>(std::move(compute));
+  Work work = task->get_future().share();
+  std::thread([task] { (*task)(); }).detach();  // the task owns what it computes from
+  running_.emplace(key, work);
+  return work;
+}
+
+void ResultCache::finished(const std::string& key) {
+  std::lock_guard lock(mutex_);
+  // Work for a key starts only when none is listed, so a listed work that has finished is this one
+  // (or one whose result its own waiter collects): either way it is done and leaves the list.
+  auto it = running_.find(key);
+  if (it != running_.end() && it->second.wait_for(std::chrono::seconds(0)) == std::future_status::ready)
+    running_.erase(it);
+}
+
 ResultCache::Stats ResultCache::stats() const {
   std::lock_guard lock(mutex_);
   return Stats{hits_, misses_, lru_.size(), bytes_};
@@ -38,6 +58,7 @@ ResultCache::Stats ResultCache::stats() const {
 
 void ResultCache::clear() {
   std::lock_guard lock(mutex_);
+  running_.clear();  // work still running finishes on its own; its result is not collected
   lru_.clear();
   index_.clear();
   bytes_ = 0;

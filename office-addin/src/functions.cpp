@@ -69,6 +69,17 @@ int deadline_progress(void* user, std::int64_t, std::int64_t) {
 
 namespace {
 
+// The cached result of `work` for `key`, computed on a thread of its own and waited for until the
+// formula's deadline (ResultCache::get_or_compute_until): for stages the C ABI cannot interrupt. A
+// recalculation while the work still runs joins it, and once it has finished takes its result.
+template <class T>
+std::shared_ptr<const T> cached_in_time(const Call& call, const std::string& key, const char* what,
+                                        std::function<std::shared_ptr<const T>()> work, std::size_t bytes) {
+  auto value = call.cache.get_or_compute_until<T>(key, std::move(work), bytes, call.deadline.until);
+  if (!value) time_limit_passed(what);
+  return value;
+}
+
 KeyBuilder& add_grid(KeyBuilder& k, const Grid& g) {
   k.add(static_cast<std::uint64_t>(g.rows)).add(static_cast<std::uint64_t>(g.cols));
   return k.add(g.values.data(), g.values.size());
@@ -271,15 +282,10 @@ std::shared_ptr<const FitOutputs> fit(const Call& call, const FitRequest& req) {
   const std::size_t p = req.src.input.grid->cols;
   const std::size_t k = static_cast<std::size_t>(req.spec.factors);
   // The outputs copied out of the model, plus the model itself (its matrices, about 4 p x p).
-  return call.cache.get_or_compute<FitOutputs>(
-      req.key,
-      [&] {
-        // lode_fit reports no progress inside one extraction, one rotation start or the fit statistics
-        return within_time<FitOutputs>(call.deadline, "factor analysis",
-                                       [corr, spec = req.spec, deadline = call.deadline] {
-                                         return run_fit(corr.get(), spec, deadline);
-                                       });
-      }, (p * p * 6 + p * k * 6) * sizeof(double) + 8192);
+  // lode_fit reports no progress inside one extraction, one rotation start or the fit statistics
+  return cached_in_time<FitOutputs>(
+      call, req.key, "factor analysis",
+      [corr, spec = req.spec, deadline = call.deadline] { return run_fit(corr.get(), spec, deadline); }, (p * p * 6 + p * k * 6) * sizeof(double) + 8192);
 }
 
 std::shared_ptr<const FitOutputs> fit(const Call& call) { return fit(call, read_fit_request(call, 4)); }
@@ -302,15 +308,12 @@ std::shared_ptr<const lode_factorability> factorability(const Call& call, std::s
   auto corr = correlation(call, src.input, src.spec);
   KeyBuilder k("factorability");
   k.add(source_key(src));
-  return call.cache.get_or_compute<lode_factorability>(
-      k.take(),
-      [&] {
-        check_time(call.deadline, "factorability");
-        return within_time<lode_factorability>(call.deadline, "factorability", [corr] {
-          lode_factorability* f = nullptr;
-          check(lode_assess_factorability(corr.get(), &f), "factorability");
-          return shared_handle<lode_factorability, lode_factorability_free>(f);
-        });
+  return cached_in_time<lode_factorability>(
+      call, k.take(), "factorability",
+      [corr] {
+        lode_factorability* f = nullptr;
+        check(lode_assess_factorability(corr.get(), &f), "factorability");
+        return shared_handle<lode_factorability, lode_factorability_free>(f);
       },
       src.input.grid->cols * 2 * sizeof(double) + 1024);
 }
@@ -640,14 +643,8 @@ Output fn_scores(const Call& call) {
   auto f = converged_fit(call, req);
   KeyBuilder k("scores");
   k.add(req.key).add(static_cast<std::uint64_t>(method));
-  auto scores = call.cache.get_or_compute<Matrix>(
-      k.take(),
-      [&] {
-        check_time(call.deadline, "factor scores");
-        return within_time<Matrix>(call.deadline, "factor scores", [model = f->model, method] {
-          return run_scores(model.get(), method);
-        });
-      },
+  auto scores = cached_in_time<Matrix>(
+      call, k.take(), "factor scores", [model = f->model, method] { return run_scores(model.get(), method); },
       req.src.input.grid->rows * static_cast<std::size_t>(f->factors) * sizeof(double) + 1024);
   return to_output(*scores);
 }
@@ -678,13 +675,9 @@ Output fn_omega(const Call& call) {
   auto corr = correlation(call, src.input, src.spec);
   KeyBuilder k("omega");
   k.add(source_key(src));
-  auto o = call.cache.get_or_compute<OmegaOutputs>(
-      k.take(),
-      [&] {
-        check_time(call.deadline, "McDonald's omega");  // a one-factor fit without progress reports
-        return within_time<OmegaOutputs>(call.deadline, "McDonald's omega", [corr] { return run_omega(corr.get()); });
-      },
-      sizeof(OmegaOutputs) + 256);
+  // a one-factor fit without progress reports
+  auto o = cached_in_time<OmegaOutputs>(
+      call, k.take(), "McDonald's omega", [corr] { return run_omega(corr.get()); }, sizeof(OmegaOutputs) + 256);
   if (!o->converged) throw CellError(Failure::not_converged, "the one-factor fit behind omega did not converge");
   Output out = Output::number(o->omega);
   if (!std::isfinite(o->omega)) out.cells[0].error = Failure::not_computable;

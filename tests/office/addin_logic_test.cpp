@@ -213,6 +213,31 @@ TEST(AddinTimeLimit, WorkTheCAbiCannotInterruptIsWaitedForOnlyUntilTheDeadline) 
                CellError);
 }
 
+TEST(AddinTimeLimit, SlowWorkIsJoinedByALaterCallAndCollectedOnceFinished) {
+  ResultCache cache;
+  std::atomic<int> runs{0};
+  std::atomic<bool> release{false};
+  auto work = [&runs, &release]() {  // the atomics outlive every thread: the test waits for the work below
+    ++runs;
+    while (!release) std::this_thread::sleep_for(std::chrono::milliseconds(5));
+    return std::make_shared<const int>(42);
+  };
+  auto soon = [] { return std::chrono::steady_clock::now() + std::chrono::milliseconds(100); };
+  EXPECT_EQ(cache.get_or_compute_until<int>("k", work, 8, soon()), nullptr);  // past the deadline
+  EXPECT_EQ(cache.get_or_compute_until<int>("k", work, 8, soon()), nullptr);  // joins, starts no copy
+  release = true;
+  auto value = cache.get_or_compute_until<int>("k", work, 8, std::chrono::steady_clock::now() + std::chrono::seconds(10));
+  ASSERT_NE(value, nullptr);
+  EXPECT_EQ(*value, 42);
+  EXPECT_EQ(runs.load(), 1);
+  EXPECT_EQ(cache.stats().entries, 1u);  // collected into the cache
+  // a failing work is not cached: the next call computes again
+  auto failing = []() -> std::shared_ptr<const int> { throw CellError(Failure::bad_argument, "bad"); };
+  const auto later = std::chrono::steady_clock::now() + std::chrono::seconds(10);
+  EXPECT_THROW(cache.get_or_compute_until<int>("f", failing, 8, later), CellError);
+  EXPECT_THROW(cache.get_or_compute_until<int>("f", failing, 8, later), CellError);
+}
+
 TEST(AddinFunctions, RotateWithoutARotationIsOblimin) {
   std::vector<Arg> args(3);
   args[0] = block(6, 2, {0.7, 0.2, 0.6, 0.3, 0.65, 0.1, 0.2, 0.7, 0.3, 0.6, 0.1, 0.75});
