@@ -70,9 +70,7 @@ LODE_API int lode_summary_add(lode_summary* summary, const double* values, int64
   return guarded([&] {
     require_pointer(summary, "summary");
     const Matrix block = read_matrix(values, rows, cols, row_stride, col_stride, "rows");
-    Summary updated = summary->summary;  // unchanged on failure
-    summary_add(updated, block);
-    summary->summary = std::move(updated);
+    summary_add(summary->summary, block);  // checks every value before it changes anything
   });
 }
 
@@ -80,9 +78,7 @@ LODE_API int lode_summary_merge(lode_summary* into, const lode_summary* other) {
   return guarded([&] {
     require_pointer(into, "into");
     const Summary& o = summary_of(other);
-    Summary merged = into->summary;
-    summary_merge(merged, o);
-    into->summary = std::move(merged);
+    summary_merge(into->summary, o);  // refuses before it changes anything
   });
 }
 

@@ -294,31 +294,30 @@ void summary_merge(Summary& into, const Summary& other) {
     seen[static_cast<std::size_t>(j)] = other.categories[static_cast<std::size_t>(j)].values;
   }
   detail::join_categories(into, seen, over);
+  // Where each of other's categories sits among into's, item by item.
+  std::vector<std::vector<std::size_t>> to(static_cast<std::size_t>(p));
   for (Index j = 0; j < p; ++j) {
     auto& cat = into.categories[static_cast<std::size_t>(j)];
     if (cat.over_limit) continue;
     const auto& oc = other.categories[static_cast<std::size_t>(j)];
-    for (std::size_t k = 0; k < oc.values.size(); ++k)
-      cat.counts[static_cast<std::size_t>(std::lower_bound(cat.values.begin(), cat.values.end(), oc.values[k]) -
-                                          cat.values.begin())] += oc.counts[k];
+    auto& map = to[static_cast<std::size_t>(j)];
+    for (std::size_t k = 0; k < oc.values.size(); ++k) {
+      map.push_back(static_cast<std::size_t>(std::lower_bound(cat.values.begin(), cat.values.end(), oc.values[k]) -
+                                             cat.values.begin()));
+      cat.counts[map.back()] += oc.counts[k];
+    }
   }
   for (Index a = 0; a < p; ++a)
     for (Index b = a + 1; b < p; ++b) {
       if (!detail::has_table(into, a, b)) continue;
-      const auto& ca = into.categories[static_cast<std::size_t>(a)].values;
-      const auto& cb = into.categories[static_cast<std::size_t>(b)].values;
-      const auto& oa = other.categories[static_cast<std::size_t>(a)].values;
-      const auto& ob = other.categories[static_cast<std::size_t>(b)].values;
       const auto& src = other.tables[detail::pair_index(a, b, p)];
-      auto& dst = into.tables[detail::pair_index(a, b, p)];
       if (src.empty()) continue;
-      for (std::size_t r = 0; r < oa.size(); ++r) {
-        const auto rr = static_cast<std::size_t>(std::lower_bound(ca.begin(), ca.end(), oa[r]) - ca.begin());
-        for (std::size_t c = 0; c < ob.size(); ++c) {
-          const auto cc = static_cast<std::size_t>(std::lower_bound(cb.begin(), cb.end(), ob[c]) - cb.begin());
-          dst[rr * cb.size() + cc] += src[r * ob.size() + c];
-        }
-      }
+      auto& dst = into.tables[detail::pair_index(a, b, p)];
+      const auto& ma = to[static_cast<std::size_t>(a)];
+      const auto& mb = to[static_cast<std::size_t>(b)];
+      const std::size_t kb = into.categories[static_cast<std::size_t>(b)].values.size();
+      for (std::size_t r = 0; r < ma.size(); ++r)
+        for (std::size_t c = 0; c < mb.size(); ++c) dst[ma[r] * kb + mb[c]] += src[r * mb.size() + c];
     }
   merge_moments(into.n, into.mean, into.m2, into.comoment, other.n, other.mean, other.m2, other.comoment);
   into.rows_total += other.rows_total;

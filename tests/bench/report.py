@@ -57,6 +57,11 @@ SECTIONS = [
         ("bootstrap_n500_p30_k3_r100", "100 replicates"),
         ("bootstrap_n500_p30_k3_r100_scratch", "100 replicates, each fitted from scratch with 10 random rotation starts"),
     ]),
+    ("Summaries (5 categories, 30 items)", [
+        ("add_p30_n2000", "summary of 2000 rows"),
+        ("merge_1000_p30", "1000 summaries merged into one"),
+        ("bytes_round_trip_p30", "byte form written and read back"),
+    ]),
     ("Whole dialog-style analysis (correlation, factor count, ML, oblimin, fit)", [
         ("analysis_n2000_p60", "n = 2000, p = 60"),
         ("analysis_n500_p30", "n = 500, p = 30"),
@@ -81,7 +86,7 @@ GROWTH = [
     ("Whole analysis", "n x p", [(500 * 30, "analysis_n500_p30"), (2000 * 60, "analysis_n2000_p60")]),
 ]
 
-# The targets of issue 11: (target, kind, case, threshold, alternative tool prefix).
+# The speed targets (issues 11 and 23): (target, kind, case, threshold, alternative tool prefix).
 #   kind "under": Lode's median must be below threshold seconds.
 #   kind "faster": alternative / Lode must be at least threshold.
 #   kind "memory": peak resident memory / data size must be below threshold.
@@ -98,6 +103,7 @@ TARGETS = [
     ("Bootstrap, 1000 replicates (ML + oblimin, n = 500, p = 30, k = 3): under 5 s", "under",
      "bootstrap_n500_p30_k3_r1000", 5.0, None),
     ("Peak memory of the 1,000,000 x 50 analysis: under twice the data", "memory", None, 2.0, None),
+    ("Merging 1,000 summaries of 30 items: under 50 ms", "under", "merge_1000_p30", 0.05, None),
 ]
 
 

@@ -19,14 +19,13 @@ static int failures = 0;
       fprintf(stderr, "%s:%d: check failed: %s\n", __FILE__, __LINE__, #cond); \
     }                                                                          \
   } while (0)
-#define EXPECT(call, status, fragment)                                                                       \
-  do {                                                                                                       \
-    int got_ = (call);                                                                                       \
-    if (got_ != (status) || ((fragment) != NULL && strstr(lode_last_error(), (const char*)(fragment)) == NULL)) { \
-      ++failures;                                                                                            \
-      fprintf(stderr, "line %d: %s gave %d (%s)\n", __LINE__, #call, got_, lode_last_error());             \
-    }                                                                                                        \
-  } while (0)
+static void expect(int got, int status, const char* fragment, const char* call, int line) {
+  if (got != status || (fragment != NULL && strstr(lode_last_error(), fragment) == NULL)) {
+    ++failures;
+    fprintf(stderr, "line %d: %s gave %d (%s)\n", line, call, got, lode_last_error());
+  }
+}
+#define EXPECT(call, status, fragment) expect((call), (status), (fragment), #call, __LINE__)
 #define OK(call) EXPECT(call, LODE_OK, NULL)
 
 #define ROWS 80
@@ -106,7 +105,11 @@ int main(void) {
     CHECK(bad == NULL);
     bytes[k] ^= 0x20;
   }
-  EXPECT(lode_summary_from_bytes(NULL, 10, &back), LODE_E_INVALID_ARGUMENT, NULL);
+  {
+    lode_summary* none = NULL;
+    EXPECT(lode_summary_from_bytes(NULL, 10, &none), LODE_E_INVALID_ARGUMENT, "NULL");
+    CHECK(none == NULL);
+  }
   free(bytes);
   OK(lode_summary_item_name(back, 2, name, sizeof name, &name_length));
   CHECK(strcmp(name, "q3") == 0 && name_length == 2);

@@ -24,8 +24,8 @@ def ordinal(n, p, seed, missing=0.1, categories=5):
 
 def summary_in_parts(x, parts=4, **kw):
     pieces = [lode.Summary(**kw).add(block) for block in np.array_split(x, parts)]
-    total = pieces[0]
-    for s in pieces[1:]:
+    total = lode.Summary(**kw)  # empty: takes its items from the first merge
+    for s in pieces:
         total.merge(s)
     return total
 

@@ -101,8 +101,8 @@ class Summary:
         if other._handle is None:
             return self
         if self._handle is None:
-            self._create(other.items, named=True)
             self._max_categories, self._listwise = other.max_categories, other.listwise
+            self._create(other.items, named=True)
         check(lib.lode_summary_merge(self._ptr, other._ptr))
         return self
 

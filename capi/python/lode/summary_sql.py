@@ -80,11 +80,11 @@ def _row_counts(cursor, q):
     return total, int(row[1]), int(row[2]), sum(total - int(n) for n in row[3:])
 
 
-def _moments(cursor, q, p):
+def _moments(cursor, q, pairs):
     """Per pair (i <= j): count, mean of i, mean of j, sums of squares and the co-moment, from the
-    regr_* aggregates over the rows answering both (Youngs-Cramer updates inside PostgreSQL)."""
+    regr_* aggregates over the rows answering both (Youngs-Cramer updates inside PostgreSQL). Used
+    for pairs with an item over the category limit; the others come from their tables."""
     sql = q.sql
-    pairs = [(i, j) for i in range(p) for j in range(i, p)]
     out = {}
     for start in range(0, len(pairs), _TARGETS_PER_QUERY):
         chunk = pairs[start:start + _TARGETS_PER_QUERY]
@@ -97,40 +97,106 @@ def _moments(cursor, q, p):
     return out
 
 
-def _categories(cursor, q, p, max_categories):
-    """Each item's distinct values and counts, or None when it has more than max_categories."""
+def _few_values(cursor, q, max_categories):
+    """Which items have at most max_categories distinct values: whole numbers whose range is that
+    narrow in one pass, the others checked one by one (GROUP BY with a LIMIT)."""
     sql = q.sql
-    cats = []
+    targets = []
     for c in q.cols:
-        query = q.select([c, sql.SQL("count(*)")], extra=[sql.SQL("{} IS NOT NULL").format(c)],
-                         tail=sql.SQL(" GROUP BY {} ORDER BY {} LIMIT %s").format(c, c))
-        rows = _run(cursor, query, q.params + [max_categories + 1])
-        cats.append(None if len(rows) > max_categories else [(float(v), int(n)) for v, n in rows])
-    return cats
+        targets += [sql.SQL("min({})").format(c), sql.SQL("max({})").format(c),
+                    sql.SQL("coalesce(sum(CASE WHEN {0} <> floor({0}) THEN 1 ELSE 0 END), 0)").format(c)]
+    row = _run(cursor, q.select(targets), q.params)[0]
+    few = []
+    for j, c in enumerate(q.cols):
+        lo, hi, fractional = row[3 * j:3 * j + 3]
+        if lo is None or (int(fractional) == 0 and float(hi) - float(lo) + 1 <= max_categories):
+            few.append(True)
+            continue
+        query = q.select([c], extra=[sql.SQL("{} IS NOT NULL").format(c)],
+                         tail=sql.SQL(" GROUP BY {} LIMIT %s").format(c))
+        few.append(len(_run(cursor, query, q.params + [max_categories + 1])) <= max_categories)
+    return few
 
 
-def _tables(cursor, q, cats):
-    """Every pair's contingency table in one pass: GROUP BY GROUPING SETS ((a, b), ...)."""
+def _tables(cursor, q, few):
+    """Category counts and every pair's contingency table of the items with few values, in one pass.
+    The items are taken two at a time; GROUP BY GROUPING SETS over each two such couples (four
+    columns, NULL included) gives joint counts from which Python adds up each pair's table and each
+    item's counts: a sixth of the hash look-ups of one grouping set per pair."""
     sql = q.sql
-    tabled = [j for j, c in enumerate(cats) if c is not None]
-    pairs = [(a, b) for k, a in enumerate(tabled) for b in tabled[k + 1:]]
-    tables = {(a, b): [[0] * len(cats[b]) for _ in cats[a]] for a, b in pairs}
-    if not pairs:
-        return tables
-    index = [None if c is None else {v: k for k, (v, _) in enumerate(c)} for c in cats]
-    sets = sql.SQL(", ").join(sql.SQL("({}, {})").format(q.cols[a], q.cols[b]) for a, b in pairs)
+    tabled = [j for j, f in enumerate(few) if f]
+    couples = [tabled[k:k + 2] for k in range(0, len(tabled), 2)]
+    sets = [couples[g] + couples[h] for g in range(len(couples)) for h in range(g + 1, len(couples))]
+    if len(couples) == 1:
+        sets = [couples[0]]
+    counts = {j: {} for j in tabled}
+    tables = {}
+    if not sets:
+        return counts, tables
     targets = [sql.SQL("GROUPING({})").format(q.cols[j]) for j in tabled]
     targets += [q.cols[j] for j in tabled] + [sql.SQL("count(*)")]
-    rows = _run(cursor, q.select(targets, tail=sql.SQL(" GROUP BY GROUPING SETS ({})").format(sets)), q.params)
+    grouping = sql.SQL(", ").join(sql.SQL("({})").format(sql.SQL(", ").join(q.cols[j] for j in cols)) for cols in sets)
+    rows = _run(cursor, q.select(targets, tail=sql.SQL(" GROUP BY GROUPING SETS ({})").format(grouping)), q.params)
+    # What each set contributes: its cross pairs, and the items and inner pairs of the couples it
+    # is the first to hold.
+    first = {}
+    for k, cols in enumerate(sets):
+        for j in cols:
+            first.setdefault(j, k)
+    position = {j: k for k, j in enumerate(tabled)}
+    set_of = {tuple(cols): k for k, cols in enumerate(sets)}
     t = len(tabled)
     for row in rows:
-        grouped = [tabled[k] for k in range(t) if row[k] == 0]
-        a, b = grouped
-        va, vb = row[t + tabled.index(a)], row[t + tabled.index(b)]
-        if va is None or vb is None:
-            continue  # a missing answer: not part of the pair's table
-        tables[(a, b)][index[a][float(va)]][index[b][float(vb)]] += int(row[-1])
-    return tables
+        cols = [j for j in tabled if row[position[j]] == 0]
+        k = set_of[tuple(cols)]
+        n = int(row[-1])
+        value = {j: None if row[t + position[j]] is None else float(row[t + position[j]]) for j in cols}
+        for j in cols:
+            if first[j] == k and value[j] is not None:
+                counts[j][value[j]] = counts[j].get(value[j], 0) + n
+        for x in range(len(cols)):
+            for y in range(x + 1, len(cols)):
+                a, b = cols[x], cols[y]
+                same_couple = any(a in c and b in c for c in couples)
+                if (same_couple and first[a] != k) or value[a] is None or value[b] is None:
+                    continue
+                cell = tables.setdefault((a, b), {})
+                cell[(value[a], value[b])] = cell.get((value[a], value[b]), 0) + n
+    return counts, tables
+
+
+def _from_tables(counts, tables, p):
+    """Categories, tables as lists, and the moments of every pair of tabled items, from the counts."""
+    import numpy as np
+    cats = [None] * p
+    for j, c in counts.items():
+        cats[j] = sorted(c.items())
+    moments, out = {}, {}
+    for j, c in counts.items():
+        v = np.array([x for x, _ in cats[j]]), np.array([n for _, n in cats[j]], dtype=float)
+        n = v[1].sum()
+        m = float(v[1] @ v[0] / n) if n else 0.0
+        m2 = float(v[1] @ (v[0] - m) ** 2) if n else 0.0
+        moments[(j, j)] = [n, m, m, m2, m2, m2]
+    for (a, b), cells in tables.items():
+        ia = {x: k for k, (x, _) in enumerate(cats[a])}
+        ib = {x: k for k, (x, _) in enumerate(cats[b])}
+        table = np.zeros((len(ia), len(ib)))
+        for (x, y), n in cells.items():
+            table[ia[x], ib[y]] += n
+        va, vb = np.array([x for x, _ in cats[a]]), np.array([x for x, _ in cats[b]])
+        n = table.sum()
+        ra, cb = table.sum(axis=1), table.sum(axis=0)
+        ma, mb = (float(ra @ va / n), float(cb @ vb / n)) if n else (0.0, 0.0)
+        moments[(a, b)] = [n, ma, mb, float(ra @ (va - ma) ** 2), float(cb @ (vb - mb) ** 2),
+                           float((va - ma) @ table @ (vb - mb))]
+        out[(a, b)] = table.astype(np.int64).tolist()
+    for j, c in enumerate(cats):
+        for k in range(j + 1, p):
+            if c is not None and cats[k] is not None and (j, k) not in out:
+                out[(j, k)] = [[0] * len(cats[k]) for _ in c]
+                moments[(j, k)] = [0.0] * 6
+    return cats, out, moments
 
 
 def _encode(items, max_categories, listwise, counts, moments, cats, tables):
@@ -196,10 +262,14 @@ def summary_from_sql(connection, table, items, where=None, params=None, *, max_c
             cursor.execute("BEGIN ISOLATION LEVEL REPEATABLE READ READ ONLY")
         else:
             cursor.execute("SET TRANSACTION ISOLATION LEVEL REPEATABLE READ READ ONLY")
+        # Room for every grouping set's hash table (a few hundred bytes per group), so that PostgreSQL
+        # hashes them all in one pass instead of sorting the rows once per set; this transaction only.
+        cursor.execute("SET LOCAL work_mem = '256MB'")
         counts = _row_counts(cursor, q)
-        moments = _moments(cursor, q, len(items))
-        cats = _categories(cursor, q, len(items), int(max_categories))
-        tables = _tables(cursor, q, cats)
+        few = _few_values(cursor, q, int(max_categories))
+        cats, tables, moments = _from_tables(*_tables(cursor, q, few), len(items))
+        rest = [(i, j) for i in range(len(items)) for j in range(i, len(items)) if (i, j) not in moments]
+        moments.update(_moments(cursor, q, rest))
     finally:
         try:
             cursor.execute("ROLLBACK") if autocommit else connection.rollback()
