@@ -290,3 +290,20 @@ def test_rotate_matches_r_varimax_and_promax(book, functions, factanal_harman):
     res = lode.rotate(unrotated, "oblimin", gamma=0.0)
     ob = book.numbers(f'=LODE.ROTATE({rng};"oblimin";0)', p, K)
     assert np.max(np.abs(ob - res.loadings)) < 1e-9
+
+
+def test_function_wizard_states_what_the_fit_statistics_and_the_count_are(office):
+    """LODE.FIT's description says that with minres or PAF the chi-square family is the ML discrepancy at
+    that solution, not a likelihood-ratio test; the factor count's help names the one rule every surface
+    uses (tests/office/report_checks.py checks that the surfaces agree)."""
+    fd = office.smgr.createInstanceWithContext("com.sun.star.sheet.FunctionDescriptions", office.ctx)
+    found = {}
+    for i in range(fd.getCount()):
+        props = {p.Name: p.Value for p in fd.getByIndex(i)}
+        found[props["Name"]] = props
+    fit = found["LODE.FIT"]["Description"]
+    assert "not a likelihood-ratio test" in fit and '"minres"' in fit and '"paf"' in fit
+    rule = {a.Name: a.Description for a in found["LODE.NFACTORS"]["Arguments"]}["rule"]
+    assert "reduced-matrix factor eigenvalues" in rule and "95th percentile" in rule and "500" in rule
+    factors = {a.Name: a.Description for a in found["LODE.LOADINGS"]["Arguments"]}["factors"]
+    assert "factor eigenvalues" in factors and "95th" in factors and "500" in factors
