@@ -67,6 +67,7 @@ std::vector<Index> complete_rows(const Mask& present) {
 
 
 double pearson_of(const Vector& x, const Vector& y) {
+  if (x.size() < 2 || y.size() != x.size()) return std::numeric_limits<double>::quiet_NaN();  // (mean of none is undefined)
   const double mx = x.mean(), my = y.mean();
   const Vector dx = x.array() - mx, dy = y.array() - my;
   const double sxx = dx.squaredNorm(), syy = dy.squaredNorm();
@@ -344,13 +345,18 @@ Matrix spearman(const Matrix& data, const Mask& present, MissingPolicy missing, 
     }
     return pearson_complete(ranks, 1);
   }
-  // Pairwise: each pair is ranked within the rows where both items are present.
+  // Pairwise: each pair is ranked within the rows where both items are present. A pair answered
+  // together in fewer than 2 rows has no coefficient (NaN); check_pairs then names it by its count.
   Matrix r = Matrix::Identity(p, p);
   for (Index a = 0; a < p; ++a)
     for (Index b = a + 1; b < p; ++b) {
       std::vector<Index> rows;
       for (Index i = 0; i < data.rows(); ++i)
         if (present(i, a) && present(i, b)) rows.push_back(i);
+      if (rows.size() < 2) {
+        r(a, b) = r(b, a) = std::numeric_limits<double>::quiet_NaN();
+        continue;
+      }
       Vector x(static_cast<Index>(rows.size())), y(static_cast<Index>(rows.size()));
       for (std::size_t k = 0; k < rows.size(); ++k) {
         x(static_cast<Index>(k)) = data(rows[k], a);
@@ -373,14 +379,15 @@ Matrix centred_cross_products(const Matrix& x, int threads, CrossProductKernel k
 
 void check_pairs(const Matrix& r, const IndexMatrix& counts, const CorrelationOptions& options) {
   const Index p = r.cols();
+  const Index needed = std::max<Index>(options.min_pair_observations, 2);  // no coefficient from fewer than 2 rows
   for (Index j = 0; j < p; ++j)
     for (Index i = j + 1; i < p; ++i) {
-      if (counts(i, j) < options.min_pair_observations)
+      if (counts(i, j) < needed)
         throw Error(ErrorCode::insufficient_data,
                     fmt::format("{} and {} are both answered in only {} rows; at least {} are needed "
                                 "for their correlation (try listwise deletion or drop one of them)",
                                 item_label(options.item_names, j), item_label(options.item_names, i), counts(i, j),
-                                options.min_pair_observations));
+                                needed));
       if (!std::isfinite(r(i, j)))
         throw Error(ErrorCode::insufficient_data,
                     fmt::format("{} and {} have no variation in the rows where both are answered, so "
@@ -484,6 +491,7 @@ void validate_data(const Matrix& data, const CorrelationOptions& options) {
                 fmt::format("factor analysis needs at least 3 items (columns); the data have {}", p));
   if (n < 3)
     throw Error(ErrorCode::insufficient_data, fmt::format("the data have {} rows; at least 3 are needed", n));
+  const Index needed = std::max<Index>(options.min_pair_observations, 2);  // no coefficient from fewer than 2 rows
   for (Index j = 0; j < p; ++j) {
     Index answered = 0;
     double first = std::numeric_limits<double>::quiet_NaN();
@@ -498,10 +506,10 @@ void validate_data(const Matrix& data, const CorrelationOptions& options) {
       else if (v != first) constant = false;
       ++answered;
     }
-    if (answered < options.min_pair_observations)
+    if (answered < needed)
       throw Error(ErrorCode::insufficient_data,
                   fmt::format("{} is answered in only {} of {} rows; at least {} are needed",
-                              item_label(options.item_names, j), answered, n, options.min_pair_observations));
+                              item_label(options.item_names, j), answered, n, needed));
     if (constant)
       throw Error(ErrorCode::insufficient_data,
                   fmt::format("{} is constant (every answer is {}); remove it, it carries no information",
@@ -509,11 +517,11 @@ void validate_data(const Matrix& data, const CorrelationOptions& options) {
   }
   if (options.missing == MissingPolicy::listwise) {
     const Index complete = static_cast<Index>(complete_rows(present_mask(data)).size());
-    if (complete < options.min_pair_observations)
+    if (complete < needed)
       throw Error(ErrorCode::insufficient_data,
                   fmt::format("only {} of {} rows survive listwise deletion (rows with every item answered); at "
                               "least {} are needed: use pairwise deletion or fewer items",
-                              complete, n, options.min_pair_observations));
+                              complete, n, needed));
   }
 }
 

@@ -2,6 +2,7 @@
 #include "lode/correlation.hpp"
 #include "lode/random.hpp"
 #include "../../core/src/correlation_detail.hpp"
+#include "support/errors.hpp"
 #include "support/external.hpp"
 
 #include <gtest/gtest.h>
@@ -282,4 +283,37 @@ TEST(CorrelationErrors, CompleteDataChecksAcrossChunksWordAsTheInputChecks) {
   Matrix huge = x;  // finite values whose sums overflow: not a silent number
   huge.col(0).array() *= 1e306;
   EXPECT_NE(message_of([&] { correlation(huge); }), "no error");
+}
+
+// Missing-value patterns that leave a pair with fewer rows in common than a coefficient needs: two
+// items never answered together (this crashed pairwise Spearman), one shared row, a whole item
+// missing. Every kind and policy refuses with a message naming the pair or the item, whatever the
+// minimum pair count asked for (below 2 rows there is no coefficient at all).
+TEST(Correlation, PairsWithTooFewCommonRowsAreRefusedForEveryKind) {
+  const double m = std::nan("");
+  Matrix disjoint(8, 3), one_shared(8, 3), whole_missing(6, 3);
+  disjoint << 1, 2, m, 2, 3, m, 3, 1, m, 4, 4, m, m, m, 1, m, m, 2, m, m, 3, m, m, 5;
+  one_shared = disjoint;
+  one_shared(3, 2) = 2;
+  whole_missing << 1, m, 2, 2, m, 3, 3, m, 1, 4, m, 4, 2, m, 2, 5, m, 3;
+  for (auto kind : {CorrelationKind::pearson, CorrelationKind::spearman, CorrelationKind::polychoric})
+    for (Index min_pairs : {0, 1, 3}) {
+      CorrelationOptions o;
+      o.kind = kind;
+      o.min_pair_observations = min_pairs;
+      SCOPED_TRACE(std::string(to_string(kind)) + ", min_pair_observations " + std::to_string(min_pairs));
+      ErrorCode code{};
+      const std::string disjoint_error = lode::testing::error_message([&] { correlation(disjoint, o); }, &code);
+      EXPECT_NE(disjoint_error.find("column 1 and column 3 are both answered in only 0 rows"), std::string::npos)
+          << disjoint_error;
+      EXPECT_EQ(code, ErrorCode::insufficient_data);
+      const std::string shared_error = lode::testing::error_message([&] { correlation(one_shared, o); });
+      EXPECT_NE(shared_error.find("column 1 and column 3 are both answered in only 1 rows"), std::string::npos)
+          << shared_error;
+      const std::string whole_error = lode::testing::error_message([&] { correlation(whole_missing, o); });
+      EXPECT_NE(whole_error.find("column 2 is answered in only 0"), std::string::npos) << whole_error;
+      o.missing = MissingPolicy::listwise;
+      EXPECT_NE(lode::testing::error_message([&] { correlation(disjoint, o); }).find("survive listwise deletion"), std::string::npos);
+      EXPECT_NE(lode::testing::error_message([&] { correlation(one_shared, o); }).find("survive listwise deletion"), std::string::npos);
+    }
 }
