@@ -17,6 +17,15 @@ double rel_err(double a, double b) {
   return std::abs(a - b) / std::abs(b);
 }
 
+// Reference: scipy.stats.ncx2.cdf and ncx2.sf at the rows (x, df, lambda) of `grid`, as "cdf" and "sf".
+auto ncx2_reference(const Matrix& grid) {
+  return run_python(R"(
+from scipy import stats
+x, df, lam = X[:, 0], X[:, 1], X[:, 2]
+emit('cdf', stats.ncx2.cdf(x, df, lam)); emit('sf', stats.ncx2.sf(x, df, lam))
+)", {{"X", grid}});
+}
+
 }  // namespace
 
 TEST(Distributions, GammaFunctionsMatchScipySpecial) {
@@ -64,12 +73,7 @@ TEST(Distributions, NoncentralChiSquareMatchesScipyNcx2) {
   Matrix grid(10, 3);  // (x, df, lambda)
   grid << 5.0, 3, 1.0, 20.0, 8, 10.0, 2.0, 2, 30.0, 200.0, 150, 40.0, 60.0, 12, 0.5, 1000.0, 900, 300.0, 80.0, 4, 20.0,
       0.3, 1, 0.2, 400.0, 50, 500.0, 15.0, 24, 2.0;
-  // Reference: scipy.stats.ncx2.cdf and ncx2.sf.
-  const auto ref = run_python(R"(
-from scipy import stats
-x, df, lam = X[:, 0], X[:, 1], X[:, 2]
-emit('cdf', stats.ncx2.cdf(x, df, lam)); emit('sf', stats.ncx2.sf(x, df, lam))
-)", {{"X", grid}});
+  const auto ref = ncx2_reference(grid);
   for (Index i = 0; i < grid.rows(); ++i) {
     const double x = grid(i, 0), df = grid(i, 1), lam = grid(i, 2);
     SCOPED_TRACE(::testing::Message() << "x=" << x << " df=" << df << " lambda=" << lam);
@@ -104,12 +108,7 @@ TEST(Distributions, LargeNoncentralChiSquareMatchesScipyNcx2) {
   Matrix grid(8, 3);  // (x, df, lambda)
   grid << 2e5, 13, 2e5, 2.1e5, 13, 2e5, 1e6, 1000, 0.99e6, 1e7, 44000, 9.95e6, 1e9, 20, 1e9 - 3e4, 1e9, 20, 1e9 + 5e4,
       3e5, 44000, 2.5e5, 5e8, 1, 5e8;
-  // Reference: scipy.stats.ncx2.cdf and ncx2.sf.
-  const auto ref = run_python(R"(
-from scipy import stats
-x, df, lam = X[:, 0], X[:, 1], X[:, 2]
-emit('cdf', stats.ncx2.cdf(x, df, lam)); emit('sf', stats.ncx2.sf(x, df, lam))
-)", {{"X", grid}});
+  const auto ref = ncx2_reference(grid);
   for (Index i = 0; i < grid.rows(); ++i) {
     const double x = grid(i, 0), df = grid(i, 1), lam = grid(i, 2);
     SCOPED_TRACE(::testing::Message() << "x=" << x << " df=" << df << " lambda=" << lam);
