@@ -337,6 +337,36 @@ LODE_API int lode_fit_options_init(lode_fit_options* opts, size_t struct_size) {
   return guarded([&] { init_options(opts, struct_size, fit_defaults(), "lode_fit_options"); });
 }
 
+namespace {
+
+// The means and standard deviations (n - 1) behind the model's correlation matrix: over the complete
+// rows under listwise deletion, else over each item's answered values (see lode_model::means).
+void fit_standardisation(lode_model& m) {
+  const Matrix& x = m.data->values;
+  const Index p = x.cols();
+  m.means = Vector::Constant(p, std::numeric_limits<double>::quiet_NaN());
+  m.sds = m.means;
+  std::vector<Index> complete;
+  if (m.missing == MissingPolicy::listwise)
+    for (Index i = 0; i < x.rows(); ++i)
+      if (!x.row(i).array().isNaN().any()) complete.push_back(i);
+  for (Index j = 0; j < p; ++j) {
+    std::vector<double> v;
+    if (m.missing == MissingPolicy::listwise) {
+      for (Index i : complete) v.push_back(x(i, j));
+    } else {
+      for (Index i = 0; i < x.rows(); ++i)
+        if (!std::isnan(x(i, j))) v.push_back(x(i, j));
+    }
+    if (v.size() < 2) continue;
+    const Eigen::Map<const Vector> col(v.data(), static_cast<Index>(v.size()));
+    m.means(j) = col.mean();
+    m.sds(j) = std::sqrt((col.array() - m.means(j)).square().sum() / static_cast<double>(v.size() - 1));
+  }
+}
+
+}  // namespace
+
 LODE_API int lode_fit(const lode_correlation* corr, const lode_fit_options* opts, lode_model** out) {
   return guarded([&] {
     require_pointer(corr, "corr");
@@ -354,6 +384,7 @@ LODE_API int lode_fit(const lode_correlation* corr, const lode_fit_options* opts
     m->item_names = names;
     m->data = corr->data;
     m->missing = corr->result.missing;
+    if (m->data && m->data->source == DataSource::raw) fit_standardisation(*m);
     int factors = setup.factors;
     if (factors == 0) {
       const FactorCountResult count = count_for(corr, read_factor_count_options(setup.factor_count));
@@ -591,26 +622,10 @@ LODE_API int lode_score(const lode_model* model, const lode_data* data, const lo
     if (content->values.cols() != model->correlation.cols())
       fail(LODE_E_INVALID_ARGUMENT, fmt::format("the data have {} items but the model has {}",
                                                 content->values.cols(), model->correlation.cols()));
-    // The model's own respondents (its data handle, or the same values passed again) under listwise
-    // deletion: standardise with the complete rows' means and standard deviations, the ones behind the
-    // correlation matrix (else every answered value of an item).
-    const auto same_values = [](const Matrix& a, const Matrix& b) {
-      return a.rows() == b.rows() && a.cols() == b.cols() &&
-             ((a.array() == b.array()) || (a.array().isNaN() && b.array().isNaN())).all();
-    };
-    if (model->missing == MissingPolicy::listwise && model->data &&
-        (content == model->data.get() || same_values(content->values, model->data->values))) {
-      const Matrix& x = content->values;
-      std::vector<Index> complete;
-      for (Index i = 0; i < x.rows(); ++i)
-        if (x.row(i).array().isFinite().all()) complete.push_back(i);
-      if (complete.size() >= 2) {
-        const Matrix rows = x(complete, Eigen::all);
-        so.means = rows.colwise().mean().transpose();
-        const Matrix centred = rows.rowwise() - so.means.transpose();
-        so.sds = (centred.colwise().squaredNorm() / static_cast<double>(rows.rows() - 1)).cwiseSqrt().transpose();
-      }
-    }
+    // Every respondent, the fit's own or new, is standardised with the fit's means and standard
+    // deviations (a model fitted to a matrix has none: then the data scored give their own).
+    so.means = model->means;
+    so.sds = model->sds;
     const Matrix phi = model->rotation.oblique ? model->rotation.factor_correlations : Matrix();
     auto s = std::make_unique<lode_scores>();
     s->result = factor_scores(content->values, model->correlation, model->rotation.pattern, phi,

@@ -36,6 +36,11 @@ struct lode_model {
   std::vector<std::string> item_names;
   std::shared_ptr<const lode::capi::DataContent> data;  // what the correlation came from (raw data for scores)
   lode::MissingPolicy missing = lode::MissingPolicy::pairwise;  // how `correlation` treated missing answers
+  // The fit's standardisation of raw data (empty for a model fitted to a matrix): the means and
+  // standard deviations (n - 1) behind `correlation`, over the complete rows under listwise deletion,
+  // else over each item's answered values. Every respondent scored is standardised with these, so a
+  // respondent's scores do not depend on who else is scored in the same call.
+  lode::Vector means, sds;
   lode::ExtractionResult extraction;
   lode::RotationResult rotation;  // method none and identity matrices when unrotated
   bool rotated = false;

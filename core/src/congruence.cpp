@@ -1,5 +1,7 @@
 #include "lode/congruence.hpp"
 
+#include "scaling.hpp"
+
 #include <fmt/format.h>
 
 #include <cmath>
@@ -15,9 +17,12 @@ Matrix tucker_congruence(const Matrix& a, const Matrix& b) {
     throw Error(ErrorCode::invalid_argument, "a loading matrix to compare is empty");
   if (!a.allFinite() || !b.allFinite())
     throw Error(ErrorCode::invalid_argument, "a loading matrix to compare contains a missing or infinite value");
-  const Vector na = a.colwise().norm();
-  const Vector nb = b.colwise().norm();
-  Matrix c = a.transpose() * b;
+  // Congruence is free of each column's scale: columns brought to a largest magnitude in [1, 2)
+  // first keep the products and norms inside double precision (1e300 or 1e-160 loadings).
+  const Matrix as = detail::columns_scaled(a), bs = detail::columns_scaled(b);
+  const Vector na = as.colwise().norm();
+  const Vector nb = bs.colwise().norm();
+  Matrix c = as.transpose() * bs;
   for (Index i = 0; i < c.rows(); ++i)
     for (Index j = 0; j < c.cols(); ++j) {
       const double d = na(i) * nb(j);
@@ -91,10 +96,10 @@ FactorMatch match_factors(const Matrix& reference, const Matrix& other) {
   m.congruence = tucker_congruence(reference, other);
   const Index k = reference.cols();
   for (Index j = 0; j < k; ++j) {
-    if (!(reference.col(j).norm() > 0.0))
+    if (!(reference.col(j).cwiseAbs().maxCoeff() > 0.0))
       throw Error(ErrorCode::invalid_argument,
                   fmt::format("factor {} of the first solution has only zero loadings; congruence is undefined", j + 1));
-    if (!(other.col(j).norm() > 0.0))
+    if (!(other.col(j).cwiseAbs().maxCoeff() > 0.0))
       throw Error(ErrorCode::invalid_argument,
                   fmt::format("factor {} of the second solution has only zero loadings; congruence is undefined", j + 1));
   }

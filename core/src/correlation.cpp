@@ -2,6 +2,7 @@
 #include "lode/parallel.hpp"
 
 #include "correlation_detail.hpp"
+#include "scaling.hpp"
 #include "lode/polychoric.hpp"
 
 #include <fmt/format.h>
@@ -554,6 +555,10 @@ bool pearson_if_complete(const Matrix& data, const CorrelationOptions& options, 
                   fmt::format("{} is constant (every answer is {}); remove it, it carries no information",
                               item_label(options.item_names, j), data(0, j)));
   }
+  // Sums of squares near the ends of double precision (values of 1e150 and more, or 1e-100 and
+  // less): the general path rescales the columns first.
+  for (Index j = 0; j < p; ++j)
+    if (!(s(j, j) < 1e200 && s(j, j) > 1e-200)) return false;
   // Listwise deletion keeps every row of complete data, so its check (n < min_pair_observations) has
   // already failed above if it would.
   result.kind = options.kind;
@@ -582,6 +587,9 @@ CorrelationResult correlation(const Matrix& data, const CorrelationOptions& opti
     }
   }
   validate_data(data, options);
+  // Correlations are free of each column's scale: columns near the ends of double precision are
+  // brought to a largest magnitude in [1, 2) by a power of two (exact) so that no sum overflows.
+  if (detail::needs_column_scaling(data)) return correlation(detail::columns_scaled(data), options);
   const Index n = data.rows(), p = data.cols();
   const Mask present = present_mask(data);
   const std::vector<Index> complete = complete_rows(present);
@@ -737,7 +745,11 @@ Vector eigenvalues_descending(const Matrix& symmetric) {
 bool is_positive_definite(const Matrix& symmetric) {
   Eigen::LLT<Matrix> llt(symmetric);
   if (llt.info() != Eigen::Success) return false;
-  return eigenvalues_descending(symmetric).minCoeff() > 0.0;
+  // A matrix singular up to rounding (an item that is an exact sum of others) counts as not positive
+  // definite: its smallest eigenvalue must exceed the usual numerical-rank tolerance, size times
+  // machine epsilon times the largest eigenvalue (as numpy.linalg.matrix_rank uses).
+  const Vector ev = eigenvalues_descending(symmetric);
+  return ev(ev.size() - 1) > static_cast<double>(symmetric.rows()) * std::numeric_limits<double>::epsilon() * ev(0);
 }
 
 Vector squared_multiple_correlations(const Matrix& r) {

@@ -1,5 +1,7 @@
 #include "lode/reliability.hpp"
 
+#include "scaling.hpp"
+
 #include "lode/correlation.hpp"
 
 #include <fmt/format.h>
@@ -75,7 +77,11 @@ AlphaResult cronbach_alpha(const Matrix& data, const AlphaOptions& options) {
                 fmt::format("alpha needs at least 3 rows with every item of the scale answered; {} of {} rows are "
                             "complete",
                             m, n));
-  const Matrix x = data(rows, Eigen::all);
+  // Alpha is free of a common scale: the answers are brought to a largest magnitude in [1, 2) by a
+  // power of two first (exact), so that sums of squares stay inside double precision; the item
+  // means and SDs are scaled back.
+  const double scale = detail::power_of_two_scale(detail::largest_magnitude(data(rows, Eigen::all)));
+  const Matrix x = data(rows, Eigen::all) * scale;
   const Matrix centred = x.rowwise() - x.colwise().mean();
   const Matrix s = centred.transpose() * centred / static_cast<double>(m - 1);
   for (Index j = 0; j < k; ++j)
@@ -91,8 +97,8 @@ AlphaResult cronbach_alpha(const Matrix& data, const AlphaOptions& options) {
   out.items = k;
   out.alpha = alpha_of(s);
   out.alpha_standardized = standardized_alpha_of(r, &out.mean_inter_item_correlation);
-  out.item_means = x.colwise().mean().transpose();
-  out.item_sds = sd;
+  out.item_means = x.colwise().mean().transpose() / scale;
+  out.item_sds = sd / scale;
   out.alpha_if_deleted.resize(k);
   out.alpha_standardized_if_deleted.resize(k);
   out.item_total_correlation.resize(k);

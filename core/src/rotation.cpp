@@ -2,6 +2,8 @@
 // normalisation, random starts and the presentation convention. Criteria live in rotation_criteria.cpp.
 #include "lode/rotation.hpp"
 
+#include "scaling.hpp"
+
 #include "lode/correlation.hpp"
 #include "lode/parallel.hpp"
 #include "lode/random.hpp"
@@ -165,8 +167,8 @@ Vector row_weights(const Matrix& a, bool normalize) {
   Vector w = Vector::Ones(a.rows());
   if (!normalize) return w;
   for (Index i = 0; i < a.rows(); ++i) {
-    const double h = a.row(i).norm();
-    if (h > 0.0) w(i) = 1.0 / h;
+    const double h = a.row(i).stableNorm();
+    if (h > 0.0 && std::isfinite(1.0 / h)) w(i) = 1.0 / h;
   }
   return w;
 }
@@ -355,8 +357,13 @@ std::vector<std::string> rotation_names() {
 }
 
 RotationMethod rotation_from_name(std::string_view name) {
+  // Surrounding white space never matters (" varimax\t" is varimax), nor case, hyphens or spaces.
+  const auto space = [](char c) { return std::isspace(static_cast<unsigned char>(c)) != 0; };
+  std::string_view trimmed = name;
+  while (!trimmed.empty() && space(trimmed.front())) trimmed.remove_prefix(1);
+  while (!trimmed.empty() && space(trimmed.back())) trimmed.remove_suffix(1);
   std::string key;
-  for (char c : name) {
+  for (char c : trimmed) {
     if (c == '-' || c == ' ') c = '_';
     key.push_back(static_cast<char>(std::tolower(static_cast<unsigned char>(c))));
   }
@@ -443,6 +450,30 @@ FactorOrder order_and_reflect(RotationResult& r) {
 
 RotationResult rotate(const Matrix& loadings, const RotationOptions& options) {
   validate(loadings, options);
+  // Every criterion is homogeneous in the loadings (geomin with its epsilon scaled alike), so the
+  // rotation matrix does not depend on their scale. Loadings near the ends of double precision are
+  // rotated scaled by a power of two (exact), and the results scaled back.
+  const double largest = loadings.cwiseAbs().maxCoeff();
+  if (largest > 0.0 && (largest > 1e20 || largest < 1e-20)) {
+    const double s = detail::power_of_two_scale(largest);
+    RotationOptions scaled = options;
+    if (!options.normalize) {  // (normalised rows are free of the scale already)
+      if (scaled.target.size() != 0) scaled.target *= s;
+      scaled.epsilon *= s * s;
+      if (options.method == RotationMethod::geomin || options.method == RotationMethod::geomin_orthogonal)
+        if (!(scaled.epsilon > 0.0) || !std::isfinite(scaled.epsilon))
+          throw Error(ErrorCode::invalid_argument,
+                      fmt::format("the largest loading is {:.3g}, and geomin's epsilon ({}) cannot be carried to that "
+                                  "scale in double precision; normalise the rows or rescale the loadings",
+                                  largest, options.epsilon));
+    }
+    RotationResult r = rotate(loadings * s, scaled);
+    r.pattern /= s;
+    r.structure /= s;
+    r.ss_pattern /= s * s;
+    r.ss_structure /= s * s;
+    return r;
+  }
   const Index m = loadings.cols();
   const bool oblique = is_oblique(options.method);
   const Vector w = row_weights(loadings, options.normalize);

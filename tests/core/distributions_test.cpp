@@ -17,6 +17,15 @@ double rel_err(double a, double b) {
   return std::abs(a - b) / std::abs(b);
 }
 
+// Reference: scipy.stats.ncx2.cdf and ncx2.sf at the rows (x, df, lambda) of `grid`, as "cdf" and "sf".
+auto ncx2_reference(const Matrix& grid) {
+  return run_python(R"(
+from scipy import stats
+x, df, lam = X[:, 0], X[:, 1], X[:, 2]
+emit('cdf', stats.ncx2.cdf(x, df, lam)); emit('sf', stats.ncx2.sf(x, df, lam))
+)", {{"X", grid}});
+}
+
 }  // namespace
 
 TEST(Distributions, GammaFunctionsMatchScipySpecial) {
@@ -64,12 +73,7 @@ TEST(Distributions, NoncentralChiSquareMatchesScipyNcx2) {
   Matrix grid(10, 3);  // (x, df, lambda)
   grid << 5.0, 3, 1.0, 20.0, 8, 10.0, 2.0, 2, 30.0, 200.0, 150, 40.0, 60.0, 12, 0.5, 1000.0, 900, 300.0, 80.0, 4, 20.0,
       0.3, 1, 0.2, 400.0, 50, 500.0, 15.0, 24, 2.0;
-  // Reference: scipy.stats.ncx2.cdf and ncx2.sf.
-  const auto ref = run_python(R"(
-from scipy import stats
-x, df, lam = X[:, 0], X[:, 1], X[:, 2]
-emit('cdf', stats.ncx2.cdf(x, df, lam)); emit('sf', stats.ncx2.sf(x, df, lam))
-)", {{"X", grid}});
+  const auto ref = ncx2_reference(grid);
   for (Index i = 0; i < grid.rows(); ++i) {
     const double x = grid(i, 0), df = grid(i, 1), lam = grid(i, 2);
     SCOPED_TRACE(::testing::Message() << "x=" << x << " df=" << df << " lambda=" << lam);
@@ -96,6 +100,45 @@ emit('lam', np.array(out))
     EXPECT_NEAR(lam, ref.at("lam")(i, 0), 1e-6 * std::max(1.0, lam));
   }
   EXPECT_EQ(ref.at("lam")(4, 0), 0.0);  // the central chi-square(24) cdf at 12 is below 0.05: lambda = 0
+}
+
+// Past a chi-square of 200,000 the noncentral chi-square uses its Edgeworth expansion (a time that
+// does not grow with the arguments; the RMSEA interval of a sample of 1e9 depends on it).
+TEST(Distributions, LargeNoncentralChiSquareMatchesScipyNcx2) {
+  Matrix grid(8, 3);  // (x, df, lambda)
+  grid << 2e5, 13, 2e5, 2.1e5, 13, 2e5, 1e6, 1000, 0.99e6, 1e7, 44000, 9.95e6, 1e9, 20, 1e9 - 3e4, 1e9, 20, 1e9 + 5e4,
+      3e5, 44000, 2.5e5, 5e8, 1, 5e8;
+  const auto ref = ncx2_reference(grid);
+  for (Index i = 0; i < grid.rows(); ++i) {
+    const double x = grid(i, 0), df = grid(i, 1), lam = grid(i, 2);
+    SCOPED_TRACE(::testing::Message() << "x=" << x << " df=" << df << " lambda=" << lam);
+    // The expansion's error is of order (df + 2 lambda)^-2 (below 1e-10 here); scipy's own is ~1e-12.
+    EXPECT_NEAR(noncentral_chi_square_cdf(x, df, lam), ref.at("cdf")(i, 0), 1e-10);
+    EXPECT_NEAR(noncentral_chi_square_sf(x, df, lam), ref.at("sf")(i, 0), 1e-10);
+  }
+  Matrix cases(6, 3);  // (x, df, target probability)
+  cases << 2e5, 20, 0.95, 2e5, 20, 0.05, 1.5e7, 44000, 0.95, 1e9, 20, 0.05, 1e9, 20, 0.95, 3e6, 1, 0.5;
+  // Reference: scipy.optimize.brentq on scipy.stats.ncx2.cdf, bracketed 20 standard deviations out.
+  const auto inv = run_python(R"(
+from scipy import stats, optimize
+out = []
+for x, df, p in X:
+    s = np.sqrt(2 * (df + 2 * x))
+    out.append(optimize.brentq(lambda lam: stats.ncx2.cdf(x, df, lam) - p, x - df - 20 * s, x - df + 20 * s,
+                               xtol=1e-9, rtol=1e-15))
+emit('lam', np.array(out))
+)", {{"X", cases}});
+  for (Index i = 0; i < cases.rows(); ++i) {
+    SCOPED_TRACE(::testing::Message() << "case " << i);
+    const double lam = noncentrality_for_cdf(cases(i, 0), cases(i, 1), cases(i, 2));
+    EXPECT_NEAR(lam, inv.at("lam")(i, 0), 1e-11 * lam);
+  }
+  // Far beyond scipy: a chi-square of 9e18 (a sample size of 2^63 - 1) still inverts, to within a
+  // few standard deviations of x - df (the distribution is nearly normal there).
+  const double x = 9e18, df = 20, sd = std::sqrt(2.0 * (df + 2.0 * x));
+  const double lower = noncentrality_for_cdf(x, df, 0.95), upper = noncentrality_for_cdf(x, df, 0.05);
+  EXPECT_NEAR(lower, x - df - 1.6448536269514722 * sd, 1e-5 * sd);  // normal quantile (scipy.stats.norm.ppf)
+  EXPECT_NEAR(upper, x - df + 1.6448536269514722 * sd, 1e-5 * sd);
 }
 
 TEST(Distributions, RejectsArgumentsOutsideTheirDomain) {

@@ -1,7 +1,8 @@
-// libFuzzer target over liblode's data-taking entry points: whatever bytes arrive, every call must
-// return a status (no crash, hang, leak or undefined behaviour; ASan and UBSan watch). The bytes
-// choose the entry point, the shape, the layout, the options and the values (either raw doubles or
-// small Likert-like codes with missing and infinite cells, so that deeper stages are reached too).
+// libFuzzer target over every entry point of liblode: whatever bytes arrive, every call must return a
+// status (no crash, hang, leak or undefined behaviour; ASan and UBSan watch). The bytes choose the
+// entry point, the shape, the layout, the options, the values (either raw doubles or small
+// Likert-like codes with missing and infinite cells, so that deeper stages are reached too) and a
+// structured missing-value pattern (a whole item missing, disjoint answer sets, one shared row).
 #include "lode.h"
 
 #include <cmath>
@@ -40,6 +41,53 @@ double coded(uint8_t b) {
   if (b == 254) return std::numeric_limits<double>::infinity();
   if (b >= 240) return std::numeric_limits<double>::quiet_NaN();
   return static_cast<double>(b % 5 + 1);
+}
+
+// A structured missing-value pattern over raw data (rows x cols at the given strides), chosen by the
+// input: a whole item missing, two item sets answered in disjoint rows, the same with one shared row,
+// or an item answered in its first few rows only. Random NaN cells rarely make these.
+void missing_pattern(std::vector<double>& values, int64_t rows, int64_t cols, int64_t rs, int64_t cs, Bytes& in) {
+  const uint8_t plan = in.byte();
+  if (rows == 0 || cols == 0 || plan % 5 == 0) return;
+  const auto at = [&](int64_t i, int64_t j) -> double& { return values[static_cast<size_t>(i * rs + j * cs)]; };
+  const double nan = std::numeric_limits<double>::quiet_NaN();
+  const int64_t item = (plan >> 3) % cols;
+  switch (plan % 5) {
+    case 1:  // a whole item missing
+      for (int64_t i = 0; i < rows; ++i) at(i, item) = nan;
+      break;
+    case 2:    // items up to `item` answered in the first half of the rows only, the rest in the second
+    case 3: {  // ... and row 0 answered by every item (one shared row)
+      const int64_t half = rows / 2;
+      for (int64_t i = 0; i < rows; ++i)
+        for (int64_t j = 0; j < cols; ++j)
+          if ((j <= item) != (i < half) && !(plan % 5 == 3 && i == 0)) at(i, j) = nan;
+      break;
+    }
+    case 4: {  // one item answered in its first k rows only
+      const int64_t k = in.byte() % 4;
+      for (int64_t i = k; i < rows; ++i) at(i, item) = nan;
+      break;
+    }
+  }
+}
+
+// The entry points that take no handle: version, status names, the last error, and the rotation
+// name lookup with words from the input (stray spaces, case, unknown words).
+void plain_calls(Bytes& in) {
+  lode_version();
+  for (int status = -2; status < 13; ++status) lode_status_name(status);
+  lode_last_error();
+  char word[24];
+  const size_t length = in.byte() % sizeof word;
+  for (size_t k = 0; k < length; ++k) word[k] = static_cast<char>(in.byte());
+  word[length] = '\0';
+  int method = -1;
+  if (lode_rotation_method_from_name(word, &method) == LODE_OK && lode_rotation_method_name(method) == nullptr)
+    __builtin_trap();  // a name that was found has a name to give back
+  lode_rotation_method_from_name(nullptr, &method);
+  lode_rotation_method_from_name(word, nullptr);
+  for (int m = -1; m < 16; ++m) lode_rotation_method_name(m);
 }
 
 // Reads every result of a correlation with several buffer sizes.
@@ -124,7 +172,7 @@ void bootstrap(const lode_correlation* c, const lode_fit_options& fit, Bytes& in
 
 // Factorability, a small factor count, a fit with the chosen method and rotation, and a rotation of
 // the fitted loadings, each read back in full.
-void analyse(const lode_correlation* c, Bytes& in) {
+void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
   lode_factorability* f = nullptr;
   if (lode_assess_factorability(c, &f) == LODE_OK) {
     double v;
@@ -214,12 +262,28 @@ void analyse(const lode_correlation* c, Bytes& in) {
   so.method = in.byte() % 4;   // includes one unknown method
   so.missing = in.byte() % 3;  // includes one unknown rule
   so.min_answered_share = (in.byte() % 5) / 4.0;
-  lode_scores* s = nullptr;
-  if (lode_score(m, nullptr, &so, &s) == LODE_OK) {
-    for (int key = 600; key < 606; ++key) lode_scores_matrix(s, key, buf, 256, nullptr, nullptr);
-    for (int key = 620; key < 624; ++key) lode_scores_value(s, key, &v);
-    for (int key = 650; key < 652; ++key) lode_scores_text(s, key, text, sizeof text, nullptr);
-    lode_scores_free(s);
+  // The fit's own respondents (data NULL), then the data handle again as new respondents (refused
+  // for matrix input), then only its first rows.
+  for (int pass = 0; pass < 3; ++pass) {
+    lode_scores* s = nullptr;
+    lode_data* first = nullptr;
+    const lode_data* scored = pass == 0 ? nullptr : d;
+    if (pass == 2) {
+      int64_t n = 0, p = 0;
+      std::vector<double> some(256);
+      if (lode_data_shape(d, &n, &p) != LODE_OK || p == 0 || p > 64) break;
+      const int64_t keep = 1 + in.byte() % 4;
+      for (int64_t k = 0; k < keep * p && k < 256; ++k) some[static_cast<size_t>(k)] = coded(in.byte());
+      if (lode_data_from_raw(some.data(), keep, p, p, 1, &first) != LODE_OK) break;
+      scored = first;
+    }
+    if (lode_score(m, scored, &so, &s) == LODE_OK) {
+      for (int key = 600; key < 606; ++key) lode_scores_matrix(s, key, buf, 256, nullptr, nullptr);
+      for (int key = 620; key < 624; ++key) lode_scores_value(s, key, &v);
+      for (int key = 650; key < 652; ++key) lode_scores_text(s, key, text, sizeof text, nullptr);
+      lode_scores_free(s);
+    }
+    lode_data_free(first);
   }
   lode_reliability* rel = nullptr;
   if (lode_mcdonald_omega(m, nullptr, 0, &rel) == LODE_OK) {
@@ -355,9 +419,11 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
     return 0;
   }
 
+  plain_calls(in);
   lode_data* d = nullptr;
   int status;
   if (mode % 3 == 0) {
+    missing_pattern(values, rows, cols, row_stride, col_stride, in);
     status = lode_data_from_raw(values.data(), rows, cols, row_stride, col_stride, &d);
   } else {
     // A square matrix (correlation or covariance) of `cols` items in the same layout, symmetric with
@@ -376,6 +442,10 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
                            : lode_data_from_covariance(r.data(), p, rs, cs, rows, &d);
   }
   if (status != LODE_OK) return 0;
+  {
+    int64_t n = -1, p = -1;
+    if (lode_data_shape(d, &n, &p) == LODE_OK && (n < 0 || p != cols)) __builtin_trap();
+  }
 
   if (in.byte() & 1) {
     const char* names[16] = {"a", nullptr, "", "d\xc3\xa9", "e", "f", "g", "h", "i", "j", "k", "l", "m", "n", "o", "p"};
@@ -394,7 +464,7 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
   lode_correlation* c = nullptr;
   if (lode_correlate(d, &o, &c) == LODE_OK) {
     read_correlation(c, in);
-    analyse(c, in);
+    analyse(c, d, in);
     reliability(d, c);
     lode_correlation_free(c);
   }

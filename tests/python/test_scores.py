@@ -75,10 +75,11 @@ def test_listwise_model_scores_standardise_with_the_complete_rows():
     # ten Berge, Krijnen, Wansbeek & Shapiro (1999): on the rows behind R the scores correlate as Phi
     tb = lode.scores(None, m, "tenberge")
     assert np.max(np.abs(np.corrcoef(tb.values[complete], rowvar=False) - m.factor_correlations)) < 1e-8
-    # The same respondents passed again score the same; other respondents use their own standardisation.
+    # The same respondents passed again score the same, and so does any subset of them: every batch is
+    # standardised with the fit's means and SDs (here those of the complete rows).
     assert np.array_equal(lode.scores(x.copy(), m, "tenberge").values, tb.values, equal_nan=True)
     other = lode.scores(x[:300], m, "regression").values[complete[:300]]
-    z_other = (x[:300][complete[:300]] - np.nanmean(x[:300], axis=0)) / np.nanstd(x[:300], axis=0, ddof=1)
+    z_other = (x[:300][complete[:300]] - xc.mean(axis=0)) / xc.std(axis=0, ddof=1)
     assert np.max(np.abs(other - z_other @ np.linalg.solve(r, st))) < 1e-10
 
 
@@ -92,9 +93,9 @@ def test_missing_item_rules():
     assert s.rows_partial == 1 and s.rows_missing == 1 and s.rows_complete == 198
     assert np.all(np.isfinite(s.values[0])) and np.all(np.isnan(s.values[1]))
     # The partial row by hand (numpy): regression weights from the submatrices of the answered items,
-    # items standardised with the means and sds (n - 1) of their answered values.
+    # items standardised with the fit's means and sds (n - 1, the data the model was fitted to).
     keep = [0, 2, 3, 4, 5]
-    mu, sd = np.nanmean(y, axis=0), np.nanstd(y, axis=0, ddof=1)
+    mu, sd = np.nanmean(x, axis=0), np.nanstd(x, axis=0, ddof=1)
     r = np.corrcoef(x, rowvar=False)  # the model's matrix (fitted to the complete x)
     w = np.linalg.solve(r[np.ix_(keep, keep)], m.loadings[keep])
     z = (y[0, keep] - mu[keep]) / sd[keep]

@@ -10,12 +10,13 @@ import ctypes
 
 import numpy as np
 
-from . import _native
+from . import _checks, _native
 from ._native import LodeError, lib, check
 from .summary import Summary, accepts_summary
 from .summary_sql import summary_from_sql
+from ._checks import ArgumentError
 
-__all__ = ["LodeError", "version", "correlation", "Correlation", "factorability", "Factorability",
+__all__ = ["LodeError", "ArgumentError", "version", "correlation", "Correlation", "factorability", "Factorability",
            "n_factors", "parallel_analysis", "map_test", "FactorCount", "rotate", "Rotation", "fit", "Model",
            "scores", "Scores", "alpha", "Alpha", "omega", "Omega", "congruence", "Comparison", "item_flags",
            "ItemFlags", "bootstrap", "Bootstrap", "Summary", "summary_from_sql"]
@@ -49,11 +50,7 @@ def version():
     return {"version": v.string.decode(), "release": (v.major, v.minor, v.patch), "abi": (v.abi_major, v.abi_minor)}
 
 
-def _choice(value, table, what):
-    try:
-        return table[value]
-    except KeyError:
-        raise ValueError(f"unknown {what} {value!r}; choose one of {', '.join(map(repr, table))}") from None
+_choice = _checks.choice
 
 
 class _Data(_native.Handle):
@@ -73,21 +70,21 @@ def _make_data(X=None, corr=None, cov=None, n_obs=None, item_names=None):
         return X._data()
     given = [a is not None for a in (X, corr, cov)]
     if sum(given) != 1:
-        raise ValueError("give exactly one of X (raw data), corr (a correlation matrix) or cov (a covariance matrix)")
+        raise ArgumentError("give exactly one of X (raw data), corr (a correlation matrix) or cov (a covariance matrix)")
     ptr = ctypes.c_void_p()
     names = _names_of(X, item_names)
     if X is not None:
         if n_obs is not None:
-            raise ValueError("n_obs is taken from the data when X is given; pass it only with corr= or cov=")
+            raise ArgumentError("n_obs is taken from the data when X is given; pass it only with corr= or cov=")
         a, rows, cols, rs, cs = _native.as_strided_matrix(X, "X")
         check(lib.lode_data_from_raw(_native.data_pointer(a), rows, cols, rs, cs, ctypes.byref(ptr)))
     else:
         m = corr if corr is not None else cov
         a, rows, cols, rs, cs = _native.as_strided_matrix(m, "corr" if corr is not None else "cov")
         if rows != cols:
-            raise ValueError(f"a correlation or covariance matrix must be square; this one is {rows} x {cols}")
+            raise ArgumentError(f"a correlation or covariance matrix must be square; this one is {rows} x {cols}")
         fn = lib.lode_data_from_correlation if corr is not None else lib.lode_data_from_covariance
-        n = 0 if n_obs is None else int(n_obs)
+        n = 0 if n_obs is None else _checks.whole(n_obs, "n_obs")
         check(fn(_native.data_pointer(a), rows, rs, cs, n, ctypes.byref(ptr)))
     data = _Data(ptr.value)
     if names is not None:
@@ -121,7 +118,10 @@ class Correlation(_native.Handle):
         super().__init__(pointer)
         fm = lib.lode_correlation_matrix
         self.matrix = _native.get_matrix(fm, pointer, _CORRELATION_MATRIX)
-        self.pair_counts = _native.get_matrix(fm, pointer, _CORRELATION_PAIR_COUNTS).astype(np.int64)
+        # Counts arrive as doubles: 2**63 - 1 (the largest n_obs) rounds up to 2**63, one past int64.
+        counts = _native.get_matrix(fm, pointer, _CORRELATION_PAIR_COUNTS)
+        self.pair_counts = np.minimum(counts, np.nextafter(2.0 ** 63, 0)).astype(np.int64)
+        self.pair_counts[counts >= 2.0 ** 63] = 2 ** 63 - 1
         self.eigenvalues = _native.get_matrix(fm, pointer, _CORRELATION_EIGENVALUES)[:, 0]
         v = {k: _native.get_value(lib.lode_correlation_value, pointer, key) for k, key in _CORRELATION_VALUES.items()}
         self.positive_definite = bool(v["positive_definite"])
@@ -176,10 +176,10 @@ def _correlate(data, method, missing, smooth, min_eigenvalue=1e-6, min_pair_obse
     o = _native.options(_native.CorrelationOptions, "lode_correlation_options_init",
                         kind=_choice(method, _KINDS, "correlation method"),
                         missing=_choice(missing, _MISSING, "missing-value policy"),
-                        smooth=1 if smooth else 0, min_eigenvalue=float(min_eigenvalue),
-                        min_pair_observations=int(min_pair_observations), threads=int(threads),
-                        max_categories=int(max_categories), zero_cells=_choice(zero_cells, _ZERO_CELLS, "zero-cell policy"),
-                        zero_cell_add=float(zero_cell_add))
+                        smooth=1 if smooth else 0, min_eigenvalue=min_eigenvalue,
+                        min_pair_observations=min_pair_observations, threads=threads,
+                        max_categories=max_categories, zero_cells=_choice(zero_cells, _ZERO_CELLS, "zero-cell policy"),
+                        zero_cell_add=zero_cell_add)
     callback = _native.make_progress(progress)
     if callback is not None:
         o.progress = callback
@@ -327,13 +327,13 @@ class FactorCount(_native.Handle):
 def _count_options(replicates, seed, percentile, threshold, source, threads, progress):
     o = _native.options(_native.FactorCountOptions, "lode_factor_count_options_init")
     if replicates is not None:
-        o.replicates = int(replicates)
+        _checks.put(o, "replicates", replicates)
     if seed is not None:
-        o.seed = int(seed) & 0xFFFFFFFFFFFFFFFF
-    o.percentile = float(percentile)
+        _checks.put(o, "seed", seed)
+    _checks.put(o, "percentile", percentile)
     o.threshold = _choice(threshold, _THRESHOLDS, "threshold")
     o.source = _choice(source, _SOURCES, "random data source")
-    o.threads = int(threads)
+    _checks.put(o, "threads", threads)
     callback = _native.make_progress(progress)
     if callback is not None:
         o.progress = callback
@@ -391,24 +391,25 @@ def _rotation_options(rotation, normalize, gamma, kappa, epsilon, power, target,
     o = _native.options(_native.RotationOptions, "lode_rotation_options_init")
     o.method = _rotation_method(rotation)
     o.normalize = 1 if normalize else 0
-    o.gamma = float(gamma)
-    o.epsilon = float(epsilon)
+    _checks.put(o, "gamma", gamma)
+    _checks.put(o, "epsilon", epsilon)
     if o.method == 13:  # promax: kappa is its power
-        o.power = float(power if power is not None else (kappa if kappa is not None else 4.0))
+        _checks.put(o, "power", power if power is not None else (kappa if kappa is not None else 4.0),
+                    "power" if power is not None else "kappa")
     else:
-        o.kappa = float(kappa if kappa is not None else 0.0)
+        _checks.put(o, "kappa", kappa if kappa is not None else 0.0)
         if power is not None:
-            o.power = float(power)
+            _checks.put(o, "power", power)
     keep = None
     if target is not None:
         keep, rows, cols, rs, cs = _native.as_strided_matrix(target, "target")
         o.target = _native.data_pointer(keep)
         o.target_rows, o.target_cols, o.target_row_stride, o.target_col_stride = rows, cols, rs, cs
     if random_starts is not None:
-        o.random_starts = int(random_starts)
+        _checks.put(o, "random_starts", random_starts)
     if seed is not None:
-        o.seed = int(seed) & 0xFFFFFFFFFFFFFFFF
-    o.threads = int(threads)
+        _checks.put(o, "seed", seed)
+    _checks.put(o, "threads", threads)
     return o, keep
 
 
@@ -550,7 +551,7 @@ class Model(_native.Handle):
 
 
 @accepts_summary
-def fit(X=None, *, corr=None, cov=None, n_obs=None, factors, method="ml", rotation="none", missing="pairwise",
+def fit(X=None, *, corr=None, cov=None, n_obs=None, factors=None, method="ml", rotation="none", missing="pairwise",
         correlation="pearson", smooth=False, seed=None, max_iterations=1000, tolerance=1e-9, min_uniqueness=0.005,
         interval_level=0.90, replicates=None, progress=None, item_names=None, **rotation_keywords):
     """Fits an exploratory factor model.
@@ -574,8 +575,8 @@ def fit(X=None, *, corr=None, cov=None, n_obs=None, factors, method="ml", rotati
     c = _correlation_of(X, corr, cov, n_obs, correlation, missing, smooth, item_names)
     o, keep = _fit_options(factors, method, max_iterations, tolerance, min_uniqueness, rotation, seed,
                            rotation_keywords, "fit")
-    o.interval_level = float(interval_level)
-    if int(factors) == 0:
+    _checks.put(o, "interval_level", interval_level)
+    if o.factors == 0:
         co, callback = _count_options(replicates, seed, 95.0, "percentile", "normal", 0, progress)
         keep += [co, callback]
         o.factor_count = ctypes.pointer(co)
@@ -593,13 +594,15 @@ def _fit_options(factors, method, max_iterations, tolerance, min_uniqueness, rot
                  what):
     """lode_fit_options for an explicit number of factors and a rotation with its keywords; returns
     the struct and the objects it points to (kept alive by the caller)."""
+    if seed is not None:
+        _checks.whole(seed, "seed", 0, 2 ** 64 - 1)  # (used only by some paths, checked on all)
     allowed = {"normalize", "gamma", "kappa", "epsilon", "power", "target", "random_starts", "threads"}
     unknown = set(rotation_keywords) - allowed
     if unknown:
-        raise TypeError(f"{what}() got unexpected keyword(s): {', '.join(sorted(unknown))}")
-    o = _native.options(_native.FitOptions, "lode_fit_options_init", factors=int(factors),
-                        method=_choice(method, _METHODS, "extraction method"), max_iterations=int(max_iterations),
-                        tolerance=float(tolerance), min_uniqueness=float(min_uniqueness))
+        raise ArgumentError(f"{what}() got unexpected keyword(s): {', '.join(sorted(unknown))}")
+    o = _native.options(_native.FitOptions, "lode_fit_options_init", factors=factors,
+                        method=_choice(method, _METHODS, "extraction method"), max_iterations=max_iterations,
+                        tolerance=tolerance, min_uniqueness=min_uniqueness)
     keep = []
     if rotation is not None and str(rotation).lower() != "none":
         kw = {"normalize": True, "gamma": 0.0, "kappa": None, "epsilon": 0.01, "power": None, "target": None,
@@ -664,7 +667,8 @@ def scores(X, model, method="regression", *, missing="from_answered", min_answer
     o = _native.options(_native.ScoreOptions, "lode_score_options_init",
                         method=_choice(method, _SCORE_METHODS, "score method"),
                         missing=_choice(missing, _SCORE_MISSING, "missing-item rule"),
-                        min_answered_share=float(min_answered_share), low_determinacy=float(low_determinacy))
+                        min_answered_share=min_answered_share, low_determinacy=low_determinacy)
+    _checks.instance(model, Model, "model", "a fitted model (lode.fit)")
     data = None if X is None else _make_data(X)
     ptr = ctypes.c_void_p()
     check(lib.lode_score(model.pointer, None if data is None else data.pointer, ctypes.byref(o), ctypes.byref(ptr)))
@@ -749,19 +753,21 @@ def omega(model=None, *, X=None, corr=None, n_obs=None, assignment=None, method=
     ptr = ctypes.c_void_p()
     if model is None:
         if X is None and corr is None:
-            raise ValueError("give a fitted model, or the scale's data X or correlation matrix corr")
+            raise ArgumentError("give a fitted model, or the scale's data X or correlation matrix corr")
         if assignment is not None:
-            raise ValueError("assignment applies to a model's factors; a single scale has one")
+            raise ArgumentError("assignment applies to a model's factors; a single scale has one")
         c = _correlation_of(X, corr, None, n_obs, correlation, missing, False, item_names)
         o = _native.options(_native.FitOptions, "lode_fit_options_init",
-                            method=_choice(method, _METHODS, "extraction method"), max_iterations=int(max_iterations),
-                            tolerance=float(tolerance), min_uniqueness=float(min_uniqueness))
+                            method=_choice(method, _METHODS, "extraction method"), max_iterations=max_iterations,
+                            tolerance=tolerance, min_uniqueness=min_uniqueness)
         check(lib.lode_omega_single_scale(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
         return Omega(ptr.value, single=True)
+    _checks.instance(model, Model, "model", "a fitted model (lode.fit)")
     if assignment is None:
         check(lib.lode_mcdonald_omega(model.pointer, None, 0, ctypes.byref(ptr)))
     else:
-        a = np.ascontiguousarray(assignment, dtype=np.int64)
+        a = np.array([_checks.whole(v, "assignment") for v in np.ravel(_checks.matrix(assignment, "assignment"))],
+                     dtype=np.int64)
         check(lib.lode_mcdonald_omega(model.pointer, a.ctypes.data_as(_native.P_int64), a.size, ctypes.byref(ptr)))
     return Omega(ptr.value)
 
@@ -791,7 +797,7 @@ def congruence(a, b):
     ma, rows, cols, ars, acs = _native.as_strided_matrix(a, "a")
     mb, rows_b, cols_b, brs, bcs = _native.as_strided_matrix(b, "b")
     if (rows, cols) != (rows_b, cols_b):
-        raise ValueError(f"a is {rows} x {cols} but b is {rows_b} x {cols_b}; they must have the same shape")
+        raise ArgumentError(f"a is {rows} x {cols} but b is {rows_b} x {cols_b}; they must have the same shape")
     ptr = ctypes.c_void_p()
     check(lib.lode_compare_loadings(_native.data_pointer(ma), _native.data_pointer(mb), rows, cols, ars, acs, brs, bcs,
                                     ctypes.byref(ptr)))
@@ -858,9 +864,10 @@ def item_flags(model, *, salient=0.40, cross_gap=0.20, low_communality=0.20, hey
     (rules of thumb); 0.005 is the lower bound Lode (and R's stats::factanal) put on uniquenesses.
     Returns :class:`ItemFlags`; thresholds outside [0, 1] raise :class:`LodeError`."""
     _native.require("lode_flag_items", 2)
-    o = _native.options(_native.ItemFlagOptions, "lode_item_flag_options_init", salient=float(salient),
-                        cross_loading_gap=float(cross_gap), low_communality=float(low_communality),
-                        heywood_uniqueness=float(heywood_uniqueness))
+    o = _native.options(_native.ItemFlagOptions, "lode_item_flag_options_init", salient=salient,
+                        cross_loading_gap=cross_gap, low_communality=low_communality,
+                        heywood_uniqueness=heywood_uniqueness)
+    _checks.instance(model, Model, "model", "a fitted model (lode.fit)")
     ptr = ctypes.c_void_p()
     check(lib.lode_flag_items(model.pointer, ctypes.byref(o), ctypes.byref(ptr)))
     return ItemFlags(ptr.value)
@@ -916,7 +923,7 @@ class Bootstrap(_native.Handle):
 
 
 @accepts_summary(needs_rows="bootstrap replicates")
-def bootstrap(X, *, factors, method="ml", rotation="none", replicates=1000, level=0.95, seed=None, progress=None,
+def bootstrap(X=None, *, factors=None, method="ml", rotation="none", replicates=1000, level=0.95, seed=None, progress=None,
               missing="pairwise", correlation="pearson", smooth=False, max_iterations=1000, tolerance=1e-9,
               min_uniqueness=0.005, threads=0, replicate_random_starts=0, keep_replicates=False, item_names=None,
               **rotation_keywords):
@@ -937,16 +944,20 @@ def bootstrap(X, *, factors, method="ml", rotation="none", replicates=1000, leve
     ``progress(done, total)`` is called with the replicates done; returning False cancels
     (:class:`LodeError`, status "cancelled", no result). Returns :class:`Bootstrap`."""
     _native.require("lode_bootstrap", 2)
-    if factors is None or int(factors) < 1:
-        raise ValueError("the bootstrap needs the number of factors (factors >= 1)")
+    if X is None:
+        given = [k for k in ("corr", "cov") if k in rotation_keywords]
+        raise ArgumentError("the bootstrap resamples respondents, so it needs their raw data X (rows x items)"
+                            + (f"; {given[0]}= cannot be resampled" if given else ""))
+    if _checks.whole(factors, "factors", -2 ** 31, 2 ** 31 - 1) < 1:
+        raise ArgumentError("the bootstrap needs the number of factors (factors >= 1)")
     c = _correlation_of(X, None, None, None, correlation, missing, smooth, item_names)
     o, keep = _fit_options(factors, method, max_iterations, tolerance, min_uniqueness, rotation, seed,
                            rotation_keywords, "bootstrap")
-    b = _native.options(_native.BootstrapOptions, "lode_bootstrap_options_init", replicates=int(replicates),
-                        level=float(level), threads=int(threads), replicate_random_starts=int(replicate_random_starts),
+    b = _native.options(_native.BootstrapOptions, "lode_bootstrap_options_init", replicates=replicates,
+                        level=level, threads=threads, replicate_random_starts=replicate_random_starts,
                         keep_replicates=1 if keep_replicates else 0)
     if seed is not None:
-        b.seed = int(seed) & 0xFFFFFFFFFFFFFFFF
+        _checks.put(b, "seed", seed)
     callback = _native.make_progress(progress)
     if callback is not None:
         b.progress = callback

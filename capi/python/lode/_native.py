@@ -224,17 +224,21 @@ def options(struct_type, init_name, **fields):
     """An option struct filled with the library's defaults, then the given fields."""
     o = struct_type()
     check(getattr(lib, init_name)(ctypes.byref(o), ctypes.sizeof(o)))
+    from . import _checks  # (imports this module)
+
     for key, value in fields.items():
-        setattr(o, key, value)
+        _checks.put(o, key, value)
     return o
 
 
 def as_strided_matrix(x, what):
     """A 2-D float64 numpy array and its (rows, cols, row_stride, col_stride) in elements, reusing
     the caller's memory when its layout allows (no copy for C or Fortran order)."""
-    a = np.asarray(x, dtype=np.float64)
+    from . import _checks  # (imports this module)
+
+    a = _checks.matrix(x, what)
     if a.ndim != 2:
-        raise ValueError(f"{what} must be a 2-D array (rows x columns); it has {a.ndim} dimension(s)")
+        raise _checks.ArgumentError(f"{what} must be a 2-D array (rows x columns); it has {a.ndim} dimension(s)")
     item = a.itemsize
     if a.size == 0 or any(s <= 0 or s % item for s in a.strides):
         a = np.ascontiguousarray(a)

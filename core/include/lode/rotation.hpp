@@ -113,7 +113,9 @@ struct RotationResult {
   Matrix factor_correlations;  // identity for orthogonal methods
   Matrix rotation;             // T, see the convention above
   double criterion = 0.0;      // criterion at the solution (on the normalised loadings when
-                               // normalized); the varimax value for promax; 0 for none
+                               // normalized; without normalisation, on the loadings scaled by a
+                               // power of two to a largest magnitude in [1, 2) when theirs lies
+                               // outside [1e-20, 1e20]); the varimax value for promax; 0 for none
   Convergence convergence;     // of the reported start (of the varimax step for promax)
   Vector ss_pattern;           // per factor: sum of squared pattern loadings
   Vector ss_structure;         // per factor: sum of squared structure loadings (variance the factor
