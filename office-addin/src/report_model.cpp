@@ -1389,8 +1389,8 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
     if (!rel.omega_reason.empty()) fc.line({Cell::txt("Omega not available: " + rel.omega_reason, flag)});
     fc.line({Cell::txt("Scale", heading), Cell::txt("Items", heading), Cell::txt("Alpha", heading),
              Cell::txt("Standardised alpha", heading), Cell::txt("Omega total", heading),
-             Cell::txt("Mean inter-item correlation", heading), Cell::txt("Respondents used", heading),
-             Cell::txt("Reading (omega total)", heading), Cell::txt("Omega, factor's share", heading)});
+             Cell::txt("Omega, factor's share", heading), Cell::txt("Mean inter-item correlation", heading),
+             Cell::txt("Respondents used", heading), Cell::txt("Reading (omega total)", heading)});
     for (const ScaleReliability& sr : rel.scales) {
       std::vector<Cell> row{Cell::txt("Factor " + std::to_string(sr.factor + 1), label),
                             Cell::num(static_cast<double>(sr.items.size()))};
@@ -1403,6 +1403,8 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
       }
       row.push_back(std::isnan(sr.omega) ? Cell::txt(sr.items.empty() ? "no items" : "not available", note)
                                          : Cell::num(sr.omega, number));
+      row.push_back(std::isnan(sr.omega_share) ? Cell::txt(sr.items.empty() ? "no items" : "not available", note)
+                                               : Cell::num(sr.omega_share, number));
       if (sr.have_alpha) {
         row.push_back(Cell::num(sr.mean_r, number));
         row.push_back(Cell::num(sr.rows_used));
@@ -1411,8 +1413,6 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
         row.push_back(Cell::txt(""));
       }
       row.push_back(Cell::txt(reliability_words(sr.omega), note));
-      row.push_back(std::isnan(sr.omega_share) ? Cell::txt(sr.items.empty() ? "no items" : "not available", note)
-                                               : Cell::num(sr.omega_share, number));
       fc.line(std::move(row));
     }
     for (const ScaleReliability& sr : rel.scales) {

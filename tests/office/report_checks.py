@@ -524,13 +524,13 @@ def test_reliability_per_scale_matches_the_c_library_and_numpy(office, survey, s
         common = (Lr @ m.factor_correlations @ Lr.T)[np.ix_(items, items)].sum()
         var = common + psi[items].sum()
         omega_np, share_np = common / var, Lr[items, f].sum() ** 2 / var
-        assert fc[at - 1][4] == "Omega total" and fc[at - 1][8] == "Omega, factor's share"
+        assert fc[at - 1][4] == "Omega total" and fc[at - 1][5] == "Omega, factor's share"
         if reversed_[items].any():  # from the refit to the reversed correlations: equal up to the fit's tolerance
             assert abs(row[4] - omega_np) < 1e-6, (f, row[4], omega_np)
-            assert abs(row[8] - share_np) < 1e-6, (f, row[8], share_np)
+            assert abs(row[5] - share_np) < 1e-6, (f, row[5], share_np)
         else:  # the C library's omega of this model, exactly
             assert abs(row[4] - om.omega[f]) < 1e-12 and abs(row[4] - omega_np) < 1e-10
-            assert abs(row[8] - om.factor_share[f]) < 1e-12 and abs(row[8] - share_np) < 1e-10
+            assert abs(row[5] - om.factor_share[f]) < 1e-12 and abs(row[5] - share_np) < 1e-10
         # Alpha on the scale's items, reverse-scored ones as (lowest + highest answer) - answer.
         xs = x[:, items].copy()
         for c, j in enumerate(items):
@@ -541,7 +541,7 @@ def test_reliability_per_scale_matches_the_c_library_and_numpy(office, survey, s
         raw, std, rbar = numpy_alpha(complete)
         assert abs(row[2] - a.alpha) < 1e-12 and abs(row[2] - raw) < 1e-10
         assert abs(row[3] - a.alpha_standardized) < 1e-12 and abs(row[3] - std) < 1e-10
-        assert abs(row[5] - rbar) < 1e-10 and row[6] == complete.shape[0] == a.rows_used
+        assert abs(row[6] - rbar) < 1e-10 and row[7] == complete.shape[0] == a.rows_used
         # The items of the scale: loading, reverse-scoring, corrected item-total correlation, alpha if
         # deleted (numpy: alpha of the other items; the item against the sum of the others).
         top = [i for i, r in enumerate(fc) if r[:1] == [f"Items of factor {f + 1}'s scale"]][0] + 2
