@@ -356,6 +356,9 @@ void correlate_summary(const lode_summary* s, Bytes& in) {
   }
   int64_t rows = 0, cols = 0;
   lode_summary_table(s, in.byte() % 4, in.byte() % 4, nullptr, 0, &rows, &cols);
+  char name[8];
+  size_t length = 0;
+  lode_summary_item_name(s, static_cast<int64_t>(in.byte() % 4) - 1, name, in.byte() % sizeof name, &length);
 }
 
 void fuzz_summary(const std::vector<double>& values, int64_t rows, int64_t cols, int64_t row_stride,
