@@ -56,12 +56,18 @@ class Writer {
 class Reader {
  public:
   Reader(const std::uint8_t* p, std::size_t n) : p_(p), n_(n) {}
+  // A little-endian unsigned integer of 1 to 8 bytes.
   std::uint64_t get(int bytes, const char* what) {
+    if (bytes < 1 || bytes > 8) throw Error(ErrorCode::internal, "summary reader: a field of 1 to 8 bytes only");
     need(static_cast<std::size_t>(bytes), what);
     std::uint64_t v = 0;
     for (int i = 0; i < bytes; ++i) v |= static_cast<std::uint64_t>(p_[at_ + static_cast<std::size_t>(i)]) << (8 * i);
     at_ += static_cast<std::size_t>(bytes);
     return v;
+  }
+  void skip(std::size_t bytes, const char* what) {
+    need(bytes, what);
+    at_ += bytes;
   }
   std::uint32_t u32(const char* what) { return static_cast<std::uint32_t>(get(4, what)); }
   std::int64_t count(const char* what) {
@@ -186,14 +192,13 @@ Summary summary_from_bytes(const std::uint8_t* bytes, std::size_t size) {
                             version, kSummaryFormatVersion));
   // The hash first: a corrupted form is reported as such, not as whatever field the damage hit.
   {
-    std::uint64_t stored = 0;
     if (size < 64) corrupt(fmt::format("it ends early ({} bytes): it was cut short", size));
-    for (int i = 0; i < 8; ++i) stored |= static_cast<std::uint64_t>(bytes[size - 8 + static_cast<std::size_t>(i)]) << (8 * i);
+    const std::uint64_t stored = Reader(bytes + size - 8, 8).get(8, "the check sum");
     if (stored != fnv1a(bytes, size - 8))
       corrupt("its check sum does not match its contents (it was cut short or altered on the way)");
   }
   Reader body(bytes, size - 8);
-  body.get(12, "the header");
+  body.skip(12, "the header");  // the mark and the version, read above
   const std::uint32_t flags = body.u32("the flags");
   if (flags > 1u) corrupt(fmt::format("it sets unknown flags ({:#x})", flags));
   const std::uint32_t p = body.u32("the number of items");
