@@ -18,3 +18,18 @@ add_library(fmt::fmt ALIAS lode_fmt_header_only)
 if(WIN32 AND CMAKE_CXX_COMPILER_ID STREQUAL "GNU")
   add_compile_options(-Wa,-muse-unaligned-vector-move)
 endif()
+
+# Boost.Math is header-only too (core/src/distributions.cpp). A cross compiler must not see the host's
+# whole /usr/include, so the cross build finds Boost through a folder that holds only a link to the
+# host's boost/ headers.
+if(CMAKE_CROSSCOMPILING)
+  find_path(LODE_BOOST_HEADERS boost/version.hpp PATHS /usr/include NO_CMAKE_FIND_ROOT_PATH NO_DEFAULT_PATH)
+  if(NOT LODE_BOOST_HEADERS)
+    message(FATAL_ERROR "Boost's headers (boost/version.hpp) were not found: install libboost-math-dev")
+  endif()
+  set(LODE_BOOST_LINK ${CMAKE_BINARY_DIR}/boost-headers)
+  file(MAKE_DIRECTORY ${LODE_BOOST_LINK})
+  file(CREATE_LINK ${LODE_BOOST_HEADERS}/boost ${LODE_BOOST_LINK}/boost SYMBOLIC)
+  set(Boost_INCLUDE_DIR ${LODE_BOOST_LINK} CACHE PATH "Boost's headers for the cross build" FORCE)
+  set(Boost_NO_BOOST_CMAKE ON)
+endif()
