@@ -86,6 +86,9 @@ class Office:
         env = dict(os.environ)
         env["HOME"] = self.dir  # nothing of the real user's profile or caches is touched
         env.pop("DISPLAY", None)
+        # URE_MORE_TYPES tells this Python the report service's types (a file in the build folder); soffice
+        # gets them from the extension, and as 'nobody' it cannot open a file inside a private checkout.
+        env.pop("URE_MORE_TYPES", None)
         env["SAL_USE_VCLPLUGIN"] = "svp"
         return env
 
