@@ -29,6 +29,10 @@ struct FitSetup {
 
 FitSetup read_fit_options(const lode_fit_options* opts, const lode_correlation* corr);
 
+// Only the extraction fields of lode_fit_options (method, max_iterations, tolerance, min_uniqueness), read
+// and checked, with the defaults of lode_fit_options_init for the rest.
+ExtractionOptions read_extraction_options(const lode_fit_options* opts, const lode_correlation* corr);
+
 }  // namespace lode::capi
 
 struct lode_model {
