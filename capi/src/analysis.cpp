@@ -546,4 +546,3 @@ LODE_API int lode_model_text(const lode_model* model, int key, char* out, size_t
 
 }  // extern "C"
 
-}  // extern "C"

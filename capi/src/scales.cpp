@@ -14,8 +14,6 @@
 using namespace lode;
 using namespace lode::capi;
 
-extern "C" {
-
 // ---- scores, reliability, comparison ---------------------------------------------------------------
 
 struct lode_scores {
