@@ -20,6 +20,9 @@ import re
 import subprocess
 import sys
 
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+import engines_report  # noqa: E402
+
 # The side-by-side tables: (section title, [(case, what is measured)]).
 SECTIONS = [
     ("Correlation matrix (Pearson, raw data)", [
@@ -486,6 +489,9 @@ def write_report(results_dir, out_path, elapsed_s=None, filter_regex=None):
         w(f"- {n}")
     if notes:
         w("")
+
+    # Engines (tests/bench/engines.py)
+    md.extend(engines_report.section(load(os.path.join(results_dir, "engines.json"))))
 
     # Cost growth
     w("## Cost growth")

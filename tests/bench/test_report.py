@@ -126,5 +126,26 @@ class ReportTest(unittest.TestCase):
         self.assertIn("| CPU | Test CPU, 2 cores |", self.text)
 
 
+class EnginesSectionTest(unittest.TestCase):
+    """engines_report.section on an invented engines.json (numbers invented for this test only)."""
+
+    def test_routes_ratios_and_sizes(self):
+        import engines_report
+        doc = {"rows": 1000, "items": 30, "factors": 2, "sizes": {"data_bytes": 240000, "summary_bytes": 2400},
+               "results": [
+                   {"case": "postgres_summary", "route": "SQL", "median_s": 2.0, "client_cpu_s": 0.5,
+                    "parts": {"summary": 1.9, "fit": 0.1}, "loadings_gap": 1e-14},
+                   {"case": "postgres_export", "route": "export", "median_s": 8.0, "client_cpu_s": 4.0,
+                    "parts": {"export": 5.0, "fit": 3.0}},
+                   {"case": "dask_w1", "route": "dask", "median_s": 16.0, "client_cpu_s": 0.1, "loadings_gap": 0.0}]}
+        text = "\n".join(engines_report.section(doc))
+        self.assertIn("(1,000 rows x 30 items)", text)
+        self.assertIn("| SQL | 2.0 s | summary 1.9 s, fit 100 ms | 500 ms | 4.00x faster | 1.0e-14 |", text)
+        self.assertIn("| dask | 16.0 s |  | 100 ms | 2.00x slower | 0.0e+00 |", text)
+        self.assertIn("| export | 8.0 s | export 5.0 s, fit 3.0 s | 4.0 s | — | (the reference) |", text)
+        self.assertIn("| the summary's byte form (moments, category counts, pair tables) | 2.3 KiB | 0.01x |", text)
+        self.assertEqual(engines_report.section(None), [])
+
+
 if __name__ == "__main__":
     unittest.main()
