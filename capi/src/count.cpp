@@ -15,7 +15,7 @@ lode_factor_count_options factor_count_defaults() {
   d.replicates = 500;
   d.threshold = LODE_THRESHOLD_PERCENTILE;
   d.percentile = 95.0;
-  d.source = LODE_RANDOM_NORMAL;
+  d.source = LODE_RANDOM_SOURCE_NORMAL;
   d.seed = 20260101;
   d.threads = 0;
   d.progress = nullptr;
@@ -50,8 +50,8 @@ FactorCountOptions read_factor_count_options(const lode_factor_count_options* op
     fail(LODE_E_INVALID_ARGUMENT, fmt::format("percentile must lie strictly between 0 and 100; it is {}", o.percentile));
   p.percentile = o.percentile;
   switch (o.source) {
-    case LODE_RANDOM_NORMAL: p.source = RandomDataSource::normal_theory; break;
-    case LODE_RANDOM_PERMUTATION: p.source = RandomDataSource::permutation; break;
+    case LODE_RANDOM_SOURCE_NORMAL: p.source = RandomDataSource::normal_theory; break;
+    case LODE_RANDOM_SOURCE_PERMUTATION: p.source = RandomDataSource::permutation; break;
     default: fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown random data source {}", o.source));
   }
   p.seed = o.seed;
@@ -83,7 +83,7 @@ LODE_API int lode_factor_count_options_init(lode_factor_count_options* opts, siz
   return guarded([&] { init_options(opts, struct_size, factor_count_defaults(), "lode_factor_count_options"); });
 }
 
-LODE_API int lode_count_factors(const lode_correlation* corr, const lode_factor_count_options* opts,
+LODE_API int lode_factor_count_compute(const lode_correlation* corr, const lode_factor_count_options* opts,
                                 lode_factor_count** out) {
   return guarded([&] {
     require_pointer(corr, "corr");
@@ -105,15 +105,15 @@ LODE_API int lode_factor_count_matrix(const lode_factor_count* count, int key, d
     const auto& r = count->result;
     const auto& pa = r.parallel;
     switch (key) {
-      case LODE_COUNT_OBSERVED_PC: write_matrix(pa.observed_pc, out, capacity, rows, cols); break;
-      case LODE_COUNT_OBSERVED_FACTOR: write_matrix(pa.observed_factor, out, capacity, rows, cols); break;
-      case LODE_COUNT_RANDOM_PC_MEAN: write_matrix(pa.random_pc_mean, out, capacity, rows, cols); break;
-      case LODE_COUNT_RANDOM_PC_PERCENTILE: write_matrix(pa.random_pc_percentile, out, capacity, rows, cols); break;
-      case LODE_COUNT_RANDOM_FACTOR_MEAN: write_matrix(pa.random_factor_mean, out, capacity, rows, cols); break;
-      case LODE_COUNT_RANDOM_FACTOR_PERCENTILE: write_matrix(pa.random_factor_percentile, out, capacity, rows, cols); break;
-      case LODE_COUNT_MAP_SQUARED: write_matrix(r.map.average_squared, out, capacity, rows, cols); break;
-      case LODE_COUNT_MAP_FOURTH: write_matrix(r.map.average_fourth, out, capacity, rows, cols); break;
-      case LODE_COUNT_EKC_REFERENCE: write_matrix(r.eigen.ekc_reference, out, capacity, rows, cols); break;
+      case LODE_FACTOR_COUNT_OBSERVED_PC: write_matrix(pa.observed_pc, out, capacity, rows, cols); break;
+      case LODE_FACTOR_COUNT_OBSERVED_FACTOR: write_matrix(pa.observed_factor, out, capacity, rows, cols); break;
+      case LODE_FACTOR_COUNT_RANDOM_PC_MEAN: write_matrix(pa.random_pc_mean, out, capacity, rows, cols); break;
+      case LODE_FACTOR_COUNT_RANDOM_PC_PERCENTILE: write_matrix(pa.random_pc_percentile, out, capacity, rows, cols); break;
+      case LODE_FACTOR_COUNT_RANDOM_FACTOR_MEAN: write_matrix(pa.random_factor_mean, out, capacity, rows, cols); break;
+      case LODE_FACTOR_COUNT_RANDOM_FACTOR_PERCENTILE: write_matrix(pa.random_factor_percentile, out, capacity, rows, cols); break;
+      case LODE_FACTOR_COUNT_MAP_SQUARED: write_matrix(r.map.average_squared, out, capacity, rows, cols); break;
+      case LODE_FACTOR_COUNT_MAP_FOURTH: write_matrix(r.map.average_fourth, out, capacity, rows, cols); break;
+      case LODE_FACTOR_COUNT_EKC_REFERENCE: write_matrix(r.eigen.ekc_reference, out, capacity, rows, cols); break;
       default: fail(LODE_E_INVALID_ARGUMENT, key_text(key, "lode_factor_count matrix (lode_factor_count_matrix)"));
     }
   });
@@ -126,16 +126,16 @@ LODE_API int lode_factor_count_value(const lode_factor_count* count, int key, do
     const auto& r = count->result;
     double v = 0.0;
     switch (key) {
-      case LODE_COUNT_SUGGESTED: v = static_cast<double>(r.suggested); break;
-      case LODE_COUNT_PARALLEL_PC: v = static_cast<double>(r.parallel.suggested_pc); break;
-      case LODE_COUNT_PARALLEL_FACTOR: v = static_cast<double>(r.parallel.suggested_factor); break;
-      case LODE_COUNT_MAP_SQUARED_SUGGESTED: v = static_cast<double>(r.map.suggested_squared); break;
-      case LODE_COUNT_MAP_FOURTH_SUGGESTED: v = static_cast<double>(r.map.suggested_fourth); break;
-      case LODE_COUNT_KAISER: v = static_cast<double>(r.eigen.kaiser); break;
-      case LODE_COUNT_EMPIRICAL_KAISER: v = static_cast<double>(r.eigen.empirical_kaiser); break;
-      case LODE_COUNT_REPLICATES: v = static_cast<double>(r.parallel.replicates); break;
-      case LODE_COUNT_N_OBS: v = static_cast<double>(r.n_obs); break;
-      case LODE_COUNT_PERCENTILE: v = r.parallel.percentile; break;
+      case LODE_FACTOR_COUNT_SUGGESTED: v = static_cast<double>(r.suggested); break;
+      case LODE_FACTOR_COUNT_PARALLEL_PC: v = static_cast<double>(r.parallel.suggested_pc); break;
+      case LODE_FACTOR_COUNT_PARALLEL_FACTOR: v = static_cast<double>(r.parallel.suggested_factor); break;
+      case LODE_FACTOR_COUNT_MAP_SQUARED_SUGGESTED: v = static_cast<double>(r.map.suggested_squared); break;
+      case LODE_FACTOR_COUNT_MAP_FOURTH_SUGGESTED: v = static_cast<double>(r.map.suggested_fourth); break;
+      case LODE_FACTOR_COUNT_KAISER: v = static_cast<double>(r.eigen.kaiser); break;
+      case LODE_FACTOR_COUNT_EMPIRICAL_KAISER: v = static_cast<double>(r.eigen.empirical_kaiser); break;
+      case LODE_FACTOR_COUNT_REPLICATES: v = static_cast<double>(r.parallel.replicates); break;
+      case LODE_FACTOR_COUNT_N_OBS: v = static_cast<double>(r.n_obs); break;
+      case LODE_FACTOR_COUNT_PERCENTILE: v = r.parallel.percentile; break;
       default: fail(LODE_E_INVALID_ARGUMENT, key_text(key, "lode_factor_count number (lode_factor_count_value)"));
     }
     *value = v;
@@ -148,9 +148,9 @@ LODE_API int lode_factor_count_text(const lode_factor_count* count, int key, cha
     require_pointer(count, "count");
     const auto& r = count->result;
     switch (key) {
-      case LODE_COUNT_REASON: write_text(r.reason, out, capacity, length); break;
-      case LODE_COUNT_NOTES: write_text(join_lines(r.notes), out, capacity, length); break;
-      case LODE_COUNT_TABLE: {
+      case LODE_FACTOR_COUNT_REASON: write_text(r.reason, out, capacity, length); break;
+      case LODE_FACTOR_COUNT_NOTES: write_text(join_lines(r.notes), out, capacity, length); break;
+      case LODE_FACTOR_COUNT_TABLE: {
         std::vector<std::string> lines;
         for (const auto& s : r.table)
           lines.push_back(fmt::format("{}\t{}\t{}\t{}", s.rule, s.factors, s.primary ? 1 : 0, s.basis));

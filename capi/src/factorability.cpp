@@ -17,7 +17,7 @@ extern "C" {
 
 // ---- factorability -------------------------------------------------------------------------------
 
-LODE_API int lode_assess_factorability(const lode_correlation* corr, lode_factorability** out) {
+LODE_API int lode_factorability_compute(const lode_correlation* corr, lode_factorability** out) {
   return guarded([&] {
     require_pointer(corr, "corr");
     require_pointer(out, "out");

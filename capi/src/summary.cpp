@@ -1,5 +1,5 @@
 // Summaries at the C boundary: create, add rows, merge, the byte form, and the data handle that
-// lode_correlate turns into correlations.
+// lode_correlation_compute turns into correlations.
 #include "boundary.hpp"
 #include "handles.hpp"
 

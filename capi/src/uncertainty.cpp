@@ -1,4 +1,4 @@
-// Item flags and bootstrap intervals through the C ABI (ABI 1.2).
+// Item flags and bootstrap intervals through the C ABI.
 #include "boundary.hpp"
 #include "handles.hpp"
 #include "model.hpp"
@@ -30,9 +30,9 @@ struct lode_bootstrap_result {
 
 namespace {
 
-lode_item_flag_options item_flag_defaults() {
+lode_item_flags_options item_flag_defaults() {
   const ItemFlagOptions core;  // the core's defaults (common practice; see item_flags.hpp)
-  lode_item_flag_options d{};
+  lode_item_flags_options d{};
   d.struct_size = sizeof d;
   d.salient = core.salient;
   d.cross_loading_gap = core.cross_loading_gap;
@@ -85,18 +85,18 @@ extern "C" {
 
 // ---- item flags ----------------------------------------------------------------------------------
 
-LODE_API int lode_item_flag_options_init(lode_item_flag_options* opts, size_t struct_size) {
-  return guarded([&] { init_options(opts, struct_size, item_flag_defaults(), "lode_item_flag_options"); });
+LODE_API int lode_item_flags_options_init(lode_item_flags_options* opts, size_t struct_size) {
+  return guarded([&] { init_options(opts, struct_size, item_flag_defaults(), "lode_item_flags_options"); });
 }
 
-LODE_API int lode_flag_items(const lode_model* model, const lode_item_flag_options* opts, lode_item_flags** out) {
+LODE_API int lode_item_flags_compute(const lode_model* model, const lode_item_flags_options* opts, lode_item_flags** out) {
   return guarded([&] {
     require_pointer(model, "model");
     require_pointer(out, "out");
     *out = nullptr;
-    lode_item_flag_options o = item_flag_defaults();
+    lode_item_flags_options o = item_flag_defaults();
     if (opts) {
-      check_options_size(opts, "lode_item_flag_options");
+      check_options_size(opts, "lode_item_flags_options");
       LODE_OPTION_FIELD(o, opts, salient);
       LODE_OPTION_FIELD(o, opts, cross_loading_gap);
       LODE_OPTION_FIELD(o, opts, low_communality);
@@ -210,7 +210,7 @@ LODE_API int lode_bootstrap_options_init(lode_bootstrap_options* opts, size_t st
   return guarded([&] { init_options(opts, struct_size, bootstrap_defaults(), "lode_bootstrap_options"); });
 }
 
-LODE_API int lode_bootstrap(const lode_correlation* corr, const lode_fit_options* fit,
+LODE_API int lode_bootstrap_compute(const lode_correlation* corr, const lode_model_options* fit,
                             const lode_bootstrap_options* opts, lode_bootstrap_result** out) {
   return guarded([&] {
     require_pointer(corr, "corr");
@@ -220,7 +220,7 @@ LODE_API int lode_bootstrap(const lode_correlation* corr, const lode_fit_options
     FitSetup setup = read_fit_options(fit, corr);
     if (setup.factors < 1)
       fail(LODE_E_INVALID_ARGUMENT,
-           fmt::format("the bootstrap needs the number of factors (lode_fit_options.factors); it is {}", setup.factors));
+           fmt::format("the bootstrap needs the number of factors (lode_model_options.factors); it is {}", setup.factors));
     lode_bootstrap_options o = bootstrap_defaults();
     if (opts) {
       check_options_size(opts, "lode_bootstrap_options");

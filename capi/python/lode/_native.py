@@ -7,7 +7,7 @@ import sys
 
 import numpy as np
 
-ABI_MAJOR = 1
+ABI_MAJOR = 2
 
 c_int = ctypes.c_int
 c_int64 = ctypes.c_int64
@@ -57,7 +57,7 @@ def _candidates(here=None, platform=None):
         return
     here = here or os.path.dirname(os.path.abspath(__file__))
     windows = (platform or sys.platform) == "win32"
-    names = ("lode.dll",) if windows else ("liblode.so.1", "liblode.so", "liblode.dylib")
+    names = ("lode.dll",) if windows else ("liblode.so.2", "liblode.so", "liblode.dylib")
     libdir = os.path.normpath(os.path.join(here, "..", "..", ".."))
     folders = [here, os.path.dirname(here), libdir]
     if windows:
@@ -87,7 +87,7 @@ lib = _load()
 _SIGNATURES = {
     "lode_version": (ctypes.POINTER(VersionInfo), []),
     "lode_status_name": (c_char_p, [c_int]),
-    "lode_last_error": (c_char_p, []),
+    "lode_error_message": (c_char_p, []),
     "lode_data_from_raw": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, P_void_p]),
     "lode_data_from_correlation": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, P_void_p]),
     "lode_data_from_covariance": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, P_void_p]),
@@ -95,7 +95,7 @@ _SIGNATURES = {
     "lode_data_shape": (c_int, [c_void_p, P_int64, P_int64]),
     "lode_data_free": (None, [c_void_p]),
     "lode_correlation_options_init": (c_int, [ctypes.POINTER(CorrelationOptions), c_size_t]),
-    "lode_correlate": (c_int, [c_void_p, ctypes.POINTER(CorrelationOptions), P_void_p]),
+    "lode_correlation_compute": (c_int, [c_void_p, ctypes.POINTER(CorrelationOptions), P_void_p]),
     "lode_correlation_free": (None, [c_void_p]),
     "lode_correlation_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
     "lode_correlation_value": (c_int, [c_void_p, c_int, P_double]),
@@ -119,7 +119,7 @@ if _info.abi_major != ABI_MAJOR:
 
 
 _factorability_signatures = {
-    "lode_assess_factorability": (c_int, [c_void_p, P_void_p]),
+    "lode_factorability_compute": (c_int, [c_void_p, P_void_p]),
     "lode_factorability_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
     "lode_factorability_value": (c_int, [c_void_p, c_int, P_double]),
     "lode_factorability_text": (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t]),
@@ -136,7 +136,7 @@ class FactorCountOptions(ctypes.Structure):
 
 _count_signatures = {
     "lode_factor_count_options_init": (c_int, [ctypes.POINTER(FactorCountOptions), c_size_t]),
-    "lode_count_factors": (c_int, [c_void_p, ctypes.POINTER(FactorCountOptions), P_void_p]),
+    "lode_factor_count_compute": (c_int, [c_void_p, ctypes.POINTER(FactorCountOptions), P_void_p]),
     "lode_factor_count_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
     "lode_factor_count_value": (c_int, [c_void_p, c_int, P_double]),
     "lode_factor_count_text": (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t]),
@@ -157,13 +157,12 @@ class FitOptions(ctypes.Structure):
     _fields_ = [("struct_size", c_size_t), ("factors", c_int), ("method", c_int), ("max_iterations", c_int),
                 ("tolerance", c_double), ("min_uniqueness", c_double), ("interval_level", c_double),
                 ("rotation", ctypes.POINTER(RotationOptions)), ("factor_count", ctypes.POINTER(FactorCountOptions)),
-                # ABI 1.2
                 ("progress", PROGRESS_FN), ("progress_user", c_void_p)]
 
 
-# The size of lode_fit_options before ABI 1.2 (without the progress fields): what is passed to an
-# older library, which would refuse the larger struct only if its new fields were set.
-FIT_OPTIONS_SIZE_1_1 = FitOptions.progress.offset
+# The size of lode_model_options without its last fields (progress): what a caller built against a
+# shorter struct passes; the library takes the defaults for the fields beyond it.
+FIT_OPTIONS_SIZE_WITHOUT_PROGRESS = FitOptions.progress.offset
 
 
 _getters = {}
@@ -176,9 +175,9 @@ _getters.update({
     "lode_rotation_method_from_name": (c_int, [c_char_p, ctypes.POINTER(c_int)]),
     "lode_rotation_method_name": (c_char_p, [c_int]),
     "lode_rotation_options_init": (c_int, [ctypes.POINTER(RotationOptions), c_size_t]),
-    "lode_rotate": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, ctypes.POINTER(RotationOptions), P_void_p]),
-    "lode_fit_options_init": (c_int, [ctypes.POINTER(FitOptions), c_size_t]),
-    "lode_fit": (c_int, [c_void_p, ctypes.POINTER(FitOptions), P_void_p]),
+    "lode_rotation_compute": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, ctypes.POINTER(RotationOptions), P_void_p]),
+    "lode_model_options_init": (c_int, [ctypes.POINTER(FitOptions), c_size_t]),
+    "lode_model_compute": (c_int, [c_void_p, ctypes.POINTER(FitOptions), P_void_p]),
 })
 declare(_getters)
 
@@ -196,27 +195,25 @@ for _kind in ("scores", "reliability"):
     _more[f"lode_{_kind}_text"] = (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t])
     _more[f"lode_{_kind}_free"] = (None, [c_void_p])
 _more.update({
-    "lode_score_options_init": (c_int, [ctypes.POINTER(ScoreOptions), c_size_t]),
-    "lode_score": (c_int, [c_void_p, c_void_p, ctypes.POINTER(ScoreOptions), P_void_p]),
-    "lode_cronbach_alpha": (c_int, [c_void_p, P_void_p]),
-    "lode_mcdonald_omega": (c_int, [c_void_p, P_int64, c_int64, P_void_p]),
-    "lode_omega_single_scale": (c_int, [c_void_p, ctypes.POINTER(FitOptions), P_void_p]),
-    "lode_compare_loadings": (c_int, [P_double, P_double, c_int64, c_int64, c_int64, c_int64, c_int64, c_int64,
+    "lode_scores_options_init": (c_int, [ctypes.POINTER(ScoreOptions), c_size_t]),
+    "lode_scores_compute": (c_int, [c_void_p, c_void_p, ctypes.POINTER(ScoreOptions), P_void_p]),
+    "lode_reliability_compute_alpha": (c_int, [c_void_p, P_void_p]),
+    "lode_reliability_compute_omega": (c_int, [c_void_p, P_int64, c_int64, P_void_p]),
+    "lode_reliability_compute_scale_omega": (c_int, [c_void_p, ctypes.POINTER(FitOptions), P_void_p]),
+    "lode_comparison_compute": (c_int, [P_double, P_double, c_int64, c_int64, c_int64, c_int64, c_int64, c_int64,
                                       P_void_p]),
     "lode_comparison_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
     "lode_comparison_text": (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t]),
     "lode_comparison_free": (None, [c_void_p]),
 })
-# Added in ABI 1.1: declared only where the loaded library has them, so older libraries still load
-# (the functions that need them then raise AttributeError).
-declare({name: sig for name, sig in _more.items() if hasattr(lib, name)})
+declare(_more)
 
 
 def check(status):
     """Raises LodeError for a failing status, with the library's message."""
     if status != 0:
         name = lib.lode_status_name(status).decode()
-        message = lib.lode_last_error().decode("utf-8", "replace")
+        message = lib.lode_error_message().decode("utf-8", "replace")
         raise LodeError(status, name, message)
 
 
@@ -308,7 +305,7 @@ def make_progress(callback):
     return PROGRESS_FN(trampoline)
 
 
-# ---- ABI 1.2: item flags, bootstrap ---------------------------------------------------------------
+# ---- item flags, bootstrap -----------------------------------------------------------------------
 
 class ItemFlagOptions(ctypes.Structure):
     _fields_ = [("struct_size", c_size_t), ("salient", c_double), ("cross_loading_gap", c_double),
@@ -321,26 +318,16 @@ class BootstrapOptions(ctypes.Structure):
                 ("progress", PROGRESS_FN), ("progress_user", c_void_p)]
 
 
-_abi_1_2 = {
-    "lode_item_flag_options_init": (c_int, [ctypes.POINTER(ItemFlagOptions), c_size_t]),
-    "lode_flag_items": (c_int, [c_void_p, ctypes.POINTER(ItemFlagOptions), P_void_p]),
+_uncertainty_signatures = {
+    "lode_item_flags_options_init": (c_int, [ctypes.POINTER(ItemFlagOptions), c_size_t]),
+    "lode_item_flags_compute": (c_int, [c_void_p, ctypes.POINTER(ItemFlagOptions), P_void_p]),
     "lode_item_flags_item_notes": (c_int, [c_void_p, c_int64, c_char_p, c_size_t, P_size_t]),
     "lode_bootstrap_options_init": (c_int, [ctypes.POINTER(BootstrapOptions), c_size_t]),
-    "lode_bootstrap": (c_int, [c_void_p, ctypes.POINTER(FitOptions), ctypes.POINTER(BootstrapOptions), P_void_p]),
+    "lode_bootstrap_compute": (c_int, [c_void_p, ctypes.POINTER(FitOptions), ctypes.POINTER(BootstrapOptions), P_void_p]),
 }
 for _kind in ("item_flags", "bootstrap"):
-    _abi_1_2[f"lode_{_kind}_matrix"] = (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64])
-    _abi_1_2[f"lode_{_kind}_value"] = (c_int, [c_void_p, c_int, P_double])
-    _abi_1_2[f"lode_{_kind}_text"] = (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t])
-    _abi_1_2[f"lode_{_kind}_free"] = (None, [c_void_p])
-# Declared only where the loaded library has them (as for ABI 1.1 above).
-declare({name: sig for name, sig in _abi_1_2.items() if hasattr(lib, name)})
-
-ABI_MINOR = _info.abi_minor
-
-
-def require(name, abi_minor):
-    """Raises LodeError when the loaded liblode lacks a function of a later ABI minor version."""
-    if not hasattr(lib, name):
-        raise LodeError(10, "unsupported", f"{name} needs liblode ABI {ABI_MAJOR}.{abi_minor}; the loaded library "
-                                           f"has ABI {ABI_MAJOR}.{ABI_MINOR}")
+    _uncertainty_signatures[f"lode_{_kind}_matrix"] = (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64])
+    _uncertainty_signatures[f"lode_{_kind}_value"] = (c_int, [c_void_p, c_int, P_double])
+    _uncertainty_signatures[f"lode_{_kind}_text"] = (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t])
+    _uncertainty_signatures[f"lode_{_kind}_free"] = (None, [c_void_p])
+declare(_uncertainty_signatures)

@@ -59,14 +59,14 @@ def scores(X, model, method="regression", *, missing="from_answered", min_answer
     (correlation-preserving). ``missing``: "from_answered" (weights from the answered items, when at
     least ``min_answered_share`` were answered) or "leave_missing". Returns :class:`Scores`; read its
     ``cautions`` before using scores to make decisions about people."""
-    o = _native.options(_native.ScoreOptions, "lode_score_options_init",
+    o = _native.options(_native.ScoreOptions, "lode_scores_options_init",
                         method=_choice(method, _SCORE_METHODS, "score method"),
                         missing=_choice(missing, _SCORE_MISSING, "missing-item rule"),
                         min_answered_share=min_answered_share, low_determinacy=low_determinacy)
     _checks.instance(model, Model, "model", "a fitted model (lode.fit)")
     data = None if X is None else _make_data(X)
     ptr = ctypes.c_void_p()
-    check(lib.lode_score(model.pointer, None if data is None else data.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    check(lib.lode_scores_compute(model.pointer, None if data is None else data.pointer, ctypes.byref(o), ctypes.byref(ptr)))
     return Scores(ptr.value)
 
 
@@ -99,7 +99,7 @@ def alpha(X, *, item_names=None):
     reverse-scored where needed; rows with a missing item are left out). Returns :class:`Alpha`."""
     data = _make_data(X, item_names=item_names)
     ptr = ctypes.c_void_p()
-    check(lib.lode_cronbach_alpha(data.pointer, ctypes.byref(ptr)))
+    check(lib.lode_reliability_compute_alpha(data.pointer, ctypes.byref(ptr)))
     return Alpha(ptr.value)
 
 
@@ -152,18 +152,18 @@ def omega(model=None, *, X=None, corr=None, n_obs=None, assignment=None, method=
         if assignment is not None:
             raise ArgumentError("assignment applies to a model's factors; a single scale has one")
         c = _correlation_of(X, corr, None, n_obs, correlation, missing, False, item_names)
-        o = _native.options(_native.FitOptions, "lode_fit_options_init",
+        o = _native.options(_native.FitOptions, "lode_model_options_init",
                             method=_choice(method, _METHODS, "extraction method"), max_iterations=max_iterations,
                             tolerance=tolerance, min_uniqueness=min_uniqueness)
-        check(lib.lode_omega_single_scale(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+        check(lib.lode_reliability_compute_scale_omega(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
         return Omega(ptr.value, single=True)
     _checks.instance(model, Model, "model", "a fitted model (lode.fit)")
     if assignment is None:
-        check(lib.lode_mcdonald_omega(model.pointer, None, 0, ctypes.byref(ptr)))
+        check(lib.lode_reliability_compute_omega(model.pointer, None, 0, ctypes.byref(ptr)))
     else:
         a = np.array([_checks.whole(v, "assignment") for v in np.ravel(_checks.matrix(assignment, "assignment"))],
                      dtype=np.int64)
-        check(lib.lode_mcdonald_omega(model.pointer, a.ctypes.data_as(_native.P_int64), a.size, ctypes.byref(ptr)))
+        check(lib.lode_reliability_compute_omega(model.pointer, a.ctypes.data_as(_native.P_int64), a.size, ctypes.byref(ptr)))
     return Omega(ptr.value)
 
 
@@ -194,6 +194,6 @@ def congruence(a, b):
     if (rows, cols) != (rows_b, cols_b):
         raise ArgumentError(f"a is {rows} x {cols} but b is {rows_b} x {cols_b}; they must have the same shape")
     ptr = ctypes.c_void_p()
-    check(lib.lode_compare_loadings(_native.data_pointer(ma), _native.data_pointer(mb), rows, cols, ars, acs, brs, bcs,
+    check(lib.lode_comparison_compute(_native.data_pointer(ma), _native.data_pointer(mb), rows, cols, ars, acs, brs, bcs,
                                     ctypes.byref(ptr)))
     return Comparison(ptr.value)

@@ -21,7 +21,7 @@ class SummaryOptions(ctypes.Structure):
     _fields_ = [("struct_size", c_size_t), ("max_categories", c_int), ("listwise", c_int)]
 
 
-_native.declare({name: sig for name, sig in {
+_native.declare({
     "lode_summary_options_init": (c_int, [ctypes.POINTER(SummaryOptions), c_size_t]),
     "lode_summary_create": (c_int, [c_int64, ctypes.POINTER(ctypes.c_char_p), ctypes.POINTER(SummaryOptions),
                                     P_void_p]),
@@ -35,7 +35,7 @@ _native.declare({name: sig for name, sig in {
     "lode_summary_value": (c_int, [c_void_p, c_int, P_double]),
     "lode_summary_table": (c_int, [c_void_p, c_int64, c_int64, P_double, c_size_t, P_int64, P_int64]),
     "lode_summary_item_name": (c_int, [c_void_p, c_int64, ctypes.c_char_p, c_size_t, P_size_t]),
-}.items() if hasattr(lib, name)})
+})
 
 _MATRICES = {"pair_counts": 1100, "means": 1101, "sums_of_squares": 1102, "comoments": 1103, "categories": 1104,
              "category_counts": 1105}
@@ -61,7 +61,6 @@ class Summary:
     """
 
     def __init__(self, items=None, max_categories=11, listwise=False):
-        _native.require("lode_summary_create", 3)
         self._handle = None
         self._max_categories = int(max_categories)
         self._listwise = bool(listwise)
