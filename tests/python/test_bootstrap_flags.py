@@ -274,7 +274,7 @@ def test_shorter_fit_options_are_still_accepted():
     # A caller built against a header whose lode_model_options ended before the progress fields passes
     # the shorter struct; the library must not read them (here: a callback that would cancel at once).
     c = lode.correlation(survey(200, 6, seed=92, factors=2))
-    o = _native.options(_native.FitOptions, "lode_model_options_init", factors=2)
+    o = _native.options("lode_model_options", factors=2)
     calls = []
     cb = _native.make_progress(lambda d, t: calls.append(d) or False)
     o.progress = cb

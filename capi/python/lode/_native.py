@@ -7,7 +7,9 @@ import sys
 
 import numpy as np
 
-ABI_MAJOR = 2
+from . import _abi
+
+ABI_MAJOR = _abi.LODE_ABI_VERSION_MAJOR
 
 c_int = ctypes.c_int
 c_int64 = ctypes.c_int64
@@ -20,7 +22,7 @@ P_int64 = ctypes.POINTER(c_int64)
 P_size_t = ctypes.POINTER(c_size_t)
 P_void_p = ctypes.POINTER(c_void_p)
 
-PROGRESS_FN = ctypes.CFUNCTYPE(c_int, c_void_p, c_int64, c_int64)
+PROGRESS_FN = _abi.lode_progress_fn
 
 
 class LodeError(Exception):
@@ -32,18 +34,6 @@ class LodeError(Exception):
         self.status = status
         self.status_name = status_name
         self.message = message
-
-
-class VersionInfo(ctypes.Structure):
-    _fields_ = [("major", c_int), ("minor", c_int), ("patch", c_int), ("abi_major", c_int),
-                ("abi_minor", c_int), ("string", c_char_p)]
-
-
-class CorrelationOptions(ctypes.Structure):
-    _fields_ = [("struct_size", c_size_t), ("kind", c_int), ("missing", c_int), ("smooth", c_int),
-                ("min_eigenvalue", c_double), ("min_pair_observations", c_int64), ("threads", c_int),
-                ("max_categories", c_int), ("zero_cells", c_int), ("zero_cell_add", c_double),
-                ("progress", PROGRESS_FN), ("progress_user", c_void_p)]
 
 
 def _candidates(here=None, platform=None):
@@ -85,7 +75,7 @@ lib = _load()
 
 # name: (restype, argtypes)
 _SIGNATURES = {
-    "lode_version": (ctypes.POINTER(VersionInfo), []),
+    "lode_version": (ctypes.POINTER(_abi.lode_version_info), []),
     "lode_status_name": (c_char_p, [c_int]),
     "lode_error_message": (c_char_p, []),
     "lode_data_from_raw": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, P_void_p]),
@@ -94,8 +84,8 @@ _SIGNATURES = {
     "lode_data_set_item_names": (c_int, [c_void_p, ctypes.POINTER(c_char_p), c_int64]),
     "lode_data_shape": (c_int, [c_void_p, P_int64, P_int64]),
     "lode_data_free": (None, [c_void_p]),
-    "lode_correlation_options_init": (c_int, [ctypes.POINTER(CorrelationOptions), c_size_t]),
-    "lode_correlation_compute": (c_int, [c_void_p, ctypes.POINTER(CorrelationOptions), P_void_p]),
+    "lode_correlation_options_init": (c_int, [ctypes.POINTER(_abi.lode_correlation_options), c_size_t]),
+    "lode_correlation_compute": (c_int, [c_void_p, ctypes.POINTER(_abi.lode_correlation_options), P_void_p]),
     "lode_correlation_free": (None, [c_void_p]),
     "lode_correlation_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
     "lode_correlation_value": (c_int, [c_void_p, c_int, P_double]),
@@ -128,15 +118,9 @@ _factorability_signatures = {
 declare(_factorability_signatures)
 
 
-class FactorCountOptions(ctypes.Structure):
-    _fields_ = [("struct_size", c_size_t), ("replicates", c_int64), ("threshold", c_int), ("percentile", c_double),
-                ("source", c_int), ("seed", ctypes.c_uint64), ("threads", c_int), ("progress", PROGRESS_FN),
-                ("progress_user", c_void_p)]
-
-
 _count_signatures = {
-    "lode_factor_count_options_init": (c_int, [ctypes.POINTER(FactorCountOptions), c_size_t]),
-    "lode_factor_count_compute": (c_int, [c_void_p, ctypes.POINTER(FactorCountOptions), P_void_p]),
+    "lode_factor_count_options_init": (c_int, [ctypes.POINTER(_abi.lode_factor_count_options), c_size_t]),
+    "lode_factor_count_compute": (c_int, [c_void_p, ctypes.POINTER(_abi.lode_factor_count_options), P_void_p]),
     "lode_factor_count_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
     "lode_factor_count_value": (c_int, [c_void_p, c_int, P_double]),
     "lode_factor_count_text": (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t]),
@@ -145,24 +129,9 @@ _count_signatures = {
 declare(_count_signatures)
 
 
-class RotationOptions(ctypes.Structure):
-    _fields_ = [("struct_size", c_size_t), ("method", c_int), ("normalize", c_int), ("gamma", c_double),
-                ("kappa", c_double), ("epsilon", c_double), ("power", c_double), ("target", P_double),
-                ("target_rows", c_int64), ("target_cols", c_int64), ("target_row_stride", c_int64),
-                ("target_col_stride", c_int64), ("random_starts", c_int), ("seed", ctypes.c_uint64),
-                ("max_iterations", c_int), ("tolerance", c_double), ("threads", c_int)]
-
-
-class FitOptions(ctypes.Structure):
-    _fields_ = [("struct_size", c_size_t), ("factors", c_int), ("method", c_int), ("max_iterations", c_int),
-                ("tolerance", c_double), ("min_uniqueness", c_double), ("interval_level", c_double),
-                ("rotation", ctypes.POINTER(RotationOptions)), ("factor_count", ctypes.POINTER(FactorCountOptions)),
-                ("progress", PROGRESS_FN), ("progress_user", c_void_p)]
-
-
 # The size of lode_model_options without its last fields (progress): what a caller built against a
 # shorter struct passes; the library takes the defaults for the fields beyond it.
-FIT_OPTIONS_SIZE_WITHOUT_PROGRESS = FitOptions.progress.offset
+FIT_OPTIONS_SIZE_WITHOUT_PROGRESS = _abi.lode_model_options.progress.offset
 
 
 _getters = {}
@@ -174,18 +143,13 @@ for _kind in ("rotation", "model"):
 _getters.update({
     "lode_rotation_method_from_name": (c_int, [c_char_p, ctypes.POINTER(c_int)]),
     "lode_rotation_method_name": (c_char_p, [c_int]),
-    "lode_rotation_options_init": (c_int, [ctypes.POINTER(RotationOptions), c_size_t]),
-    "lode_rotation_compute": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, ctypes.POINTER(RotationOptions), P_void_p]),
-    "lode_model_options_init": (c_int, [ctypes.POINTER(FitOptions), c_size_t]),
-    "lode_model_compute": (c_int, [c_void_p, ctypes.POINTER(FitOptions), P_void_p]),
+    "lode_rotation_options_init": (c_int, [ctypes.POINTER(_abi.lode_rotation_options), c_size_t]),
+    "lode_rotation_compute": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64,
+                                      ctypes.POINTER(_abi.lode_rotation_options), P_void_p]),
+    "lode_model_options_init": (c_int, [ctypes.POINTER(_abi.lode_model_options), c_size_t]),
+    "lode_model_compute": (c_int, [c_void_p, ctypes.POINTER(_abi.lode_model_options), P_void_p]),
 })
 declare(_getters)
-
-
-
-class ScoreOptions(ctypes.Structure):
-    _fields_ = [("struct_size", c_size_t), ("method", c_int), ("missing", c_int), ("min_answered_share", c_double),
-                ("low_determinacy", c_double)]
 
 
 _more = {}
@@ -195,11 +159,11 @@ for _kind in ("scores", "reliability"):
     _more[f"lode_{_kind}_text"] = (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t])
     _more[f"lode_{_kind}_free"] = (None, [c_void_p])
 _more.update({
-    "lode_scores_options_init": (c_int, [ctypes.POINTER(ScoreOptions), c_size_t]),
-    "lode_scores_compute": (c_int, [c_void_p, c_void_p, ctypes.POINTER(ScoreOptions), P_void_p]),
+    "lode_scores_options_init": (c_int, [ctypes.POINTER(_abi.lode_scores_options), c_size_t]),
+    "lode_scores_compute": (c_int, [c_void_p, c_void_p, ctypes.POINTER(_abi.lode_scores_options), P_void_p]),
     "lode_reliability_compute_alpha": (c_int, [c_void_p, P_void_p]),
     "lode_reliability_compute_omega": (c_int, [c_void_p, P_int64, c_int64, P_void_p]),
-    "lode_reliability_compute_scale_omega": (c_int, [c_void_p, ctypes.POINTER(FitOptions), P_void_p]),
+    "lode_reliability_compute_scale_omega": (c_int, [c_void_p, ctypes.POINTER(_abi.lode_model_options), P_void_p]),
     "lode_comparison_compute": (c_int, [P_double, P_double, c_int64, c_int64, c_int64, c_int64, c_int64, c_int64,
                                       P_void_p]),
     "lode_comparison_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
@@ -217,10 +181,11 @@ def check(status):
         raise LodeError(status, name, message)
 
 
-def options(struct_type, init_name, **fields):
-    """An option struct filled with the library's defaults, then the given fields."""
-    o = struct_type()
-    check(getattr(lib, init_name)(ctypes.byref(o), ctypes.sizeof(o)))
+def options(struct_name, **fields):
+    """The option struct `struct_name` of lode.h (e.g. "lode_model_options") filled with the library's
+    defaults by its `_init` function, then the given fields."""
+    o = getattr(_abi, struct_name)()
+    check(getattr(lib, struct_name + "_init")(ctypes.byref(o), ctypes.sizeof(o)))
     from . import _checks  # (imports this module)
 
     for key, value in fields.items():
@@ -307,23 +272,14 @@ def make_progress(callback):
 
 # ---- item flags, bootstrap -----------------------------------------------------------------------
 
-class ItemFlagOptions(ctypes.Structure):
-    _fields_ = [("struct_size", c_size_t), ("salient", c_double), ("cross_loading_gap", c_double),
-                ("low_communality", c_double), ("heywood_uniqueness", c_double)]
-
-
-class BootstrapOptions(ctypes.Structure):
-    _fields_ = [("struct_size", c_size_t), ("replicates", c_int64), ("level", c_double), ("seed", ctypes.c_uint64),
-                ("threads", c_int), ("replicate_random_starts", c_int), ("keep_replicates", c_int),
-                ("progress", PROGRESS_FN), ("progress_user", c_void_p)]
-
 
 _uncertainty_signatures = {
-    "lode_item_flags_options_init": (c_int, [ctypes.POINTER(ItemFlagOptions), c_size_t]),
-    "lode_item_flags_compute": (c_int, [c_void_p, ctypes.POINTER(ItemFlagOptions), P_void_p]),
+    "lode_item_flags_options_init": (c_int, [ctypes.POINTER(_abi.lode_item_flags_options), c_size_t]),
+    "lode_item_flags_compute": (c_int, [c_void_p, ctypes.POINTER(_abi.lode_item_flags_options), P_void_p]),
     "lode_item_flags_item_notes": (c_int, [c_void_p, c_int64, c_char_p, c_size_t, P_size_t]),
-    "lode_bootstrap_options_init": (c_int, [ctypes.POINTER(BootstrapOptions), c_size_t]),
-    "lode_bootstrap_compute": (c_int, [c_void_p, ctypes.POINTER(FitOptions), ctypes.POINTER(BootstrapOptions), P_void_p]),
+    "lode_bootstrap_options_init": (c_int, [ctypes.POINTER(_abi.lode_bootstrap_options), c_size_t]),
+    "lode_bootstrap_compute": (c_int, [c_void_p, ctypes.POINTER(_abi.lode_model_options),
+                                       ctypes.POINTER(_abi.lode_bootstrap_options), P_void_p]),
 }
 for _kind in ("item_flags", "bootstrap"):
     _uncertainty_signatures[f"lode_{_kind}_matrix"] = (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64])
