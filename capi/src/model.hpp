@@ -1,5 +1,5 @@
-// The fitted model handle and the reading of lode_model_options, shared by lode_model_compute, the item flags and
-// the bootstrap. Internal to liblode.
+// The fitted model handle and the readers of lode_model_options and lode_rotation_options, shared by
+// lode_model_compute, the scores, reliability, item flags and the bootstrap. Internal to liblode.
 #pragma once
 
 #include "handles.hpp"
@@ -28,6 +28,10 @@ struct FitSetup {
 };
 
 FitSetup read_fit_options(const lode_model_options* opts, const lode_correlation* corr);
+
+// lode_rotation_options, read (older struct sizes included) and checked; NULL = the defaults. `names`
+// name the items in messages.
+RotationOptions read_rotation_options(const lode_rotation_options* opts, const std::vector<std::string>& names);
 
 // Only the extraction fields of lode_model_options (method, max_iterations, tolerance, min_uniqueness), read
 // and checked, with the defaults of lode_model_options_init for the rest.
