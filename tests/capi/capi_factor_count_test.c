@@ -63,9 +63,7 @@ void test_factor_count(void) {
   EXPECT(lode_factor_count_value(n, LODE_FACTOR_COUNT_TABLE, &v), LODE_E_INVALID_ARGUMENT, "key 351");
   EXPECT(lode_factor_count_matrix(n, LODE_FACTOR_COUNT_SUGGESTED, col, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "key 320");
   EXPECT(lode_factor_count_text(n, LODE_FACTOR_COUNT_SUGGESTED, text, 8, NULL), LODE_E_INVALID_ARGUMENT, "key 320");
-  EXPECT(lode_factor_count_value(NULL, LODE_FACTOR_COUNT_SUGGESTED, &v), LODE_E_INVALID_ARGUMENT, "NULL");
-  EXPECT(lode_factor_count_matrix(NULL, LODE_FACTOR_COUNT_MAP_SQUARED, col, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
-  EXPECT(lode_factor_count_text(NULL, LODE_FACTOR_COUNT_REASON, text, 8, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT_NULL_HANDLE(lode_factor_count, "NULL", LODE_FACTOR_COUNT_SUGGESTED, LODE_FACTOR_COUNT_MAP_SQUARED, col, 6, LODE_FACTOR_COUNT_REASON, text, 8);
   lode_factor_count_free(n);
   n = NULL;
 

@@ -50,9 +50,7 @@ void test_factorability(void) {
   EXPECT(lode_factorability_value(f, LODE_FACTORABILITY_KMO, NULL), LODE_E_INVALID_ARGUMENT, "'value' is NULL");
   EXPECT(lode_factorability_matrix(f, LODE_FACTORABILITY_KMO, msa, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "key 220");
   EXPECT(lode_factorability_text(f, LODE_CORRELATION_NOTES, label, 64, NULL), LODE_E_INVALID_ARGUMENT, "key 150");
-  EXPECT(lode_factorability_value(NULL, LODE_FACTORABILITY_KMO, &v), LODE_E_INVALID_ARGUMENT, "'f' is NULL");
-  EXPECT(lode_factorability_matrix(NULL, LODE_FACTORABILITY_MSA, msa, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
-  EXPECT(lode_factorability_text(NULL, LODE_FACTORABILITY_NOTES, label, 64, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT_NULL_HANDLE(lode_factorability, "'f' is NULL", LODE_FACTORABILITY_KMO, LODE_FACTORABILITY_MSA, msa, 6, LODE_FACTORABILITY_NOTES, label, 64);
   lode_factorability_free(f);
   f = NULL;
 

@@ -78,9 +78,7 @@ void test_fit(void) {
   EXPECT(lode_model_matrix(m, LODE_MODEL_RMSEA, l, 12, NULL, NULL), LODE_E_INVALID_ARGUMENT, "key 432");
   EXPECT(lode_model_text(m, LODE_MODEL_RMSEA, notes, 8, NULL), LODE_E_INVALID_ARGUMENT, "key 432");
   EXPECT(lode_model_value(m, LODE_MODEL_RMSEA, NULL), LODE_E_INVALID_ARGUMENT, "'value' is NULL");
-  EXPECT(lode_model_value(NULL, LODE_MODEL_RMSEA, &v), LODE_E_INVALID_ARGUMENT, "'model' is NULL");
-  EXPECT(lode_model_matrix(NULL, LODE_MODEL_LOADINGS, l, 12, NULL, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
-  EXPECT(lode_model_text(NULL, LODE_MODEL_NOTES, notes, 8, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT_NULL_HANDLE(lode_model, "'model' is NULL", LODE_MODEL_RMSEA, LODE_MODEL_LOADINGS, l, 12, LODE_MODEL_NOTES, notes, 8);
   lode_model_free(m);
   m = NULL;
 

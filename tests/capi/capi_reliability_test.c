@@ -45,9 +45,7 @@ void test_reliability(void) {
   EXPECT(lode_reliability_matrix(rel, LODE_OMEGA, buf, 3, NULL, NULL), LODE_E_INVALID_ARGUMENT, "omega");
   EXPECT(lode_reliability_value(rel, LODE_OMEGA, &v), LODE_E_INVALID_ARGUMENT, "key 740");
   EXPECT(lode_reliability_text(rel, LODE_ALPHA, text, 10, NULL), LODE_E_INVALID_ARGUMENT, "key 720");
-  EXPECT(lode_reliability_value(NULL, LODE_ALPHA, &v), LODE_E_INVALID_ARGUMENT, "NULL");
-  EXPECT(lode_reliability_matrix(NULL, LODE_OMEGA, buf, 3, NULL, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
-  EXPECT(lode_reliability_text(NULL, LODE_RELIABILITY_NOTES, text, 10, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT_NULL_HANDLE(lode_reliability, "NULL", LODE_ALPHA, LODE_OMEGA, buf, 3, LODE_RELIABILITY_NOTES, text, 10);
   lode_reliability_free(rel);
   rel = NULL;
   EXPECT(lode_reliability_compute_alpha(f.matrix, &rel), LODE_E_INVALID_ARGUMENT, "raw data");

@@ -79,9 +79,7 @@ void test_rotation(void) {
   EXPECT(lode_rotation_value(r, LODE_ROTATION_PATTERN, &v), LODE_E_INVALID_ARGUMENT, "key 500");
   EXPECT(lode_rotation_matrix(r, LODE_ROTATION_CRITERION, out, 12, NULL, NULL), LODE_E_INVALID_ARGUMENT, "key 520");
   EXPECT(lode_rotation_text(r, LODE_ROTATION_CRITERION, name, 32, NULL), LODE_E_INVALID_ARGUMENT, "key 520");
-  EXPECT(lode_rotation_value(NULL, LODE_ROTATION_CRITERION, &v), LODE_E_INVALID_ARGUMENT, "NULL");
-  EXPECT(lode_rotation_matrix(NULL, LODE_ROTATION_PATTERN, out, 12, NULL, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
-  EXPECT(lode_rotation_text(NULL, LODE_ROTATION_METHOD_NAME, name, 32, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT_NULL_HANDLE(lode_rotation, "NULL", LODE_ROTATION_CRITERION, LODE_ROTATION_PATTERN, out, 12, LODE_ROTATION_METHOD_NAME, name, 32);
   lode_rotation_free(r);
   r = NULL;
 

@@ -48,9 +48,7 @@ void test_scores(void) {
   EXPECT(lode_scores_value(s, LODE_SCORES_VALUES, &v), LODE_E_INVALID_ARGUMENT, "key 600");
   EXPECT(lode_scores_matrix(s, LODE_SCORES_ROWS_TOTAL, buf, 10, NULL, NULL), LODE_E_INVALID_ARGUMENT, "key 620");
   EXPECT(lode_scores_text(s, LODE_SCORES_VALUES, text, 10, NULL), LODE_E_INVALID_ARGUMENT, "key 600");
-  EXPECT(lode_scores_value(NULL, LODE_SCORES_ROWS_TOTAL, &v), LODE_E_INVALID_ARGUMENT, "NULL");
-  EXPECT(lode_scores_matrix(NULL, LODE_SCORES_VALUES, buf, 10, NULL, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
-  EXPECT(lode_scores_text(NULL, LODE_SCORES_NOTES, text, 10, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT_NULL_HANDLE(lode_scores, "NULL", LODE_SCORES_ROWS_TOTAL, LODE_SCORES_VALUES, buf, 10, LODE_SCORES_NOTES, text, 10);
   lode_scores_free(s);
   s = NULL;
 

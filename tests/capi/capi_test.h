@@ -26,6 +26,16 @@ void expect_status(int got, int expected, const char* fragment, const char* call
 #define EXPECT(call, status, fragment) expect_status((call), (status), (fragment), #call, __FILE__, __LINE__)
 #define OK(call) expect_status((call), LODE_OK, NULL, #call, __FILE__, __LINE__)
 
+/* The three getters of a handle (lode_<handle>_value, _matrix, _text) refuse a NULL handle, each asked
+ * for a key it has; the message must contain `fragment`. */
+#define EXPECT_NULL_HANDLE(prefix, fragment, value_key, matrix_key, buf, capacity, text_key, text, text_capacity) \
+  do {                                                                                                         \
+    double value_;                                                                                             \
+    EXPECT(prefix##_value(NULL, value_key, &value_), LODE_E_INVALID_ARGUMENT, fragment);                       \
+    EXPECT(prefix##_matrix(NULL, matrix_key, buf, capacity, NULL, NULL), LODE_E_INVALID_ARGUMENT, fragment);   \
+    EXPECT(prefix##_text(NULL, text_key, text, text_capacity, NULL), LODE_E_INVALID_ARGUMENT, fragment);       \
+  } while (0)
+
 double nan_value(void);
 double inf_value(void);
 
