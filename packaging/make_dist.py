@@ -114,7 +114,7 @@ def main():
     ap.add_argument("--linux-build", required=True, help="build/package")
     ap.add_argument("--windows-build", required=True, help="build/windows")
     ap.add_argument("--oxt", required=True)
-    ap.add_argument("--soname", required=True, help="liblode's SONAME, e.g. liblode.so.1")
+    ap.add_argument("--soname", required=True, help="liblode's SONAME, e.g. liblode.so.2")
     ap.add_argument("--python", required=True, help="capi/python")
     ap.add_argument("--out", required=True, help="dist/")
     a = ap.parse_args()

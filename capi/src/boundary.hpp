@@ -30,7 +30,7 @@ int status_of(ErrorCode code) noexcept;
 [[noreturn]] inline void fail(int status, std::string message) { throw BoundaryError{status, std::move(message)}; }
 
 // Runs `body` (returning void) and maps every exception to a status with the message kept for
-// lode_last_error(). Nothing escapes.
+// lode_error_message(). Nothing escapes.
 template <class Body>
 int guarded(Body&& body) noexcept {
   clear_last_error();

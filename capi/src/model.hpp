@@ -1,5 +1,5 @@
-// The fitted model handle and the reading of lode_fit_options, shared by lode_fit, the item flags and
-// the bootstrap. Internal to liblode.
+// The fitted model handle and the readers of lode_model_options and lode_rotation_options, shared by
+// lode_model_compute, the scores, reliability, item flags and the bootstrap. Internal to liblode.
 #pragma once
 
 #include "handles.hpp"
@@ -16,7 +16,7 @@
 
 namespace lode::capi {
 
-// lode_fit_options, read (older struct sizes included) and checked.
+// lode_model_options, read (older struct sizes included) and checked.
 struct FitSetup {
   int factors = 0;  // 0 = suggested by the factor count
   ExtractionOptions extraction;          // with corr's n_obs and item names
@@ -27,11 +27,15 @@ struct FitSetup {
   void* progress_user = nullptr;
 };
 
-FitSetup read_fit_options(const lode_fit_options* opts, const lode_correlation* corr);
+FitSetup read_fit_options(const lode_model_options* opts, const lode_correlation* corr);
 
-// Only the extraction fields of lode_fit_options (method, max_iterations, tolerance, min_uniqueness), read
-// and checked, with the defaults of lode_fit_options_init for the rest.
-ExtractionOptions read_extraction_options(const lode_fit_options* opts, const lode_correlation* corr);
+// lode_rotation_options, read (older struct sizes included) and checked; NULL = the defaults. `names`
+// name the items in messages.
+RotationOptions read_rotation_options(const lode_rotation_options* opts, const std::vector<std::string>& names);
+
+// Only the extraction fields of lode_model_options (method, max_iterations, tolerance, min_uniqueness), read
+// and checked, with the defaults of lode_model_options_init for the rest.
+ExtractionOptions read_extraction_options(const lode_model_options* opts, const lode_correlation* corr);
 
 }  // namespace lode::capi
 

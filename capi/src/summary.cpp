@@ -1,7 +1,10 @@
 // Summaries at the C boundary: create, add rows, merge, the byte form, and the data handle that
-// lode_correlate turns into correlations.
+// lode_correlation_compute turns into correlations.
 #include "boundary.hpp"
 #include "handles.hpp"
+#include "keys.hpp"
+#include "options.hpp"
+#include "results.hpp"
 
 #include <cmath>
 #include <limits>
@@ -27,32 +30,48 @@ Matrix padded(const Summary& s, bool counts) {
   return m;
 }
 
+// lode_summary_options: field, default (from the core's SummaryOptions).
+#define LODE_SUMMARY_OPTIONS_FIELDS(F)     \
+  F(max_categories, core.max_categories)   \
+  F(listwise, core.listwise ? 1 : 0)
+
+LODE_OPTIONS_FUNCTIONS(lode_summary_options, LODE_SUMMARY_OPTIONS_FIELDS, SummaryOptions, summary_defaults,
+                       merged_summary_options)
+
+constexpr HandleNames summary_handle{"lode_summary", "lode_summary", "summary"};
+
+constexpr MatrixKey<lode_summary> summary_matrices[] = {
+    {LODE_SUMMARY_PAIR_COUNTS, [](const lode_summary& s) -> Matrix { return s.summary.n.cast<double>(); }},
+    {LODE_SUMMARY_MEANS, [](const lode_summary& s) -> Matrix { return s.summary.mean; }},
+    {LODE_SUMMARY_SUMS_OF_SQUARES, [](const lode_summary& s) -> Matrix { return s.summary.m2; }},
+    {LODE_SUMMARY_COMOMENTS, [](const lode_summary& s) -> Matrix { return s.summary.comoment; }},
+    {LODE_SUMMARY_CATEGORIES, [](const lode_summary& s) -> Matrix { return padded(s.summary, false); }},
+    {LODE_SUMMARY_CATEGORY_COUNTS, [](const lode_summary& s) -> Matrix { return padded(s.summary, true); }},
+};
+
+constexpr ValueKey<lode_summary> summary_values[] = {
+    {LODE_SUMMARY_N_ROWS, [](const lode_summary& s) { return static_cast<double>(s.summary.rows_total); }},
+    {LODE_SUMMARY_ROWS_COMPLETE, [](const lode_summary& s) { return static_cast<double>(s.summary.rows_complete); }},
+    {LODE_SUMMARY_ROWS_ANSWERED, [](const lode_summary& s) { return static_cast<double>(s.summary.rows_any); }},
+    {LODE_SUMMARY_MISSING_CELLS, [](const lode_summary& s) { return static_cast<double>(s.summary.missing_cells); }},
+    {LODE_SUMMARY_ITEMS, [](const lode_summary& s) { return number(s.summary.items()); }},
+    {LODE_SUMMARY_MAX_CATEGORIES, [](const lode_summary& s) { return static_cast<double>(s.summary.options.max_categories); }},
+    {LODE_SUMMARY_LISTWISE, [](const lode_summary& s) { return flag(s.summary.options.listwise); }},
+    {LODE_SUMMARY_FORMAT_VERSION, [](const lode_summary&) { return static_cast<double>(kSummaryFormatVersion); }},
+};
+
 }  // namespace
 
 extern "C" {
 
-LODE_API int lode_summary_options_init(lode_summary_options* opts, size_t struct_size) {
-  return guarded([&] {
-    lode_summary_options d{};
-    d.struct_size = sizeof d;
-    d.max_categories = 11;
-    d.listwise = 0;
-    init_options(opts, struct_size, d, "lode_summary_options");
-  });
-}
+LODE_OPTIONS_INIT(lode_summary_options, summary_defaults)
 
 LODE_API int lode_summary_create(int64_t items, const char* const* names, const lode_summary_options* opts,
                                  lode_summary** out) {
   return guarded([&] {
     require_pointer(out, "out");
     *out = nullptr;
-    lode_summary_options o{};
-    lode_summary_options_init(&o, sizeof o);
-    if (opts) {
-      check_options_size(opts, "lode_summary_options");
-      LODE_OPTION_FIELD(o, opts, max_categories);
-      LODE_OPTION_FIELD(o, opts, listwise);
-    }
+    const lode_summary_options o = merged_summary_options(opts);
     if (items < 1 || items > 100000)
       fail(LODE_E_INVALID_ARGUMENT, fmt::format("a summary needs 1 to 100000 items; {} were asked for", items));
     std::vector<std::string> labels(static_cast<std::size_t>(items));
@@ -120,41 +139,8 @@ LODE_API int lode_summary_to_data(const lode_summary* summary, lode_data** out) 
 
 LODE_API void lode_summary_free(lode_summary* summary) { delete summary; }
 
-LODE_API int lode_summary_matrix(const lode_summary* summary, int key, double* out, size_t capacity, int64_t* rows,
-                                 int64_t* cols) {
-  return guarded([&] {
-    const Summary& s = summary_of(summary);
-    switch (key) {
-      case LODE_SUMMARY_PAIR_COUNTS: write_matrix(s.n.cast<double>(), out, capacity, rows, cols); break;
-      case LODE_SUMMARY_MEANS: write_matrix(s.mean, out, capacity, rows, cols); break;
-      case LODE_SUMMARY_SUMS_OF_SQUARES: write_matrix(s.m2, out, capacity, rows, cols); break;
-      case LODE_SUMMARY_COMOMENTS: write_matrix(s.comoment, out, capacity, rows, cols); break;
-      case LODE_SUMMARY_CATEGORIES: write_matrix(padded(s, false), out, capacity, rows, cols); break;
-      case LODE_SUMMARY_CATEGORY_COUNTS: write_matrix(padded(s, true), out, capacity, rows, cols); break;
-      default: fail(LODE_E_INVALID_ARGUMENT, key_text(key, "lode_summary matrix (lode_summary_matrix)"));
-    }
-  });
-}
-
-LODE_API int lode_summary_value(const lode_summary* summary, int key, double* value) {
-  return guarded([&] {
-    const Summary& s = summary_of(summary);
-    require_pointer(value, "value");
-    double v = 0.0;
-    switch (key) {
-      case LODE_SUMMARY_N_ROWS: v = static_cast<double>(s.rows_total); break;
-      case LODE_SUMMARY_ROWS_COMPLETE: v = static_cast<double>(s.rows_complete); break;
-      case LODE_SUMMARY_ROWS_ANSWERED: v = static_cast<double>(s.rows_any); break;
-      case LODE_SUMMARY_MISSING_CELLS: v = static_cast<double>(s.missing_cells); break;
-      case LODE_SUMMARY_ITEMS: v = static_cast<double>(s.items()); break;
-      case LODE_SUMMARY_MAX_CATEGORIES: v = s.options.max_categories; break;
-      case LODE_SUMMARY_LISTWISE: v = s.options.listwise ? 1.0 : 0.0; break;
-      case LODE_SUMMARY_FORMAT_VERSION: v = kSummaryFormatVersion; break;
-      default: fail(LODE_E_INVALID_ARGUMENT, key_text(key, "lode_summary number (lode_summary_value)"));
-    }
-    *value = v;
-  });
-}
+LODE_MATRIX_GETTER(lode_summary, lode_summary, summary_handle, summary_matrices)
+LODE_VALUE_GETTER(lode_summary, lode_summary, summary_handle, summary_values)
 
 LODE_API int lode_summary_table(const lode_summary* summary, int64_t a, int64_t b, double* out, size_t capacity,
                                 int64_t* rows, int64_t* cols) {

@@ -46,7 +46,7 @@ struct CorrFree {
 // A C ABI failure as the exception the service reports.
 [[noreturn]] void fail(int status, const std::string& what) {
   if (status == LODE_E_CANCELLED) throw Cancelled{};
-  std::string msg = what + ": " + lode_last_error();
+  std::string msg = what + ": " + lode_error_message();
   if (status == LODE_E_INVALID_ARGUMENT || status == LODE_E_INSUFFICIENT_DATA || status == LODE_E_TOO_MANY_FACTORS ||
       status == LODE_E_NOT_POSITIVE_DEFINITE)
     throw std::invalid_argument(msg);
@@ -87,7 +87,7 @@ struct Maybe {
 };
 Maybe fact_value(const lode_factorability* f, int key) {
   Maybe m;
-  if (lode_factorability_value(f, key, &m.value) != LODE_OK) m.reason = lode_last_error();
+  if (lode_factorability_value(f, key, &m.value) != LODE_OK) m.reason = lode_error_message();
   return m;
 }
 std::string fact_text(const lode_factorability* f, int key) {
@@ -101,12 +101,12 @@ std::string fact_text(const lode_factorability* f, int key) {
 std::vector<double> fact_vector(const lode_factorability* f, int key, std::string& reason) {
   std::int64_t r = 0, c = 0;
   if (lode_factorability_matrix(f, key, nullptr, 0, &r, &c) != LODE_OK) {
-    reason = lode_last_error();
+    reason = lode_error_message();
     return {};
   }
   std::vector<double> out(static_cast<std::size_t>(r * c));
   if (lode_factorability_matrix(f, key, out.data(), out.size(), &r, &c) != LODE_OK) {
-    reason = lode_last_error();
+    reason = lode_error_message();
     return {};
   }
   return out;
@@ -186,27 +186,27 @@ CountResult count_factors(const lode_correlation* corr, const Options& o, const 
   opts.progress = &ProgressBridge::call;
   opts.progress_user = &bridge;
   lode_factor_count* raw = nullptr;
-  const int st = lode_count_factors(corr, &opts, &raw);
+  const int st = lode_factor_count_compute(corr, &opts, &raw);
   if (st == LODE_E_CANCELLED) throw Cancelled{};
   if (st != LODE_OK) {
-    r.reason = lode_last_error();
+    r.reason = lode_error_message();
     return r;
   }
   std::unique_ptr<lode_factor_count, CountFree> count(raw);
   std::int64_t rows = 0, cols = 0;
-  check(lode_factor_count_matrix(count.get(), LODE_COUNT_RANDOM_PC_PERCENTILE, nullptr, 0, &rows, &cols), "parallel analysis");
+  check(lode_factor_count_matrix(count.get(), LODE_FACTOR_COUNT_RANDOM_PC_PERCENTILE, nullptr, 0, &rows, &cols), "parallel analysis");
   r.random_pc.resize(static_cast<std::size_t>(rows * cols));
-  check(lode_factor_count_matrix(count.get(), LODE_COUNT_RANDOM_PC_PERCENTILE, r.random_pc.data(), r.random_pc.size(),
+  check(lode_factor_count_matrix(count.get(), LODE_FACTOR_COUNT_RANDOM_PC_PERCENTILE, r.random_pc.data(), r.random_pc.size(),
                                  &rows, &cols),
         "parallel analysis");
   double v = 0;
-  check(lode_factor_count_value(count.get(), LODE_COUNT_SUGGESTED, &v), "the factor count");
+  check(lode_factor_count_value(count.get(), LODE_FACTOR_COUNT_SUGGESTED, &v), "the factor count");
   r.suggested = static_cast<int>(v);
-  check(lode_factor_count_value(count.get(), LODE_COUNT_PERCENTILE, &r.percentile), "the factor count");
-  check(lode_factor_count_value(count.get(), LODE_COUNT_REPLICATES, &v), "the factor count");
+  check(lode_factor_count_value(count.get(), LODE_FACTOR_COUNT_PERCENTILE, &r.percentile), "the factor count");
+  check(lode_factor_count_value(count.get(), LODE_FACTOR_COUNT_REPLICATES, &v), "the factor count");
   r.replicates = static_cast<int>(v);
-  r.why = count_text(count.get(), LODE_COUNT_REASON);
-  for (const std::string& line : lines_of(count_text(count.get(), LODE_COUNT_TABLE))) {
+  r.why = count_text(count.get(), LODE_FACTOR_COUNT_REASON);
+  for (const std::string& line : lines_of(count_text(count.get(), LODE_FACTOR_COUNT_TABLE))) {
     CountResult::Rule rule;
     std::size_t a = line.find('\t'), b = line.find('\t', a + 1), c = line.find('\t', b + 1);
     if (a == std::string::npos || b == std::string::npos || c == std::string::npos) continue;
@@ -216,12 +216,12 @@ CountResult count_factors(const lode_correlation* corr, const Options& o, const 
     rule.basis = line.substr(c + 1);
     r.rules.push_back(rule);
   }
-  r.notes = lines_of(count_text(count.get(), LODE_COUNT_NOTES));
+  r.notes = lines_of(count_text(count.get(), LODE_FACTOR_COUNT_NOTES));
   r.available = true;
   return r;
 }
 
-// The fitted model (extraction, rotation, fit, residuals) through the C ABI's lode_fit; when it fails,
+// The fitted model (extraction, rotation, fit, residuals) through the C ABI's lode_model_compute; when it fails,
 // `reason` holds the C ABI's error message.
 struct ModelResult {
   bool available = false;
@@ -254,28 +254,28 @@ double model_value(const lode_model* m, int key) {
   return v;
 }
 
-// The run's extraction and rotation options for lode_fit (and the bootstrap, which refits the same
+// The run's extraction and rotation options for lode_model_compute (and the bootstrap, which refits the same
 // way). Not copyable: fo.rotation points into the same object.
 struct FitSetup {
-  lode_fit_options fo;
+  lode_model_options fo;
   lode_rotation_options ro;
   std::string rotation_used;  // which rotation is applied, in the option's word
   FitSetup(const Options& o, int factors) {
-    lode_fit_options_init(&fo, sizeof fo);
+    lode_model_options_init(&fo, sizeof fo);
     fo.factors = factors;
-    fo.method = o.extraction == "ml" ? LODE_ML : o.extraction == "paf" ? LODE_PAF : LODE_MINRES;
+    fo.method = o.extraction == "ml" ? LODE_EXTRACTION_ML : o.extraction == "paf" ? LODE_EXTRACTION_PAF : LODE_EXTRACTION_MINRES;
     lode_rotation_options_init(&ro, sizeof ro);
     ro.seed = o.seed;
     ro.threads = 1;
     rotation_used = o.rotation;
     if (o.rotation == "oblimin") {
-      ro.method = LODE_ROTATION_OBLIMIN;
+      ro.method = LODE_CRITERION_OBLIMIN;
       ro.gamma = o.rotation_parameter;
     } else if (o.rotation == "promax") {
-      ro.method = LODE_ROTATION_PROMAX;
+      ro.method = LODE_CRITERION_PROMAX;
       if (o.rotation_parameter > 0) ro.power = o.rotation_parameter;
     } else {
-      ro.method = LODE_ROTATION_VARIMAX;
+      ro.method = LODE_CRITERION_VARIMAX;
     }
     if (o.rotation != "none" && factors >= 2) fo.rotation = &ro;
     else if (o.rotation != "none") rotation_used = "none (one factor cannot be rotated)";
@@ -284,16 +284,16 @@ struct FitSetup {
   FitSetup& operator=(const FitSetup&) = delete;
 };
 
-// lode_fit with the run's options; the caller owns the model (NULL with the status on failure).
+// lode_model_compute with the run's options; the caller owns the model (NULL with the status on failure).
 lode_model* fit_raw(const lode_correlation* corr, const Options& o, int factors, std::string& rotation_used, int& status) {
   FitSetup setup(o, factors);
   rotation_used = setup.rotation_used;
   lode_model* raw = nullptr;
-  status = lode_fit(corr, &setup.fo, &raw);
+  status = lode_model_compute(corr, &setup.fo, &raw);
   return status == LODE_OK ? raw : nullptr;
 }
 
-// Bootstrap intervals of the fitted solution through the C ABI's lode_bootstrap; when it fails,
+// Bootstrap intervals of the fitted solution through the C ABI's lode_bootstrap_compute; when it fails,
 // `reason` says why.
 struct BootResult {
   bool available = false;
@@ -322,10 +322,10 @@ BootResult bootstrap_intervals(const lode_correlation* corr, const Options& o, i
   bo.progress = &ProgressBridge::call;
   bo.progress_user = &bridge;
   lode_bootstrap_result* raw = nullptr;
-  const int st = lode_bootstrap(corr, &setup.fo, &bo, &raw);
+  const int st = lode_bootstrap_compute(corr, &setup.fo, &bo, &raw);
   if (st == LODE_E_CANCELLED) throw Cancelled{};
   if (st != LODE_OK) {
-    r.reason = lode_last_error();
+    r.reason = lode_error_message();
     return r;
   }
   std::unique_ptr<lode_bootstrap_result, BootFree> b(raw);
@@ -373,7 +373,7 @@ ModelResult fit_model(const lode_correlation* corr, const Options& o, int factor
   lode_model* raw = fit_raw(corr, o, factors, r.rotation_used, st);
   if (st == LODE_E_CANCELLED) throw Cancelled{};
   if (st != LODE_OK) {
-    r.reason = lode_last_error();
+    r.reason = lode_error_message();
     // A number of factors the person fixed that the items cannot carry is a bad option, refused
     // before anything is written; a fit the data do not allow is reported inside the report.
     if (o.factors > 0 && (st == LODE_E_TOO_MANY_FACTORS || st == LODE_E_INVALID_ARGUMENT))
@@ -405,7 +405,7 @@ ModelResult fit_model(const lode_correlation* corr, const Options& o, int factor
     r.tli = model_value(m.get(), LODE_MODEL_TLI);
     r.bic = model_value(m.get(), LODE_MODEL_BIC);
   } else {
-    r.stats_reason = lode_last_error();
+    r.stats_reason = lode_error_message();
   }
   size_t len = 0;
   if (lode_model_text(m.get(), LODE_MODEL_NOTES, nullptr, 0, &len) == LODE_OK) {
@@ -437,7 +437,7 @@ std::vector<std::size_t> loading_order(const std::vector<double>& L, std::size_t
   return idx;
 }
 
-// ---- reliability of each factor's scale (C ABI: lode_mcdonald_omega, lode_cronbach_alpha) ----------
+// ---- reliability of each factor's scale (C ABI: lode_reliability_compute_omega, lode_reliability_compute_alpha) ----------
 
 struct RelFree {
   void operator()(lode_reliability* p) const noexcept { lode_reliability_free(p); }
@@ -492,12 +492,12 @@ struct ReliabilityResult {
   std::string omega_reason;  // set when omega could not be computed with the reverse-scored items
 };
 
-// Each item belongs to the scale of the factor of its largest absolute loading (lode_mcdonald_omega's
+// Each item belongs to the scale of the factor of its largest absolute loading (lode_reliability_compute_omega's
 // own rule, whose assignment is used for alpha too). An item loading negatively on its factor is
 // reverse-scored, as a scale score adds it: for alpha its answers become (lowest + highest observed
 // answer) - answer; for omega the model is refitted to the correlations with those items' signs
 // reversed (D R D, D = diag(+-1)), which reverses exactly their rows of loadings, and its factors are
-// matched to this solution by Tucker's congruence (lode_compare_loadings).
+// matched to this solution by Tucker's congruence (lode_comparison_compute).
 ReliabilityResult reliability(const ModelResult& model, const lode_correlation* corr, const Options& o,
                               const std::vector<double>& R, double n_obs, const std::vector<double>& values,
                               std::size_t n_rows, const std::vector<std::string>& names) {
@@ -505,8 +505,8 @@ ReliabilityResult reliability(const ModelResult& model, const lode_correlation* 
   const std::size_t p = names.size(), k = static_cast<std::size_t>(model.factors);
   (void)corr;
   lode_reliability* raw = nullptr;
-  if (lode_mcdonald_omega(model.handle.get(), nullptr, 0, &raw) != LODE_OK) {
-    out.reason = lode_last_error();
+  if (lode_reliability_compute_omega(model.handle.get(), nullptr, 0, &raw) != LODE_OK) {
+    out.reason = lode_error_message();
     return out;
   }
   std::unique_ptr<lode_reliability, RelFree> om(raw);
@@ -544,13 +544,13 @@ ReliabilityResult reliability(const ModelResult& model, const lode_correlation* 
     std::unique_ptr<lode_model, ModelFreeFn> m2;
     const std::int64_t n = std::isfinite(n_obs) && n_obs > 0 ? static_cast<std::int64_t>(n_obs) : 0;
     if (lode_data_from_correlation(drd.data(), static_cast<std::int64_t>(p), static_cast<std::int64_t>(p), 1, n, &rd) != LODE_OK)
-      why = lode_last_error();
+      why = lode_error_message();
     d2.reset(rd);
     if (why.empty()) {
       std::vector<const char*> cn;
       for (const std::string& s : names) cn.push_back(s.c_str());
       lode_data_set_item_names(d2.get(), cn.data(), static_cast<std::int64_t>(p));
-      if (lode_correlate(d2.get(), nullptr, &rc) != LODE_OK) why = lode_last_error();
+      if (lode_correlation_compute(d2.get(), nullptr, &rc) != LODE_OK) why = lode_error_message();
       c2.reset(rc);
     }
     if (why.empty()) {
@@ -558,7 +558,7 @@ ReliabilityResult reliability(const ModelResult& model, const lode_correlation* 
       int st = LODE_OK;
       m2.reset(fit_raw(c2.get(), o, model.factors, rot, st));
       if (st == LODE_E_CANCELLED) throw Cancelled{};
-      if (st != LODE_OK) why = lode_last_error();
+      if (st != LODE_OK) why = lode_error_message();
     }
     if (why.empty()) {
       std::vector<double> target(model.loadings);  // this solution with the reversed rows
@@ -568,8 +568,8 @@ ReliabilityResult reliability(const ModelResult& model, const lode_correlation* 
       const std::vector<double> refit = model_matrix(m2.get(), LODE_MODEL_LOADINGS);
       lode_comparison* rcmp = nullptr;
       const auto kk = static_cast<std::int64_t>(k);
-      if (lode_compare_loadings(target.data(), refit.data(), static_cast<std::int64_t>(p), kk, kk, 1, kk, 1, &rcmp) != LODE_OK) {
-        why = lode_last_error();
+      if (lode_comparison_compute(target.data(), refit.data(), static_cast<std::int64_t>(p), kk, kk, 1, kk, 1, &rcmp) != LODE_OK) {
+        why = lode_error_message();
       } else {
         std::unique_ptr<lode_comparison, CompFree> cmp(rcmp);
         std::int64_t a = 0, b = 0;
@@ -586,8 +586,8 @@ ReliabilityResult reliability(const ModelResult& model, const lode_correlation* 
           for (std::size_t j = 0; j < p; ++j)
             assign2[j] = assignment[j] < 0 ? -1 : static_cast<std::int64_t>(order[static_cast<std::size_t>(assignment[j])]);
           lode_reliability* r2 = nullptr;
-          if (lode_mcdonald_omega(m2.get(), assign2.data(), static_cast<std::int64_t>(p), &r2) != LODE_OK) {
-            why = lode_last_error();
+          if (lode_reliability_compute_omega(m2.get(), assign2.data(), static_cast<std::int64_t>(p), &r2) != LODE_OK) {
+            why = lode_error_message();
           } else {
             std::unique_ptr<lode_reliability, RelFree> om2(r2);
             const std::vector<double> w2 = rel_matrix(om2.get(), LODE_OMEGA);
@@ -646,8 +646,8 @@ ReliabilityResult reliability(const ModelResult& model, const lode_correlation* 
     std::unique_ptr<lode_data, DataFree> d(rd);
     check(lode_data_set_item_names(d.get(), cn.data(), static_cast<std::int64_t>(m)), "naming a scale's items");
     lode_reliability* ra = nullptr;
-    if (lode_cronbach_alpha(d.get(), &ra) != LODE_OK) {
-      sr.alpha_reason = lode_last_error();
+    if (lode_reliability_compute_alpha(d.get(), &ra) != LODE_OK) {
+      sr.alpha_reason = lode_error_message();
       out.scales.push_back(std::move(sr));
       continue;
     }
@@ -685,7 +685,7 @@ std::string reliability_words(double v) {
   return "low: under 0.70 (common practice)";
 }
 
-// ---- factor scores (C ABI: lode_score) --------------------------------------------------------------
+// ---- factor scores (C ABI: lode_scores_compute) --------------------------------------------------------------
 
 struct ScoresFree {
   void operator()(lode_scores* p) const noexcept { lode_scores_free(p); }
@@ -718,21 +718,21 @@ const char* score_method_short(const std::string& m) {
 // them out); pairwise scores from the answered items when at least half were answered.
 ScoreResult factor_scores(const ModelResult& model, const lode_data* data, const Options& o) {
   ScoreResult r;
-  lode_score_options so;
-  lode_score_options_init(&so, sizeof so);
-  so.method = o.scores == "bartlett" ? LODE_SCORES_BARTLETT : o.scores == "tenberge" ? LODE_SCORES_TENBERGE : LODE_SCORES_REGRESSION;
+  lode_scores_options so;
+  lode_scores_options_init(&so, sizeof so);
+  so.method = o.scores == "bartlett" ? LODE_ESTIMATOR_BARTLETT : o.scores == "tenberge" ? LODE_ESTIMATOR_CORRELATION_PRESERVING : LODE_ESTIMATOR_REGRESSION;
   if (o.missing == "listwise") {
-    so.missing = LODE_SCORE_LEAVE_MISSING;
+    so.missing = LODE_GAPS_LEAVE_MISSING;
     r.rule = "a respondent who skipped any item gets no scores (blank cells), as the listwise correlations left "
              "them out";
   } else {
-    so.missing = LODE_SCORE_FROM_ANSWERED;
+    so.missing = LODE_GAPS_FROM_ANSWERED;
     r.rule = "a respondent who skipped items is scored from the items answered, when at least " +
              fmt_num(100.0 * so.min_answered_share, 0) + "% of them were answered; otherwise no scores (blank cells)";
   }
   lode_scores* raw = nullptr;
-  if (lode_score(model.handle.get(), data, &so, &raw) != LODE_OK) {
-    r.reason = lode_last_error();
+  if (lode_scores_compute(model.handle.get(), data, &so, &raw) != LODE_OK) {
+    r.reason = lode_error_message();
     return r;
   }
   std::unique_ptr<lode_scores, ScoresFree> sc(raw);
@@ -781,7 +781,7 @@ void validate(const Options& o) {
   require("Scores", o.scores, {"none", "regression", "bartlett", "tenberge"});
   require("ScoresPlace", o.scores_place, {"beside", "sheet"});
   if (o.factors < 0 || o.factors > kMaxReportFactors) throw std::invalid_argument("option Factors must be 0 (suggest) to 100");
-  // One resample gives no interval (the C ABI's lode_bootstrap needs at least 2).
+  // One resample gives no interval (the C ABI's lode_bootstrap_compute needs at least 2).
   if (o.bootstrap < 0 || o.bootstrap == 1 || o.bootstrap > kMaxReportBootstrap)
     throw std::invalid_argument("option Bootstrap is " + std::to_string(o.bootstrap) +
                                 "; it must be 0 (off) or 2 to 100000 resamples");
@@ -905,14 +905,14 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
 
   lode_correlation_options copts;
   lode_correlation_options_init(&copts, sizeof copts);
-  copts.kind = o.correlation == "spearman" ? LODE_SPEARMAN : o.correlation == "polychoric" ? LODE_POLYCHORIC : LODE_PEARSON;
-  copts.missing = o.missing == "listwise" ? LODE_LISTWISE : LODE_PAIRWISE;
+  copts.kind = o.correlation == "spearman" ? LODE_COEFFICIENT_SPEARMAN : o.correlation == "polychoric" ? LODE_COEFFICIENT_POLYCHORIC : LODE_COEFFICIENT_PEARSON;
+  copts.missing = o.missing == "listwise" ? LODE_MISSING_LISTWISE : LODE_MISSING_PAIRWISE;
   copts.threads = 1;  // the office's other work keeps a core
   ProgressBridge bridge{&progress, "computing correlations", 0.05, corr_to};
   copts.progress = &ProgressBridge::call;
   copts.progress_user = &bridge;
   lode_correlation* raw_corr = nullptr;
-  check(lode_correlate(data.get(), &copts, &raw_corr), "computing the correlations");
+  check(lode_correlation_compute(data.get(), &copts, &raw_corr), "computing the correlations");
   std::unique_ptr<lode_correlation, CorrFree> corr(raw_corr);
   step("assessing the correlations", corr_to);
 
@@ -925,7 +925,7 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
     std::int64_t a = 0, b = 0;
     int st = lode_correlation_matrix(corr.get(), LODE_CORRELATION_SMC, nullptr, 0, &a, &b);
     if (st == LODE_OK) smc = read_corr_matrix(corr.get(), LODE_CORRELATION_SMC, &a, &b);
-    else smc_problem = lode_last_error();
+    else smc_problem = lode_error_message();
   }
   const double rows_total = read_corr_value(corr.get(), LODE_CORRELATION_ROWS_TOTAL);
   const double rows_used = read_corr_value(corr.get(), LODE_CORRELATION_ROWS_USED);
@@ -937,7 +937,7 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
 
   // Factorability (KMO, MSA, Bartlett) through the C ABI; parts it cannot compute come with a reason.
   lode_factorability* raw_fact = nullptr;
-  check(lode_assess_factorability(corr.get(), &raw_fact), "assessing factorability");
+  check(lode_factorability_compute(corr.get(), &raw_fact), "assessing factorability");
   std::unique_ptr<lode_factorability, FactFree> fact(raw_fact);
   const Maybe kmo = fact_value(fact.get(), LODE_FACTORABILITY_KMO);
   const std::string kmo_label = fact_text(fact.get(), LODE_FACTORABILITY_KMO_LABEL);

@@ -31,7 +31,7 @@ constexpr std::string_view kDataHelp =
 
 const std::vector<FunctionSpec> kTable = {
     {"version", "LODE.VERSION", "The version of Lode and of its C library, as text.", {},
-     "text, e.g. `Lode 0.1.0 (C ABI 1.0)`", "none", fn_version},
+     "text, e.g. `Lode 0.1.0 (C ABI 2.0)`", "none", fn_version},
     {"corr",
      "LODE.CORR",
      "The correlation matrix of the items (items x items; an array formula).",

@@ -24,16 +24,16 @@ static void expect_refused(const double* x, int64_t rows, int kind, int missing,
   ++checks;
   if (lode_correlation_options_init(&o, sizeof o) != LODE_OK || lode_data_from_raw(x, rows, 3, 3, 1, &d) != LODE_OK) {
     ++failures;
-    fprintf(stderr, "%s: setup failed: %s\n", pattern, lode_last_error());
+    fprintf(stderr, "%s: setup failed: %s\n", pattern, lode_error_message());
     return;
   }
   o.kind = kind;
   o.missing = missing;
-  got = lode_correlate(d, &o, &c);
-  if (got != status || strstr(lode_last_error(), fragment) == NULL) {
+  got = lode_correlation_compute(d, &o, &c);
+  if (got != status || strstr(lode_error_message(), fragment) == NULL) {
     ++failures;
     fprintf(stderr, "%s (kind %d, missing %d): status %d (%s), message '%s'; expected %d and '%s'\n", pattern,
-            kind, missing, got, lode_status_name(got), lode_last_error(), status, fragment);
+            kind, missing, got, lode_status_name(got), lode_error_message(), status, fragment);
   }
   lode_correlation_free(c);
   lode_data_free(d);
@@ -48,18 +48,18 @@ int main(void) {
   const double one_shared[8 * 3] = {1, 2, m, 2, 3, m, 3, 1, m, 4, 4, 2, m, m, 1, m, m, 2, m, m, 3, m, m, 5};
   /* Item 2 never answered. */
   const double whole_missing[6 * 3] = {1, m, 2, 2, m, 3, 3, m, 1, 4, m, 4, 2, m, 2, 5, m, 3};
-  const int kinds[3] = {LODE_PEARSON, LODE_SPEARMAN, LODE_POLYCHORIC};
+  const int kinds[3] = {LODE_COEFFICIENT_PEARSON, LODE_COEFFICIENT_SPEARMAN, LODE_COEFFICIENT_POLYCHORIC};
   int k;
   for (k = 0; k < 3; ++k) {
-    expect_refused(disjoint, 8, kinds[k], LODE_PAIRWISE, LODE_E_INSUFFICIENT_DATA,
+    expect_refused(disjoint, 8, kinds[k], LODE_MISSING_PAIRWISE, LODE_E_INSUFFICIENT_DATA,
                    "column 1 and column 3 are both answered in only 0 rows", "disjoint answer sets");
-    expect_refused(disjoint, 8, kinds[k], LODE_LISTWISE, LODE_E_INSUFFICIENT_DATA, "survive listwise deletion", "disjoint, listwise");
-    expect_refused(one_shared, 8, kinds[k], LODE_PAIRWISE, LODE_E_INSUFFICIENT_DATA,
+    expect_refused(disjoint, 8, kinds[k], LODE_MISSING_LISTWISE, LODE_E_INSUFFICIENT_DATA, "survive listwise deletion", "disjoint, listwise");
+    expect_refused(one_shared, 8, kinds[k], LODE_MISSING_PAIRWISE, LODE_E_INSUFFICIENT_DATA,
                    "column 1 and column 3 are both answered in only 1 rows", "one shared row");
-    expect_refused(one_shared, 8, kinds[k], LODE_LISTWISE, LODE_E_INSUFFICIENT_DATA, "survive listwise deletion", "one shared, listwise");
-    expect_refused(whole_missing, 6, kinds[k], LODE_PAIRWISE, LODE_E_INSUFFICIENT_DATA, "column 2 is answered in only 0",
+    expect_refused(one_shared, 8, kinds[k], LODE_MISSING_LISTWISE, LODE_E_INSUFFICIENT_DATA, "survive listwise deletion", "one shared, listwise");
+    expect_refused(whole_missing, 6, kinds[k], LODE_MISSING_PAIRWISE, LODE_E_INSUFFICIENT_DATA, "column 2 is answered in only 0",
                    "whole item missing");
-    expect_refused(whole_missing, 6, kinds[k], LODE_LISTWISE, LODE_E_INSUFFICIENT_DATA, "column 2 is answered in only 0",
+    expect_refused(whole_missing, 6, kinds[k], LODE_MISSING_LISTWISE, LODE_E_INSUFFICIENT_DATA, "column 2 is answered in only 0",
                    "whole item missing, listwise");
   }
   printf("%d checks, %d failures\n", checks, failures);

@@ -20,9 +20,9 @@ static int failures = 0;
     }                                                                          \
   } while (0)
 static void expect(int got, int status, const char* fragment, const char* call, int line) {
-  if (got != status || (fragment != NULL && strstr(lode_last_error(), fragment) == NULL)) {
+  if (got != status || (fragment != NULL && strstr(lode_error_message(), fragment) == NULL)) {
     ++failures;
-    fprintf(stderr, "line %d: %s gave %d (%s)\n", line, call, got, lode_last_error());
+    fprintf(stderr, "line %d: %s gave %d (%s)\n", line, call, got, lode_error_message());
   }
 }
 #define EXPECT(call, status, fragment) expect((call), (status), (fragment), #call, __LINE__)
@@ -127,8 +127,8 @@ int main(void) {
   OK(lode_correlation_options_init(&co, sizeof co));
   for (i = 0; i < 3; ++i) {
     co.kind = i;
-    OK(lode_correlate(raw, &co, &cr));
-    OK(lode_correlate(from_summary, &co, &cs));
+    OK(lode_correlation_compute(raw, &co, &cr));
+    OK(lode_correlation_compute(from_summary, &co, &cs));
     OK(lode_correlation_matrix(cr, LODE_CORRELATION_MATRIX, a, ITEMS * ITEMS, NULL, NULL));
     OK(lode_correlation_matrix(cs, LODE_CORRELATION_MATRIX, b, ITEMS * ITEMS, NULL, NULL));
     for (j = 0; j < ITEMS * ITEMS; ++j) CHECK(fabs(a[j] - b[j]) < 1e-12);
@@ -138,9 +138,9 @@ int main(void) {
     lode_correlation_free(cr);
     lode_correlation_free(cs);
   }
-  co.kind = LODE_PEARSON;
-  co.missing = LODE_LISTWISE;
-  EXPECT(lode_correlate(from_summary, &co, &cs), LODE_E_INVALID_ARGUMENT, "listwise");
+  co.kind = LODE_COEFFICIENT_PEARSON;
+  co.missing = LODE_MISSING_LISTWISE;
+  EXPECT(lode_correlation_compute(from_summary, &co, &cs), LODE_E_INVALID_ARGUMENT, "listwise");
 
   lode_data_free(raw);
   lode_data_free(from_summary);

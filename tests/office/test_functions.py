@@ -51,7 +51,7 @@ def test_function_wizard_lists_every_function_with_descriptions(office):
 
 def test_version(book):
     v = book.value("=LODE.VERSION()")
-    assert isinstance(v, str) and v.startswith("Lode ") and "C ABI 1." in v
+    assert isinstance(v, str) and v.startswith("Lode ") and "C ABI 2." in v
 
 
 def test_corr_pearson_matches_numpy_and_c(book, attitude):

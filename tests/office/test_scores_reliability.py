@@ -130,7 +130,7 @@ def test_tenberge_scores_reproduce_the_factor_correlations(book, attitude):
 
 def test_scores_with_missing_answers_follow_the_c_rule(book, judges):
     """A respondent who answered at least half of the items is scored from the items answered; one who
-    answered fewer shows #NUM! in every cell of the row (the C ABI's LODE_SCORE_FROM_ANSWERED)."""
+    answered fewer shows #NUM! in every cell of the row (the C ABI's LODE_GAPS_FROM_ANSWERED)."""
     names, x, _ = judges
     x = x.copy()
     x[2, 0] = np.nan                  # one item skipped: scored from the other eleven

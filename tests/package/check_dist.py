@@ -108,6 +108,7 @@ def main():
         with zipfile.ZipFile(io.BytesIO(blobs[names[1]])) as z:
             lib = [n for n in z.namelist() if re.fullmatch(r"lode/liblode\.so\.\d+", n)]
             check(len(lib) == 1, f"wheel holds lode/liblode.so.N: {lib}")
+            check("lode/_abi.py" in z.namelist(), "wheel holds lode/_abi.py (generated from lode.h by the build)")
             copies["wheel"] = z.read(lib[0])
         with tarfile.open(fileobj=io.BytesIO(blobs[names[2]])) as t:
             lib = [m for m in t.getmembers() if m.isfile() and re.search(r"/lib/liblode\.so\.\d+\.\d+\.\d+$", m.name)]

@@ -1,6 +1,6 @@
 #!/usr/bin/python3
 """The Windows zip from dist/ used as a Windows developer would: the C test suite (tests/capi:
-capi_test.c, strict C99, and header_cxx_test.cpp, the header from C++) cross-built with Debian's
+capi_test.c with its capi_<handle>_test.c files, strict C99, and header_cxx_test.cpp, the header from C++) cross-built with Debian's
 mingw-w64 against the zip's lode.h and import library alone, then run under Debian's wine64 with
 lode.dll beside the programs, in a fresh wine prefix. Every case must pass.
 
@@ -41,8 +41,9 @@ def main():
     # -static: the programs' own C/C++ runtime linked in (a fresh wine prefix has no mingw DLLs); the
     # import library is named by its path so that -static does not look for a liblode.a instead.
     c_exe = os.path.join(run_dir, "capi_test.exe")
+    c_sources = [os.path.join(tests, "capi_test.c")] + sorted(glob.glob(os.path.join(tests, "capi_*_test.c")))
     run([CC, "-std=c99", "-pedantic", "-Werror", "-Wall", "-Wextra", "-D__USE_MINGW_ANSI_STDIO=1", "-I", inc,
-         os.path.join(tests, "capi_test.c"), "-o", c_exe, implib, "-static"])
+         *c_sources, "-o", c_exe, implib, "-static"])
     cxx_exe = os.path.join(run_dir, "header_cxx_test.exe")
     run([CXX, "-std=c++20", "-Werror", "-Wall", "-Wextra", "-I", inc, os.path.join(tests, "header_cxx_test.cpp"),
          "-o", cxx_exe, implib, "-static"])

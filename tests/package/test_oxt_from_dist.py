@@ -73,7 +73,7 @@ def _cells(sheet, formula, rows, cols, left=10):
 
 def test_version_is_the_packaged_one(sheet):
     (v,), = _cells(sheet, "=LODE.VERSION()", 1, 1)
-    assert v.startswith(f"Lode {VERSION}") and "C ABI 1." in v, v
+    assert v.startswith(f"Lode {VERSION}") and "C ABI 2." in v, v
     assert lode.version()["version"] == VERSION
 
 

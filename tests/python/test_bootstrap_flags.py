@@ -1,4 +1,4 @@
-"""lode.bootstrap, lode.item_flags and the progress of lode.fit (C ABI 1.2), checked against numpy
+"""lode.bootstrap, lode.item_flags and the progress of lode.fit checked against numpy
 (numpy.percentile for the percentile intervals, the documented flag rules recomputed from the returned
 loadings), scipy (scipy.optimize.linear_sum_assignment for the alignment of replicates) and an
 independent bootstrap of a one-factor maximum likelihood model with scikit-learn's FactorAnalysis."""
@@ -270,20 +270,20 @@ def test_fit_progress_counts_extraction_and_starts_and_cancels():
     assert (50, 50) in seen and seen[-1] == (1, 1)
 
 
-def test_fit_options_of_abi_1_1_are_still_accepted():
-    # A caller built against ABI 1.1 passes lode_fit_options without the progress fields; the library
-    # must not read them (here: a callback that would cancel at once).
+def test_shorter_fit_options_are_still_accepted():
+    # A caller built against a header whose lode_model_options ended before the progress fields passes
+    # the shorter struct; the library must not read them (here: a callback that would cancel at once).
     c = lode.correlation(survey(200, 6, seed=92, factors=2))
-    o = _native.options(_native.FitOptions, "lode_fit_options_init", factors=2)
+    o = _native.options("lode_model_options", factors=2)
     calls = []
     cb = _native.make_progress(lambda d, t: calls.append(d) or False)
     o.progress = cb
     ptr = ctypes.c_void_p()
     with pytest.raises(lode.LodeError, match="cancelled"):
-        _native.check(lode.lib.lode_fit(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
-    o.struct_size = _native.FIT_OPTIONS_SIZE_1_1
+        _native.check(lode.lib.lode_model_compute(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    o.struct_size = _native.FIT_OPTIONS_SIZE_WITHOUT_PROGRESS
     calls.clear()
-    _native.check(lode.lib.lode_fit(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    _native.check(lode.lib.lode_model_compute(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
     lode.lib.lode_model_free(ptr)
     assert calls == []
-    assert lode.version()["abi"][1] >= 2
+    assert lode.version()["abi"][0] == 2

@@ -11,7 +11,7 @@ from refs import run_r, survey
 
 def test_version():
     v = lode.version()
-    assert v["abi"][0] == 1
+    assert v["abi"][0] == 2
     assert v["version"].count(".") == 2
 
 

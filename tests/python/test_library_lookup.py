@@ -13,8 +13,8 @@ def _touch(path):
 
 
 def test_lode_library_wins(tmp_path, monkeypatch):
-    monkeypatch.setenv("LODE_LIBRARY", "/somewhere/liblode.so.1")
-    assert list(_native._candidates(str(tmp_path))) == ["/somewhere/liblode.so.1"]
+    monkeypatch.setenv("LODE_LIBRARY", "/somewhere/liblode.so.2")
+    assert list(_native._candidates(str(tmp_path))) == ["/somewhere/liblode.so.2"]
 
 
 def test_windows_zip_layout_finds_bin(tmp_path, monkeypatch):
@@ -25,7 +25,7 @@ def test_windows_zip_layout_finds_bin(tmp_path, monkeypatch):
     dll = _touch(str(tmp_path / "bin" / "lode.dll"))
     found = list(_native._candidates(str(here), platform="win32"))
     assert found[0] == dll
-    assert not any(p.endswith(".so.1") for p in found)
+    assert not any(p.endswith(".so.2") for p in found)
     # a lode.dll inside the package comes first
     inside = _touch(str(here / "lode.dll"))
     assert list(_native._candidates(str(here), platform="win32"))[:2] == [inside, dll]
@@ -34,14 +34,14 @@ def test_windows_zip_layout_finds_bin(tmp_path, monkeypatch):
 def test_wheel_layout_finds_the_library_inside_the_package(tmp_path, monkeypatch):
     monkeypatch.delenv("LODE_LIBRARY", raising=False)
     here = tmp_path / "site-packages" / "lode"
-    so = _touch(str(here / "liblode.so.1"))
+    so = _touch(str(here / "liblode.so.2"))
     assert list(_native._candidates(str(here), platform="linux"))[0] == so
 
 
 def test_installed_prefix_finds_libdir(tmp_path, monkeypatch):
-    """cmake --install: <prefix>/lib/lode/python/lode is the package, <prefix>/lib/liblode.so.1."""
+    """cmake --install: <prefix>/lib/lode/python/lode is the package, <prefix>/lib/liblode.so.2."""
     monkeypatch.delenv("LODE_LIBRARY", raising=False)
     here = tmp_path / "lib" / "lode" / "python" / "lode"
     here.mkdir(parents=True)
-    so = _touch(str(tmp_path / "lib" / "liblode.so.1"))
+    so = _touch(str(tmp_path / "lib" / "liblode.so.2"))
     assert list(_native._candidates(str(here), platform="linux"))[0] == so

@@ -10,7 +10,7 @@ import ctypes
 
 import numpy as np
 
-from . import _checks, _native
+from . import _abi, _checks, _native
 from ._native import LodeError, lib, check
 from .summary import Summary, accepts_summary
 from .summary_sql import summary_from_sql
@@ -21,26 +21,17 @@ __all__ = ["LodeError", "ArgumentError", "version", "correlation", "Correlation"
            "scores", "Scores", "alpha", "Alpha", "omega", "Omega", "congruence", "Comparison", "item_flags",
            "ItemFlags", "bootstrap", "Bootstrap", "Summary", "summary_from_sql"]
 
-# Keys of lode.h (enum lode_correlation_key).
-_CORRELATION_MATRIX = 100
-_CORRELATION_PAIR_COUNTS = 101
-_CORRELATION_EIGENVALUES = 102
-_CORRELATION_REDUCED_EIGENVALUES = 103
-_CORRELATION_SMC = 104
-_CORRELATION_STANDARD_ERRORS = 105
-_CORRELATION_THRESHOLDS = 106
-_CORRELATION_VALUES = {
-    "items": 120, "n_obs": 121, "rows_total": 122, "rows_complete": 123, "rows_used": 124,
-    "min_pair_count": 125, "missing_fraction": 126, "positive_definite": 127, "smoothed": 128,
-    "smallest_eigenvalue_before": 129, "smoothing_max_change": 130, "smoothing_rms_change": 131,
-    "smoothing_converged": 132, "smoothing_iterations": 133, "pairs_not_converged": 136, "pairs_at_bound": 137,
-    "pairs_zero_cell_corrected": 138,
-}
-_CORRELATION_NOTES = 150
+# The numbers of a correlation handle, by attribute name (keys of lode.h: LODE_CORRELATION_<NAME>).
+_CORRELATION_VALUES = {name: getattr(_abi, "LODE_CORRELATION_" + name.upper()) for name in (
+    "items", "n_obs", "rows_total", "rows_complete", "rows_used", "min_pair_count", "missing_fraction",
+    "positive_definite", "smoothed", "smallest_eigenvalue_before", "smoothing_max_change", "smoothing_rms_change",
+    "smoothing_converged", "smoothing_iterations", "pairs_not_converged", "pairs_at_bound", "pairs_zero_cell_corrected")}
 
-_KINDS = {"pearson": 0, "spearman": 1, "polychoric": 2}
-_ZERO_CELLS = {"none": 0, "at_bound": 1, "always": 2}
-_MISSING = {"pairwise": 0, "listwise": 1}
+_KINDS = {"pearson": _abi.LODE_COEFFICIENT_PEARSON, "spearman": _abi.LODE_COEFFICIENT_SPEARMAN,
+          "polychoric": _abi.LODE_COEFFICIENT_POLYCHORIC}
+_ZERO_CELLS = {"none": _abi.LODE_ZERO_CELLS_NONE, "at_bound": _abi.LODE_ZERO_CELLS_AT_BOUND,
+               "always": _abi.LODE_ZERO_CELLS_ALWAYS}
+_MISSING = {"pairwise": _abi.LODE_MISSING_PAIRWISE, "listwise": _abi.LODE_MISSING_LISTWISE}
 
 
 def version():
@@ -117,17 +108,17 @@ class Correlation(_native.Handle):
     def __init__(self, pointer):
         super().__init__(pointer)
         fm = lib.lode_correlation_matrix
-        self.matrix = _native.get_matrix(fm, pointer, _CORRELATION_MATRIX)
+        self.matrix = _native.get_matrix(fm, pointer, _abi.LODE_CORRELATION_MATRIX)
         # Counts arrive as doubles: 2**63 - 1 (the largest n_obs) rounds up to 2**63, one past int64.
-        counts = _native.get_matrix(fm, pointer, _CORRELATION_PAIR_COUNTS)
+        counts = _native.get_matrix(fm, pointer, _abi.LODE_CORRELATION_PAIR_COUNTS)
         self.pair_counts = np.minimum(counts, np.nextafter(2.0 ** 63, 0)).astype(np.int64)
         self.pair_counts[counts >= 2.0 ** 63] = 2 ** 63 - 1
-        self.eigenvalues = _native.get_matrix(fm, pointer, _CORRELATION_EIGENVALUES)[:, 0]
+        self.eigenvalues = _native.get_matrix(fm, pointer, _abi.LODE_CORRELATION_EIGENVALUES)[:, 0]
         v = {k: _native.get_value(lib.lode_correlation_value, pointer, key) for k, key in _CORRELATION_VALUES.items()}
         self.positive_definite = bool(v["positive_definite"])
         try:
-            self.smc = _native.get_matrix(fm, pointer, _CORRELATION_SMC)[:, 0]
-            self.reduced_eigenvalues = _native.get_matrix(fm, pointer, _CORRELATION_REDUCED_EIGENVALUES)[:, 0]
+            self.smc = _native.get_matrix(fm, pointer, _abi.LODE_CORRELATION_SMC)[:, 0]
+            self.reduced_eigenvalues = _native.get_matrix(fm, pointer, _abi.LODE_CORRELATION_REDUCED_EIGENVALUES)[:, 0]
         except LodeError:
             self.smc = None
             self.reduced_eigenvalues = None
@@ -149,20 +140,20 @@ class Correlation(_native.Handle):
         self.standard_errors = self.thresholds = self.polychoric = None
         if v["pairs_not_converged"] or self._kind(pointer) == _KINDS["polychoric"]:
             try:
-                self.standard_errors = _native.get_matrix(fm, pointer, _CORRELATION_STANDARD_ERRORS)
-                th = _native.get_matrix(fm, pointer, _CORRELATION_THRESHOLDS)
+                self.standard_errors = _native.get_matrix(fm, pointer, _abi.LODE_CORRELATION_STANDARD_ERRORS)
+                th = _native.get_matrix(fm, pointer, _abi.LODE_CORRELATION_THRESHOLDS)
                 self.thresholds = [row[~np.isnan(row)] for row in th]
                 self.polychoric = {"not_converged": int(v["pairs_not_converged"]),
                                    "at_bound": int(v["pairs_at_bound"]),
                                    "zero_cell_corrected": int(v["pairs_zero_cell_corrected"])}
             except LodeError:  # a polychoric kind given with a matrix: no per-pair estimates
                 pass
-        text = _native.get_text(lib.lode_correlation_text, pointer, _CORRELATION_NOTES)
+        text = _native.get_text(lib.lode_correlation_text, pointer, _abi.LODE_CORRELATION_NOTES)
         self.notes = text.split("\n") if text else []
 
     @staticmethod
     def _kind(pointer):
-        return int(_native.get_value(lib.lode_correlation_value, pointer, 134))
+        return int(_native.get_value(lib.lode_correlation_value, pointer, _abi.LODE_CORRELATION_KIND))
 
     def __array__(self, dtype=None, copy=None):
         return self.matrix if dtype is None else self.matrix.astype(dtype)
@@ -173,7 +164,7 @@ class Correlation(_native.Handle):
 
 def _correlate(data, method, missing, smooth, min_eigenvalue=1e-6, min_pair_observations=3, threads=0,
                max_categories=10, zero_cells="at_bound", zero_cell_add=0.5, progress=None):
-    o = _native.options(_native.CorrelationOptions, "lode_correlation_options_init",
+    o = _native.options("lode_correlation_options",
                         kind=_choice(method, _KINDS, "correlation method"),
                         missing=_choice(missing, _MISSING, "missing-value policy"),
                         smooth=1 if smooth else 0, min_eigenvalue=min_eigenvalue,
@@ -184,7 +175,7 @@ def _correlate(data, method, missing, smooth, min_eigenvalue=1e-6, min_pair_obse
     if callback is not None:
         o.progress = callback
     ptr = ctypes.c_void_p()
-    check(lib.lode_correlate(data.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    check(lib.lode_correlation_compute(data.pointer, ctypes.byref(o), ctypes.byref(ptr)))
     del callback
     return Correlation(ptr.value)
 
@@ -226,17 +217,18 @@ class Factorability(_native.Handle):
     def __init__(self, pointer):
         super().__init__(pointer)
         m, v, t = lib.lode_factorability_matrix, lib.lode_factorability_value, lib.lode_factorability_text
-        self.kmo = _optional(lambda: _native.get_value(v, pointer, 220))
-        self.kmo_label = _optional(lambda: _native.get_text(t, pointer, 250))
-        self.msa = _optional(lambda: _native.get_matrix(m, pointer, 200)[:, 0])
-        self.smc = _optional(lambda: _native.get_matrix(m, pointer, 201)[:, 0])
-        chi = _optional(lambda: _native.get_value(v, pointer, 221))
+        self.kmo = _optional(lambda: _native.get_value(v, pointer, _abi.LODE_FACTORABILITY_KMO))
+        self.kmo_label = _optional(lambda: _native.get_text(t, pointer, _abi.LODE_FACTORABILITY_KMO_LABEL))
+        self.msa = _optional(lambda: _native.get_matrix(m, pointer, _abi.LODE_FACTORABILITY_MSA)[:, 0])
+        self.smc = _optional(lambda: _native.get_matrix(m, pointer, _abi.LODE_FACTORABILITY_SMC)[:, 0])
+        chi = _optional(lambda: _native.get_value(v, pointer, _abi.LODE_FACTORABILITY_BARTLETT_CHI_SQUARE))
         self.bartlett = None if chi is None else {
-            "chi_square": chi, "df": _native.get_value(v, pointer, 222), "p_value": _native.get_value(v, pointer, 223),
-            "n_obs": int(_native.get_value(v, pointer, 224))}
-        self.determinant = _native.get_value(v, pointer, 225)
-        self.log_determinant = _native.get_value(v, pointer, 226)
-        self.notes = _lines(_native.get_text(t, pointer, 251))
+            "chi_square": chi, "df": _native.get_value(v, pointer, _abi.LODE_FACTORABILITY_BARTLETT_DF),
+            "p_value": _native.get_value(v, pointer, _abi.LODE_FACTORABILITY_BARTLETT_P_VALUE),
+            "n_obs": int(_native.get_value(v, pointer, _abi.LODE_FACTORABILITY_BARTLETT_N_OBS))}
+        self.determinant = _native.get_value(v, pointer, _abi.LODE_FACTORABILITY_DETERMINANT)
+        self.log_determinant = _native.get_value(v, pointer, _abi.LODE_FACTORABILITY_LOG_DETERMINANT)
+        self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_FACTORABILITY_NOTES))
 
     def __repr__(self):
         return f"<lode.Factorability kmo={self.kmo}>"
@@ -269,7 +261,7 @@ def factorability(X=None, *, corr=None, cov=None, n_obs=None, correlation="pears
     :class:`Factorability`."""
     c = _correlation_of(X, corr, cov, n_obs, correlation, missing, smooth, item_names)
     ptr = ctypes.c_void_p()
-    check(lib.lode_assess_factorability(c.pointer, ctypes.byref(ptr)))
+    check(lib.lode_factorability_compute(c.pointer, ctypes.byref(ptr)))
     return Factorability(ptr.value)
 
 
@@ -277,8 +269,8 @@ def factorability(X=None, *, corr=None, cov=None, n_obs=None, correlation="pears
 
 # ---- factor count ----------------------------------------------------------------------------------
 
-_SOURCES = {"normal": 0, "permutation": 1}
-_THRESHOLDS = {"percentile": 0, "mean": 1}
+_SOURCES = {"normal": _abi.LODE_RANDOM_SOURCE_NORMAL, "permutation": _abi.LODE_RANDOM_SOURCE_PERMUTATION}
+_THRESHOLDS = {"percentile": _abi.LODE_THRESHOLD_PERCENTILE, "mean": _abi.LODE_THRESHOLD_MEAN}
 
 
 class FactorCount(_native.Handle):
@@ -300,32 +292,40 @@ class FactorCount(_native.Handle):
         m, v, t = lib.lode_factor_count_matrix, lib.lode_factor_count_value, lib.lode_factor_count_text
         col = lambda key: _native.get_matrix(m, pointer, key)[:, 0]  # noqa: E731
         num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
-        self.suggested = int(num(320))
-        self.reason = _native.get_text(t, pointer, 350)
-        self.notes = _lines(_native.get_text(t, pointer, 352))
+        self.suggested = int(num(_abi.LODE_FACTOR_COUNT_SUGGESTED))
+        self.reason = _native.get_text(t, pointer, _abi.LODE_FACTOR_COUNT_REASON)
+        self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_FACTOR_COUNT_NOTES))
         self.table = []
-        for line in _lines(_native.get_text(t, pointer, 351)):
+        for line in _lines(_native.get_text(t, pointer, _abi.LODE_FACTOR_COUNT_TABLE)):
             rule, count, primary, basis = line.split("\t", 3)
             self.table.append({"rule": rule, "factors": int(count), "primary": primary == "1", "basis": basis})
         self.by_rule = {row["rule"]: row["factors"] for row in self.table}
         self.parallel = {
-            "observed_pc": col(300), "observed_factor": col(301), "random_pc_mean": col(302),
-            "random_pc_percentile": col(303), "random_factor_mean": col(304), "random_factor_percentile": col(305),
-            "suggested_pc": int(num(321)), "suggested_factor": int(num(322)), "replicates": int(num(327)),
-            "percentile": num(329)}
-        self.map = {"average_squared": col(306), "average_fourth": col(307), "suggested_squared": int(num(323)),
-                    "suggested_fourth": int(num(324))}
-        self.kaiser = int(num(325))
-        self.empirical_kaiser = int(num(326))
-        self.ekc_reference = col(308)
-        self.n_obs = int(num(328))
+            "observed_pc": col(_abi.LODE_FACTOR_COUNT_OBSERVED_PC),
+            "observed_factor": col(_abi.LODE_FACTOR_COUNT_OBSERVED_FACTOR),
+            "random_pc_mean": col(_abi.LODE_FACTOR_COUNT_RANDOM_PC_MEAN),
+            "random_pc_percentile": col(_abi.LODE_FACTOR_COUNT_RANDOM_PC_PERCENTILE),
+            "random_factor_mean": col(_abi.LODE_FACTOR_COUNT_RANDOM_FACTOR_MEAN),
+            "random_factor_percentile": col(_abi.LODE_FACTOR_COUNT_RANDOM_FACTOR_PERCENTILE),
+            "suggested_pc": int(num(_abi.LODE_FACTOR_COUNT_PARALLEL_PC)),
+            "suggested_factor": int(num(_abi.LODE_FACTOR_COUNT_PARALLEL_FACTOR)),
+            "replicates": int(num(_abi.LODE_FACTOR_COUNT_REPLICATES)),
+            "percentile": num(_abi.LODE_FACTOR_COUNT_PERCENTILE)}
+        self.map = {"average_squared": col(_abi.LODE_FACTOR_COUNT_MAP_SQUARED),
+                    "average_fourth": col(_abi.LODE_FACTOR_COUNT_MAP_FOURTH),
+                    "suggested_squared": int(num(_abi.LODE_FACTOR_COUNT_MAP_SQUARED_SUGGESTED)),
+                    "suggested_fourth": int(num(_abi.LODE_FACTOR_COUNT_MAP_FOURTH_SUGGESTED))}
+        self.kaiser = int(num(_abi.LODE_FACTOR_COUNT_KAISER))
+        self.empirical_kaiser = int(num(_abi.LODE_FACTOR_COUNT_EMPIRICAL_KAISER))
+        self.ekc_reference = col(_abi.LODE_FACTOR_COUNT_EKC_REFERENCE)
+        self.n_obs = int(num(_abi.LODE_FACTOR_COUNT_N_OBS))
 
     def __repr__(self):
         return f"<lode.FactorCount suggested={self.suggested}>"
 
 
 def _count_options(replicates, seed, percentile, threshold, source, threads, progress):
-    o = _native.options(_native.FactorCountOptions, "lode_factor_count_options_init")
+    o = _native.options("lode_factor_count_options")
     if replicates is not None:
         _checks.put(o, "replicates", replicates)
     if seed is not None:
@@ -354,7 +354,7 @@ def n_factors(X=None, *, corr=None, cov=None, n_obs=None, replicates=None, seed=
     c = _correlation_of(X, corr, cov, n_obs, correlation, missing, smooth, item_names)
     o, keep = _count_options(replicates, seed, percentile, threshold, source, threads, progress)
     ptr = ctypes.c_void_p()
-    check(lib.lode_count_factors(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    check(lib.lode_factor_count_compute(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
     del keep
     return FactorCount(ptr.value)
 
@@ -388,7 +388,7 @@ def _rotation_method(name):
 
 def _rotation_options(rotation, normalize, gamma, kappa, epsilon, power, target, random_starts, seed, threads):
     """The rotation option struct and the arrays it points to (kept alive by the caller)."""
-    o = _native.options(_native.RotationOptions, "lode_rotation_options_init")
+    o = _native.options("lode_rotation_options")
     o.method = _rotation_method(rotation)
     o.normalize = 1 if normalize else 0
     _checks.put(o, "gamma", gamma)
@@ -432,21 +432,26 @@ class Rotation(_native.Handle):
         m, v, t = lib.lode_rotation_matrix, lib.lode_rotation_value, lib.lode_rotation_text
         mat = lambda key: _native.get_matrix(m, pointer, key)  # noqa: E731
         num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
-        self.loadings = mat(500)
-        self.structure = mat(501)
-        self.factor_correlations = mat(502)
-        self.rotation_matrix = mat(503)
-        self.ss_loadings = mat(504)[:, 0]
-        self.ss_structure = mat(505)[:, 0]
-        self.criterion = num(520)
-        self.converged = bool(num(521))
-        self.iterations = int(num(522))
-        self.oblique = bool(num(523))
-        self.method = _native.get_text(t, pointer, 550)
-        self.convergence = {"converged": self.converged, "iterations": self.iterations, "final_change": num(529),
-                            "tolerance": num(530), "max_iterations": int(num(531))}
-        self.starts = {"starts": int(num(524)), "converged": int(num(525)), "reached_best": int(num(526)),
-                       "distinct_solutions": int(num(527)), "criteria": mat(506)[:, 0]}
+        self.loadings = mat(_abi.LODE_ROTATION_PATTERN)
+        self.structure = mat(_abi.LODE_ROTATION_STRUCTURE)
+        self.factor_correlations = mat(_abi.LODE_ROTATION_FACTOR_CORRELATIONS)
+        self.rotation_matrix = mat(_abi.LODE_ROTATION_TRANSFORM)
+        self.ss_loadings = mat(_abi.LODE_ROTATION_SS_PATTERN)[:, 0]
+        self.ss_structure = mat(_abi.LODE_ROTATION_SS_STRUCTURE)[:, 0]
+        self.criterion = num(_abi.LODE_ROTATION_CRITERION)
+        self.converged = bool(num(_abi.LODE_ROTATION_CONVERGED))
+        self.iterations = int(num(_abi.LODE_ROTATION_ITERATIONS))
+        self.oblique = bool(num(_abi.LODE_ROTATION_OBLIQUE))
+        self.method = _native.get_text(t, pointer, _abi.LODE_ROTATION_METHOD_NAME)
+        self.convergence = {"converged": self.converged, "iterations": self.iterations,
+                            "final_change": num(_abi.LODE_ROTATION_FINAL_CHANGE),
+                            "tolerance": num(_abi.LODE_ROTATION_TOLERANCE),
+                            "max_iterations": int(num(_abi.LODE_ROTATION_MAX_ITERATIONS))}
+        self.starts = {"starts": int(num(_abi.LODE_ROTATION_STARTS)),
+                       "converged": int(num(_abi.LODE_ROTATION_STARTS_CONVERGED)),
+                       "reached_best": int(num(_abi.LODE_ROTATION_REACHED_BEST)),
+                       "distinct_solutions": int(num(_abi.LODE_ROTATION_DISTINCT_SOLUTIONS)),
+                       "criteria": mat(_abi.LODE_ROTATION_START_CRITERIA)[:, 0]}
 
     def __repr__(self):
         return f"<lode.Rotation {self.method} {self.loadings.shape}>"
@@ -467,14 +472,15 @@ def rotate(loadings, rotation="varimax", *, normalize=True, gamma=0.0, kappa=Non
     a, rows, cols, rs, cs = _native.as_strided_matrix(loadings, "loadings")
     o, keep = _rotation_options(rotation, normalize, gamma, kappa, epsilon, power, target, random_starts, seed, threads)
     ptr = ctypes.c_void_p()
-    check(lib.lode_rotate(_native.data_pointer(a), rows, cols, rs, cs, ctypes.byref(o), ctypes.byref(ptr)))
+    check(lib.lode_rotation_compute(_native.data_pointer(a), rows, cols, rs, cs, ctypes.byref(o), ctypes.byref(ptr)))
     del keep
     return Rotation(ptr.value)
 
 
 # ---- fit -------------------------------------------------------------------------------------------
 
-_METHODS = {"ml": 0, "paf": 1, "minres": 2, "pca": 3}
+_METHODS = {"ml": _abi.LODE_EXTRACTION_ML, "paf": _abi.LODE_EXTRACTION_PAF, "minres": _abi.LODE_EXTRACTION_MINRES,
+            "pca": _abi.LODE_EXTRACTION_PCA}
 _METHOD_NAMES = {v: k for k, v in _METHODS.items()}
 
 
@@ -505,41 +511,46 @@ class Model(_native.Handle):
         m, v, t = lib.lode_model_matrix, lib.lode_model_value, lib.lode_model_text
         mat = lambda key: _native.get_matrix(m, pointer, key)  # noqa: E731
         num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
-        self.loadings = mat(400)
-        self.structure = mat(401)
-        self.factor_correlations = mat(402)
-        self.rotation_matrix = mat(403)
-        self.unrotated_loadings = mat(404)
-        self.uniquenesses = mat(405)[:, 0]
-        self.communalities = mat(406)[:, 0]
-        self.residuals = mat(407)
-        self.heywood = mat(408)[:, 0] != 0
-        self.ss_loadings = mat(409)[:, 0]
-        self.ss_structure = mat(410)[:, 0]
-        self.factors = int(num(420))
-        self.n_obs = int(num(422))
-        self.converged = bool(num(423))
-        self.iterations = int(num(424))
-        self.objective = num(426)
-        self.oblique = bool(num(441))
-        self.method = _METHOD_NAMES.get(int(num(442)), "unknown")
-        self.rotation = lib.lode_rotation_method_name(int(num(443))).decode()
-        self.suggested_factors = int(num(444))
-        self.convergence = {"converged": self.converged, "iterations": self.iterations, "final_change": num(445),
-                            "tolerance": num(446), "max_iterations": int(num(447))}
-        self.rotation_starts = int(num(448)) if _native.ABI_MINOR >= 2 else None
-        self.notes = _lines(_native.get_text(t, pointer, 450))
+        self.loadings = mat(_abi.LODE_MODEL_LOADINGS)
+        self.structure = mat(_abi.LODE_MODEL_STRUCTURE)
+        self.factor_correlations = mat(_abi.LODE_MODEL_FACTOR_CORRELATIONS)
+        self.rotation_matrix = mat(_abi.LODE_MODEL_ROTATION_MATRIX)
+        self.unrotated_loadings = mat(_abi.LODE_MODEL_UNROTATED_LOADINGS)
+        self.uniquenesses = mat(_abi.LODE_MODEL_UNIQUENESSES)[:, 0]
+        self.communalities = mat(_abi.LODE_MODEL_COMMUNALITIES)[:, 0]
+        self.residuals = mat(_abi.LODE_MODEL_RESIDUALS)
+        self.heywood = mat(_abi.LODE_MODEL_HEYWOOD)[:, 0] != 0
+        self.ss_loadings = mat(_abi.LODE_MODEL_SS_LOADINGS)[:, 0]
+        self.ss_structure = mat(_abi.LODE_MODEL_SS_STRUCTURE)[:, 0]
+        self.factors = int(num(_abi.LODE_MODEL_FACTORS))
+        self.n_obs = int(num(_abi.LODE_MODEL_N_OBS))
+        self.converged = bool(num(_abi.LODE_MODEL_CONVERGED))
+        self.iterations = int(num(_abi.LODE_MODEL_ITERATIONS))
+        self.objective = num(_abi.LODE_MODEL_OBJECTIVE)
+        self.oblique = bool(num(_abi.LODE_MODEL_OBLIQUE))
+        self.method = _METHOD_NAMES.get(int(num(_abi.LODE_MODEL_METHOD)), "unknown")
+        self.rotation = lib.lode_rotation_method_name(int(num(_abi.LODE_MODEL_ROTATION_METHOD))).decode()
+        self.suggested_factors = int(num(_abi.LODE_MODEL_SUGGESTED_FACTORS))
+        self.convergence = {"converged": self.converged, "iterations": self.iterations,
+                            "final_change": num(_abi.LODE_MODEL_FINAL_CHANGE),
+                            "tolerance": num(_abi.LODE_MODEL_TOLERANCE),
+                            "max_iterations": int(num(_abi.LODE_MODEL_MAX_ITERATIONS))}
+        self.rotation_starts = int(num(_abi.LODE_MODEL_ROTATION_STARTS))
+        self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_MODEL_NOTES))
         self.statistics_unavailable = None
         try:
-            chi = num(429)
+            chi = num(_abi.LODE_MODEL_CHI_SQUARE)
         except LodeError as e:
             chi = None
             self.statistics_unavailable = e.message
         stat = (lambda key: num(key)) if chi is not None else (lambda key: None)
         self.statistics = {
-            "chi_square": chi, "df": stat(430), "p_value": stat(431), "rmsea": stat(432),
-            "rmsea_ci": None if chi is None else (num(433), num(434)), "tli": stat(435), "bic": stat(436),
-            "rmsr": num(427), "max_abs_residual": num(428), "null_chi_square": stat(437), "null_df": stat(438)}
+            "chi_square": chi, "df": stat(_abi.LODE_MODEL_DF), "p_value": stat(_abi.LODE_MODEL_P_VALUE),
+            "rmsea": stat(_abi.LODE_MODEL_RMSEA),
+            "rmsea_ci": None if chi is None else (num(_abi.LODE_MODEL_RMSEA_LOWER), num(_abi.LODE_MODEL_RMSEA_UPPER)),
+            "tli": stat(_abi.LODE_MODEL_TLI), "bic": stat(_abi.LODE_MODEL_BIC),
+            "rmsr": num(_abi.LODE_MODEL_RMSR), "max_abs_residual": num(_abi.LODE_MODEL_MAX_ABS_RESIDUAL),
+            "null_chi_square": stat(_abi.LODE_MODEL_NULL_CHI_SQUARE), "null_df": stat(_abi.LODE_MODEL_NULL_DF)}
 
     def item_flags(self, **thresholds):
         """The items of this model that need a look; the same as :func:`item_flags` (``model``, then
@@ -580,19 +591,19 @@ def fit(X=None, *, corr=None, cov=None, n_obs=None, factors=None, method="ml", r
         co, callback = _count_options(replicates, seed, 95.0, "percentile", "normal", 0, progress)
         keep += [co, callback]
         o.factor_count = ctypes.pointer(co)
-    if progress is not None and _native.ABI_MINOR >= 2:  # older libraries report the factor count only
+    if progress is not None:
         callback = _native.make_progress(progress)
         keep.append(callback)
         o.progress = callback
     ptr = ctypes.c_void_p()
-    check(lib.lode_fit(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    check(lib.lode_model_compute(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
     del keep
     return Model(ptr.value)
 
 
 def _fit_options(factors, method, max_iterations, tolerance, min_uniqueness, rotation, seed, rotation_keywords,
                  what):
-    """lode_fit_options for an explicit number of factors and a rotation with its keywords; returns
+    """lode_model_options for an explicit number of factors and a rotation with its keywords; returns
     the struct and the objects it points to (kept alive by the caller)."""
     if seed is not None:
         _checks.whole(seed, "seed", 0, 2 ** 64 - 1)  # (used only by some paths, checked on all)
@@ -600,7 +611,7 @@ def _fit_options(factors, method, max_iterations, tolerance, min_uniqueness, rot
     unknown = set(rotation_keywords) - allowed
     if unknown:
         raise ArgumentError(f"{what}() got unexpected keyword(s): {', '.join(sorted(unknown))}")
-    o = _native.options(_native.FitOptions, "lode_fit_options_init", factors=factors,
+    o = _native.options("lode_model_options", factors=factors,
                         method=_choice(method, _METHODS, "extraction method"), max_iterations=max_iterations,
                         tolerance=tolerance, min_uniqueness=min_uniqueness)
     keep = []

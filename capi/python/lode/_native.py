@@ -7,7 +7,9 @@ import sys
 
 import numpy as np
 
-ABI_MAJOR = 1
+from . import _abi
+
+ABI_MAJOR = _abi.LODE_ABI_VERSION_MAJOR
 
 c_int = ctypes.c_int
 c_int64 = ctypes.c_int64
@@ -20,7 +22,7 @@ P_int64 = ctypes.POINTER(c_int64)
 P_size_t = ctypes.POINTER(c_size_t)
 P_void_p = ctypes.POINTER(c_void_p)
 
-PROGRESS_FN = ctypes.CFUNCTYPE(c_int, c_void_p, c_int64, c_int64)
+PROGRESS_FN = _abi.lode_progress_fn
 
 
 class LodeError(Exception):
@@ -34,18 +36,6 @@ class LodeError(Exception):
         self.message = message
 
 
-class VersionInfo(ctypes.Structure):
-    _fields_ = [("major", c_int), ("minor", c_int), ("patch", c_int), ("abi_major", c_int),
-                ("abi_minor", c_int), ("string", c_char_p)]
-
-
-class CorrelationOptions(ctypes.Structure):
-    _fields_ = [("struct_size", c_size_t), ("kind", c_int), ("missing", c_int), ("smooth", c_int),
-                ("min_eigenvalue", c_double), ("min_pair_observations", c_int64), ("threads", c_int),
-                ("max_categories", c_int), ("zero_cells", c_int), ("zero_cell_add", c_double),
-                ("progress", PROGRESS_FN), ("progress_user", c_void_p)]
-
-
 def _candidates(here=None, platform=None):
     """Where liblode is looked for, in order: LODE_LIBRARY; beside the package (the wheel); the
     library folder of an installed prefix (the package sits in <libdir>/lode/python/lode); on
@@ -57,7 +47,7 @@ def _candidates(here=None, platform=None):
         return
     here = here or os.path.dirname(os.path.abspath(__file__))
     windows = (platform or sys.platform) == "win32"
-    names = ("lode.dll",) if windows else ("liblode.so.1", "liblode.so", "liblode.dylib")
+    names = ("lode.dll",) if windows else ("liblode.so.2", "liblode.so", "liblode.dylib")
     libdir = os.path.normpath(os.path.join(here, "..", "..", ".."))
     folders = [here, os.path.dirname(here), libdir]
     if windows:
@@ -85,17 +75,17 @@ lib = _load()
 
 # name: (restype, argtypes)
 _SIGNATURES = {
-    "lode_version": (ctypes.POINTER(VersionInfo), []),
+    "lode_version": (ctypes.POINTER(_abi.lode_version_info), []),
     "lode_status_name": (c_char_p, [c_int]),
-    "lode_last_error": (c_char_p, []),
+    "lode_error_message": (c_char_p, []),
     "lode_data_from_raw": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, P_void_p]),
     "lode_data_from_correlation": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, P_void_p]),
     "lode_data_from_covariance": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, P_void_p]),
     "lode_data_set_item_names": (c_int, [c_void_p, ctypes.POINTER(c_char_p), c_int64]),
     "lode_data_shape": (c_int, [c_void_p, P_int64, P_int64]),
     "lode_data_free": (None, [c_void_p]),
-    "lode_correlation_options_init": (c_int, [ctypes.POINTER(CorrelationOptions), c_size_t]),
-    "lode_correlate": (c_int, [c_void_p, ctypes.POINTER(CorrelationOptions), P_void_p]),
+    "lode_correlation_options_init": (c_int, [ctypes.POINTER(_abi.lode_correlation_options), c_size_t]),
+    "lode_correlation_compute": (c_int, [c_void_p, ctypes.POINTER(_abi.lode_correlation_options), P_void_p]),
     "lode_correlation_free": (None, [c_void_p]),
     "lode_correlation_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
     "lode_correlation_value": (c_int, [c_void_p, c_int, P_double]),
@@ -119,7 +109,7 @@ if _info.abi_major != ABI_MAJOR:
 
 
 _factorability_signatures = {
-    "lode_assess_factorability": (c_int, [c_void_p, P_void_p]),
+    "lode_factorability_compute": (c_int, [c_void_p, P_void_p]),
     "lode_factorability_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
     "lode_factorability_value": (c_int, [c_void_p, c_int, P_double]),
     "lode_factorability_text": (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t]),
@@ -128,15 +118,9 @@ _factorability_signatures = {
 declare(_factorability_signatures)
 
 
-class FactorCountOptions(ctypes.Structure):
-    _fields_ = [("struct_size", c_size_t), ("replicates", c_int64), ("threshold", c_int), ("percentile", c_double),
-                ("source", c_int), ("seed", ctypes.c_uint64), ("threads", c_int), ("progress", PROGRESS_FN),
-                ("progress_user", c_void_p)]
-
-
 _count_signatures = {
-    "lode_factor_count_options_init": (c_int, [ctypes.POINTER(FactorCountOptions), c_size_t]),
-    "lode_count_factors": (c_int, [c_void_p, ctypes.POINTER(FactorCountOptions), P_void_p]),
+    "lode_factor_count_options_init": (c_int, [ctypes.POINTER(_abi.lode_factor_count_options), c_size_t]),
+    "lode_factor_count_compute": (c_int, [c_void_p, ctypes.POINTER(_abi.lode_factor_count_options), P_void_p]),
     "lode_factor_count_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
     "lode_factor_count_value": (c_int, [c_void_p, c_int, P_double]),
     "lode_factor_count_text": (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t]),
@@ -145,25 +129,9 @@ _count_signatures = {
 declare(_count_signatures)
 
 
-class RotationOptions(ctypes.Structure):
-    _fields_ = [("struct_size", c_size_t), ("method", c_int), ("normalize", c_int), ("gamma", c_double),
-                ("kappa", c_double), ("epsilon", c_double), ("power", c_double), ("target", P_double),
-                ("target_rows", c_int64), ("target_cols", c_int64), ("target_row_stride", c_int64),
-                ("target_col_stride", c_int64), ("random_starts", c_int), ("seed", ctypes.c_uint64),
-                ("max_iterations", c_int), ("tolerance", c_double), ("threads", c_int)]
-
-
-class FitOptions(ctypes.Structure):
-    _fields_ = [("struct_size", c_size_t), ("factors", c_int), ("method", c_int), ("max_iterations", c_int),
-                ("tolerance", c_double), ("min_uniqueness", c_double), ("interval_level", c_double),
-                ("rotation", ctypes.POINTER(RotationOptions)), ("factor_count", ctypes.POINTER(FactorCountOptions)),
-                # ABI 1.2
-                ("progress", PROGRESS_FN), ("progress_user", c_void_p)]
-
-
-# The size of lode_fit_options before ABI 1.2 (without the progress fields): what is passed to an
-# older library, which would refuse the larger struct only if its new fields were set.
-FIT_OPTIONS_SIZE_1_1 = FitOptions.progress.offset
+# The size of lode_model_options without its last fields (progress): what a caller built against a
+# shorter struct passes; the library takes the defaults for the fields beyond it.
+FIT_OPTIONS_SIZE_WITHOUT_PROGRESS = _abi.lode_model_options.progress.offset
 
 
 _getters = {}
@@ -175,18 +143,13 @@ for _kind in ("rotation", "model"):
 _getters.update({
     "lode_rotation_method_from_name": (c_int, [c_char_p, ctypes.POINTER(c_int)]),
     "lode_rotation_method_name": (c_char_p, [c_int]),
-    "lode_rotation_options_init": (c_int, [ctypes.POINTER(RotationOptions), c_size_t]),
-    "lode_rotate": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, ctypes.POINTER(RotationOptions), P_void_p]),
-    "lode_fit_options_init": (c_int, [ctypes.POINTER(FitOptions), c_size_t]),
-    "lode_fit": (c_int, [c_void_p, ctypes.POINTER(FitOptions), P_void_p]),
+    "lode_rotation_options_init": (c_int, [ctypes.POINTER(_abi.lode_rotation_options), c_size_t]),
+    "lode_rotation_compute": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64,
+                                      ctypes.POINTER(_abi.lode_rotation_options), P_void_p]),
+    "lode_model_options_init": (c_int, [ctypes.POINTER(_abi.lode_model_options), c_size_t]),
+    "lode_model_compute": (c_int, [c_void_p, ctypes.POINTER(_abi.lode_model_options), P_void_p]),
 })
 declare(_getters)
-
-
-
-class ScoreOptions(ctypes.Structure):
-    _fields_ = [("struct_size", c_size_t), ("method", c_int), ("missing", c_int), ("min_answered_share", c_double),
-                ("low_determinacy", c_double)]
 
 
 _more = {}
@@ -196,34 +159,33 @@ for _kind in ("scores", "reliability"):
     _more[f"lode_{_kind}_text"] = (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t])
     _more[f"lode_{_kind}_free"] = (None, [c_void_p])
 _more.update({
-    "lode_score_options_init": (c_int, [ctypes.POINTER(ScoreOptions), c_size_t]),
-    "lode_score": (c_int, [c_void_p, c_void_p, ctypes.POINTER(ScoreOptions), P_void_p]),
-    "lode_cronbach_alpha": (c_int, [c_void_p, P_void_p]),
-    "lode_mcdonald_omega": (c_int, [c_void_p, P_int64, c_int64, P_void_p]),
-    "lode_omega_single_scale": (c_int, [c_void_p, ctypes.POINTER(FitOptions), P_void_p]),
-    "lode_compare_loadings": (c_int, [P_double, P_double, c_int64, c_int64, c_int64, c_int64, c_int64, c_int64,
+    "lode_scores_options_init": (c_int, [ctypes.POINTER(_abi.lode_scores_options), c_size_t]),
+    "lode_scores_compute": (c_int, [c_void_p, c_void_p, ctypes.POINTER(_abi.lode_scores_options), P_void_p]),
+    "lode_reliability_compute_alpha": (c_int, [c_void_p, P_void_p]),
+    "lode_reliability_compute_omega": (c_int, [c_void_p, P_int64, c_int64, P_void_p]),
+    "lode_reliability_compute_scale_omega": (c_int, [c_void_p, ctypes.POINTER(_abi.lode_model_options), P_void_p]),
+    "lode_comparison_compute": (c_int, [P_double, P_double, c_int64, c_int64, c_int64, c_int64, c_int64, c_int64,
                                       P_void_p]),
     "lode_comparison_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
     "lode_comparison_text": (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t]),
     "lode_comparison_free": (None, [c_void_p]),
 })
-# Added in ABI 1.1: declared only where the loaded library has them, so older libraries still load
-# (the functions that need them then raise AttributeError).
-declare({name: sig for name, sig in _more.items() if hasattr(lib, name)})
+declare(_more)
 
 
 def check(status):
     """Raises LodeError for a failing status, with the library's message."""
     if status != 0:
         name = lib.lode_status_name(status).decode()
-        message = lib.lode_last_error().decode("utf-8", "replace")
+        message = lib.lode_error_message().decode("utf-8", "replace")
         raise LodeError(status, name, message)
 
 
-def options(struct_type, init_name, **fields):
-    """An option struct filled with the library's defaults, then the given fields."""
-    o = struct_type()
-    check(getattr(lib, init_name)(ctypes.byref(o), ctypes.sizeof(o)))
+def options(struct_name, **fields):
+    """The option struct `struct_name` of lode.h (e.g. "lode_model_options") filled with the library's
+    defaults by its `_init` function, then the given fields."""
+    o = getattr(_abi, struct_name)()
+    check(getattr(lib, struct_name + "_init")(ctypes.byref(o), ctypes.sizeof(o)))
     from . import _checks  # (imports this module)
 
     for key, value in fields.items():
@@ -308,39 +270,20 @@ def make_progress(callback):
     return PROGRESS_FN(trampoline)
 
 
-# ---- ABI 1.2: item flags, bootstrap ---------------------------------------------------------------
-
-class ItemFlagOptions(ctypes.Structure):
-    _fields_ = [("struct_size", c_size_t), ("salient", c_double), ("cross_loading_gap", c_double),
-                ("low_communality", c_double), ("heywood_uniqueness", c_double)]
+# ---- item flags, bootstrap -----------------------------------------------------------------------
 
 
-class BootstrapOptions(ctypes.Structure):
-    _fields_ = [("struct_size", c_size_t), ("replicates", c_int64), ("level", c_double), ("seed", ctypes.c_uint64),
-                ("threads", c_int), ("replicate_random_starts", c_int), ("keep_replicates", c_int),
-                ("progress", PROGRESS_FN), ("progress_user", c_void_p)]
-
-
-_abi_1_2 = {
-    "lode_item_flag_options_init": (c_int, [ctypes.POINTER(ItemFlagOptions), c_size_t]),
-    "lode_flag_items": (c_int, [c_void_p, ctypes.POINTER(ItemFlagOptions), P_void_p]),
+_uncertainty_signatures = {
+    "lode_item_flags_options_init": (c_int, [ctypes.POINTER(_abi.lode_item_flags_options), c_size_t]),
+    "lode_item_flags_compute": (c_int, [c_void_p, ctypes.POINTER(_abi.lode_item_flags_options), P_void_p]),
     "lode_item_flags_item_notes": (c_int, [c_void_p, c_int64, c_char_p, c_size_t, P_size_t]),
-    "lode_bootstrap_options_init": (c_int, [ctypes.POINTER(BootstrapOptions), c_size_t]),
-    "lode_bootstrap": (c_int, [c_void_p, ctypes.POINTER(FitOptions), ctypes.POINTER(BootstrapOptions), P_void_p]),
+    "lode_bootstrap_options_init": (c_int, [ctypes.POINTER(_abi.lode_bootstrap_options), c_size_t]),
+    "lode_bootstrap_compute": (c_int, [c_void_p, ctypes.POINTER(_abi.lode_model_options),
+                                       ctypes.POINTER(_abi.lode_bootstrap_options), P_void_p]),
 }
 for _kind in ("item_flags", "bootstrap"):
-    _abi_1_2[f"lode_{_kind}_matrix"] = (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64])
-    _abi_1_2[f"lode_{_kind}_value"] = (c_int, [c_void_p, c_int, P_double])
-    _abi_1_2[f"lode_{_kind}_text"] = (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t])
-    _abi_1_2[f"lode_{_kind}_free"] = (None, [c_void_p])
-# Declared only where the loaded library has them (as for ABI 1.1 above).
-declare({name: sig for name, sig in _abi_1_2.items() if hasattr(lib, name)})
-
-ABI_MINOR = _info.abi_minor
-
-
-def require(name, abi_minor):
-    """Raises LodeError when the loaded liblode lacks a function of a later ABI minor version."""
-    if not hasattr(lib, name):
-        raise LodeError(10, "unsupported", f"{name} needs liblode ABI {ABI_MAJOR}.{abi_minor}; the loaded library "
-                                           f"has ABI {ABI_MAJOR}.{ABI_MINOR}")
+    _uncertainty_signatures[f"lode_{_kind}_matrix"] = (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64])
+    _uncertainty_signatures[f"lode_{_kind}_value"] = (c_int, [c_void_p, c_int, P_double])
+    _uncertainty_signatures[f"lode_{_kind}_text"] = (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t])
+    _uncertainty_signatures[f"lode_{_kind}_free"] = (None, [c_void_p])
+declare(_uncertainty_signatures)

@@ -4,7 +4,7 @@ import ctypes
 
 import numpy as np
 
-from . import _checks, _native
+from . import _abi, _checks, _native
 from ._checks import ArgumentError
 from ._native import check, lib
 from . import _METHODS, Model, _choice, _correlation_of, _lines, _make_data
@@ -12,8 +12,9 @@ from .summary import accepts_summary
 
 # ---- scores, reliability, comparison ----------------------------------------------------------------
 
-_SCORE_METHODS = {"regression": 0, "bartlett": 1, "tenberge": 2}
-_SCORE_MISSING = {"from_answered": 0, "leave_missing": 1}
+_SCORE_METHODS = {"regression": _abi.LODE_ESTIMATOR_REGRESSION, "bartlett": _abi.LODE_ESTIMATOR_BARTLETT,
+                  "tenberge": _abi.LODE_ESTIMATOR_CORRELATION_PRESERVING}
+_SCORE_MISSING = {"from_answered": _abi.LODE_GAPS_FROM_ANSWERED, "leave_missing": _abi.LODE_GAPS_LEAVE_MISSING}
 
 
 class Scores(_native.Handle):
@@ -33,16 +34,17 @@ class Scores(_native.Handle):
         super().__init__(pointer)
         m, v, t = lib.lode_scores_matrix, lib.lode_scores_value, lib.lode_scores_text
         mat = lambda key: _native.get_matrix(m, pointer, key)  # noqa: E731
-        self.values = mat(600)
-        self.weights = mat(601)
-        self.determinacy = mat(602)[:, 0]
-        self.validity = mat(603)[:, 0]
-        self.score_correlations = mat(604)
-        self.low_determinacy = mat(605)[:, 0] != 0
+        self.values = mat(_abi.LODE_SCORES_VALUES)
+        self.weights = mat(_abi.LODE_SCORES_WEIGHTS)
+        self.determinacy = mat(_abi.LODE_SCORES_DETERMINACY)[:, 0]
+        self.validity = mat(_abi.LODE_SCORES_VALIDITY)[:, 0]
+        self.score_correlations = mat(_abi.LODE_SCORES_CORRELATIONS)
+        self.low_determinacy = mat(_abi.LODE_SCORES_LOW_DETERMINACY)[:, 0] != 0
         self.rows_total, self.rows_complete, self.rows_partial, self.rows_missing = (
-            int(_native.get_value(v, pointer, k)) for k in (620, 621, 622, 623))
-        self.notes = _lines(_native.get_text(t, pointer, 650))
-        self.cautions = _native.get_text(t, pointer, 651)
+            int(_native.get_value(v, pointer, k)) for k in (_abi.LODE_SCORES_ROWS_TOTAL,
+                _abi.LODE_SCORES_ROWS_COMPLETE, _abi.LODE_SCORES_ROWS_PARTIAL, _abi.LODE_SCORES_ROWS_MISSING))
+        self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_SCORES_NOTES))
+        self.cautions = _native.get_text(t, pointer, _abi.LODE_SCORES_CAUTIONS)
 
     def __array__(self, dtype=None, copy=None):
         return self.values if dtype is None else self.values.astype(dtype)
@@ -59,14 +61,14 @@ def scores(X, model, method="regression", *, missing="from_answered", min_answer
     (correlation-preserving). ``missing``: "from_answered" (weights from the answered items, when at
     least ``min_answered_share`` were answered) or "leave_missing". Returns :class:`Scores`; read its
     ``cautions`` before using scores to make decisions about people."""
-    o = _native.options(_native.ScoreOptions, "lode_score_options_init",
+    o = _native.options("lode_scores_options",
                         method=_choice(method, _SCORE_METHODS, "score method"),
                         missing=_choice(missing, _SCORE_MISSING, "missing-item rule"),
                         min_answered_share=min_answered_share, low_determinacy=low_determinacy)
     _checks.instance(model, Model, "model", "a fitted model (lode.fit)")
     data = None if X is None else _make_data(X)
     ptr = ctypes.c_void_p()
-    check(lib.lode_score(model.pointer, None if data is None else data.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    check(lib.lode_scores_compute(model.pointer, None if data is None else data.pointer, ctypes.byref(o), ctypes.byref(ptr)))
     return Scores(ptr.value)
 
 
@@ -83,11 +85,18 @@ class Alpha(_native.Handle):
         m, v, t = lib.lode_reliability_matrix, lib.lode_reliability_value, lib.lode_reliability_text
         col = lambda key: _native.get_matrix(m, pointer, key)[:, 0]  # noqa: E731
         num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
-        self.alpha, self.alpha_standardized, self.mean_inter_item_correlation = num(720), num(721), num(722)
-        self.rows_total, self.rows_used, self.items = int(num(723)), int(num(724)), int(num(725))
-        self.alpha_if_deleted, self.alpha_standardized_if_deleted = col(700), col(701)
-        self.item_total_correlation, self.item_means, self.item_sds = col(702), col(703), col(704)
-        self.notes = _lines(_native.get_text(t, pointer, 750))
+        self.alpha = num(_abi.LODE_ALPHA)
+        self.alpha_standardized = num(_abi.LODE_ALPHA_STANDARDIZED)
+        self.mean_inter_item_correlation = num(_abi.LODE_ALPHA_MEAN_INTER_ITEM)
+        self.rows_total = int(num(_abi.LODE_ALPHA_ROWS_TOTAL))
+        self.rows_used = int(num(_abi.LODE_ALPHA_ROWS_USED))
+        self.items = int(num(_abi.LODE_ALPHA_ITEMS))
+        self.alpha_if_deleted = col(_abi.LODE_ALPHA_IF_DELETED)
+        self.alpha_standardized_if_deleted = col(_abi.LODE_ALPHA_STANDARDIZED_IF_DELETED)
+        self.item_total_correlation = col(_abi.LODE_ALPHA_ITEM_TOTAL)
+        self.item_means = col(_abi.LODE_ALPHA_ITEM_MEANS)
+        self.item_sds = col(_abi.LODE_ALPHA_ITEM_SDS)
+        self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_RELIABILITY_NOTES))
 
     def __repr__(self):
         return f"<lode.Alpha {self.alpha:.3f}>"
@@ -99,7 +108,7 @@ def alpha(X, *, item_names=None):
     reverse-scored where needed; rows with a missing item are left out). Returns :class:`Alpha`."""
     data = _make_data(X, item_names=item_names)
     ptr = ctypes.c_void_p()
-    check(lib.lode_cronbach_alpha(data.pointer, ctypes.byref(ptr)))
+    check(lib.lode_reliability_compute_alpha(data.pointer, ctypes.byref(ptr)))
     return Alpha(ptr.value)
 
 
@@ -119,16 +128,17 @@ class Omega(_native.Handle):
         super().__init__(pointer)
         m, t = lib.lode_reliability_matrix, lib.lode_reliability_text
         col = lambda key: _native.get_matrix(m, pointer, key)[:, 0]  # noqa: E731
-        self.omega = col(740)
-        self.assignment = col(741).astype(np.int64)
-        self.sum_loadings = col(742)
-        self.sum_uniquenesses = col(743)
-        self.factor_share = col(746)
-        self.scale_variance = col(747)
-        self.loadings = col(744) if single else None
-        self.uniquenesses = col(745) if single else None
-        self.converged = bool(_native.get_value(lib.lode_reliability_value, pointer, 760)) if single else None
-        self.notes = _lines(_native.get_text(t, pointer, 750))
+        self.omega = col(_abi.LODE_OMEGA)
+        self.assignment = col(_abi.LODE_OMEGA_ASSIGNMENT).astype(np.int64)
+        self.sum_loadings = col(_abi.LODE_OMEGA_SUM_LOADINGS)
+        self.sum_uniquenesses = col(_abi.LODE_OMEGA_SUM_UNIQUENESSES)
+        self.factor_share = col(_abi.LODE_RELIABILITY_OMEGA_FACTOR_SHARE)
+        self.scale_variance = col(_abi.LODE_RELIABILITY_OMEGA_SCALE_VARIANCE)
+        self.loadings = col(_abi.LODE_OMEGA_LOADINGS) if single else None
+        self.uniquenesses = col(_abi.LODE_OMEGA_UNIQUENESSES) if single else None
+        self.converged = bool(_native.get_value(lib.lode_reliability_value, pointer,
+                              _abi.LODE_OMEGA_CONVERGED)) if single else None
+        self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_RELIABILITY_NOTES))
 
     def __repr__(self):
         return f"<lode.Omega {np.round(self.omega, 3)}>"
@@ -152,18 +162,18 @@ def omega(model=None, *, X=None, corr=None, n_obs=None, assignment=None, method=
         if assignment is not None:
             raise ArgumentError("assignment applies to a model's factors; a single scale has one")
         c = _correlation_of(X, corr, None, n_obs, correlation, missing, False, item_names)
-        o = _native.options(_native.FitOptions, "lode_fit_options_init",
+        o = _native.options("lode_model_options",
                             method=_choice(method, _METHODS, "extraction method"), max_iterations=max_iterations,
                             tolerance=tolerance, min_uniqueness=min_uniqueness)
-        check(lib.lode_omega_single_scale(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+        check(lib.lode_reliability_compute_scale_omega(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
         return Omega(ptr.value, single=True)
     _checks.instance(model, Model, "model", "a fitted model (lode.fit)")
     if assignment is None:
-        check(lib.lode_mcdonald_omega(model.pointer, None, 0, ctypes.byref(ptr)))
+        check(lib.lode_reliability_compute_omega(model.pointer, None, 0, ctypes.byref(ptr)))
     else:
         a = np.array([_checks.whole(v, "assignment") for v in np.ravel(_checks.matrix(assignment, "assignment"))],
                      dtype=np.int64)
-        check(lib.lode_mcdonald_omega(model.pointer, a.ctypes.data_as(_native.P_int64), a.size, ctypes.byref(ptr)))
+        check(lib.lode_reliability_compute_omega(model.pointer, a.ctypes.data_as(_native.P_int64), a.size, ctypes.byref(ptr)))
     return Omega(ptr.value)
 
 
@@ -177,12 +187,12 @@ class Comparison(_native.Handle):
     def __init__(self, pointer):
         super().__init__(pointer)
         mat = lambda key: _native.get_matrix(lib.lode_comparison_matrix, pointer, key)  # noqa: E731
-        self.congruence = mat(800)
-        self.order = mat(801)[:, 0].astype(np.int64)
-        self.signs = mat(802)[:, 0]
-        self.matched_congruence = mat(803)[:, 0]
-        self.aligned = mat(804)
-        self.notes = _lines(_native.get_text(lib.lode_comparison_text, pointer, 850))
+        self.congruence = mat(_abi.LODE_COMPARISON_CONGRUENCE)
+        self.order = mat(_abi.LODE_COMPARISON_ORDER)[:, 0].astype(np.int64)
+        self.signs = mat(_abi.LODE_COMPARISON_SIGNS)[:, 0]
+        self.matched_congruence = mat(_abi.LODE_COMPARISON_MATCHED_CONGRUENCE)[:, 0]
+        self.aligned = mat(_abi.LODE_COMPARISON_ALIGNED)
+        self.notes = _lines(_native.get_text(lib.lode_comparison_text, pointer, _abi.LODE_COMPARISON_NOTES))
 
 
 def congruence(a, b):
@@ -194,6 +204,6 @@ def congruence(a, b):
     if (rows, cols) != (rows_b, cols_b):
         raise ArgumentError(f"a is {rows} x {cols} but b is {rows_b} x {cols_b}; they must have the same shape")
     ptr = ctypes.c_void_p()
-    check(lib.lode_compare_loadings(_native.data_pointer(ma), _native.data_pointer(mb), rows, cols, ars, acs, brs, bcs,
+    check(lib.lode_comparison_compute(_native.data_pointer(ma), _native.data_pointer(mb), rows, cols, ars, acs, brs, bcs,
                                     ctypes.byref(ptr)))
     return Comparison(ptr.value)

@@ -11,19 +11,17 @@ import functools
 
 import numpy as np
 
+from . import _abi
 from . import _native
 from ._native import c_int, c_int64, c_size_t, c_void_p, P_double, P_int64, P_size_t, P_void_p, check, lib
 
 P_uint8 = ctypes.POINTER(ctypes.c_uint8)
 
 
-class SummaryOptions(ctypes.Structure):
-    _fields_ = [("struct_size", c_size_t), ("max_categories", c_int), ("listwise", c_int)]
 
-
-_native.declare({name: sig for name, sig in {
-    "lode_summary_options_init": (c_int, [ctypes.POINTER(SummaryOptions), c_size_t]),
-    "lode_summary_create": (c_int, [c_int64, ctypes.POINTER(ctypes.c_char_p), ctypes.POINTER(SummaryOptions),
+_native.declare({
+    "lode_summary_options_init": (c_int, [ctypes.POINTER(_abi.lode_summary_options), c_size_t]),
+    "lode_summary_create": (c_int, [c_int64, ctypes.POINTER(ctypes.c_char_p), ctypes.POINTER(_abi.lode_summary_options),
                                     P_void_p]),
     "lode_summary_add": (c_int, [c_void_p, P_double, c_int64, c_int64, c_int64, c_int64]),
     "lode_summary_merge": (c_int, [c_void_p, c_void_p]),
@@ -35,12 +33,17 @@ _native.declare({name: sig for name, sig in {
     "lode_summary_value": (c_int, [c_void_p, c_int, P_double]),
     "lode_summary_table": (c_int, [c_void_p, c_int64, c_int64, P_double, c_size_t, P_int64, P_int64]),
     "lode_summary_item_name": (c_int, [c_void_p, c_int64, ctypes.c_char_p, c_size_t, P_size_t]),
-}.items() if hasattr(lib, name)})
+})
 
-_MATRICES = {"pair_counts": 1100, "means": 1101, "sums_of_squares": 1102, "comoments": 1103, "categories": 1104,
-             "category_counts": 1105}
-_VALUES = {"n_rows": 1120, "rows_complete": 1121, "rows_answered": 1122, "missing_cells": 1123, "n_items": 1124,
-           "max_categories": 1125, "listwise": 1126, "format_version": 1127}
+_MATRICES = {"pair_counts": _abi.LODE_SUMMARY_PAIR_COUNTS, "means": _abi.LODE_SUMMARY_MEANS,
+             "sums_of_squares": _abi.LODE_SUMMARY_SUMS_OF_SQUARES, "comoments": _abi.LODE_SUMMARY_COMOMENTS,
+             "categories": _abi.LODE_SUMMARY_CATEGORIES,
+             "category_counts": _abi.LODE_SUMMARY_CATEGORY_COUNTS}
+_VALUES = {"n_rows": _abi.LODE_SUMMARY_N_ROWS, "rows_complete": _abi.LODE_SUMMARY_ROWS_COMPLETE,
+           "rows_answered": _abi.LODE_SUMMARY_ROWS_ANSWERED, "missing_cells": _abi.LODE_SUMMARY_MISSING_CELLS,
+           "n_items": _abi.LODE_SUMMARY_ITEMS,
+           "max_categories": _abi.LODE_SUMMARY_MAX_CATEGORIES, "listwise": _abi.LODE_SUMMARY_LISTWISE,
+           "format_version": _abi.LODE_SUMMARY_FORMAT_VERSION}
 
 
 class _Handle(_native.Handle):
@@ -61,7 +64,6 @@ class Summary:
     """
 
     def __init__(self, items=None, max_categories=11, listwise=False):
-        _native.require("lode_summary_create", 3)
         self._handle = None
         self._max_categories = int(max_categories)
         self._listwise = bool(listwise)
@@ -69,7 +71,7 @@ class Summary:
             self._create(list(range(int(items))) if np.isscalar(items) else list(items), named=not np.isscalar(items))
 
     def _create(self, items, named=True):
-        o = _native.options(SummaryOptions, "lode_summary_options_init", max_categories=self._max_categories,
+        o = _native.options("lode_summary_options", max_categories=self._max_categories,
                             listwise=1 if self._listwise else 0)
         names = None
         if named:

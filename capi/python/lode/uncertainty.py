@@ -1,18 +1,19 @@
-"""Item flags and bootstrap intervals of a fitted model (ABI 1.2), re-exported by ``lode``."""
+"""Item flags and bootstrap intervals of a fitted model, re-exported by ``lode``."""
 
 import ctypes
 
 import numpy as np
 
-from . import _checks, _native
+from . import _abi, _checks, _native
 from ._checks import ArgumentError
 from ._native import check, lib
 from . import Model, _correlation_of, _fit_options, _lines
 from .summary import accepts_summary
 
-# ---- item flags, bootstrap (ABI 1.2) --------------------------------------------------------------------
+# ---- item flags, bootstrap ---------------------------------------------------------------------------
 
-_FLAG_KINDS = {1: "cross_loading", 2: "no_salient_loading", 4: "low_communality", 8: "heywood_case"}
+_FLAG_KINDS = {_abi.LODE_FLAG_CROSS_LOADING: "cross_loading", _abi.LODE_FLAG_NO_SALIENT_LOADING: "no_salient_loading",
+               _abi.LODE_FLAG_LOW_COMMUNALITY: "low_communality", _abi.LODE_FLAG_HEYWOOD_CASE: "heywood_case"}
 
 
 class ItemFlags(_native.Handle):
@@ -32,10 +33,10 @@ class ItemFlags(_native.Handle):
         super().__init__(pointer)
         m, v, t = lib.lode_item_flags_matrix, lib.lode_item_flags_value, lib.lode_item_flags_text
         num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
-        self.codes = _native.get_matrix(m, pointer, 1000)[:, 0].astype(np.int64)
-        rows = _native.get_matrix(m, pointer, 1001)
-        self.communalities = _native.get_matrix(m, pointer, 1002)[:, 0]
-        notes = _lines(_native.get_text(t, pointer, 1050))
+        self.codes = _native.get_matrix(m, pointer, _abi.LODE_ITEM_FLAGS_CODES)[:, 0].astype(np.int64)
+        rows = _native.get_matrix(m, pointer, _abi.LODE_ITEM_FLAGS_TABLE)
+        self.communalities = _native.get_matrix(m, pointer, _abi.LODE_ITEM_FLAGS_COMMUNALITIES)[:, 0]
+        notes = _lines(_native.get_text(t, pointer, _abi.LODE_ITEM_FLAGS_NOTES))
         self.table = []
         for row, note in zip(rows, notes):
             factors = [int(f) for f in row[2:4] if f >= 0]
@@ -44,10 +45,12 @@ class ItemFlags(_native.Handle):
         items = len(self.codes)
         self.by_item = [[f["kind"] for f in self.table if f["item"] == i] for i in range(items)]
         self.notes = [_lines(self._item_notes(pointer, i)) for i in range(items)]
-        self.count = int(num(1020))
-        self.items_flagged = int(num(1021))
-        self.thresholds = {"salient": num(1023), "cross_gap": num(1024), "low_communality": num(1025),
-                           "heywood_uniqueness": num(1026)}
+        self.count = int(num(_abi.LODE_ITEM_FLAGS_COUNT))
+        self.items_flagged = int(num(_abi.LODE_ITEM_FLAGS_ITEMS_FLAGGED))
+        self.thresholds = {"salient": num(_abi.LODE_ITEM_FLAGS_SALIENT),
+                           "cross_gap": num(_abi.LODE_ITEM_FLAGS_CROSS_LOADING_GAP),
+                           "low_communality": num(_abi.LODE_ITEM_FLAGS_LOW_COMMUNALITY),
+                           "heywood_uniqueness": num(_abi.LODE_ITEM_FLAGS_HEYWOOD_UNIQUENESS)}
 
     @staticmethod
     def _item_notes(pointer, item):
@@ -69,13 +72,12 @@ def item_flags(model, *, salient=0.40, cross_gap=0.20, low_communality=0.20, hey
     are judged; communality is 1 - uniqueness. The defaults 0.40, 0.20 and 0.20 are common practice
     (rules of thumb); 0.005 is the lower bound Lode (and R's stats::factanal) put on uniquenesses.
     Returns :class:`ItemFlags`; thresholds outside [0, 1] raise :class:`LodeError`."""
-    _native.require("lode_flag_items", 2)
-    o = _native.options(_native.ItemFlagOptions, "lode_item_flag_options_init", salient=salient,
+    o = _native.options("lode_item_flags_options", salient=salient,
                         cross_loading_gap=cross_gap, low_communality=low_communality,
                         heywood_uniqueness=heywood_uniqueness)
     _checks.instance(model, Model, "model", "a fitted model (lode.fit)")
     ptr = ctypes.c_void_p()
-    check(lib.lode_flag_items(model.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    check(lib.lode_item_flags_compute(model.pointer, ctypes.byref(o), ctypes.byref(ptr)))
     return ItemFlags(ptr.value)
 
 
@@ -101,28 +103,32 @@ class Bootstrap(_native.Handle):
         m, v, t = lib.lode_bootstrap_matrix, lib.lode_bootstrap_value, lib.lode_bootstrap_text
         mat = lambda key: _native.get_matrix(m, pointer, key)  # noqa: E731
         num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
-        self.loadings, self.loadings_lower, self.loadings_upper, self.loadings_se = (mat(k) for k in (900, 901, 902, 903))
+        def with_interval(name):  # the estimate, the interval's bounds and the standard error
+            return [mat(getattr(_abi, f"LODE_BOOTSTRAP_{name}{part}")) for part in ("", "_LOWER", "_UPPER", "_SE")]
+
+        self.loadings, self.loadings_lower, self.loadings_upper, self.loadings_se = with_interval("LOADINGS")
         self.uniquenesses, self.uniquenesses_lower, self.uniquenesses_upper, self.uniquenesses_se = (
-            mat(k)[:, 0] for k in (904, 905, 906, 907))
+            u[:, 0] for u in with_interval("UNIQUENESSES"))
         (self.factor_correlations, self.factor_correlations_lower, self.factor_correlations_upper,
-         self.factor_correlations_se) = (mat(k) for k in (908, 909, 910, 911))
-        self.min_congruence = mat(912)[:, 0]
-        self.replicates = int(num(920))
-        self.replicates_used = int(num(921))
-        self.replicates_failed = int(num(922))
-        self.replicates_poorly_matched = int(num(923))
-        self.level = num(924)
-        items, factors = int(num(925)), int(num(926))
-        self.oblique = bool(num(927))
-        self.alignment = _native.get_text(t, pointer, 950)
-        self.failures = _lines(_native.get_text(t, pointer, 951))
-        self.notes = _lines(_native.get_text(t, pointer, 952))
+         self.factor_correlations_se) = with_interval("FACTOR_CORRELATIONS")
+        self.min_congruence = mat(_abi.LODE_BOOTSTRAP_MIN_CONGRUENCE)[:, 0]
+        self.replicates = int(num(_abi.LODE_BOOTSTRAP_REPLICATES))
+        self.replicates_used = int(num(_abi.LODE_BOOTSTRAP_USED))
+        self.replicates_failed = int(num(_abi.LODE_BOOTSTRAP_FAILED))
+        self.replicates_poorly_matched = int(num(_abi.LODE_BOOTSTRAP_POORLY_MATCHED))
+        self.level = num(_abi.LODE_BOOTSTRAP_LEVEL)
+        items, factors = int(num(_abi.LODE_BOOTSTRAP_ITEMS)), int(num(_abi.LODE_BOOTSTRAP_FACTORS))
+        self.oblique = bool(num(_abi.LODE_BOOTSTRAP_OBLIQUE))
+        self.alignment = _native.get_text(t, pointer, _abi.LODE_BOOTSTRAP_ALIGNMENT)
+        self.failures = _lines(_native.get_text(t, pointer, _abi.LODE_BOOTSTRAP_FAILURES))
+        self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_BOOTSTRAP_NOTES))
         self.replicate_loadings = self.replicate_uniquenesses = self.replicate_factor_correlations = None
         if kept:
             used = self.replicates_used
-            self.replicate_loadings = mat(913).reshape(used, items, factors)
-            self.replicate_uniquenesses = mat(914).reshape(used, items)
-            self.replicate_factor_correlations = mat(915).reshape(used, factors, factors)
+            self.replicate_loadings = mat(_abi.LODE_BOOTSTRAP_REPLICATE_LOADINGS).reshape(used, items, factors)
+            self.replicate_uniquenesses = mat(_abi.LODE_BOOTSTRAP_REPLICATE_UNIQUENESSES).reshape(used, items)
+            self.replicate_factor_correlations = mat(
+                _abi.LODE_BOOTSTRAP_REPLICATE_FACTOR_CORRELATIONS).reshape(used, factors, factors)
 
     def __repr__(self):
         return f"<lode.Bootstrap {self.replicates_used} of {self.replicates} replicates, level {self.level}>"
@@ -149,7 +155,6 @@ def bootstrap(X=None, *, factors=None, method="ml", rotation="none", replicates=
     counted (``replicates_failed``, ``failures``). ``level`` is the two-sided coverage.
     ``progress(done, total)`` is called with the replicates done; returning False cancels
     (:class:`LodeError`, status "cancelled", no result). Returns :class:`Bootstrap`."""
-    _native.require("lode_bootstrap", 2)
     if X is None:
         given = [k for k in ("corr", "cov") if k in rotation_keywords]
         raise ArgumentError("the bootstrap resamples respondents, so it needs their raw data X (rows x items)"
@@ -159,7 +164,7 @@ def bootstrap(X=None, *, factors=None, method="ml", rotation="none", replicates=
     c = _correlation_of(X, None, None, None, correlation, missing, smooth, item_names)
     o, keep = _fit_options(factors, method, max_iterations, tolerance, min_uniqueness, rotation, seed,
                            rotation_keywords, "bootstrap")
-    b = _native.options(_native.BootstrapOptions, "lode_bootstrap_options_init", replicates=replicates,
+    b = _native.options("lode_bootstrap_options", replicates=replicates,
                         level=level, threads=threads, replicate_random_starts=replicate_random_starts,
                         keep_replicates=1 if keep_replicates else 0)
     if seed is not None:
@@ -168,6 +173,6 @@ def bootstrap(X=None, *, factors=None, method="ml", rotation="none", replicates=
     if callback is not None:
         b.progress = callback
     ptr = ctypes.c_void_p()
-    check(lib.lode_bootstrap(c.pointer, ctypes.byref(o), ctypes.byref(b), ctypes.byref(ptr)))
+    check(lib.lode_bootstrap_compute(c.pointer, ctypes.byref(o), ctypes.byref(b), ctypes.byref(ptr)))
     del keep, callback
     return Bootstrap(ptr.value, bool(keep_replicates))

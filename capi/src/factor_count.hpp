@@ -7,7 +7,7 @@
 
 namespace lode::capi {
 
-lode_factor_count_options factor_count_defaults();
+// lode_factor_count_options, read (older struct sizes included) and checked; NULL = the defaults.
 FactorCountOptions read_factor_count_options(const lode_factor_count_options* opts);
 // The factor count of a correlation handle: from its raw data when it has them, else from the matrix.
 FactorCountResult count_for(const lode_correlation* corr, const FactorCountOptions& options);

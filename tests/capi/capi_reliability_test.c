@@ -1,0 +1,154 @@
+/* The C ABI from C: lode_reliability (alpha, omega of a model's scales, omega of a single scale). */
+#include "capi_test.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+void test_reliability(void) {
+  double v, buf[N_ROWS * 2], det[2];
+  char text[4096];
+  size_t len = 0;
+  int64_t rows, cols, assignment[N_ITEMS] = {0, 0, 0, 1, 1, 1};
+  int i;
+  fitted_example f;
+  lode_reliability* rel = NULL;
+  fitted_example_open(&f);
+
+  /* alpha of the first three items: standardised alpha is the Spearman-Brown form of the mean
+   * inter-item correlation, k r / (1 + (k - 1) r) (Cronbach 1951; published identity) */
+  OK(lode_reliability_compute_alpha(f.first_three, &rel));
+  OK(lode_reliability_value(rel, LODE_ALPHA, &v));
+  CHECK(v > 0.0 && v < 1.0);
+  {
+    double rbar, std_alpha;
+    OK(lode_reliability_value(rel, LODE_ALPHA_MEAN_INTER_ITEM, &rbar));
+    OK(lode_reliability_value(rel, LODE_ALPHA_STANDARDIZED, &std_alpha));
+    CHECK(fabs(std_alpha - 3 * rbar / (1 + 2 * rbar)) < 1e-12);
+  }
+  OK(lode_reliability_value(rel, LODE_ALPHA_ROWS_USED, &v));
+  CHECK(v == N_ROWS - 1);
+  OK(lode_reliability_value(rel, LODE_ALPHA_ROWS_TOTAL, &v));
+  OK(lode_reliability_value(rel, LODE_ALPHA_ITEMS, &v));
+  CHECK(v == 3.0);
+  {
+    static const int keys[] = {LODE_ALPHA_IF_DELETED, LODE_ALPHA_STANDARDIZED_IF_DELETED, LODE_ALPHA_ITEM_TOTAL,
+                               LODE_ALPHA_ITEM_MEANS, LODE_ALPHA_ITEM_SDS};
+    size_t k;
+    for (k = 0; k < sizeof keys / sizeof keys[0]; ++k) {
+      OK(lode_reliability_matrix(rel, keys[k], buf, 3, &rows, &cols));
+      CHECK(rows == 3 && cols == 1);
+    }
+  }
+  OK(lode_reliability_text(rel, LODE_RELIABILITY_NOTES, NULL, 0, &len));
+  EXPECT(lode_reliability_matrix(rel, LODE_OMEGA, buf, 3, NULL, NULL), LODE_E_INVALID_ARGUMENT, "omega");
+  EXPECT(lode_reliability_value(rel, LODE_OMEGA, &v), LODE_E_INVALID_ARGUMENT, "key 740");
+  EXPECT(lode_reliability_text(rel, LODE_ALPHA, text, 10, NULL), LODE_E_INVALID_ARGUMENT, "key 720");
+  EXPECT_NULL_HANDLE(lode_reliability, "NULL", LODE_ALPHA, LODE_OMEGA, buf, 3, LODE_RELIABILITY_NOTES, text, 10);
+  lode_reliability_free(rel);
+  rel = NULL;
+  EXPECT(lode_reliability_compute_alpha(f.matrix, &rel), LODE_E_INVALID_ARGUMENT, "raw data");
+  EXPECT(lode_reliability_compute_alpha(NULL, &rel), LODE_E_INVALID_ARGUMENT, "'data' is NULL");
+  EXPECT(lode_reliability_compute_alpha(f.first_three, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+
+  /* omega: by largest loading, and by a given assignment */
+  OK(lode_reliability_compute_omega(f.model, NULL, 0, &rel));
+  OK(lode_reliability_matrix(rel, LODE_OMEGA, det, 2, &rows, &cols));
+  CHECK(rows == 2 && cols == 1 && det[0] > 0.0 && det[0] < 1.0);
+  OK(lode_reliability_matrix(rel, LODE_OMEGA_ASSIGNMENT, buf, N_ITEMS, &rows, NULL));
+  CHECK(rows == N_ITEMS);
+  OK(lode_reliability_matrix(rel, LODE_OMEGA_SUM_LOADINGS, det, 2, NULL, NULL));
+  {
+    /* the factor's share is (sum of loadings)^2 over the model-implied variance of the sum (McDonald 1999) */
+    double share[2], var[2];
+    OK(lode_reliability_matrix(rel, LODE_RELIABILITY_OMEGA_FACTOR_SHARE, share, 2, &rows, &cols));
+    CHECK(rows == 2 && cols == 1);
+    OK(lode_reliability_matrix(rel, LODE_RELIABILITY_OMEGA_SCALE_VARIANCE, var, 2, &rows, &cols));
+    CHECK(rows == 2 && cols == 1);
+    for (i = 0; i < 2; ++i) CHECK(fabs(share[i] * var[i] - det[i] * det[i]) < 1e-12 * var[i]);
+  }
+  OK(lode_reliability_matrix(rel, LODE_OMEGA_SUM_UNIQUENESSES, det, 2, NULL, NULL));
+  OK(lode_reliability_text(rel, LODE_RELIABILITY_NOTES, text, sizeof text, NULL));
+  EXPECT(lode_reliability_value(rel, LODE_ALPHA, &v), LODE_E_INVALID_ARGUMENT, "alpha");
+  EXPECT(lode_reliability_matrix(rel, LODE_ALPHA_IF_DELETED, buf, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "alpha");
+  lode_reliability_free(rel);
+  rel = NULL;
+  OK(lode_reliability_compute_omega(f.model, assignment, N_ITEMS, &rel));
+  OK(lode_reliability_matrix(rel, LODE_OMEGA_ASSIGNMENT, buf, N_ITEMS, NULL, NULL));
+  for (i = 0; i < N_ITEMS; ++i) CHECK(buf[i] == (double)assignment[i]);
+  lode_reliability_free(rel);
+  rel = NULL;
+  assignment[2] = 5;
+  EXPECT(lode_reliability_compute_omega(f.model, assignment, N_ITEMS, &rel), LODE_E_INVALID_ARGUMENT, "column 3 is assigned to factor 5");
+  EXPECT(lode_reliability_compute_omega(f.model, assignment, 4, &rel), LODE_E_INVALID_ARGUMENT, "4 assignments were given for 6 items");
+  EXPECT(lode_reliability_compute_omega(f.model, NULL, 3, &rel), LODE_E_INVALID_ARGUMENT, "'assignment' is NULL");
+  EXPECT(lode_reliability_compute_omega(NULL, NULL, 0, &rel), LODE_E_INVALID_ARGUMENT, "'model' is NULL");
+  EXPECT(lode_reliability_compute_omega(f.model, NULL, 0, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  lode_reliability_free(NULL);
+
+
+  /* omega of a single scale from a one-factor fit of its items' correlations: the stored loadings
+   * and uniquenesses reproduce McDonald's (1999) formula (sum l)^2 / ((sum l)^2 + sum psi) */
+  {
+    lode_correlation* c3 = NULL;
+    lode_model_options f1;
+    double lam[3], psi[3], om, sl;
+    OK(lode_correlation_compute(f.first_three, NULL, &c3));
+    OK(lode_reliability_compute_scale_omega(c3, NULL, &rel));
+    OK(lode_reliability_matrix(rel, LODE_OMEGA, &om, 1, &rows, &cols));
+    CHECK(rows == 1 && cols == 1 && om > 0.0 && om < 1.0);
+    OK(lode_reliability_matrix(rel, LODE_OMEGA_LOADINGS, lam, 3, &rows, &cols));
+    CHECK(rows == 3 && cols == 1);
+    OK(lode_reliability_matrix(rel, LODE_OMEGA_UNIQUENESSES, psi, 3, NULL, NULL));
+    sl = lam[0] + lam[1] + lam[2];
+    CHECK(fabs(om - sl * sl / (sl * sl + psi[0] + psi[1] + psi[2])) < 1e-12);
+    OK(lode_reliability_matrix(rel, LODE_RELIABILITY_OMEGA_FACTOR_SHARE, &sl, 1, NULL, NULL));
+    CHECK(sl == om); /* one factor: omega total and the factor's share agree */
+    OK(lode_reliability_matrix(rel, LODE_OMEGA_ASSIGNMENT, buf, 3, &rows, NULL));
+    CHECK(rows == 3 && buf[0] == 0.0 && buf[2] == 0.0);
+    OK(lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v));
+    CHECK(v == 1.0);
+    OK(lode_reliability_text(rel, LODE_RELIABILITY_NOTES, NULL, 0, &len));
+    EXPECT(lode_reliability_value(rel, LODE_ALPHA, &v), LODE_E_INVALID_ARGUMENT, "alpha");
+    EXPECT(lode_reliability_matrix(rel, LODE_OMEGA_LOADINGS, lam, 2, NULL, NULL), LODE_E_BUFFER_TOO_SMALL, NULL);
+    lode_reliability_free(rel);
+    rel = NULL;
+    OK(lode_model_options_init(&f1, sizeof f1));
+    f1.method = LODE_EXTRACTION_PAF;
+    OK(lode_reliability_compute_scale_omega(c3, &f1, &rel));
+    OK(lode_reliability_matrix(rel, LODE_OMEGA, &om, 1, NULL, NULL));
+    CHECK(om > 0.0 && om < 1.0);
+    lode_reliability_free(rel);
+    rel = NULL;
+    f1.method = 9;
+    EXPECT(lode_reliability_compute_scale_omega(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "unknown extraction method 9");
+    f1.method = LODE_EXTRACTION_ML;
+    f1.tolerance = -1.0;
+    EXPECT(lode_reliability_compute_scale_omega(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "tolerance");
+    f1.tolerance = 1e-9;
+    f1.max_iterations = 0;
+    EXPECT(lode_reliability_compute_scale_omega(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "max_iterations");
+    f1.max_iterations = 1000;
+    f1.min_uniqueness = 1.0;
+    EXPECT(lode_reliability_compute_scale_omega(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "min_uniqueness");
+    f1.struct_size = 1;
+    EXPECT(lode_reliability_compute_scale_omega(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "struct_size");
+    EXPECT(lode_reliability_compute_scale_omega(NULL, NULL, &rel), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
+    EXPECT(lode_reliability_compute_scale_omega(c3, NULL, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+    CHECK(rel == NULL);
+    lode_correlation_free(c3);
+  }
+  /* a model's omega has no single-scale loadings; an alpha result has no convergence */
+  OK(lode_reliability_compute_omega(f.model, NULL, 0, &rel));
+  EXPECT(lode_reliability_matrix(rel, LODE_OMEGA_LOADINGS, buf, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "single-scale");
+  OK(lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v));
+  CHECK(v == 1.0);
+  lode_reliability_free(rel);
+  rel = NULL;
+  OK(lode_reliability_compute_alpha(f.first_three, &rel));
+  EXPECT(lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v), LODE_E_INVALID_ARGUMENT, "omega");
+  lode_reliability_free(rel);
+  rel = NULL;
+  fitted_example_close(&f);
+}
