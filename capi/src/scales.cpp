@@ -51,6 +51,37 @@ Vector of_indices(const std::vector<Index>& v) {
   return out;
 }
 
+// Omega of `model`'s scales under options already read (both omega calls end here).
+lode_reliability* model_omega(const lode_model* model, const int64_t* assignment, int64_t count, OmegaOptions oo) {
+  const Index items = model->rotation.pattern.rows(), factors = model->rotation.pattern.cols();
+  oo.item_names = model->item_names;
+  if (assignment == nullptr && count != 0)
+    fail(LODE_E_INVALID_ARGUMENT, fmt::format("argument 'assignment' is NULL but count is {}", count));
+  if (assignment != nullptr) {
+    if (count != items) fail(LODE_E_INVALID_ARGUMENT, fmt::format("{} assignments were given for {} items", count, items));
+    for (int64_t j = 0; j < count; ++j) {
+      if (assignment[j] < -1 || assignment[j] >= factors)
+        fail(LODE_E_INVALID_ARGUMENT, fmt::format("{} is assigned to factor {}; factors are 0 to {} (or -1 for none)",
+                                                  item_label(model->item_names, static_cast<Index>(j)), assignment[j],
+                                                  factors - 1));
+      oo.assignment.push_back(static_cast<Index>(assignment[j]));
+    }
+  }
+  auto r = std::make_unique<lode_reliability>();
+  r->is_alpha = false;
+  r->factors = factors;
+  oo.factor_correlations = model->rotation.factor_correlations;
+  r->omega = omega_from_loadings(model->rotation.pattern, model->extraction.uniquenesses, oo);
+  return r.release();
+}
+
+lode_reliability_options reliability_defaults() {
+  lode_reliability_options d{};
+  d.struct_size = sizeof d;
+  d.keying = LODE_KEYING_AS_SCORED;
+  return d;
+}
+
 }  // namespace
 
 extern "C" {
@@ -185,27 +216,44 @@ LODE_API int lode_mcdonald_omega(const lode_model* model, const int64_t* assignm
     require_pointer(model, "model");
     require_pointer(out, "out");
     *out = nullptr;
-    const Index items = model->rotation.pattern.rows(), factors = model->rotation.pattern.cols();
-    OmegaOptions oo;
-    oo.item_names = model->item_names;
-    if (assignment == nullptr && count != 0)
-      fail(LODE_E_INVALID_ARGUMENT, fmt::format("argument 'assignment' is NULL but count is {}", count));
-    if (assignment != nullptr) {
-      if (count != items) fail(LODE_E_INVALID_ARGUMENT, fmt::format("{} assignments were given for {} items", count, items));
-      for (int64_t j = 0; j < count; ++j) {
-        if (assignment[j] < -1 || assignment[j] >= factors)
-          fail(LODE_E_INVALID_ARGUMENT, fmt::format("{} is assigned to factor {}; factors are 0 to {} (or -1 for none)",
-                                                    item_label(model->item_names, static_cast<Index>(j)), assignment[j],
-                                                    factors - 1));
-        oo.assignment.push_back(static_cast<Index>(assignment[j]));
-      }
+    *out = model_omega(model, assignment, count, OmegaOptions{});
+  });
+}
+
+LODE_API int lode_reliability_options_init(lode_reliability_options* opts, size_t struct_size) {
+  return guarded([&] { init_options(opts, struct_size, reliability_defaults(), "lode_reliability_options"); });
+}
+
+LODE_API int lode_reliability_compute_keyed_omega(const lode_model* model, const lode_reliability_options* opts,
+                                                  lode_reliability** out) {
+  return guarded([&] {
+    require_pointer(model, "model");
+    require_pointer(out, "out");
+    *out = nullptr;
+    lode_reliability_options o = reliability_defaults();
+    if (opts) {
+      check_options_size(opts, "lode_reliability_options");
+      LODE_OPTION_FIELD(o, opts, assignment);
+      LODE_OPTION_FIELD(o, opts, assignment_count);
+      LODE_OPTION_FIELD(o, opts, keying);
+      LODE_OPTION_FIELD(o, opts, reverse);
+      LODE_OPTION_FIELD(o, opts, reverse_count);
     }
-    auto r = std::make_unique<lode_reliability>();
-    r->is_alpha = false;
-    r->factors = factors;
-    oo.factor_correlations = model->rotation.factor_correlations;
-    r->omega = omega_from_loadings(model->rotation.pattern, model->extraction.uniquenesses, oo);
-    *out = r.release();
+    OmegaOptions oo;
+    switch (o.keying) {
+      case LODE_KEYING_AS_SCORED: break;
+      case LODE_KEYING_REVERSE_NEGATIVE: oo.reverse_negative_loaders = true; break;
+      default: fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown keying {}", o.keying));
+    }
+    const Index items = model->rotation.pattern.rows();
+    if (o.reverse == nullptr && o.reverse_count != 0)
+      fail(LODE_E_INVALID_ARGUMENT, fmt::format("option 'reverse' is NULL but reverse_count is {}", o.reverse_count));
+    if (o.reverse != nullptr) {
+      if (o.reverse_count != items)
+        fail(LODE_E_INVALID_ARGUMENT, fmt::format("{} reverse-keyed flags were given for {} items", o.reverse_count, items));
+      for (int64_t j = 0; j < o.reverse_count; ++j) oo.reverse_keyed.push_back(o.reverse[j] != 0);
+    }
+    *out = model_omega(model, o.assignment, o.assignment_count, std::move(oo));
   });
 }
 
@@ -247,7 +295,8 @@ LODE_API int lode_reliability_matrix(const lode_reliability* rel, int key, doubl
     require_pointer(rel, "reliability");
     const bool alpha_key = key >= LODE_ALPHA_IF_DELETED && key <= LODE_ALPHA_ITEM_SDS;
     const bool omega_key = (key >= LODE_OMEGA && key <= LODE_OMEGA_UNIQUENESSES) ||
-                           key == LODE_RELIABILITY_OMEGA_FACTOR_SHARE || key == LODE_RELIABILITY_OMEGA_SCALE_VARIANCE;
+                           key == LODE_RELIABILITY_OMEGA_FACTOR_SHARE || key == LODE_RELIABILITY_OMEGA_SCALE_VARIANCE ||
+                           key == LODE_RELIABILITY_REVERSED;
     if ((alpha_key && !rel->is_alpha) || (omega_key && rel->is_alpha))
       fail(LODE_E_INVALID_ARGUMENT, fmt::format("key {} belongs to {} results; this is {} result", key,
                                                 alpha_key ? "alpha" : "omega", rel->is_alpha ? "an alpha" : "an omega"));
@@ -265,6 +314,12 @@ LODE_API int lode_reliability_matrix(const lode_reliability* rel, int key, doubl
       case LODE_ALPHA_ITEM_SDS: write_matrix(a.item_sds, out, capacity, rows, cols); break;
       case LODE_OMEGA: write_matrix(per_scale([](const ScaleOmega& s) { return s.omega; }), out, capacity, rows, cols); break;
       case LODE_OMEGA_ASSIGNMENT: write_matrix(of_indices(rel->omega.assignment), out, capacity, rows, cols); break;
+      case LODE_RELIABILITY_REVERSED: {
+        Vector v = Vector::Zero(static_cast<Index>(rel->omega.assignment.size()));
+        for (std::size_t j = 0; j < rel->omega.reversed.size(); ++j) v(static_cast<Index>(j)) = rel->omega.reversed[j] ? 1.0 : 0.0;
+        write_matrix(v, out, capacity, rows, cols);
+        break;
+      }
       case LODE_OMEGA_SUM_LOADINGS:
         write_matrix(per_scale([](const ScaleOmega& s) { return s.sum_loadings; }), out, capacity, rows, cols);
         break;
