@@ -2,6 +2,7 @@
 
 #include "arguments.hpp"
 #include "capi.hpp"
+#include "defaults.hpp"
 
 #include <algorithm>
 #include <cctype>
@@ -184,9 +185,27 @@ Output fn_eigen(const Call& call) {
 // ---------------------------------------------------------------------------------------------
 namespace {
 
-int method_arg(const Arg& a) { return choice(a, "method", {"ml", "paf", "minres"}); }
+// An option word left out stands for its default (defaults.hpp: the one set of defaults).
+Arg or_default(const Arg& a, const char* word) {
+  if (a.kind != Arg::Kind::missing) return a;
+  Arg d;
+  d.kind = Arg::Kind::text;
+  d.text = word;
+  return d;
+}
+// The extraction a cell asks for, as the C ABI's method.
+int method_arg(const Arg& a) {
+  static constexpr int kMethods[] = {LODE_ML, LODE_PAF, LODE_MINRES};
+  return kMethods[choice(or_default(a, defaults::extraction), "method", {"ml", "paf", "minres"})];
+}
+// The rotation a cell asks for, as the C ABI's method (lode_rotation_method_from_name).
 int rotation_arg(const Arg& a) {
-  return choice(a, "rotation", {"oblimin", "none", "varimax", "quartimax", "equamax", "promax", "quartimin", "geomin"});
+  static constexpr std::initializer_list<const char*> kWords = {"oblimin", "none",    "varimax",   "quartimax",
+                                                                "equamax", "promax", "quartimin", "geomin"};
+  const Arg word = or_default(a, defaults::rotation);
+  int method = LODE_ROTATION_NONE;
+  check(lode_rotation_method_from_name(kWords.begin()[choice(word, "rotation", kWords)], &method), "rotation");
+  return method;
 }
 
 constexpr std::int64_t kMaxFactors = 100;
@@ -196,8 +215,8 @@ constexpr std::size_t kNoArg = static_cast<std::size_t>(-1);
 
 struct FitSpec {
   int factors = 0;   // 0 = the count parallel analysis suggests
-  int method = 0;    // index into method_arg's choices
-  int rotation = 0;  // index into rotation_arg's choices
+  int method = LODE_ML;                // the C ABI's extraction method (method_arg)
+  int rotation = LODE_ROTATION_OBLIMIN;  // the C ABI's rotation method (rotation_arg)
 };
 
 // What every fit-reading cell needs, computed once per distinct (data, options).
@@ -324,10 +343,6 @@ double factorability_value(const lode_factorability* f, int key, const char* wha
   return v;
 }
 
-const int kRotationMethods[] = {LODE_ROTATION_OBLIMIN, LODE_ROTATION_NONE,    LODE_ROTATION_VARIMAX,
-                                LODE_ROTATION_QUARTIMAX, LODE_ROTATION_EQUAMAX, LODE_ROTATION_PROMAX,
-                                LODE_ROTATION_QUARTIMIN, LODE_ROTATION_GEOMIN};
-const int kExtractionMethods[] = {LODE_ML, LODE_PAF, LODE_MINRES};
 
 double model_value(const lode_model* m, int key, const char* what) {
   double v = 0.0;
@@ -339,11 +354,11 @@ std::shared_ptr<const FitOutputs> run_fit(const lode_correlation* corr, const Fi
   check_time(deadline, "factor analysis");
   lode_rotation_options ro;
   check(lode_rotation_options_init(&ro, sizeof ro), "rotation options");
-  ro.method = kRotationMethods[spec.rotation];
+  ro.method = spec.rotation;
   lode_fit_options fo;
   check(lode_fit_options_init(&fo, sizeof fo), "fit options");
   fo.factors = spec.factors;
-  fo.method = kExtractionMethods[spec.method];
+  fo.method = spec.method;
   fo.rotation = &ro;
   fo.progress = deadline_progress;  // checked before and after the extraction and at every rotation start
   fo.progress_user = const_cast<Deadline*>(&deadline);
@@ -437,7 +452,7 @@ std::int64_t run_nfactors(const lode_correlation* corr, int rule, std::int64_t s
 Matrix run_rotate(const Grid& loadings, int rotation, const Arg& parameter) {
   lode_rotation_options ro;
   check(lode_rotation_options_init(&ro, sizeof ro), "rotation options");
-  ro.method = kRotationMethods[rotation];
+  ro.method = rotation;
   if (parameter.kind != Arg::Kind::missing) {
     if (parameter.kind != Arg::Kind::number)
       throw CellError(Failure::bad_argument, "'parameter' must be a number");
