@@ -13,12 +13,6 @@ using namespace styles;
 
 std::string factor_word(std::size_t f) { return "Factor " + std::to_string(f + 1); }
 
-void heading_row(Sheet& fc, std::string text, std::size_t cells) {
-  std::vector<Cell> row{Cell::txt(std::move(text), heading)};
-  for (std::size_t c = 1; c < cells; ++c) row.push_back(Cell::txt("", heading));
-  fc.line(std::move(row));
-}
-
 // A square table with the item names as row and column headings.
 void item_matrix(Sheet& fc, const std::vector<std::string>& names, const std::vector<double>& m, bool flag_large) {
   const std::size_t p = names.size();

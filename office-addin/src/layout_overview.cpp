@@ -10,12 +10,6 @@ namespace {
 
 using namespace styles;
 
-void heading_row(Sheet& ov, const char* text, std::size_t cells) {
-  std::vector<Cell> row{Cell::txt(text, heading)};
-  for (std::size_t c = 1; c < cells; ++c) row.push_back(Cell::txt("", heading));
-  ov.line(std::move(row));
-}
-
 void data_used(Sheet& ov, const Analysis& a) {
   const CorrelationFacts& c = a.corr;
   heading_row(ov, "Data used", 2);

@@ -16,6 +16,13 @@ Sheet layout_record(const Analysis& a);     // layout_record.cpp
 Sheet layout_scores(const Analysis& a);
 Beside layout_scores_beside(const Analysis& a);
 
+// A heading row: `text` in the first cell, then cells-1 empty cells in the heading style.
+inline void heading_row(Sheet& sheet, std::string text, std::size_t cells) {
+  std::vector<Cell> row{Cell::txt(std::move(text), styles::heading)};
+  for (std::size_t c = 1; c < cells; ++c) row.push_back(Cell::txt("", styles::heading));
+  sheet.line(std::move(row));
+}
+
 // "Random data (95th percentile of 100)": the heading of parallel analysis's column (overview, scree).
 std::string random_data_words(const CountResult& count);
 
