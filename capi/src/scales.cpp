@@ -25,7 +25,7 @@ struct lode_reliability {
   AlphaResult alpha;
   OmegaResult omega;
   Index factors = 0;
-  bool single = false;       // omega of a single scale (lode_omega_single_scale)
+  bool single = false;       // omega of a single scale (lode_reliability_compute_scale_omega)
   SingleScaleOmega single_scale;
 };
 
@@ -35,11 +35,11 @@ struct lode_comparison {
 
 namespace {
 
-lode_score_options score_defaults() {
-  lode_score_options d{};
+lode_scores_options score_defaults() {
+  lode_scores_options d{};
   d.struct_size = sizeof d;
-  d.method = LODE_SCORES_REGRESSION;
-  d.missing = LODE_SCORE_FROM_ANSWERED;
+  d.method = LODE_ESTIMATOR_REGRESSION;
+  d.missing = LODE_GAPS_FROM_ANSWERED;
   d.min_answered_share = 0.5;
   d.low_determinacy = 0.80;
   return d;
@@ -86,19 +86,19 @@ lode_reliability_options reliability_defaults() {
 
 extern "C" {
 
-LODE_API int lode_score_options_init(lode_score_options* opts, size_t struct_size) {
-  return guarded([&] { init_options(opts, struct_size, score_defaults(), "lode_score_options"); });
+LODE_API int lode_scores_options_init(lode_scores_options* opts, size_t struct_size) {
+  return guarded([&] { init_options(opts, struct_size, score_defaults(), "lode_scores_options"); });
 }
 
-LODE_API int lode_score(const lode_model* model, const lode_data* data, const lode_score_options* opts,
+LODE_API int lode_scores_compute(const lode_model* model, const lode_data* data, const lode_scores_options* opts,
                         lode_scores** out) {
   return guarded([&] {
     require_pointer(model, "model");
     require_pointer(out, "out");
     *out = nullptr;
-    lode_score_options o = score_defaults();
+    lode_scores_options o = score_defaults();
     if (opts) {
-      check_options_size(opts, "lode_score_options");
+      check_options_size(opts, "lode_scores_options");
       LODE_OPTION_FIELD(o, opts, method);
       LODE_OPTION_FIELD(o, opts, missing);
       LODE_OPTION_FIELD(o, opts, min_answered_share);
@@ -106,14 +106,14 @@ LODE_API int lode_score(const lode_model* model, const lode_data* data, const lo
     }
     ScoreOptions so;
     switch (o.method) {
-      case LODE_SCORES_REGRESSION: so.method = ScoreMethod::regression; break;
-      case LODE_SCORES_BARTLETT: so.method = ScoreMethod::bartlett; break;
-      case LODE_SCORES_TENBERGE: so.method = ScoreMethod::correlation_preserving; break;
+      case LODE_ESTIMATOR_REGRESSION: so.method = ScoreMethod::regression; break;
+      case LODE_ESTIMATOR_BARTLETT: so.method = ScoreMethod::bartlett; break;
+      case LODE_ESTIMATOR_CORRELATION_PRESERVING: so.method = ScoreMethod::correlation_preserving; break;
       default: fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown score method {}", o.method));
     }
     switch (o.missing) {
-      case LODE_SCORE_FROM_ANSWERED: so.missing = MissingItemRule::score_from_answered; break;
-      case LODE_SCORE_LEAVE_MISSING: so.missing = MissingItemRule::leave_missing; break;
+      case LODE_GAPS_FROM_ANSWERED: so.missing = MissingItemRule::score_from_answered; break;
+      case LODE_GAPS_LEAVE_MISSING: so.missing = MissingItemRule::leave_missing; break;
       default: fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown missing-item rule {}", o.missing));
     }
     if (!(o.min_answered_share > 0.0 && o.min_answered_share <= 1.0))
@@ -194,7 +194,7 @@ LODE_API int lode_scores_text(const lode_scores* scores, int key, char* out, siz
   });
 }
 
-LODE_API int lode_cronbach_alpha(const lode_data* data, lode_reliability** out) {
+LODE_API int lode_reliability_compute_alpha(const lode_data* data, lode_reliability** out) {
   return guarded([&] {
     require_pointer(data, "data");
     require_pointer(out, "out");
@@ -210,7 +210,7 @@ LODE_API int lode_cronbach_alpha(const lode_data* data, lode_reliability** out) 
   });
 }
 
-LODE_API int lode_mcdonald_omega(const lode_model* model, const int64_t* assignment, int64_t count,
+LODE_API int lode_reliability_compute_omega(const lode_model* model, const int64_t* assignment, int64_t count,
                                  lode_reliability** out) {
   return guarded([&] {
     require_pointer(model, "model");
@@ -257,7 +257,7 @@ LODE_API int lode_reliability_compute_keyed_omega(const lode_model* model, const
   });
 }
 
-LODE_API int lode_omega_single_scale(const lode_correlation* corr, const lode_fit_options* opts,
+LODE_API int lode_reliability_compute_scale_omega(const lode_correlation* corr, const lode_model_options* opts,
                                      lode_reliability** out) {
   return guarded([&] {
     require_pointer(corr, "corr");
@@ -336,7 +336,7 @@ LODE_API int lode_reliability_matrix(const lode_reliability* rel, int key, doubl
       case LODE_OMEGA_UNIQUENESSES:
         if (!rel->single)
           fail(LODE_E_INVALID_ARGUMENT, fmt::format("key {} belongs to single-scale omega results "
-                                                    "(lode_omega_single_scale); read a model's loadings from the model", key));
+                                                    "(lode_reliability_compute_scale_omega); read a model's loadings from the model", key));
         write_matrix(key == LODE_OMEGA_LOADINGS ? rel->single_scale.loadings : rel->single_scale.uniquenesses, out,
                      capacity, rows, cols);
         break;
@@ -376,7 +376,7 @@ LODE_API int lode_reliability_text(const lode_reliability* rel, int key, char* o
   });
 }
 
-LODE_API int lode_compare_loadings(const double* a, const double* b, int64_t items, int64_t factors,
+LODE_API int lode_comparison_compute(const double* a, const double* b, int64_t items, int64_t factors,
                                    int64_t a_row_stride, int64_t a_col_stride, int64_t b_row_stride,
                                    int64_t b_col_stride, lode_comparison** out) {
   return guarded([&] {

@@ -38,7 +38,7 @@ void check_time(const Deadline& deadline, const char* what) {
 void check(int status, const char* what) {
   if (status == LODE_OK) return;
   if (status == LODE_E_CANCELLED) time_limit_passed(what);
-  const char* detail = lode_last_error();
+  const char* detail = lode_error_message();
   throw CellError(failure_of_status(status),
                   std::string(what) + ": " + (detail && *detail ? detail : lode_status_name(status)));
 }

@@ -30,7 +30,7 @@ void check_time(const Deadline& deadline, const char* what);
 [[noreturn]] void time_limit_passed(const char* what);
 
 // Runs `work` on a thread of its own and waits for its result until `deadline`, so a stage the C ABI
-// cannot interrupt (an extraction, one rotation start, the fit statistics, lode_rotate) never blocks
+// cannot interrupt (an extraction, one rotation start, the fit statistics, lode_rotation_compute) never blocks
 // the office past the time limit: past it the cell shows the time-limit error at once, and the work
 // ends on its own thread (at its next progress report when it has one) with its result dropped.
 // `work` must own everything it reads (capture by value, shared handles): the caller's frame is gone
@@ -46,7 +46,7 @@ std::shared_ptr<const T> within_time(const Deadline& deadline, const char* what,
   return result.get();
 }
 
-// Throws CellError with lode_last_error()'s text when `status` is not LODE_OK.
+// Throws CellError with lode_error_message()'s text when `status` is not LODE_OK.
 void check(int status, const char* what);
 
 // How a caller turns a C ABI status into its own failure: throws unless `status` is LODE_OK. The

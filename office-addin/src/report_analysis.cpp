@@ -24,7 +24,7 @@ using ScoresHandle = Handle<lode_scores, lode_scores_free>;
 void report_check(int status, const char* what) {
   if (status == LODE_OK) return;
   if (status == LODE_E_CANCELLED) throw Cancelled{};
-  const std::string msg = std::string(what) + ": " + lode_last_error();
+  const std::string msg = std::string(what) + ": " + lode_error_message();
   if (status == LODE_E_INVALID_ARGUMENT || status == LODE_E_INSUFFICIENT_DATA || status == LODE_E_TOO_MANY_FACTORS ||
       status == LODE_E_NOT_POSITIVE_DEFINITE)
     throw std::invalid_argument(msg);
@@ -37,7 +37,7 @@ struct Declined {
 };
 void declining_check(int status, const char*) {
   if (status == LODE_E_CANCELLED) throw Cancelled{};
-  if (status != LODE_OK) throw Declined{lode_last_error()};
+  if (status != LODE_OK) throw Declined{lode_error_message()};
 }
 template <class Read>
 auto attempt(Read read, std::string& reason) -> decltype(read()) {
@@ -116,14 +116,14 @@ DataHandle make_data(const std::vector<double>& values, std::size_t rows, const 
 CorrelationHandle correlate(const lode_data* data, const Options& o, const Progress& progress, double to) {
   lode_correlation_options copts;
   lode_correlation_options_init(&copts, sizeof copts);
-  copts.kind = o.correlation == "spearman" ? LODE_SPEARMAN : o.correlation == "polychoric" ? LODE_POLYCHORIC : LODE_PEARSON;
-  copts.missing = o.missing == "listwise" ? LODE_LISTWISE : LODE_PAIRWISE;
+  copts.kind = o.correlation == "spearman" ? LODE_COEFFICIENT_SPEARMAN : o.correlation == "polychoric" ? LODE_COEFFICIENT_POLYCHORIC : LODE_COEFFICIENT_PEARSON;
+  copts.missing = o.missing == "listwise" ? LODE_MISSING_LISTWISE : LODE_MISSING_PAIRWISE;
   copts.threads = 1;  // the office's other work keeps a core
   ProgressBridge bridge{&progress, "computing correlations", 0.05, to};
   copts.progress = &ProgressBridge::call;
   copts.progress_user = &bridge;
   lode_correlation* raw = nullptr;
-  report_check(lode_correlate(data, &copts, &raw), "computing the correlations");
+  report_check(lode_correlation_compute(data, &copts, &raw), "computing the correlations");
   return CorrelationHandle(raw);
 }
 
@@ -146,7 +146,7 @@ CorrelationFacts correlation_facts(const lode_correlation* c) {
 
   // Factorability (KMO, MSA, Bartlett); parts the C ABI cannot compute come with a reason.
   lode_factorability* raw = nullptr;
-  report_check(lode_assess_factorability(c, &raw), "assessing factorability");
+  report_check(lode_factorability_compute(c, &raw), "assessing factorability");
   FactorabilityHandle fact(raw);
   const auto maybe = [&](int key) {
     Maybe m;
@@ -179,21 +179,21 @@ CountResult count_factors(const lode_correlation* corr, const Options& o, const 
   opts.progress = &ProgressBridge::call;
   opts.progress_user = &bridge;
   lode_factor_count* raw = nullptr;
-  const int st = lode_count_factors(corr, &opts, &raw);
+  const int st = lode_factor_count_compute(corr, &opts, &raw);
   if (st == LODE_E_CANCELLED) throw Cancelled{};
   if (st != LODE_OK) {
-    r.reason = lode_last_error();
+    r.reason = lode_error_message();
     return r;
   }
   CountHandle count(raw);
   const auto value = [&](int key) { return read_value(count.get(), key, lode_factor_count_value, "the factor count", report_check); };
   const auto text = [&](int key) { return read_text(count.get(), key, lode_factor_count_text, "the factor count", report_check); };
-  r.random_pc = vec(count.get(), LODE_COUNT_RANDOM_PC_PERCENTILE, lode_factor_count_matrix, "parallel analysis");
-  r.suggested = static_cast<int>(value(LODE_COUNT_SUGGESTED));
-  r.percentile = value(LODE_COUNT_PERCENTILE);
-  r.replicates = static_cast<int>(value(LODE_COUNT_REPLICATES));
-  r.why = text(LODE_COUNT_REASON);
-  for (const std::string& line : lines_of(text(LODE_COUNT_TABLE))) {
+  r.random_pc = vec(count.get(), LODE_FACTOR_COUNT_RANDOM_PC_PERCENTILE, lode_factor_count_matrix, "parallel analysis");
+  r.suggested = static_cast<int>(value(LODE_FACTOR_COUNT_SUGGESTED));
+  r.percentile = value(LODE_FACTOR_COUNT_PERCENTILE);
+  r.replicates = static_cast<int>(value(LODE_FACTOR_COUNT_REPLICATES));
+  r.why = text(LODE_FACTOR_COUNT_REASON);
+  for (const std::string& line : lines_of(text(LODE_FACTOR_COUNT_TABLE))) {
     CountResult::Rule rule;
     std::size_t a = line.find('\t'), b = line.find('\t', a + 1), c = line.find('\t', b + 1);
     if (a == std::string::npos || b == std::string::npos || c == std::string::npos) continue;
@@ -203,33 +203,33 @@ CountResult count_factors(const lode_correlation* corr, const Options& o, const 
     rule.basis = line.substr(c + 1);
     r.rules.push_back(rule);
   }
-  r.notes = lines_of(text(LODE_COUNT_NOTES));
+  r.notes = lines_of(text(LODE_FACTOR_COUNT_NOTES));
   r.available = true;
   return r;
 }
 
-// The run's extraction and rotation options for lode_fit (and the bootstrap, which refits the same
+// The run's extraction and rotation options for lode_model_compute (and the bootstrap, which refits the same
 // way). Not copyable: fo.rotation points into the same object.
 struct FitSetup {
-  lode_fit_options fo;
+  lode_model_options fo;
   lode_rotation_options ro;
   std::string rotation_used;  // which rotation is applied, in the option's word
   FitSetup(const Options& o, int factors) {
-    lode_fit_options_init(&fo, sizeof fo);
+    lode_model_options_init(&fo, sizeof fo);
     fo.factors = factors;
-    fo.method = o.extraction == "ml" ? LODE_ML : o.extraction == "paf" ? LODE_PAF : LODE_MINRES;
+    fo.method = o.extraction == "ml" ? LODE_EXTRACTION_ML : o.extraction == "paf" ? LODE_EXTRACTION_PAF : LODE_EXTRACTION_MINRES;
     lode_rotation_options_init(&ro, sizeof ro);
     ro.seed = o.seed;
     ro.threads = 1;
     rotation_used = o.rotation;
     if (o.rotation == "oblimin") {
-      ro.method = LODE_ROTATION_OBLIMIN;
+      ro.method = LODE_CRITERION_OBLIMIN;
       ro.gamma = o.rotation_parameter;
     } else if (o.rotation == "promax") {
-      ro.method = LODE_ROTATION_PROMAX;
+      ro.method = LODE_CRITERION_PROMAX;
       if (o.rotation_parameter > 0) ro.power = o.rotation_parameter;
     } else {
-      ro.method = LODE_ROTATION_VARIMAX;
+      ro.method = LODE_CRITERION_VARIMAX;
     }
     if (o.rotation != "none" && factors >= 2) fo.rotation = &ro;
     else if (o.rotation != "none") rotation_used = "none (one factor cannot be rotated)";
@@ -279,12 +279,12 @@ ModelResult read_model(const lode_model* m, int factors, std::string rotation_us
 ModelResult fit_model(const lode_correlation* corr, const Options& o, int factors, ModelHandle& handle) {
   FitSetup setup(o, factors);
   lode_model* raw = nullptr;
-  const int st = lode_fit(corr, &setup.fo, &raw);
+  const int st = lode_model_compute(corr, &setup.fo, &raw);
   if (st == LODE_E_CANCELLED) throw Cancelled{};
   if (st != LODE_OK) {
     ModelResult r;
     r.factors = factors;
-    r.reason = lode_last_error();
+    r.reason = lode_error_message();
     // A number of factors the person fixed that the items cannot carry is a bad option, refused
     // before anything is written; a fit the data do not allow is reported inside the report.
     if (o.factors > 0 && (st == LODE_E_TOO_MANY_FACTORS || st == LODE_E_INVALID_ARGUMENT))
@@ -308,10 +308,10 @@ BootResult bootstrap_intervals(const lode_correlation* corr, const Options& o, i
   bo.progress = &ProgressBridge::call;
   bo.progress_user = &bridge;
   lode_bootstrap_result* raw = nullptr;
-  const int st = lode_bootstrap(corr, &setup.fo, &bo, &raw);
+  const int st = lode_bootstrap_compute(corr, &setup.fo, &bo, &raw);
   if (st == LODE_E_CANCELLED) throw Cancelled{};
   if (st != LODE_OK) {
-    r.reason = lode_last_error();
+    r.reason = lode_error_message();
     return r;
   }
   BootstrapHandle b(raw);
@@ -336,7 +336,7 @@ BootResult bootstrap_intervals(const lode_correlation* corr, const Options& o, i
   return r;
 }
 
-// Alpha of one scale (lode_cronbach_alpha) on its items' answers, reverse-scored items as (lowest +
+// Alpha of one scale (lode_reliability_compute_alpha) on its items' answers, reverse-scored items as (lowest +
 // highest observed answer) - answer, as a scale score adds them.
 void scale_alpha(ScaleReliability& sr, const Items& items) {
   const std::size_t m = sr.items.size(), p = items.names.size(), n = items.rows;
@@ -359,8 +359,8 @@ void scale_alpha(ScaleReliability& sr, const Items& items) {
   }
   const DataHandle d = make_data(x, n, names);
   lode_reliability* raw = nullptr;
-  if (lode_cronbach_alpha(d.get(), &raw) != LODE_OK) {
-    sr.alpha_reason = lode_last_error();
+  if (lode_reliability_compute_alpha(d.get(), &raw) != LODE_OK) {
+    sr.alpha_reason = lode_error_message();
     return;
   }
   ReliabilityHandle al(raw);
@@ -392,7 +392,7 @@ ReliabilityResult reliability(const ModelResult& model, const lode_model* handle
   ro.keying = LODE_KEYING_REVERSE_NEGATIVE;
   lode_reliability* raw = nullptr;
   if (lode_reliability_compute_keyed_omega(handle, &ro, &raw) != LODE_OK) {
-    out.reason = lode_last_error();
+    out.reason = lode_error_message();
     return out;
   }
   ReliabilityHandle om(raw);
@@ -430,21 +430,21 @@ ReliabilityResult reliability(const ModelResult& model, const lode_model* handle
 // them out); pairwise scores from the answered items when at least half were answered.
 ScoreResult factor_scores(const lode_model* model, const lode_data* data, const Options& o) {
   ScoreResult r;
-  lode_score_options so;
-  lode_score_options_init(&so, sizeof so);
-  so.method = o.scores == "bartlett" ? LODE_SCORES_BARTLETT : o.scores == "tenberge" ? LODE_SCORES_TENBERGE : LODE_SCORES_REGRESSION;
+  lode_scores_options so;
+  lode_scores_options_init(&so, sizeof so);
+  so.method = o.scores == "bartlett" ? LODE_ESTIMATOR_BARTLETT : o.scores == "tenberge" ? LODE_ESTIMATOR_CORRELATION_PRESERVING : LODE_ESTIMATOR_REGRESSION;
   if (o.missing == "listwise") {
-    so.missing = LODE_SCORE_LEAVE_MISSING;
+    so.missing = LODE_GAPS_LEAVE_MISSING;
     r.rule = "a respondent who skipped any item gets no scores (blank cells), as the listwise correlations left "
              "them out";
   } else {
-    so.missing = LODE_SCORE_FROM_ANSWERED;
+    so.missing = LODE_GAPS_FROM_ANSWERED;
     r.rule = "a respondent who skipped items is scored from the items answered, when at least " +
              fmt_num(100.0 * so.min_answered_share, 0) + "% of them were answered; otherwise no scores (blank cells)";
   }
   lode_scores* raw = nullptr;
-  if (lode_score(model, data, &so, &raw) != LODE_OK) {
-    r.reason = lode_last_error();
+  if (lode_scores_compute(model, data, &so, &raw) != LODE_OK) {
+    r.reason = lode_error_message();
     return r;
   }
   ScoresHandle sc(raw);

@@ -43,7 +43,7 @@ struct CorrelationFacts {
   std::vector<std::string> factorability_notes;
 };
 
-// How many factors (lode_count_factors); when it fails, `reason` says why.
+// How many factors (lode_factor_count_compute); when it fails, `reason` says why.
 struct CountResult {
   bool available = false;
   std::string reason;
@@ -60,7 +60,7 @@ struct CountResult {
   std::vector<std::string> notes;
 };
 
-// The fitted model (lode_fit); when it fails, `reason` holds the C ABI's message.
+// The fitted model (lode_model_compute); when it fails, `reason` holds the C ABI's message.
 struct ModelResult {
   bool available = false;
   std::string reason;
@@ -75,7 +75,7 @@ struct ModelResult {
   std::vector<std::string> notes;
 };
 
-// Bootstrap intervals (lode_bootstrap); when they fail, `reason` says why.
+// Bootstrap intervals (lode_bootstrap_compute); when they fail, `reason` says why.
 struct BootResult {
   bool available = false;
   std::string reason;

@@ -26,7 +26,7 @@ void validate(const Options& o) {
     if (!known) throw std::invalid_argument("option " + std::string(w.property) + " is \"" + v + "\"; it must be one of " + list);
   }
   if (o.factors < 0 || o.factors > kMaxReportFactors) throw std::invalid_argument("option Factors must be 0 (suggest) to 100");
-  // One resample gives no interval (the C ABI's lode_bootstrap needs at least 2).
+  // One resample gives no interval (the C ABI's lode_bootstrap_compute needs at least 2).
   if (o.bootstrap < 0 || o.bootstrap == 1 || o.bootstrap > kMaxReportBootstrap)
     throw std::invalid_argument("option Bootstrap is " + std::to_string(o.bootstrap) +
                                 "; it must be 0 (off) or 2 to 100000 resamples");

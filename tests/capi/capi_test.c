@@ -30,17 +30,17 @@ static void expect_status(int got, int expected, const char* fragment, const cha
   if (got != expected) {
     ++failures;
     fprintf(stderr, "line %d: %s returned %d (%s), expected %d (%s); last error: %s\n", line, call, got,
-            lode_status_name(got), expected, lode_status_name(expected), lode_last_error());
+            lode_status_name(got), expected, lode_status_name(expected), lode_error_message());
     return;
   }
   if (expected == LODE_OK) {
-    if (lode_last_error()[0] != '\0') {
+    if (lode_error_message()[0] != '\0') {
       ++failures;
-      fprintf(stderr, "line %d: %s succeeded but left the message '%s'\n", line, call, lode_last_error());
+      fprintf(stderr, "line %d: %s succeeded but left the message '%s'\n", line, call, lode_error_message());
     }
-  } else if (fragment != NULL && strstr(lode_last_error(), fragment) == NULL) {
+  } else if (fragment != NULL && strstr(lode_error_message(), fragment) == NULL) {
     ++failures;
-    fprintf(stderr, "line %d: %s: message '%s' lacks '%s'\n", line, call, lode_last_error(), fragment);
+    fprintf(stderr, "line %d: %s: message '%s' lacks '%s'\n", line, call, lode_error_message(), fragment);
   }
 }
 #define EXPECT(call, status, fragment) expect_status((call), (status), (fragment), #call, __LINE__)
@@ -85,7 +85,7 @@ static void test_version_and_status(void) {
   for (s = LODE_OK; s <= LODE_E_UNSUPPORTED; ++s) CHECK(strcmp(lode_status_name(s), "unknown status") != 0);
   CHECK(strcmp(lode_status_name(-1), "unknown status") == 0);
   CHECK(strcmp(lode_status_name(9999), "unknown status") == 0);
-  CHECK(strcmp(lode_last_error(), "") == 0);
+  CHECK(strcmp(lode_error_message(), "") == 0);
 }
 
 static void test_data(void) {
@@ -158,7 +158,7 @@ static void test_matrix_input(void) {
   OK(lode_correlation_options_init(&o, sizeof o));
   o.smooth = 1;
   o.min_eigenvalue = 0.0;
-  OK(lode_correlate(d, &o, &c));
+  OK(lode_correlation_compute(d, &o, &c));
   OK(lode_correlation_matrix(c, LODE_CORRELATION_MATRIX, out, 9, &rows, &cols));
   CHECK(rows == 3 && cols == 3);
   CHECK(fabs(out[1] - 0.7607) < 5e-5);
@@ -181,7 +181,7 @@ static void test_matrix_input(void) {
   c = NULL;
 
   /* Not smoothed: flagged, SMCs refused with the reason. */
-  OK(lode_correlate(d, NULL, &c));
+  OK(lode_correlation_compute(d, NULL, &c));
   OK(lode_correlation_value(c, LODE_CORRELATION_POSITIVE_DEFINITE, &v));
   CHECK(v == 0.0);
   EXPECT(lode_correlation_matrix(c, LODE_CORRELATION_SMC, out, 9, &rows, &cols), LODE_E_NOT_POSITIVE_DEFINITE,
@@ -210,7 +210,7 @@ static void test_matrix_input(void) {
     EXPECT(lode_data_from_covariance(bad_cov, 3, 3, 1, 50, &d), LODE_E_INVALID_ARGUMENT, "column 2 has variance -1");
   }
   OK(lode_data_from_covariance(cov, 3, 1, 3, 50, &d));
-  OK(lode_correlate(d, NULL, &c));
+  OK(lode_correlation_compute(d, NULL, &c));
   OK(lode_correlation_matrix(c, LODE_CORRELATION_MATRIX, out, 9, NULL, NULL));
   CHECK(max_abs_diff(out, r_of_cov, 9) < 1e-15);
   OK(lode_correlation_value(c, LODE_CORRELATION_N_OBS, &v));
@@ -239,17 +239,17 @@ static void test_correlation(void) {
   EXPECT(lode_correlation_options_init(NULL, sizeof o), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
   EXPECT(lode_correlation_options_init(&o, 2), LODE_E_INVALID_ARGUMENT, "too small");
   OK(lode_correlation_options_init(&o, sizeof o));
-  CHECK(o.struct_size == sizeof o && o.kind == LODE_PEARSON && o.missing == LODE_PAIRWISE && o.smooth == 0);
+  CHECK(o.struct_size == sizeof o && o.kind == LODE_COEFFICIENT_PEARSON && o.missing == LODE_MISSING_PAIRWISE && o.smooth == 0);
   CHECK(o.min_eigenvalue == 1e-6 && o.min_pair_observations == 3);
 
   OK(lode_data_from_raw(x, N_ROWS, N_ITEMS, N_ITEMS, 1, &d));
   OK(lode_data_from_raw(xt, N_ROWS, N_ITEMS, 1, N_ROWS, &dt));
-  EXPECT(lode_correlate(NULL, &o, &c), LODE_E_INVALID_ARGUMENT, "'data' is NULL");
-  EXPECT(lode_correlate(d, &o, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  EXPECT(lode_correlation_compute(NULL, &o, &c), LODE_E_INVALID_ARGUMENT, "'data' is NULL");
+  EXPECT(lode_correlation_compute(d, &o, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
 
   /* row-major and column-major input give the same matrix */
-  OK(lode_correlate(d, &o, &c));
-  OK(lode_correlate(dt, &o, &c2));
+  OK(lode_correlation_compute(d, &o, &c));
+  OK(lode_correlation_compute(dt, &o, &c2));
   OK(lode_correlation_matrix(c, LODE_CORRELATION_MATRIX, out, N_ITEMS * N_ITEMS, &rows, &cols));
   OK(lode_correlation_matrix(c2, LODE_CORRELATION_MATRIX, out2, N_ITEMS * N_ITEMS, NULL, NULL));
   CHECK(rows == N_ITEMS && cols == N_ITEMS);
@@ -310,9 +310,9 @@ static void test_correlation(void) {
   OK(lode_correlation_value(c, LODE_CORRELATION_SMOOTHING_CONVERGED, &v));
   OK(lode_correlation_value(c, LODE_CORRELATION_SMOOTHING_ITERATIONS, &v));
   OK(lode_correlation_value(c, LODE_CORRELATION_KIND, &v));
-  CHECK(v == LODE_PEARSON);
+  CHECK(v == LODE_COEFFICIENT_PEARSON);
   OK(lode_correlation_value(c, LODE_CORRELATION_MISSING, &v));
-  CHECK(v == LODE_PAIRWISE);
+  CHECK(v == LODE_MISSING_PAIRWISE);
   EXPECT(lode_correlation_value(c, LODE_CORRELATION_MATRIX, &v), LODE_E_INVALID_ARGUMENT, "key 100");
   EXPECT(lode_correlation_value(c, LODE_CORRELATION_ITEMS, NULL), LODE_E_INVALID_ARGUMENT, "'value' is NULL");
   EXPECT(lode_correlation_value(NULL, LODE_CORRELATION_ITEMS, &v), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
@@ -329,62 +329,62 @@ static void test_correlation(void) {
   c = NULL;
 
   /* listwise and Spearman */
-  o.missing = LODE_LISTWISE;
-  o.kind = LODE_SPEARMAN;
-  OK(lode_correlate(d, &o, &c));
+  o.missing = LODE_MISSING_LISTWISE;
+  o.kind = LODE_COEFFICIENT_SPEARMAN;
+  OK(lode_correlation_compute(d, &o, &c));
   OK(lode_correlation_value(c, LODE_CORRELATION_N_OBS, &v));
   CHECK(v == N_ROWS - 2);
   OK(lode_correlation_value(c, LODE_CORRELATION_KIND, &v));
-  CHECK(v == LODE_SPEARMAN);
+  CHECK(v == LODE_COEFFICIENT_SPEARMAN);
   OK(lode_correlation_value(c, LODE_CORRELATION_MISSING, &v));
-  CHECK(v == LODE_LISTWISE);
+  CHECK(v == LODE_MISSING_LISTWISE);
   lode_correlation_free(c);
   c = NULL;
 
   /* bad option values */
   OK(lode_correlation_options_init(&o, sizeof o));
   o.kind = 7;
-  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "unknown correlation kind 7");
-  o.kind = LODE_PEARSON;
+  EXPECT(lode_correlation_compute(d, &o, &c), LODE_E_INVALID_ARGUMENT, "unknown correlation kind 7");
+  o.kind = LODE_COEFFICIENT_PEARSON;
   o.missing = -1;
-  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "unknown missing-value policy -1");
-  o.missing = LODE_PAIRWISE;
+  EXPECT(lode_correlation_compute(d, &o, &c), LODE_E_INVALID_ARGUMENT, "unknown missing-value policy -1");
+  o.missing = LODE_MISSING_PAIRWISE;
   o.min_eigenvalue = nan_value();
-  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "min_eigenvalue");
+  EXPECT(lode_correlation_compute(d, &o, &c), LODE_E_INVALID_ARGUMENT, "min_eigenvalue");
   o.min_eigenvalue = 1e-6;
   o.min_pair_observations = 1;
-  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "min_pair_observations");
+  EXPECT(lode_correlation_compute(d, &o, &c), LODE_E_INVALID_ARGUMENT, "min_pair_observations");
   o.min_pair_observations = 1000;
-  EXPECT(lode_correlate(d, &o, &c), LODE_E_INSUFFICIENT_DATA, "at least 1000 are needed");
+  EXPECT(lode_correlation_compute(d, &o, &c), LODE_E_INSUFFICIENT_DATA, "at least 1000 are needed");
   CHECK(c == NULL);
 
   /* an option struct of an older, smaller size: fields beyond it take their defaults
    * (min_pair_observations = 1000 is not read, so the call succeeds) */
-  o.missing = LODE_LISTWISE;
+  o.missing = LODE_MISSING_LISTWISE;
   o.struct_size = offsetof(lode_correlation_options, min_pair_observations);
-  OK(lode_correlate(d, &o, &c));
+  OK(lode_correlation_compute(d, &o, &c));
   OK(lode_correlation_value(c, LODE_CORRELATION_MISSING, &v));
-  CHECK(v == LODE_LISTWISE);
+  CHECK(v == LODE_MISSING_LISTWISE);
   lode_correlation_free(c);
   c = NULL;
   o.struct_size = offsetof(lode_correlation_options, missing); /* only `kind` known: missing defaults to pairwise */
-  OK(lode_correlate(d, &o, &c));
+  OK(lode_correlation_compute(d, &o, &c));
   OK(lode_correlation_value(c, LODE_CORRELATION_MISSING, &v));
-  CHECK(v == LODE_PAIRWISE);
+  CHECK(v == LODE_MISSING_PAIRWISE);
   lode_correlation_free(c);
   c = NULL;
   o.struct_size = 3;
-  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "struct_size is 3");
+  EXPECT(lode_correlation_compute(d, &o, &c), LODE_E_INVALID_ARGUMENT, "struct_size is 3");
   o.struct_size = 0;
-  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "lode_correlation_options_init");
+  EXPECT(lode_correlation_compute(d, &o, &c), LODE_E_INVALID_ARGUMENT, "lode_correlation_options_init");
   {
     /* an older caller's init: only the fields within its size are written */
     lode_correlation_options small;
     memset(&small, 0x5a, sizeof small);
     OK(lode_correlation_options_init(&small, offsetof(lode_correlation_options, smooth)));
-    CHECK(small.struct_size == offsetof(lode_correlation_options, smooth) && small.kind == LODE_PEARSON);
+    CHECK(small.struct_size == offsetof(lode_correlation_options, smooth) && small.kind == LODE_COEFFICIENT_PEARSON);
     CHECK(small.smooth == 0x5a5a5a5a); /* beyond its size: untouched */
-    OK(lode_correlate(d, &small, &c));
+    OK(lode_correlation_compute(d, &small, &c));
     lode_correlation_free(c);
     c = NULL;
   }
@@ -396,11 +396,11 @@ static void test_correlation(void) {
     } n;
     OK(lode_correlation_options_init(&n.base, sizeof n));
     CHECK(n.base.struct_size == sizeof n && n.future_field == 0.0);
-    OK(lode_correlate(d, &n.base, &c));
+    OK(lode_correlation_compute(d, &n.base, &c));
     lode_correlation_free(c);
     c = NULL;
     n.future_field = 2.5;
-    EXPECT(lode_correlate(d, &n.base, &c), LODE_E_UNSUPPORTED, "newer Lode");
+    EXPECT(lode_correlation_compute(d, &n.base, &c), LODE_E_UNSUPPORTED, "newer Lode");
     CHECK(c == NULL);
   }
 
@@ -412,22 +412,22 @@ static void test_correlation(void) {
     memcpy(y, x, sizeof y);
     for (i = 0; i < N_ROWS; ++i) y[i * N_ITEMS + 4] = 2.0;
     OK(lode_data_from_raw(y, N_ROWS, N_ITEMS, N_ITEMS, 1, &dy));
-    EXPECT(lode_correlate(dy, NULL, &c), LODE_E_INSUFFICIENT_DATA, "column 5 is constant");
+    EXPECT(lode_correlation_compute(dy, NULL, &c), LODE_E_INSUFFICIENT_DATA, "column 5 is constant");
     OK(lode_data_set_item_names(dy, names, N_ITEMS));
-    EXPECT(lode_correlate(dy, NULL, &c), LODE_E_INSUFFICIENT_DATA, "item 'support' is constant");
+    EXPECT(lode_correlation_compute(dy, NULL, &c), LODE_E_INSUFFICIENT_DATA, "item 'support' is constant");
     lode_data_free(dy);
     OK(lode_data_from_raw(y, N_ROWS, 2, N_ITEMS, 1, &dy));
-    EXPECT(lode_correlate(dy, NULL, &c), LODE_E_INSUFFICIENT_DATA, "at least 3 items");
+    EXPECT(lode_correlation_compute(dy, NULL, &c), LODE_E_INSUFFICIENT_DATA, "at least 3 items");
     lode_data_free(dy);
     for (i = 0; i < N_ROWS; ++i) y[i * N_ITEMS + 4] = nan_value();
     OK(lode_data_from_raw(y, N_ROWS, N_ITEMS, N_ITEMS, 1, &dy));
-    EXPECT(lode_correlate(dy, NULL, &c), LODE_E_INSUFFICIENT_DATA, "answered in only 0 of 60 rows");
+    EXPECT(lode_correlation_compute(dy, NULL, &c), LODE_E_INSUFFICIENT_DATA, "answered in only 0 of 60 rows");
     lode_data_free(dy);
   }
   CHECK(c == NULL);
 
   /* the result outlives its data handle */
-  OK(lode_correlate(d, NULL, &c));
+  OK(lode_correlation_compute(d, NULL, &c));
   lode_data_free(d);
   lode_data_free(dt);
   OK(lode_correlation_matrix(c, LODE_CORRELATION_MATRIX, out2, N_ITEMS * N_ITEMS, NULL, NULL));
@@ -455,14 +455,14 @@ static void test_polychoric(void) {
   OK(lode_data_from_raw(x, N_ROWS, N_ITEMS, N_ITEMS, 1, &d));
   OK(lode_correlation_options_init(&o, sizeof o));
   CHECK(o.threads == 0 && o.max_categories == 10 && o.zero_cells == LODE_ZERO_CELLS_AT_BOUND && o.zero_cell_add == 0.5);
-  o.kind = LODE_POLYCHORIC;
+  o.kind = LODE_COEFFICIENT_POLYCHORIC;
   o.smooth = 1;
   o.threads = 1;
   o.progress = polychoric_progress;
-  OK(lode_correlate(d, &o, &c));
+  OK(lode_correlation_compute(d, &o, &c));
   CHECK(polychoric_progress_calls > 0);
   OK(lode_correlation_value(c, LODE_CORRELATION_KIND, &v));
-  CHECK(v == LODE_POLYCHORIC);
+  CHECK(v == LODE_COEFFICIENT_POLYCHORIC);
   OK(lode_correlation_matrix(c, LODE_CORRELATION_STANDARD_ERRORS, se, N_ITEMS * N_ITEMS, &rows, &cols));
   CHECK(rows == N_ITEMS && cols == N_ITEMS && se[0] == 0.0 && se[1] > 0.0 && se[1] < 0.5);
   OK(lode_correlation_matrix(c, LODE_CORRELATION_THRESHOLDS, NULL, 0, &rows, &cols));
@@ -479,7 +479,7 @@ static void test_polychoric(void) {
   c = NULL;
 
   /* standard errors exist only for polychoric correlations */
-  OK(lode_correlate(d, NULL, &c));
+  OK(lode_correlation_compute(d, NULL, &c));
   EXPECT(lode_correlation_matrix(c, LODE_CORRELATION_STANDARD_ERRORS, se, 36, NULL, NULL), LODE_E_INVALID_ARGUMENT,
          "only for polychoric");
   OK(lode_correlation_value(c, LODE_CORRELATION_PAIRS_AT_BOUND, &v));
@@ -499,32 +499,32 @@ static void test_polychoric(void) {
     OK(lode_data_from_raw(big, BIG_N, BIG_P, BIG_P, 1, &db));
     free(big);
     o.progress_user = &dummy;
-    EXPECT(lode_correlate(db, &o, &c), LODE_E_CANCELLED, "cancel");
+    EXPECT(lode_correlation_compute(db, &o, &c), LODE_E_CANCELLED, "cancel");
     CHECK(c == NULL);
     lode_data_free(db);
   }
   o.progress_user = NULL;
   o.threads = -1;
-  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "threads");
+  EXPECT(lode_correlation_compute(d, &o, &c), LODE_E_INVALID_ARGUMENT, "threads");
   o.threads = 1;
   o.max_categories = 1;
-  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "max_categories");
+  EXPECT(lode_correlation_compute(d, &o, &c), LODE_E_INVALID_ARGUMENT, "max_categories");
   o.max_categories = 3;
-  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "column 1");
+  EXPECT(lode_correlation_compute(d, &o, &c), LODE_E_INVALID_ARGUMENT, "column 1");
   o.max_categories = 10;
   o.zero_cells = 5;
-  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "zero-cell policy 5");
+  EXPECT(lode_correlation_compute(d, &o, &c), LODE_E_INVALID_ARGUMENT, "zero-cell policy 5");
   o.zero_cells = LODE_ZERO_CELLS_ALWAYS;
   o.zero_cell_add = 0.0;
-  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "zero_cell_add");
+  EXPECT(lode_correlation_compute(d, &o, &c), LODE_E_INVALID_ARGUMENT, "zero_cell_add");
   CHECK(c == NULL);
   lode_data_free(d);
   /* non-integer codes are refused, naming the item */
   x[4 * N_ITEMS + 3] = 2.5;
   OK(lode_data_from_raw(x, N_ROWS, N_ITEMS, N_ITEMS, 1, &d));
   OK(lode_correlation_options_init(&o, sizeof o));
-  o.kind = LODE_POLYCHORIC;
-  EXPECT(lode_correlate(d, &o, &c), LODE_E_INVALID_ARGUMENT, "column 4");
+  o.kind = LODE_COEFFICIENT_POLYCHORIC;
+  EXPECT(lode_correlation_compute(d, &o, &c), LODE_E_INVALID_ARGUMENT, "column 4");
   lode_data_free(d);
 }
 
@@ -546,7 +546,7 @@ static lode_correlation* population_correlation(int64_t n_obs) {
   lode_correlation* c = NULL;
   population_matrix(r);
   OK(lode_data_from_correlation(r, 6, 6, 1, n_obs, &d));
-  OK(lode_correlate(d, NULL, &c));
+  OK(lode_correlation_compute(d, NULL, &c));
   lode_data_free(d);
   return c;
 }
@@ -561,9 +561,9 @@ static void test_factorability(void) {
   int64_t rows = 0, cols = 0;
   int i;
 
-  EXPECT(lode_assess_factorability(NULL, &f), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
-  EXPECT(lode_assess_factorability(c, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
-  OK(lode_assess_factorability(c, &f));
+  EXPECT(lode_factorability_compute(NULL, &f), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
+  EXPECT(lode_factorability_compute(c, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  OK(lode_factorability_compute(c, &f));
   OK(lode_factorability_value(f, LODE_FACTORABILITY_KMO, &v));
   CHECK(v > 0.5 && v < 1.0);
   OK(lode_factorability_matrix(f, LODE_FACTORABILITY_MSA, NULL, 0, &rows, &cols));
@@ -602,7 +602,7 @@ static void test_factorability(void) {
   f = NULL;
 
   /* without n_obs: Bartlett's test is unavailable, with the reason */
-  OK(lode_assess_factorability(c0, &f));
+  OK(lode_factorability_compute(c0, &f));
   EXPECT(lode_factorability_value(f, LODE_FACTORABILITY_BARTLETT_CHI_SQUARE, &v), LODE_E_INSUFFICIENT_DATA, "n_obs");
   OK(lode_factorability_value(f, LODE_FACTORABILITY_KMO, &v));
   lode_factorability_free(f);
@@ -637,30 +637,30 @@ static void test_factor_count(void) {
   o.seed = 42;
   o.progress = count_progress;
   o.progress_user = &keep_going;
-  EXPECT(lode_count_factors(NULL, &o, &n), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
-  EXPECT(lode_count_factors(c, &o, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
-  OK(lode_count_factors(c, &o, &n));
+  EXPECT(lode_factor_count_compute(NULL, &o, &n), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
+  EXPECT(lode_factor_count_compute(c, &o, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  OK(lode_factor_count_compute(c, &o, &n));
   CHECK(progress_calls > 0);
-  OK(lode_factor_count_value(n, LODE_COUNT_SUGGESTED, &v));
+  OK(lode_factor_count_value(n, LODE_FACTOR_COUNT_SUGGESTED, &v));
   CHECK(v == 2.0);
-  OK(lode_factor_count_value(n, LODE_COUNT_PARALLEL_FACTOR, &v));
-  OK(lode_factor_count_value(n, LODE_COUNT_PARALLEL_PC, &v));
-  OK(lode_factor_count_value(n, LODE_COUNT_MAP_SQUARED_SUGGESTED, &v));
-  OK(lode_factor_count_value(n, LODE_COUNT_MAP_FOURTH_SUGGESTED, &v));
-  OK(lode_factor_count_value(n, LODE_COUNT_KAISER, &v));
+  OK(lode_factor_count_value(n, LODE_FACTOR_COUNT_PARALLEL_FACTOR, &v));
+  OK(lode_factor_count_value(n, LODE_FACTOR_COUNT_PARALLEL_PC, &v));
+  OK(lode_factor_count_value(n, LODE_FACTOR_COUNT_MAP_SQUARED_SUGGESTED, &v));
+  OK(lode_factor_count_value(n, LODE_FACTOR_COUNT_MAP_FOURTH_SUGGESTED, &v));
+  OK(lode_factor_count_value(n, LODE_FACTOR_COUNT_KAISER, &v));
   CHECK(v == 2.0); /* two eigenvalues above one */
-  OK(lode_factor_count_value(n, LODE_COUNT_EMPIRICAL_KAISER, &v));
-  OK(lode_factor_count_value(n, LODE_COUNT_REPLICATES, &v));
+  OK(lode_factor_count_value(n, LODE_FACTOR_COUNT_EMPIRICAL_KAISER, &v));
+  OK(lode_factor_count_value(n, LODE_FACTOR_COUNT_REPLICATES, &v));
   CHECK(v == 200.0);
-  OK(lode_factor_count_value(n, LODE_COUNT_N_OBS, &v));
+  OK(lode_factor_count_value(n, LODE_FACTOR_COUNT_N_OBS, &v));
   CHECK(v == 300.0);
-  OK(lode_factor_count_value(n, LODE_COUNT_PERCENTILE, &v));
+  OK(lode_factor_count_value(n, LODE_FACTOR_COUNT_PERCENTILE, &v));
   CHECK(v == 95.0);
   {
-    static const int keys[] = {LODE_COUNT_OBSERVED_PC, LODE_COUNT_OBSERVED_FACTOR, LODE_COUNT_RANDOM_PC_MEAN,
-                               LODE_COUNT_RANDOM_PC_PERCENTILE, LODE_COUNT_RANDOM_FACTOR_MEAN,
-                               LODE_COUNT_RANDOM_FACTOR_PERCENTILE, LODE_COUNT_MAP_SQUARED, LODE_COUNT_MAP_FOURTH,
-                               LODE_COUNT_EKC_REFERENCE};
+    static const int keys[] = {LODE_FACTOR_COUNT_OBSERVED_PC, LODE_FACTOR_COUNT_OBSERVED_FACTOR, LODE_FACTOR_COUNT_RANDOM_PC_MEAN,
+                               LODE_FACTOR_COUNT_RANDOM_PC_PERCENTILE, LODE_FACTOR_COUNT_RANDOM_FACTOR_MEAN,
+                               LODE_FACTOR_COUNT_RANDOM_FACTOR_PERCENTILE, LODE_FACTOR_COUNT_MAP_SQUARED, LODE_FACTOR_COUNT_MAP_FOURTH,
+                               LODE_FACTOR_COUNT_EKC_REFERENCE};
     size_t k;
     for (k = 0; k < sizeof keys / sizeof keys[0]; ++k) {
       OK(lode_factor_count_matrix(n, keys[k], NULL, 0, &rows, &cols));
@@ -668,52 +668,52 @@ static void test_factor_count(void) {
       OK(lode_factor_count_matrix(n, keys[k], col, 6, NULL, NULL));
     }
   }
-  OK(lode_factor_count_text(n, LODE_COUNT_REASON, text, sizeof text, &len));
+  OK(lode_factor_count_text(n, LODE_FACTOR_COUNT_REASON, text, sizeof text, &len));
   CHECK(len > 0);
-  OK(lode_factor_count_text(n, LODE_COUNT_TABLE, text, sizeof text, &len));
+  OK(lode_factor_count_text(n, LODE_FACTOR_COUNT_TABLE, text, sizeof text, &len));
   CHECK(strchr(text, '\t') != NULL);
-  OK(lode_factor_count_text(n, LODE_COUNT_NOTES, NULL, 0, &len));
-  EXPECT(lode_factor_count_value(n, LODE_COUNT_TABLE, &v), LODE_E_INVALID_ARGUMENT, "key 351");
-  EXPECT(lode_factor_count_matrix(n, LODE_COUNT_SUGGESTED, col, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "key 320");
-  EXPECT(lode_factor_count_text(n, LODE_COUNT_SUGGESTED, text, 8, NULL), LODE_E_INVALID_ARGUMENT, "key 320");
-  EXPECT(lode_factor_count_value(NULL, LODE_COUNT_SUGGESTED, &v), LODE_E_INVALID_ARGUMENT, "NULL");
-  EXPECT(lode_factor_count_matrix(NULL, LODE_COUNT_MAP_SQUARED, col, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
-  EXPECT(lode_factor_count_text(NULL, LODE_COUNT_REASON, text, 8, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  OK(lode_factor_count_text(n, LODE_FACTOR_COUNT_NOTES, NULL, 0, &len));
+  EXPECT(lode_factor_count_value(n, LODE_FACTOR_COUNT_TABLE, &v), LODE_E_INVALID_ARGUMENT, "key 351");
+  EXPECT(lode_factor_count_matrix(n, LODE_FACTOR_COUNT_SUGGESTED, col, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "key 320");
+  EXPECT(lode_factor_count_text(n, LODE_FACTOR_COUNT_SUGGESTED, text, 8, NULL), LODE_E_INVALID_ARGUMENT, "key 320");
+  EXPECT(lode_factor_count_value(NULL, LODE_FACTOR_COUNT_SUGGESTED, &v), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT(lode_factor_count_matrix(NULL, LODE_FACTOR_COUNT_MAP_SQUARED, col, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
+  EXPECT(lode_factor_count_text(NULL, LODE_FACTOR_COUNT_REASON, text, 8, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
   lode_factor_count_free(n);
   n = NULL;
 
   /* cancelled by the callback */
   o.progress_user = &cancel;
   o.replicates = 100000;
-  EXPECT(lode_count_factors(c, &o, &n), LODE_E_CANCELLED, NULL);
+  EXPECT(lode_factor_count_compute(c, &o, &n), LODE_E_CANCELLED, NULL);
   CHECK(n == NULL);
   /* bad options; an older struct without the progress fields */
   OK(lode_factor_count_options_init(&o, sizeof o));
   o.replicates = 0;
-  EXPECT(lode_count_factors(c, &o, &n), LODE_E_INVALID_ARGUMENT, "replicates");
+  EXPECT(lode_factor_count_compute(c, &o, &n), LODE_E_INVALID_ARGUMENT, "replicates");
   o.replicates = 100;
   o.percentile = 100.0;
-  EXPECT(lode_count_factors(c, &o, &n), LODE_E_INVALID_ARGUMENT, "percentile");
+  EXPECT(lode_factor_count_compute(c, &o, &n), LODE_E_INVALID_ARGUMENT, "percentile");
   o.percentile = 95.0;
   o.threshold = 9;
-  EXPECT(lode_count_factors(c, &o, &n), LODE_E_INVALID_ARGUMENT, "threshold");
+  EXPECT(lode_factor_count_compute(c, &o, &n), LODE_E_INVALID_ARGUMENT, "threshold");
   o.threshold = LODE_THRESHOLD_MEAN;
   o.source = 9;
-  EXPECT(lode_count_factors(c, &o, &n), LODE_E_INVALID_ARGUMENT, "source");
-  o.source = LODE_RANDOM_PERMUTATION;
-  EXPECT(lode_count_factors(c, &o, &n), LODE_E_INVALID_ARGUMENT, "raw data");
-  o.source = LODE_RANDOM_NORMAL;
+  EXPECT(lode_factor_count_compute(c, &o, &n), LODE_E_INVALID_ARGUMENT, "source");
+  o.source = LODE_RANDOM_SOURCE_PERMUTATION;
+  EXPECT(lode_factor_count_compute(c, &o, &n), LODE_E_INVALID_ARGUMENT, "raw data");
+  o.source = LODE_RANDOM_SOURCE_NORMAL;
   o.threads = -2;
-  EXPECT(lode_count_factors(c, &o, &n), LODE_E_INVALID_ARGUMENT, "threads");
+  EXPECT(lode_factor_count_compute(c, &o, &n), LODE_E_INVALID_ARGUMENT, "threads");
   o.threads = 0;
   o.progress = count_progress;
   o.progress_user = &cancel;
   o.struct_size = offsetof(lode_factor_count_options, progress); /* older caller: no callback fields */
-  OK(lode_count_factors(c, &o, &n));
+  OK(lode_factor_count_compute(c, &o, &n));
   lode_factor_count_free(n);
   n = NULL;
   /* without n_obs parallel analysis cannot simulate data of the right size */
-  EXPECT(lode_count_factors(c0, NULL, &n), LODE_E_INSUFFICIENT_DATA, NULL);
+  EXPECT(lode_factor_count_compute(c0, NULL, &n), LODE_E_INSUFFICIENT_DATA, NULL);
   CHECK(n == NULL);
   lode_factor_count_free(NULL);
   lode_correlation_free(c);
@@ -741,20 +741,20 @@ static void test_rotation(void) {
   }
 
   OK(lode_rotation_method_from_name("Oblimin", &m));
-  CHECK(m == LODE_ROTATION_OBLIMIN);
+  CHECK(m == LODE_CRITERION_OBLIMIN);
   OK(lode_rotation_method_from_name("geomin", &m));
-  CHECK(m == LODE_ROTATION_GEOMIN);
+  CHECK(m == LODE_CRITERION_GEOMIN);
   EXPECT(lode_rotation_method_from_name("spin", &m), LODE_E_INVALID_ARGUMENT, "varimax");
   EXPECT(lode_rotation_method_from_name(NULL, &m), LODE_E_INVALID_ARGUMENT, "'name' is NULL");
   EXPECT(lode_rotation_method_from_name("varimax", NULL), LODE_E_INVALID_ARGUMENT, "'method' is NULL");
-  CHECK(strcmp(lode_rotation_method_name(LODE_ROTATION_PROMAX), "promax") == 0);
+  CHECK(strcmp(lode_rotation_method_name(LODE_CRITERION_PROMAX), "promax") == 0);
   CHECK(lode_rotation_method_name(99) == NULL && lode_rotation_method_name(-1) == NULL);
 
   EXPECT(lode_rotation_options_init(NULL, sizeof o), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
   OK(lode_rotation_options_init(&o, sizeof o));
-  CHECK(o.method == LODE_ROTATION_VARIMAX && o.normalize == 1 && o.random_starts == -1 && o.target == NULL);
-  OK(lode_rotate(a, 6, 2, 2, 1, &o, &r));
-  OK(lode_rotate(a_cm, 6, 2, 1, 6, &o, &r2)); /* column-major: the same */
+  CHECK(o.method == LODE_CRITERION_VARIMAX && o.normalize == 1 && o.random_starts == -1 && o.target == NULL);
+  OK(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r));
+  OK(lode_rotation_compute(a_cm, 6, 2, 1, 6, &o, &r2)); /* column-major: the same */
   OK(lode_rotation_matrix(r, LODE_ROTATION_PATTERN, out, 12, &rows, &cols));
   OK(lode_rotation_matrix(r2, LODE_ROTATION_PATTERN, out2, 12, NULL, NULL));
   CHECK(rows == 6 && cols == 2);
@@ -783,7 +783,7 @@ static void test_rotation(void) {
   OK(lode_rotation_value(r, LODE_ROTATION_OBLIQUE, &v));
   CHECK(v == 0.0);
   OK(lode_rotation_value(r, LODE_ROTATION_METHOD, &v));
-  CHECK(v == LODE_ROTATION_VARIMAX);
+  CHECK(v == LODE_CRITERION_VARIMAX);
   {
     static const int keys[] = {LODE_ROTATION_CRITERION, LODE_ROTATION_ITERATIONS, LODE_ROTATION_STARTS,
                                LODE_ROTATION_STARTS_CONVERGED, LODE_ROTATION_REACHED_BEST,
@@ -803,8 +803,8 @@ static void test_rotation(void) {
   r = NULL;
 
   /* Kaiser's pairwise varimax converges on it (the convergence flag comes through) */
-  o.method = LODE_ROTATION_VARIMAX_KAISER;
-  OK(lode_rotate(a, 6, 2, 2, 1, &o, &r));
+  o.method = LODE_CRITERION_VARIMAX_KAISER;
+  OK(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r));
   OK(lode_rotation_value(r, LODE_ROTATION_CONVERGED, &v));
   CHECK(v == 1.0);
   OK(lode_rotation_matrix(r, LODE_ROTATION_PATTERN, out, 12, NULL, NULL));
@@ -813,10 +813,10 @@ static void test_rotation(void) {
   r = NULL;
 
   /* oblique, with random starts; an older struct (only method and normalize) */
-  o.method = LODE_ROTATION_GEOMIN;
+  o.method = LODE_CRITERION_GEOMIN;
   o.random_starts = 5;
   o.seed = 7;
-  OK(lode_rotate(a, 6, 2, 2, 1, &o, &r));
+  OK(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r));
   OK(lode_rotation_value(r, LODE_ROTATION_STARTS, &v));
   CHECK(v == 6.0);
   OK(lode_rotation_value(r, LODE_ROTATION_OBLIQUE, &v));
@@ -824,9 +824,9 @@ static void test_rotation(void) {
   lode_rotation_free(r);
   r = NULL;
   o.struct_size = offsetof(lode_rotation_options, gamma);
-  o.method = LODE_ROTATION_QUARTIMAX;
+  o.method = LODE_CRITERION_QUARTIMAX;
   o.tolerance = -1.0; /* beyond the old size: not read */
-  OK(lode_rotate(a, 6, 2, 2, 1, &o, &r));
+  OK(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r));
   lode_rotation_free(r);
   r = NULL;
 
@@ -835,56 +835,56 @@ static void test_rotation(void) {
     double target[12];
     for (i = 0; i < 12; ++i) target[i] = simple[i] > 0 ? nan_value() : 0.0;
     OK(lode_rotation_options_init(&o, sizeof o));
-    o.method = LODE_ROTATION_TARGET_ORTHOGONAL;
+    o.method = LODE_CRITERION_TARGET_ORTHOGONAL;
     o.target = target;
     o.target_rows = 6;
     o.target_cols = 2;
     o.target_row_stride = 2;
     o.target_col_stride = 1;
-    OK(lode_rotate(a, 6, 2, 2, 1, &o, &r));
+    OK(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r));
     OK(lode_rotation_matrix(r, LODE_ROTATION_PATTERN, out, 12, NULL, NULL));
     CHECK(max_abs_diff(out, simple, 12) < 1e-6);
     lode_rotation_free(r);
     r = NULL;
     o.target_rows = 3;
-    EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "target");
+    EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "target");
     o.target_rows = 6;
     target[3] = inf_value();
-    EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "infinite");
+    EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "infinite");
     o.target = NULL;
-    EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "'target' is NULL");
+    EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "'target' is NULL");
   }
 
   /* bad input and options */
   OK(lode_rotation_options_init(&o, sizeof o));
-  EXPECT(lode_rotate(NULL, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "'values' is NULL");
-  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
-  EXPECT(lode_rotate(a, 6, 1, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "factor");
-  EXPECT(lode_rotate(a, 6, 2, 0, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "strides");
+  EXPECT(lode_rotation_compute(NULL, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "'values' is NULL");
+  EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  EXPECT(lode_rotation_compute(a, 6, 1, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "factor");
+  EXPECT(lode_rotation_compute(a, 6, 2, 0, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "strides");
   a[3] = nan_value();
-  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, NULL);
+  EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, NULL);
   a[3] = inf_value();
-  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, NULL);
+  EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, NULL);
   a[3] = 0.5;
   o.method = 99;
-  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "unknown rotation method 99");
-  o.method = LODE_ROTATION_OBLIMIN;
+  EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "unknown rotation method 99");
+  o.method = LODE_CRITERION_OBLIMIN;
   o.gamma = nan_value();
-  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "gamma");
+  EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "gamma");
   o.gamma = 0.0;
   o.random_starts = -5;
-  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "random_starts");
+  EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "random_starts");
   o.random_starts = 0;
   o.max_iterations = 0;
-  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "max_iterations");
+  EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "max_iterations");
   o.max_iterations = 100;
   o.tolerance = 0.0;
-  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "tolerance");
+  EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "tolerance");
   o.tolerance = 1e-8;
   o.threads = -1;
-  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "threads");
+  EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "threads");
   o.struct_size = 1;
-  EXPECT(lode_rotate(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "struct_size is 1");
+  EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "struct_size is 1");
   CHECK(r == NULL);
   lode_rotation_free(NULL);
 }
@@ -893,7 +893,7 @@ static void test_fit(void) {
   lode_correlation* c = population_correlation(250);
   lode_correlation* c0 = population_correlation(0);
   lode_model* m = NULL;
-  lode_fit_options o;
+  lode_model_options o;
   lode_rotation_options ro;
   lode_factor_count_options co;
   double v, l[12], resid[36], col[6], phi[4];
@@ -903,15 +903,15 @@ static void test_fit(void) {
   int i, keep_going = 0;
   const double* simple = simple_loadings;
 
-  EXPECT(lode_fit_options_init(NULL, sizeof o), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
-  OK(lode_fit_options_init(&o, sizeof o));
-  CHECK(o.factors == 0 && o.method == LODE_ML && o.rotation == NULL && o.factor_count == NULL);
+  EXPECT(lode_model_options_init(NULL, sizeof o), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
+  OK(lode_model_options_init(&o, sizeof o));
+  CHECK(o.factors == 0 && o.method == LODE_EXTRACTION_ML && o.rotation == NULL && o.factor_count == NULL);
   OK(lode_rotation_options_init(&ro, sizeof ro));
   o.factors = 2;
   o.rotation = &ro;
-  EXPECT(lode_fit(NULL, &o, &m), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
-  EXPECT(lode_fit(c, &o, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
-  OK(lode_fit(c, &o, &m));
+  EXPECT(lode_model_compute(NULL, &o, &m), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
+  EXPECT(lode_model_compute(c, &o, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  OK(lode_model_compute(c, &o, &m));
   /* the exact population structure is recovered: loadings, zero residuals, zero chi-square */
   OK(lode_model_matrix(m, LODE_MODEL_LOADINGS, l, 12, &rows, &cols));
   CHECK(rows == 6 && cols == 2);
@@ -954,7 +954,7 @@ static void test_fit(void) {
   OK(lode_model_value(m, LODE_MODEL_N_OBS, &v));
   CHECK(v == 250.0);
   OK(lode_model_value(m, LODE_MODEL_ROTATION_METHOD, &v));
-  CHECK(v == LODE_ROTATION_VARIMAX);
+  CHECK(v == LODE_CRITERION_VARIMAX);
   OK(lode_model_text(m, LODE_MODEL_NOTES, notes, sizeof notes, &len));
   EXPECT(lode_model_matrix(m, LODE_MODEL_LOADINGS, l, 11, NULL, NULL), LODE_E_BUFFER_TOO_SMALL, "6 x 2");
   EXPECT(lode_model_value(m, LODE_MODEL_LOADINGS, &v), LODE_E_INVALID_ARGUMENT, "key 400");
@@ -969,9 +969,9 @@ static void test_fit(void) {
 
   /* each extraction method, unrotated; the count suggested when factors = 0 */
   o.rotation = NULL;
-  for (i = LODE_ML; i <= LODE_PCA; ++i) {
+  for (i = LODE_EXTRACTION_ML; i <= LODE_EXTRACTION_PCA; ++i) {
     o.method = i;
-    OK(lode_fit(c, &o, &m));
+    OK(lode_model_compute(c, &o, &m));
     OK(lode_model_value(m, LODE_MODEL_METHOD, &v));
     CHECK(v == i);
     lode_model_free(m);
@@ -981,10 +981,10 @@ static void test_fit(void) {
   co.replicates = 100;
   co.progress = count_progress;
   co.progress_user = &keep_going;
-  o.method = LODE_PAF;
+  o.method = LODE_EXTRACTION_PAF;
   o.factors = 0;
   o.factor_count = &co;
-  OK(lode_fit(c, &o, &m));
+  OK(lode_model_compute(c, &o, &m));
   OK(lode_model_value(m, LODE_MODEL_SUGGESTED_FACTORS, &v));
   CHECK(v == 2.0);
   lode_model_free(m);
@@ -993,7 +993,7 @@ static void test_fit(void) {
   /* without n_obs: loadings and residuals, but fit statistics say why they are missing */
   o.factors = 2;
   o.factor_count = NULL;
-  OK(lode_fit(c0, &o, &m));
+  OK(lode_model_compute(c0, &o, &m));
   EXPECT(lode_model_value(m, LODE_MODEL_CHI_SQUARE, &v), LODE_E_INSUFFICIENT_DATA, "n_obs");
   OK(lode_model_value(m, LODE_MODEL_RMSR, &v));
   lode_model_free(m);
@@ -1002,7 +1002,7 @@ static void test_fit(void) {
   /* one factor with a rotation asked for: unrotated, with a note */
   o.factors = 1;
   o.rotation = &ro;
-  OK(lode_fit(c, &o, &m));
+  OK(lode_model_compute(c, &o, &m));
   OK(lode_model_text(m, LODE_MODEL_NOTES, notes, sizeof notes, NULL));
   CHECK(strstr(notes, "rotation does not apply") != NULL);
   lode_model_free(m);
@@ -1010,36 +1010,36 @@ static void test_fit(void) {
 
   /* errors: too many factors, bad options, an older struct */
   o.factors = 5;
-  o.method = LODE_ML;
-  EXPECT(lode_fit(c, &o, &m), LODE_E_TOO_MANY_FACTORS, "3");
+  o.method = LODE_EXTRACTION_ML;
+  EXPECT(lode_model_compute(c, &o, &m), LODE_E_TOO_MANY_FACTORS, "3");
   o.factors = -1;
-  EXPECT(lode_fit(c, &o, &m), LODE_E_INVALID_ARGUMENT, "factors");
+  EXPECT(lode_model_compute(c, &o, &m), LODE_E_INVALID_ARGUMENT, "factors");
   o.factors = 2;
   o.method = 17;
-  EXPECT(lode_fit(c, &o, &m), LODE_E_INVALID_ARGUMENT, "unknown extraction method 17");
-  o.method = LODE_ML;
+  EXPECT(lode_model_compute(c, &o, &m), LODE_E_INVALID_ARGUMENT, "unknown extraction method 17");
+  o.method = LODE_EXTRACTION_ML;
   o.max_iterations = 0;
-  EXPECT(lode_fit(c, &o, &m), LODE_E_INVALID_ARGUMENT, "max_iterations");
+  EXPECT(lode_model_compute(c, &o, &m), LODE_E_INVALID_ARGUMENT, "max_iterations");
   o.max_iterations = 1000;
   o.tolerance = nan_value();
-  EXPECT(lode_fit(c, &o, &m), LODE_E_INVALID_ARGUMENT, "tolerance");
+  EXPECT(lode_model_compute(c, &o, &m), LODE_E_INVALID_ARGUMENT, "tolerance");
   o.tolerance = 1e-9;
   o.min_uniqueness = 1.0;
-  EXPECT(lode_fit(c, &o, &m), LODE_E_INVALID_ARGUMENT, "min_uniqueness");
+  EXPECT(lode_model_compute(c, &o, &m), LODE_E_INVALID_ARGUMENT, "min_uniqueness");
   o.min_uniqueness = 0.005;
   o.interval_level = 1.5;
-  EXPECT(lode_fit(c, &o, &m), LODE_E_INVALID_ARGUMENT, "interval_level");
+  EXPECT(lode_model_compute(c, &o, &m), LODE_E_INVALID_ARGUMENT, "interval_level");
   o.interval_level = 0.9;
   ro.method = 77;
-  EXPECT(lode_fit(c, &o, &m), LODE_E_INVALID_ARGUMENT, "unknown rotation method 77");
-  ro.method = LODE_ROTATION_VARIMAX;
-  o.struct_size = offsetof(lode_fit_options, max_iterations); /* older: factors and method only */
+  EXPECT(lode_model_compute(c, &o, &m), LODE_E_INVALID_ARGUMENT, "unknown rotation method 77");
+  ro.method = LODE_CRITERION_VARIMAX;
+  o.struct_size = offsetof(lode_model_options, max_iterations); /* older: factors and method only */
   o.rotation = NULL;
-  OK(lode_fit(c, &o, &m));
+  OK(lode_model_compute(c, &o, &m));
   lode_model_free(m);
   m = NULL;
   o.struct_size = 0;
-  EXPECT(lode_fit(c, &o, &m), LODE_E_INVALID_ARGUMENT, "lode_fit_options_init");
+  EXPECT(lode_model_compute(c, &o, &m), LODE_E_INVALID_ARGUMENT, "lode_model_options_init");
   CHECK(m == NULL);
   lode_model_free(NULL);
   lode_correlation_free(c);
@@ -1055,28 +1055,28 @@ static void test_scores(void) {
   lode_data *d = NULL, *d3 = NULL, *dm = NULL;
   lode_correlation *c = NULL, *cm = NULL;
   lode_model *m = NULL, *mm = NULL;
-  lode_fit_options fo;
+  lode_model_options fo;
   lode_rotation_options ro;
-  lode_score_options so;
+  lode_scores_options so;
   lode_scores* s = NULL;
   lode_reliability* rel = NULL;
   lode_comparison* cmp = NULL;
   make_data(x);
   x[5 * N_ITEMS + 2] = nan_value();
   OK(lode_data_from_raw(x, N_ROWS, N_ITEMS, N_ITEMS, 1, &d));
-  OK(lode_correlate(d, NULL, &c));
-  OK(lode_fit_options_init(&fo, sizeof fo));
+  OK(lode_correlation_compute(d, NULL, &c));
+  OK(lode_model_options_init(&fo, sizeof fo));
   OK(lode_rotation_options_init(&ro, sizeof ro));
   fo.factors = 2;
-  fo.method = LODE_PAF;
+  fo.method = LODE_EXTRACTION_PAF;
   fo.rotation = &ro;
-  OK(lode_fit(c, &fo, &m));
+  OK(lode_model_compute(c, &fo, &m));
 
   /* scores of the data the model was fitted to */
-  EXPECT(lode_score_options_init(NULL, sizeof so), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
-  OK(lode_score_options_init(&so, sizeof so));
-  CHECK(so.method == LODE_SCORES_REGRESSION && so.missing == LODE_SCORE_FROM_ANSWERED && so.min_answered_share == 0.5);
-  OK(lode_score(m, NULL, &so, &s));
+  EXPECT(lode_scores_options_init(NULL, sizeof so), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
+  OK(lode_scores_options_init(&so, sizeof so));
+  CHECK(so.method == LODE_ESTIMATOR_REGRESSION && so.missing == LODE_GAPS_FROM_ANSWERED && so.min_answered_share == 0.5);
+  OK(lode_scores_compute(m, NULL, &so, &s));
   OK(lode_scores_matrix(s, LODE_SCORES_VALUES, NULL, 0, &rows, &cols));
   CHECK(rows == N_ROWS && cols == 2);
   OK(lode_scores_matrix(s, LODE_SCORES_VALUES, buf, N_ROWS * 2, NULL, NULL));
@@ -1109,46 +1109,46 @@ static void test_scores(void) {
   s = NULL;
 
   /* other methods, explicit data, the leave-missing rule, an older options struct */
-  so.method = LODE_SCORES_BARTLETT;
-  so.missing = LODE_SCORE_LEAVE_MISSING;
-  OK(lode_score(m, d, &so, &s));
+  so.method = LODE_ESTIMATOR_BARTLETT;
+  so.missing = LODE_GAPS_LEAVE_MISSING;
+  OK(lode_scores_compute(m, d, &so, &s));
   OK(lode_scores_value(s, LODE_SCORES_ROWS_MISSING, &v));
   CHECK(v == 1.0);
   lode_scores_free(s);
   s = NULL;
-  so.method = LODE_SCORES_TENBERGE;
-  so.struct_size = offsetof(lode_score_options, missing); /* older: the rule defaults to from-answered */
-  OK(lode_score(m, d, &so, &s));
+  so.method = LODE_ESTIMATOR_CORRELATION_PRESERVING;
+  so.struct_size = offsetof(lode_scores_options, missing); /* older: the rule defaults to from-answered */
+  OK(lode_scores_compute(m, d, &so, &s));
   OK(lode_scores_value(s, LODE_SCORES_ROWS_MISSING, &v));
   CHECK(v == 0.0);
   lode_scores_free(s);
   s = NULL;
-  OK(lode_score_options_init(&so, sizeof so));
+  OK(lode_scores_options_init(&so, sizeof so));
   so.method = 9;
-  EXPECT(lode_score(m, NULL, &so, &s), LODE_E_INVALID_ARGUMENT, "unknown score method 9");
-  so.method = LODE_SCORES_REGRESSION;
+  EXPECT(lode_scores_compute(m, NULL, &so, &s), LODE_E_INVALID_ARGUMENT, "unknown score method 9");
+  so.method = LODE_ESTIMATOR_REGRESSION;
   so.missing = 4;
-  EXPECT(lode_score(m, NULL, &so, &s), LODE_E_INVALID_ARGUMENT, "missing-item rule");
-  so.missing = LODE_SCORE_FROM_ANSWERED;
+  EXPECT(lode_scores_compute(m, NULL, &so, &s), LODE_E_INVALID_ARGUMENT, "missing-item rule");
+  so.missing = LODE_GAPS_FROM_ANSWERED;
   so.min_answered_share = 0.0;
-  EXPECT(lode_score(m, NULL, &so, &s), LODE_E_INVALID_ARGUMENT, "min_answered_share");
+  EXPECT(lode_scores_compute(m, NULL, &so, &s), LODE_E_INVALID_ARGUMENT, "min_answered_share");
   so.min_answered_share = 0.5;
   so.low_determinacy = 2.0;
-  EXPECT(lode_score(m, NULL, &so, &s), LODE_E_INVALID_ARGUMENT, "low_determinacy");
-  EXPECT(lode_score(NULL, NULL, NULL, &s), LODE_E_INVALID_ARGUMENT, "'model' is NULL");
-  EXPECT(lode_score(m, NULL, NULL, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  EXPECT(lode_scores_compute(m, NULL, &so, &s), LODE_E_INVALID_ARGUMENT, "low_determinacy");
+  EXPECT(lode_scores_compute(NULL, NULL, NULL, &s), LODE_E_INVALID_ARGUMENT, "'model' is NULL");
+  EXPECT(lode_scores_compute(m, NULL, NULL, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
   OK(lode_data_from_raw(x, N_ROWS, 3, N_ITEMS, 1, &d3));
-  EXPECT(lode_score(m, d3, NULL, &s), LODE_E_INVALID_ARGUMENT, "the data have 3 items but the model has 6");
+  EXPECT(lode_scores_compute(m, d3, NULL, &s), LODE_E_INVALID_ARGUMENT, "the data have 3 items but the model has 6");
   {
     /* a model fitted to a matrix has no respondents to score */
     double r[36];
     OK(lode_correlation_matrix(c, LODE_CORRELATION_MATRIX, r, 36, NULL, NULL));
     OK(lode_data_from_correlation(r, N_ITEMS, N_ITEMS, 1, N_ROWS, &dm));
-    OK(lode_correlate(dm, NULL, &cm));
-    OK(lode_fit(cm, &fo, &mm));
-    EXPECT(lode_score(mm, NULL, NULL, &s), LODE_E_INVALID_ARGUMENT, "fitted to a matrix");
-    EXPECT(lode_score(mm, dm, NULL, &s), LODE_E_INVALID_ARGUMENT, "raw data");
-    OK(lode_score(mm, d, NULL, &s));
+    OK(lode_correlation_compute(dm, NULL, &cm));
+    OK(lode_model_compute(cm, &fo, &mm));
+    EXPECT(lode_scores_compute(mm, NULL, NULL, &s), LODE_E_INVALID_ARGUMENT, "fitted to a matrix");
+    EXPECT(lode_scores_compute(mm, dm, NULL, &s), LODE_E_INVALID_ARGUMENT, "raw data");
+    OK(lode_scores_compute(mm, d, NULL, &s));
     lode_scores_free(s);
     s = NULL;
   }
@@ -1156,7 +1156,7 @@ static void test_scores(void) {
 
   /* alpha of the first three items: standardised alpha is the Spearman-Brown form of the mean
    * inter-item correlation, k r / (1 + (k - 1) r) (Cronbach 1951; published identity) */
-  OK(lode_cronbach_alpha(d3, &rel));
+  OK(lode_reliability_compute_alpha(d3, &rel));
   OK(lode_reliability_value(rel, LODE_ALPHA, &v));
   CHECK(v > 0.0 && v < 1.0);
   {
@@ -1188,12 +1188,12 @@ static void test_scores(void) {
   EXPECT(lode_reliability_text(NULL, LODE_RELIABILITY_NOTES, text, 10, NULL), LODE_E_INVALID_ARGUMENT, "NULL");
   lode_reliability_free(rel);
   rel = NULL;
-  EXPECT(lode_cronbach_alpha(dm, &rel), LODE_E_INVALID_ARGUMENT, "raw data");
-  EXPECT(lode_cronbach_alpha(NULL, &rel), LODE_E_INVALID_ARGUMENT, "'data' is NULL");
-  EXPECT(lode_cronbach_alpha(d3, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  EXPECT(lode_reliability_compute_alpha(dm, &rel), LODE_E_INVALID_ARGUMENT, "raw data");
+  EXPECT(lode_reliability_compute_alpha(NULL, &rel), LODE_E_INVALID_ARGUMENT, "'data' is NULL");
+  EXPECT(lode_reliability_compute_alpha(d3, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
 
   /* omega: by largest loading, and by a given assignment */
-  OK(lode_mcdonald_omega(m, NULL, 0, &rel));
+  OK(lode_reliability_compute_omega(m, NULL, 0, &rel));
   OK(lode_reliability_matrix(rel, LODE_OMEGA, det, 2, &rows, &cols));
   CHECK(rows == 2 && cols == 1 && det[0] > 0.0 && det[0] < 1.0);
   OK(lode_reliability_matrix(rel, LODE_OMEGA_ASSIGNMENT, buf, N_ITEMS, &rows, NULL));
@@ -1214,17 +1214,17 @@ static void test_scores(void) {
   EXPECT(lode_reliability_matrix(rel, LODE_ALPHA_IF_DELETED, buf, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "alpha");
   lode_reliability_free(rel);
   rel = NULL;
-  OK(lode_mcdonald_omega(m, assignment, N_ITEMS, &rel));
+  OK(lode_reliability_compute_omega(m, assignment, N_ITEMS, &rel));
   OK(lode_reliability_matrix(rel, LODE_OMEGA_ASSIGNMENT, buf, N_ITEMS, NULL, NULL));
   for (i = 0; i < N_ITEMS; ++i) CHECK(buf[i] == (double)assignment[i]);
   lode_reliability_free(rel);
   rel = NULL;
   assignment[2] = 5;
-  EXPECT(lode_mcdonald_omega(m, assignment, N_ITEMS, &rel), LODE_E_INVALID_ARGUMENT, "column 3 is assigned to factor 5");
-  EXPECT(lode_mcdonald_omega(m, assignment, 4, &rel), LODE_E_INVALID_ARGUMENT, "4 assignments were given for 6 items");
-  EXPECT(lode_mcdonald_omega(m, NULL, 3, &rel), LODE_E_INVALID_ARGUMENT, "'assignment' is NULL");
-  EXPECT(lode_mcdonald_omega(NULL, NULL, 0, &rel), LODE_E_INVALID_ARGUMENT, "'model' is NULL");
-  EXPECT(lode_mcdonald_omega(m, NULL, 0, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  EXPECT(lode_reliability_compute_omega(m, assignment, N_ITEMS, &rel), LODE_E_INVALID_ARGUMENT, "column 3 is assigned to factor 5");
+  EXPECT(lode_reliability_compute_omega(m, assignment, 4, &rel), LODE_E_INVALID_ARGUMENT, "4 assignments were given for 6 items");
+  EXPECT(lode_reliability_compute_omega(m, NULL, 3, &rel), LODE_E_INVALID_ARGUMENT, "'assignment' is NULL");
+  EXPECT(lode_reliability_compute_omega(NULL, NULL, 0, &rel), LODE_E_INVALID_ARGUMENT, "'model' is NULL");
+  EXPECT(lode_reliability_compute_omega(m, NULL, 0, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
   lode_reliability_free(NULL);
 
   /* omega with reverse-keyed items (lode_reliability_compute_keyed_omega): a reverse-scored item enters
@@ -1246,7 +1246,7 @@ static void test_scores(void) {
     CHECK(qo.keying == LODE_KEYING_AS_SCORED && qo.assignment == NULL && qo.reverse == NULL && qo.reverse_count == 0);
     qo.assignment = assignment;
     qo.assignment_count = N_ITEMS;
-    OK(lode_reliability_compute_keyed_omega(m, &qo, &rel)); /* nothing reversed: lode_mcdonald_omega's figures */
+    OK(lode_reliability_compute_keyed_omega(m, &qo, &rel)); /* nothing reversed: lode_reliability_compute_omega's figures */
     OK(lode_reliability_matrix(rel, LODE_OMEGA, plain, 2, NULL, NULL));
     OK(lode_reliability_matrix(rel, LODE_RELIABILITY_REVERSED, flags, N_ITEMS, &rows, &cols));
     CHECK(rows == N_ITEMS && cols == 1);
@@ -1316,10 +1316,10 @@ static void test_scores(void) {
    * and uniquenesses reproduce McDonald's (1999) formula (sum l)^2 / ((sum l)^2 + sum psi) */
   {
     lode_correlation* c3 = NULL;
-    lode_fit_options f1;
+    lode_model_options f1;
     double lam[3], psi[3], om, sl;
-    OK(lode_correlate(d3, NULL, &c3));
-    OK(lode_omega_single_scale(c3, NULL, &rel));
+    OK(lode_correlation_compute(d3, NULL, &c3));
+    OK(lode_reliability_compute_scale_omega(c3, NULL, &rel));
     OK(lode_reliability_matrix(rel, LODE_OMEGA, &om, 1, &rows, &cols));
     CHECK(rows == 1 && cols == 1 && om > 0.0 && om < 1.0);
     OK(lode_reliability_matrix(rel, LODE_OMEGA_LOADINGS, lam, 3, &rows, &cols));
@@ -1338,39 +1338,39 @@ static void test_scores(void) {
     EXPECT(lode_reliability_matrix(rel, LODE_OMEGA_LOADINGS, lam, 2, NULL, NULL), LODE_E_BUFFER_TOO_SMALL, NULL);
     lode_reliability_free(rel);
     rel = NULL;
-    OK(lode_fit_options_init(&f1, sizeof f1));
-    f1.method = LODE_PAF;
-    OK(lode_omega_single_scale(c3, &f1, &rel));
+    OK(lode_model_options_init(&f1, sizeof f1));
+    f1.method = LODE_EXTRACTION_PAF;
+    OK(lode_reliability_compute_scale_omega(c3, &f1, &rel));
     OK(lode_reliability_matrix(rel, LODE_OMEGA, &om, 1, NULL, NULL));
     CHECK(om > 0.0 && om < 1.0);
     lode_reliability_free(rel);
     rel = NULL;
     f1.method = 9;
-    EXPECT(lode_omega_single_scale(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "unknown extraction method 9");
-    f1.method = LODE_ML;
+    EXPECT(lode_reliability_compute_scale_omega(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "unknown extraction method 9");
+    f1.method = LODE_EXTRACTION_ML;
     f1.tolerance = -1.0;
-    EXPECT(lode_omega_single_scale(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "tolerance");
+    EXPECT(lode_reliability_compute_scale_omega(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "tolerance");
     f1.tolerance = 1e-9;
     f1.max_iterations = 0;
-    EXPECT(lode_omega_single_scale(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "max_iterations");
+    EXPECT(lode_reliability_compute_scale_omega(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "max_iterations");
     f1.max_iterations = 1000;
     f1.min_uniqueness = 1.0;
-    EXPECT(lode_omega_single_scale(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "min_uniqueness");
+    EXPECT(lode_reliability_compute_scale_omega(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "min_uniqueness");
     f1.struct_size = 1;
-    EXPECT(lode_omega_single_scale(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "struct_size");
-    EXPECT(lode_omega_single_scale(NULL, NULL, &rel), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
-    EXPECT(lode_omega_single_scale(c3, NULL, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+    EXPECT(lode_reliability_compute_scale_omega(c3, &f1, &rel), LODE_E_INVALID_ARGUMENT, "struct_size");
+    EXPECT(lode_reliability_compute_scale_omega(NULL, NULL, &rel), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
+    EXPECT(lode_reliability_compute_scale_omega(c3, NULL, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
     CHECK(rel == NULL);
     lode_correlation_free(c3);
   }
   /* a model's omega has no single-scale loadings; an alpha result has no convergence */
-  OK(lode_mcdonald_omega(m, NULL, 0, &rel));
+  OK(lode_reliability_compute_omega(m, NULL, 0, &rel));
   EXPECT(lode_reliability_matrix(rel, LODE_OMEGA_LOADINGS, buf, 6, NULL, NULL), LODE_E_INVALID_ARGUMENT, "single-scale");
   OK(lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v));
   CHECK(v == 1.0);
   lode_reliability_free(rel);
   rel = NULL;
-  OK(lode_cronbach_alpha(d3, &rel));
+  OK(lode_reliability_compute_alpha(d3, &rel));
   EXPECT(lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v), LODE_E_INVALID_ARGUMENT, "omega");
   lode_reliability_free(rel);
   rel = NULL;
@@ -1383,7 +1383,7 @@ static void test_scores(void) {
       b[i * 2] = -a[i * 2 + 1];
       b[i * 2 + 1] = a[i * 2];
     }
-    OK(lode_compare_loadings(a, b, N_ITEMS, 2, 2, 1, 2, 1, &cmp));
+    OK(lode_comparison_compute(a, b, N_ITEMS, 2, 2, 1, 2, 1, &cmp));
     OK(lode_comparison_matrix(cmp, LODE_COMPARISON_MATCHED_CONGRUENCE, con, 2, &rows, &cols));
     CHECK(rows == 2 && cols == 1 && fabs(con[0] - 1.0) < 1e-12 && fabs(con[1] - 1.0) < 1e-12);
     OK(lode_comparison_matrix(cmp, LODE_COMPARISON_ORDER, con, 2, NULL, NULL));
@@ -1401,9 +1401,9 @@ static void test_scores(void) {
     lode_comparison_free(cmp);
     cmp = NULL;
     b[3] = nan_value();
-    EXPECT(lode_compare_loadings(a, b, N_ITEMS, 2, 2, 1, 2, 1, &cmp), LODE_E_INVALID_ARGUMENT, "second loading matrix");
-    EXPECT(lode_compare_loadings(a, NULL, N_ITEMS, 2, 2, 1, 2, 1, &cmp), LODE_E_INVALID_ARGUMENT, "'values' is NULL");
-    EXPECT(lode_compare_loadings(a, b, N_ITEMS, 2, 2, 1, 2, 1, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+    EXPECT(lode_comparison_compute(a, b, N_ITEMS, 2, 2, 1, 2, 1, &cmp), LODE_E_INVALID_ARGUMENT, "second loading matrix");
+    EXPECT(lode_comparison_compute(a, NULL, N_ITEMS, 2, 2, 1, 2, 1, &cmp), LODE_E_INVALID_ARGUMENT, "'values' is NULL");
+    EXPECT(lode_comparison_compute(a, b, N_ITEMS, 2, 2, 1, 2, 1, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
     CHECK(cmp == NULL);
     lode_comparison_free(NULL);
   }
@@ -1416,7 +1416,7 @@ static void test_scores(void) {
   lode_data_free(dm);
 }
 
-/* ---- ABI 1.2: progress of lode_fit, item flags, bootstrap -------------------------------------- */
+/* ---- ABI 1.2: progress of lode_model_compute, item flags, bootstrap -------------------------------------- */
 
 /* What a progress callback saw; `cancel_at` >= 0 cancels at the first report with done >= it. */
 typedef struct progress_log {
@@ -1450,24 +1450,24 @@ static int log_progress(void* user, int64_t done, int64_t total) {
 static void test_fit_progress(void) {
   lode_correlation* c = population_correlation(250);
   lode_model *m = NULL, *plain = NULL;
-  lode_fit_options o;
+  lode_model_options o;
   lode_rotation_options ro;
   progress_log log;
   double l[12], lp[12], v;
 
-  OK(lode_fit_options_init(&o, sizeof o));
+  OK(lode_model_options_init(&o, sizeof o));
   CHECK(o.progress == NULL && o.progress_user == NULL);
   OK(lode_rotation_options_init(&ro, sizeof ro));
-  ro.method = LODE_ROTATION_OBLIMIN;
+  ro.method = LODE_CRITERION_OBLIMIN;
   ro.random_starts = 3;
   o.factors = 2;
   o.rotation = &ro;
-  OK(lode_fit(c, &o, &plain));
+  OK(lode_model_compute(c, &o, &plain));
   /* units: the extraction, then 1 + 3 rotation starts */
   progress_log_init(&log, -1);
   o.progress = log_progress;
   o.progress_user = &log;
-  OK(lode_fit(c, &o, &m));
+  OK(lode_model_compute(c, &o, &m));
   CHECK(log.calls >= 3 && log.ordered);
   CHECK(log.first_done == 0 && log.first_total == 5);
   CHECK(log.last_done == 5 && log.last_total == 5);
@@ -1483,21 +1483,21 @@ static void test_fit_progress(void) {
 
   /* cancelled before the extraction, after it, and during the rotation's starts: no model */
   progress_log_init(&log, 0);
-  EXPECT(lode_fit(c, &o, &m), LODE_E_CANCELLED, "cancelled");
+  EXPECT(lode_model_compute(c, &o, &m), LODE_E_CANCELLED, "cancelled");
   CHECK(m == NULL && log.calls == 1);
   progress_log_init(&log, 1);
-  EXPECT(lode_fit(c, &o, &m), LODE_E_CANCELLED, "cancelled");
+  EXPECT(lode_model_compute(c, &o, &m), LODE_E_CANCELLED, "cancelled");
   CHECK(m == NULL && log.calls == 2 && log.last_done == 1);
   progress_log_init(&log, 2);
   ro.random_starts = 100000; /* far more than 50 ms of work, so a report arrives mid-way */
-  EXPECT(lode_fit(c, &o, &m), LODE_E_CANCELLED, "cancelled");
+  EXPECT(lode_model_compute(c, &o, &m), LODE_E_CANCELLED, "cancelled");
   CHECK(m == NULL && log.last_done >= 2 && log.last_done < 100002);
   ro.random_starts = 3;
 
   /* unrotated: one unit */
   progress_log_init(&log, -1);
   o.rotation = NULL;
-  OK(lode_fit(c, &o, &m));
+  OK(lode_model_compute(c, &o, &m));
   CHECK(log.first_total == 1 && log.last_done == 1 && log.ordered);
   OK(lode_model_value(m, LODE_MODEL_ROTATION_STARTS, &v));
   CHECK(v == 1.0);
@@ -1508,32 +1508,32 @@ static void test_fit_progress(void) {
    * (here they would cancel at once) */
   progress_log_init(&log, 0);
   o.rotation = &ro;
-  o.struct_size = offsetof(lode_fit_options, progress);
-  OK(lode_fit(c, &o, &m));
+  o.struct_size = offsetof(lode_model_options, progress);
+  OK(lode_model_compute(c, &o, &m));
   CHECK(log.calls == 0 && m != NULL);
   lode_model_free(m);
   m = NULL;
   /* and its init leaves bytes beyond its size alone */
   {
-    lode_fit_options small;
+    lode_model_options small;
     memset(&small, 0xAB, sizeof small);
-    OK(lode_fit_options_init(&small, offsetof(lode_fit_options, progress)));
-    CHECK(small.struct_size == offsetof(lode_fit_options, progress) && small.factor_count == NULL);
+    OK(lode_model_options_init(&small, offsetof(lode_model_options, progress)));
+    CHECK(small.struct_size == offsetof(lode_model_options, progress) && small.factor_count == NULL);
   }
   /* a caller from a newer header: unknown trailing bytes must be zero */
   {
     struct {
-      lode_fit_options o;
+      lode_model_options o;
       double newer;
     } big;
     memset(&big, 0, sizeof big);
-    OK(lode_fit_options_init(&big.o, sizeof big));
+    OK(lode_model_options_init(&big.o, sizeof big));
     big.o.factors = 2;
-    OK(lode_fit(c, &big.o, &m));
+    OK(lode_model_compute(c, &big.o, &m));
     lode_model_free(m);
     m = NULL;
     big.newer = 1.0;
-    EXPECT(lode_fit(c, &big.o, &m), LODE_E_UNSUPPORTED, "newer");
+    EXPECT(lode_model_compute(c, &big.o, &m), LODE_E_UNSUPPORTED, "newer");
     CHECK(m == NULL);
   }
   lode_correlation_free(c);
@@ -1543,8 +1543,8 @@ static void test_item_flags(void) {
   lode_correlation* c = population_correlation(250);
   lode_model* m = NULL;
   lode_item_flags* f = NULL;
-  lode_item_flag_options o;
-  lode_fit_options fo;
+  lode_item_flags_options o;
+  lode_model_options fo;
   lode_rotation_options ro;
   double codes[6], table[9 * 5], v;
   char text[2048];
@@ -1552,23 +1552,23 @@ static void test_item_flags(void) {
   int64_t rows = -1, cols = -1;
   int i;
 
-  OK(lode_fit_options_init(&fo, sizeof fo));
+  OK(lode_model_options_init(&fo, sizeof fo));
   OK(lode_rotation_options_init(&ro, sizeof ro));
   fo.factors = 2;
   fo.rotation = &ro;
-  OK(lode_fit(c, &fo, &m));
+  OK(lode_model_compute(c, &fo, &m));
 
-  EXPECT(lode_item_flag_options_init(NULL, sizeof o), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
-  EXPECT(lode_item_flag_options_init(&o, 1), LODE_E_INVALID_ARGUMENT, "too small");
-  OK(lode_item_flag_options_init(&o, sizeof o));
+  EXPECT(lode_item_flags_options_init(NULL, sizeof o), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
+  EXPECT(lode_item_flags_options_init(&o, 1), LODE_E_INVALID_ARGUMENT, "too small");
+  OK(lode_item_flags_options_init(&o, sizeof o));
   /* the defaults (common practice) */
   CHECK(o.salient == 0.40 && o.cross_loading_gap == 0.20 && o.low_communality == 0.20 && o.heywood_uniqueness == 0.005);
 
   /* The population solution (loadings .8 .7 .6 / .7 .6 .5, no cross-loadings, communalities >= .25)
    * raises no flag under the common-practice defaults. */
-  EXPECT(lode_flag_items(NULL, &o, &f), LODE_E_INVALID_ARGUMENT, "'model' is NULL");
-  EXPECT(lode_flag_items(m, &o, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
-  OK(lode_flag_items(m, NULL, &f));
+  EXPECT(lode_item_flags_compute(NULL, &o, &f), LODE_E_INVALID_ARGUMENT, "'model' is NULL");
+  EXPECT(lode_item_flags_compute(m, &o, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  OK(lode_item_flags_compute(m, NULL, &f));
   OK(lode_item_flags_matrix(f, LODE_ITEM_FLAGS_TABLE, NULL, 0, &rows, &cols));
   CHECK(rows == 0 && cols == 5);
   OK(lode_item_flags_matrix(f, LODE_ITEM_FLAGS_CODES, codes, 6, &rows, &cols));
@@ -1590,7 +1590,7 @@ static void test_item_flags(void) {
   o.salient = 0.65;
   o.low_communality = 0.40;
   o.heywood_uniqueness = 0.55;
-  OK(lode_flag_items(m, &o, &f));
+  OK(lode_item_flags_compute(m, &o, &f));
   OK(lode_item_flags_matrix(f, LODE_ITEM_FLAGS_CODES, codes, 6, NULL, NULL));
   CHECK(codes[0] == LODE_FLAG_HEYWOOD_CASE && codes[1] == LODE_FLAG_HEYWOOD_CASE &&
         codes[3] == LODE_FLAG_HEYWOOD_CASE);
@@ -1645,9 +1645,9 @@ static void test_item_flags(void) {
 
   /* a gap of .75 makes every item whose largest loading is below .75 a cross-loading (its second
    * loading is 0): items 2-6 */
-  OK(lode_item_flag_options_init(&o, sizeof o));
+  OK(lode_item_flags_options_init(&o, sizeof o));
   o.cross_loading_gap = 0.75;
-  OK(lode_flag_items(m, &o, &f));
+  OK(lode_item_flags_compute(m, &o, &f));
   OK(lode_item_flags_matrix(f, LODE_ITEM_FLAGS_CODES, codes, 6, NULL, NULL));
   CHECK(codes[0] == 0.0);
   for (i = 1; i < 6; ++i) CHECK(codes[i] == LODE_FLAG_CROSS_LOADING);
@@ -1658,21 +1658,21 @@ static void test_item_flags(void) {
 
   /* bad thresholds, non-finite thresholds, an older and a broken struct */
   o.salient = 1.5;
-  EXPECT(lode_flag_items(m, &o, &f), LODE_E_INVALID_ARGUMENT, "thresholds must lie in [0, 1]");
+  EXPECT(lode_item_flags_compute(m, &o, &f), LODE_E_INVALID_ARGUMENT, "thresholds must lie in [0, 1]");
   o.salient = nan_value();
-  EXPECT(lode_flag_items(m, &o, &f), LODE_E_INVALID_ARGUMENT, "salient nan");
+  EXPECT(lode_item_flags_compute(m, &o, &f), LODE_E_INVALID_ARGUMENT, "salient nan");
   o.salient = 0.4;
   o.low_communality = -0.1;
-  EXPECT(lode_flag_items(m, &o, &f), LODE_E_INVALID_ARGUMENT, "low communality -0.1");
+  EXPECT(lode_item_flags_compute(m, &o, &f), LODE_E_INVALID_ARGUMENT, "low communality -0.1");
   CHECK(f == NULL);
-  o.struct_size = offsetof(lode_item_flag_options, low_communality); /* older: salient and gap only */
-  OK(lode_flag_items(m, &o, &f));
+  o.struct_size = offsetof(lode_item_flags_options, low_communality); /* older: salient and gap only */
+  OK(lode_item_flags_compute(m, &o, &f));
   OK(lode_item_flags_value(f, LODE_ITEM_FLAGS_LOW_COMMUNALITY, &v));
   CHECK(v == 0.20);
   lode_item_flags_free(f);
   f = NULL;
   o.struct_size = 0;
-  EXPECT(lode_flag_items(m, &o, &f), LODE_E_INVALID_ARGUMENT, "lode_item_flag_options_init");
+  EXPECT(lode_item_flags_compute(m, &o, &f), LODE_E_INVALID_ARGUMENT, "lode_item_flags_options_init");
   CHECK(f == NULL);
   lode_item_flags_free(NULL);
   lode_model_free(m);
@@ -1705,15 +1705,15 @@ static void test_bootstrap(void) {
   lode_model* m = NULL;
   lode_bootstrap_result *b = NULL, *b2 = NULL;
   lode_bootstrap_options bo;
-  lode_fit_options fo;
+  lode_model_options fo;
   lode_rotation_options ro;
   progress_log log;
 
   make_data(x);
   x[9 * N_ITEMS + 4] = nan_value(); /* a missing answer: pairwise correlations in every replicate */
   OK(lode_data_from_raw(x, N_ROWS, N_ITEMS, N_ITEMS, 1, &d));
-  OK(lode_correlate(d, NULL, &c));
-  OK(lode_fit_options_init(&fo, sizeof fo));
+  OK(lode_correlation_compute(d, NULL, &c));
+  OK(lode_model_options_init(&fo, sizeof fo));
   OK(lode_rotation_options_init(&ro, sizeof ro));
   fo.factors = 2;
   fo.rotation = &ro;
@@ -1729,15 +1729,15 @@ static void test_bootstrap(void) {
   bo.progress = log_progress;
   bo.progress_user = &log;
 
-  EXPECT(lode_bootstrap(NULL, &fo, &bo, &b), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
-  EXPECT(lode_bootstrap(c, &fo, &bo, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
-  EXPECT(lode_bootstrap(c, NULL, &bo, &b), LODE_E_INVALID_ARGUMENT, "number of factors");
+  EXPECT(lode_bootstrap_compute(NULL, &fo, &bo, &b), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
+  EXPECT(lode_bootstrap_compute(c, &fo, &bo, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  EXPECT(lode_bootstrap_compute(c, NULL, &bo, &b), LODE_E_INVALID_ARGUMENT, "number of factors");
   CHECK(b == NULL && log.calls == 0);
-  OK(lode_bootstrap(c, &fo, &bo, &b));
+  OK(lode_bootstrap_compute(c, &fo, &bo, &b));
   CHECK(log.calls >= 2 && log.ordered && log.first_done == 0 && log.last_done == 40 && log.last_total == 40);
 
-  /* the estimates are lode_fit's solution with the same options */
-  OK(lode_fit(c, &fo, &m));
+  /* the estimates are lode_model_compute's solution with the same options */
+  OK(lode_model_compute(c, &fo, &m));
   OK(lode_model_matrix(m, LODE_MODEL_LOADINGS, fitted, 12, NULL, NULL));
   OK(lode_bootstrap_matrix(b, LODE_BOOTSTRAP_LOADINGS, NULL, 0, &rows, &cols));
   CHECK(rows == N_ITEMS && cols == 2);
@@ -1823,7 +1823,7 @@ static void test_bootstrap(void) {
   bo.progress = NULL;
   bo.keep_replicates = 0;
   bo.threads = 1;
-  OK(lode_bootstrap(c, &fo, &bo, &b2));
+  OK(lode_bootstrap_compute(c, &fo, &bo, &b2));
   OK(lode_bootstrap_matrix(b2, LODE_BOOTSTRAP_LOADINGS_LOWER, other, 12, NULL, NULL));
   CHECK(memcmp(other, lo, sizeof other) == 0);
   EXPECT(lode_bootstrap_matrix(b2, LODE_BOOTSTRAP_REPLICATE_LOADINGS, reps, 40 * 12, NULL, NULL),
@@ -1832,16 +1832,16 @@ static void test_bootstrap(void) {
   b2 = NULL;
   bo.threads = 2;
   bo.seed = 12;
-  OK(lode_bootstrap(c, &fo, &bo, &b2));
+  OK(lode_bootstrap_compute(c, &fo, &bo, &b2));
   OK(lode_bootstrap_matrix(b2, LODE_BOOTSTRAP_LOADINGS_LOWER, other, 12, NULL, NULL));
   CHECK(memcmp(other, lo, sizeof other) != 0);
   lode_bootstrap_free(b2);
   b2 = NULL;
 
   /* oblique rotation: factor correlations with proper intervals; one factor: a 1 x 1 identity */
-  ro.method = LODE_ROTATION_OBLIMIN;
+  ro.method = LODE_CRITERION_OBLIMIN;
   bo.replicates = 20;
-  OK(lode_bootstrap(c, &fo, &bo, &b2));
+  OK(lode_bootstrap_compute(c, &fo, &bo, &b2));
   OK(lode_bootstrap_value(b2, LODE_BOOTSTRAP_OBLIQUE, &v));
   CHECK(v == 1.0);
   OK(lode_bootstrap_matrix(b2, LODE_BOOTSTRAP_FACTOR_CORRELATIONS_LOWER, philo, 4, NULL, NULL));
@@ -1850,59 +1850,59 @@ static void test_bootstrap(void) {
   lode_bootstrap_free(b2);
   b2 = NULL;
   fo.factors = 1;
-  OK(lode_bootstrap(c, &fo, &bo, &b2));
+  OK(lode_bootstrap_compute(c, &fo, &bo, &b2));
   OK(lode_bootstrap_matrix(b2, LODE_BOOTSTRAP_FACTOR_CORRELATIONS, phi, 4, &rows, &cols));
   CHECK(rows == 1 && cols == 1 && phi[0] == 1.0);
   lode_bootstrap_free(b2);
   b2 = NULL;
   fo.factors = 2;
-  ro.method = LODE_ROTATION_VARIMAX;
+  ro.method = LODE_CRITERION_VARIMAX;
 
   /* cancelled through the callback: LODE_E_CANCELLED and no result */
   progress_log_init(&log, 0);
   bo.progress = log_progress;
   bo.replicates = 100000;
-  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_CANCELLED, "cancelled");
+  EXPECT(lode_bootstrap_compute(c, &fo, &bo, &b2), LODE_E_CANCELLED, "cancelled");
   CHECK(b2 == NULL && log.calls >= 1);
   progress_log_init(&log, 3);
   bo.replicates = 20000; /* far more than 50 ms of work, so a report arrives mid-way */
-  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_CANCELLED, "cancelled");
+  EXPECT(lode_bootstrap_compute(c, &fo, &bo, &b2), LODE_E_CANCELLED, "cancelled");
   CHECK(b2 == NULL && log.last_done >= 3 && log.last_done < 20000);
 
   /* bad options */
   OK(lode_bootstrap_options_init(&bo, sizeof bo));
   bo.replicates = 1;
-  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "replicates must be between 2 and 1000000; it is 1");
+  EXPECT(lode_bootstrap_compute(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "replicates must be between 2 and 1000000; it is 1");
   bo.replicates = 20;
   bo.level = 1.0;
-  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "level");
+  EXPECT(lode_bootstrap_compute(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "level");
   bo.level = nan_value();
-  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "level");
+  EXPECT(lode_bootstrap_compute(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "level");
   bo.level = inf_value();
-  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "level");
+  EXPECT(lode_bootstrap_compute(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "level");
   bo.level = 0.9;
   bo.threads = -1;
-  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "threads");
+  EXPECT(lode_bootstrap_compute(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "threads");
   bo.threads = 1;
   bo.replicate_random_starts = -2;
-  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "replicate_random_starts");
+  EXPECT(lode_bootstrap_compute(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "replicate_random_starts");
   bo.replicate_random_starts = 0;
   fo.method = 42;
-  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "unknown extraction method 42");
-  fo.method = LODE_ML;
+  EXPECT(lode_bootstrap_compute(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "unknown extraction method 42");
+  fo.method = LODE_EXTRACTION_ML;
   ro.method = 99;
-  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "unknown rotation method 99");
-  ro.method = LODE_ROTATION_VARIMAX;
+  EXPECT(lode_bootstrap_compute(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "unknown rotation method 99");
+  ro.method = LODE_CRITERION_VARIMAX;
   fo.factors = 5;
-  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_TOO_MANY_FACTORS, NULL);
+  EXPECT(lode_bootstrap_compute(c, &fo, &bo, &b2), LODE_E_TOO_MANY_FACTORS, NULL);
   fo.factors = 2;
   /* a full-sample fit that does not converge is an error, not intervals around it */
   fo.max_iterations = 1;
-  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_NOT_CONVERGED, "full-sample");
+  EXPECT(lode_bootstrap_compute(c, &fo, &bo, &b2), LODE_E_NOT_CONVERGED, "full-sample");
   fo.max_iterations = 1000;
   CHECK(b2 == NULL);
   bo.struct_size = 1;
-  EXPECT(lode_bootstrap(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "lode_bootstrap_options_init");
+  EXPECT(lode_bootstrap_compute(c, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "lode_bootstrap_options_init");
   /* an older options struct (no keep_replicates or progress): those take their defaults */
   progress_log_init(&log, 0);
   OK(lode_bootstrap_options_init(&bo, sizeof bo));
@@ -1911,14 +1911,14 @@ static void test_bootstrap(void) {
   bo.progress = log_progress;
   bo.progress_user = &log;
   bo.struct_size = offsetof(lode_bootstrap_options, keep_replicates);
-  OK(lode_bootstrap(c, &fo, &bo, &b2));
+  OK(lode_bootstrap_compute(c, &fo, &bo, &b2));
   CHECK(log.calls == 0);
   EXPECT(lode_bootstrap_matrix(b2, LODE_BOOTSTRAP_REPLICATE_LOADINGS, reps, 40 * 12, NULL, NULL),
          LODE_E_INVALID_ARGUMENT, "keep_replicates");
   lode_bootstrap_free(b2);
   b2 = NULL;
   /* NULL options: the defaults (1000 replicates) */
-  OK(lode_bootstrap(c, &fo, NULL, &b2));
+  OK(lode_bootstrap_compute(c, &fo, NULL, &b2));
   OK(lode_bootstrap_value(b2, LODE_BOOTSTRAP_REPLICATES, &v));
   CHECK(v == 1000.0);
   lode_bootstrap_free(b2);
@@ -1933,9 +1933,9 @@ static void test_bootstrap(void) {
     OK(lode_bootstrap_options_init(&big.o, sizeof big));
     big.o.replicates = 5;
     big.newer = 3;
-    EXPECT(lode_bootstrap(c, &fo, &big.o, &b2), LODE_E_UNSUPPORTED, "newer");
+    EXPECT(lode_bootstrap_compute(c, &fo, &big.o, &b2), LODE_E_UNSUPPORTED, "newer");
     big.newer = 0;
-    OK(lode_bootstrap(c, &fo, &big.o, &b2));
+    OK(lode_bootstrap_compute(c, &fo, &big.o, &b2));
     lode_bootstrap_free(b2);
     b2 = NULL;
   }
@@ -1944,8 +1944,8 @@ static void test_bootstrap(void) {
     double r[36];
     population_matrix(r);
     OK(lode_data_from_correlation(r, 6, 6, 1, 200, &dm));
-    OK(lode_correlate(dm, NULL, &cm));
-    EXPECT(lode_bootstrap(cm, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "raw data");
+    OK(lode_correlation_compute(dm, NULL, &cm));
+    EXPECT(lode_bootstrap_compute(cm, &fo, &bo, &b2), LODE_E_INVALID_ARGUMENT, "raw data");
     CHECK(b2 == NULL);
   }
   lode_bootstrap_free(NULL);
@@ -1960,11 +1960,11 @@ static void test_bootstrap(void) {
 static void test_last_error_is_cleared(void) {
   lode_data* d = NULL;
   EXPECT(lode_data_from_raw(NULL, 1, 1, 1, 1, &d), LODE_E_INVALID_ARGUMENT, "NULL");
-  CHECK(lode_last_error()[0] != '\0');
+  CHECK(lode_error_message()[0] != '\0');
   {
     double x[9] = {1, 0, 0, 0, 1, 0, 0, 0, 1};
     OK(lode_data_from_correlation(x, 3, 3, 1, 10, &d));
-    CHECK(strcmp(lode_last_error(), "") == 0);
+    CHECK(strcmp(lode_error_message(), "") == 0);
     lode_data_free(d);
   }
 }

@@ -70,19 +70,19 @@ Reference reference(const Analysis& a) {
   check(lode_data_from_raw(a.items.values.data(), static_cast<std::int64_t>(a.items.rows), p, p, 1, &d), "data");
   ref.data.reset(d);
   lode_correlation* c = nullptr;
-  check(lode_correlate(d, nullptr, &c), "correlations");
+  check(lode_correlation_compute(d, nullptr, &c), "correlations");
   ref.corr.reset(c);
-  lode_fit_options fo;
-  lode_fit_options_init(&fo, sizeof fo);
+  lode_model_options fo;
+  lode_model_options_init(&fo, sizeof fo);
   fo.factors = 2;
-  fo.method = LODE_ML;
+  fo.method = LODE_EXTRACTION_ML;
   lode_rotation_options ro;
   lode_rotation_options_init(&ro, sizeof ro);
-  ro.method = LODE_ROTATION_OBLIMIN;
+  ro.method = LODE_CRITERION_OBLIMIN;
   ro.seed = a.options.seed;
   fo.rotation = &ro;
   lode_model* m = nullptr;
-  check(lode_fit(c, &fo, &m), "fit");
+  check(lode_model_compute(c, &fo, &m), "fit");
   ref.model.reset(m);
   ref.R = read_matrix(c, LODE_CORRELATION_MATRIX, lode_correlation_matrix, "R");
   ref.eig = read_matrix(c, LODE_CORRELATION_EIGENVALUES, lode_correlation_matrix, "eigenvalues");
@@ -160,7 +160,7 @@ TEST_F(ReportLayout, OverviewShowsTheDataFactorabilityAndDecision) {
   EXPECT_EQ(num(s, find_row(s, "Decision"), 1), 2.0);
   const Reference ref = reference(a());
   lode_factorability* f = nullptr;
-  check(lode_assess_factorability(ref.corr.get(), &f), "factorability");
+  check(lode_factorability_compute(ref.corr.get(), &f), "factorability");
   const Handle<lode_factorability, lode_factorability_free> fact(f);
   EXPECT_EQ(num(s, find_row(s, "KMO sampling adequacy"), 1),
             read_value(fact.get(), LODE_FACTORABILITY_KMO, lode_factorability_value, "KMO"));
@@ -268,7 +268,7 @@ TEST_F(ReportLayout, RunRecordStatesTheOptionsAndHash) {
 TEST_F(ReportLayout, ScoresSheetAndColumnsMatchTheCApiScores) {
   const Reference ref = reference(a());
   lode_scores* raw = nullptr;
-  check(lode_score(ref.model.get(), ref.data.get(), nullptr, &raw), "scores");
+  check(lode_scores_compute(ref.model.get(), ref.data.get(), nullptr, &raw), "scores");
   const Handle<lode_scores, lode_scores_free> sc(raw);
   const Matrix values = read_matrix(sc.get(), LODE_SCORES_VALUES, lode_scores_matrix, "scores");
   ASSERT_TRUE(a().scores.sheet);

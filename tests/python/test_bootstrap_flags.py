@@ -271,19 +271,19 @@ def test_fit_progress_counts_extraction_and_starts_and_cancels():
 
 
 def test_fit_options_of_abi_1_1_are_still_accepted():
-    # A caller built against ABI 1.1 passes lode_fit_options without the progress fields; the library
+    # A caller built against ABI 1.1 passes lode_model_options without the progress fields; the library
     # must not read them (here: a callback that would cancel at once).
     c = lode.correlation(survey(200, 6, seed=92, factors=2))
-    o = _native.options(_native.FitOptions, "lode_fit_options_init", factors=2)
+    o = _native.options(_native.FitOptions, "lode_model_options_init", factors=2)
     calls = []
     cb = _native.make_progress(lambda d, t: calls.append(d) or False)
     o.progress = cb
     ptr = ctypes.c_void_p()
     with pytest.raises(lode.LodeError, match="cancelled"):
-        _native.check(lode.lib.lode_fit(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+        _native.check(lode.lib.lode_model_compute(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
     o.struct_size = _native.FIT_OPTIONS_SIZE_1_1
     calls.clear()
-    _native.check(lode.lib.lode_fit(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    _native.check(lode.lib.lode_model_compute(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
     lode.lib.lode_model_free(ptr)
     assert calls == []
     assert lode.version()["abi"][1] >= 2

@@ -69,13 +69,13 @@ def item_flags(model, *, salient=0.40, cross_gap=0.20, low_communality=0.20, hey
     are judged; communality is 1 - uniqueness. The defaults 0.40, 0.20 and 0.20 are common practice
     (rules of thumb); 0.005 is the lower bound Lode (and R's stats::factanal) put on uniquenesses.
     Returns :class:`ItemFlags`; thresholds outside [0, 1] raise :class:`LodeError`."""
-    _native.require("lode_flag_items", 2)
-    o = _native.options(_native.ItemFlagOptions, "lode_item_flag_options_init", salient=salient,
+    _native.require("lode_item_flags_compute", 2)
+    o = _native.options(_native.ItemFlagOptions, "lode_item_flags_options_init", salient=salient,
                         cross_loading_gap=cross_gap, low_communality=low_communality,
                         heywood_uniqueness=heywood_uniqueness)
     _checks.instance(model, Model, "model", "a fitted model (lode.fit)")
     ptr = ctypes.c_void_p()
-    check(lib.lode_flag_items(model.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    check(lib.lode_item_flags_compute(model.pointer, ctypes.byref(o), ctypes.byref(ptr)))
     return ItemFlags(ptr.value)
 
 
@@ -149,7 +149,7 @@ def bootstrap(X=None, *, factors=None, method="ml", rotation="oblimin", replicat
     counted (``replicates_failed``, ``failures``). ``level`` is the two-sided coverage.
     ``progress(done, total)`` is called with the replicates done; returning False cancels
     (:class:`LodeError`, status "cancelled", no result). Returns :class:`Bootstrap`."""
-    _native.require("lode_bootstrap", 2)
+    _native.require("lode_bootstrap_compute", 2)
     if X is None:
         given = [k for k in ("corr", "cov") if k in rotation_keywords]
         raise ArgumentError("the bootstrap resamples respondents, so it needs their raw data X (rows x items)"
@@ -168,6 +168,6 @@ def bootstrap(X=None, *, factors=None, method="ml", rotation="oblimin", replicat
     if callback is not None:
         b.progress = callback
     ptr = ctypes.c_void_p()
-    check(lib.lode_bootstrap(c.pointer, ctypes.byref(o), ctypes.byref(b), ctypes.byref(ptr)))
+    check(lib.lode_bootstrap_compute(c.pointer, ctypes.byref(o), ctypes.byref(b), ctypes.byref(ptr)))
     del keep, callback
     return Bootstrap(ptr.value, bool(keep_replicates))
