@@ -624,6 +624,32 @@ LODE_API int lode_reliability_compute_omega(const lode_model* model, const int64
 LODE_API int lode_reliability_compute_scale_omega(const lode_correlation* corr, const lode_model_options* opts,
                                      lode_reliability** out);
 
+/* How items enter their scale in lode_reliability_compute_keyed_omega (ABI 2.0 names). */
+enum lode_keying {
+  LODE_KEYING_AS_SCORED = 0,        /* every item enters its scale's sum as scored */
+  LODE_KEYING_REVERSE_NEGATIVE = 1  /* an item loading negatively on its scale's factor is reverse-scored */
+};
+
+typedef struct lode_reliability_options {
+  size_t struct_size;
+  const int64_t* assignment; /* each item's factor (0-based, -1 = none); NULL = largest absolute loading */
+  int64_t assignment_count;  /* items in `assignment` (0 with NULL) */
+  int keying;                /* enum lode_keying; default LODE_KEYING_AS_SCORED */
+  const int32_t* reverse;    /* per item, nonzero = reverse-keyed (on top of `keying`); NULL = none */
+  int64_t reverse_count;     /* items in `reverse` (0 with NULL) */
+} lode_reliability_options;
+
+LODE_API int lode_reliability_options_init(lode_reliability_options* opts, size_t struct_size);
+
+/* Omega as lode_reliability_compute_omega, with reverse-keyed items: a reverse-scored item (a constant minus the
+ * answer) changes the correlations R to D R D (D = diag(+-1)), whose common factor fit is D Lambda
+ * with the same factor correlations and uniquenesses (the extraction's discrepancy and every rotation
+ * criterion other than a fixed target see the loadings only through D Sigma D and their squares); so
+ * these items enter with their rows of loadings reversed, exactly, without a refit.
+ * LODE_RELIABILITY_REVERSED tells which items were reverse-scored. NULL opts = the defaults. */
+LODE_API int lode_reliability_compute_keyed_omega(const lode_model* model, const lode_reliability_options* opts,
+                                                  lode_reliability** out);
+
 LODE_API void lode_reliability_free(lode_reliability* reliability);
 
 enum lode_reliability_key {
@@ -649,6 +675,7 @@ enum lode_reliability_key {
   LODE_OMEGA_UNIQUENESSES = 745,        /* single scale only: items x 1 */
   LODE_RELIABILITY_OMEGA_FACTOR_SHARE = 746,   /* factors x 1: the factor's share of its scale's variance */
   LODE_RELIABILITY_OMEGA_SCALE_VARIANCE = 747, /* factors x 1: 1' Sigma_SS 1, the model-implied variance of the sum */
+  LODE_RELIABILITY_REVERSED = 748,      /* items x 1: 1 where the item was reverse-scored in its scale, else 0 */
   /* omega - numbers */
   LODE_OMEGA_CONVERGED = 760,           /* single scale: the one-factor fit converged (1 or 0); model: 1 */
   /* text, both kinds */

@@ -4,6 +4,7 @@
 #include "handles.hpp"
 #include "keys.hpp"
 #include "model.hpp"
+#include "options.hpp"
 #include "results.hpp"
 
 #include "lode/reliability.hpp"
@@ -70,6 +71,37 @@ std::vector<Index> assignment_of(const lode_model& model, const int64_t* assignm
   return out;
 }
 
+// lode_reliability_options: field, default. Keying as scored; no assignment (largest loading) and no
+// item reverse-keyed unless the caller says so.
+#define LODE_RELIABILITY_OPTIONS_FIELDS(F) \
+  F(assignment, nullptr)                   \
+  F(assignment_count, 0)                   \
+  F(keying, LODE_KEYING_AS_SCORED)         \
+  F(reverse, nullptr)                      \
+  F(reverse_count, 0)
+
+LODE_OPTIONS_FUNCTIONS(lode_reliability_options, LODE_RELIABILITY_OPTIONS_FIELDS, OmegaOptions, reliability_defaults,
+                       merged_reliability_options)
+
+// Omega of `model`'s scales under options already read (both per-factor omega calls end here).
+std::unique_ptr<lode_reliability> model_omega(const lode_model& model, OmegaOptions oo) {
+  oo.item_names = model.item_names;
+  oo.factor_correlations = model.rotation.factor_correlations;
+  auto r = std::make_unique<lode_reliability>();
+  r->is_alpha = false;
+  r->factors = model.rotation.pattern.cols();
+  r->omega = omega_from_loadings(model.rotation.pattern, model.extraction.uniquenesses, oo);
+  return r;
+}
+
+Matrix reversed_of(const lode_reliability& r) {
+  const auto& o = omega_of(r);
+  Vector v = Vector::Zero(static_cast<Index>(o.assignment.size()));
+  for (std::size_t j = 0; j < o.reversed.size() && j < o.assignment.size(); ++j)
+    v(static_cast<Index>(j)) = o.reversed[j] ? 1.0 : 0.0;
+  return v;
+}
+
 constexpr HandleNames reliability_handle{"lode_reliability", "lode_reliability", "reliability"};
 
 constexpr MatrixKey<lode_reliability> reliability_matrices[] = {
@@ -91,6 +123,7 @@ constexpr MatrixKey<lode_reliability> reliability_matrices[] = {
      [](const lode_reliability& r) -> Matrix { return per_scale(r, [](const ScaleOmega& s) { return s.factor_share; }); }},
     {LODE_RELIABILITY_OMEGA_SCALE_VARIANCE,
      [](const lode_reliability& r) -> Matrix { return per_scale(r, [](const ScaleOmega& s) { return s.scale_variance; }); }},
+    {LODE_RELIABILITY_REVERSED, [](const lode_reliability& r) -> Matrix { return reversed_of(r); }},
 };
 
 constexpr ValueKey<lode_reliability> reliability_values[] = {
@@ -132,14 +165,33 @@ LODE_API int lode_reliability_compute_omega(const lode_model* model, const int64
                                             lode_reliability** out) {
   return compute_handle(model, "model", out, [&] {
     OmegaOptions oo;
-    oo.item_names = model->item_names;
     oo.assignment = assignment_of(*model, assignment, count);
-    oo.factor_correlations = model->rotation.factor_correlations;
-    auto r = std::make_unique<lode_reliability>();
-    r->is_alpha = false;
-    r->factors = model->rotation.pattern.cols();
-    r->omega = omega_from_loadings(model->rotation.pattern, model->extraction.uniquenesses, oo);
-    return r;
+    return model_omega(*model, std::move(oo));
+  });
+}
+
+LODE_OPTIONS_INIT(lode_reliability_options, reliability_defaults)
+
+LODE_API int lode_reliability_compute_keyed_omega(const lode_model* model, const lode_reliability_options* opts,
+                                                  lode_reliability** out) {
+  return compute_handle(model, "model", out, [&] {
+    const lode_reliability_options o = merged_reliability_options(opts);
+    OmegaOptions oo;
+    oo.assignment = assignment_of(*model, o.assignment, o.assignment_count);
+    switch (o.keying) {
+      case LODE_KEYING_AS_SCORED: break;
+      case LODE_KEYING_REVERSE_NEGATIVE: oo.reverse_negative_loaders = true; break;
+      default: fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown keying {}", o.keying));
+    }
+    const Index items = model->rotation.pattern.rows();
+    if (o.reverse == nullptr && o.reverse_count != 0)
+      fail(LODE_E_INVALID_ARGUMENT, fmt::format("option 'reverse' is NULL but reverse_count is {}", o.reverse_count));
+    if (o.reverse != nullptr) {
+      if (o.reverse_count != items)
+        fail(LODE_E_INVALID_ARGUMENT, fmt::format("{} reverse-keyed flags were given for {} items", o.reverse_count, items));
+      for (int64_t j = 0; j < o.reverse_count; ++j) oo.reverse_keyed.push_back(o.reverse[j] != 0);
+    }
+    return model_omega(*model, std::move(oo));
   });
 }
 

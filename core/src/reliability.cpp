@@ -175,6 +175,27 @@ OmegaResult omega_from_loadings(const Matrix& loadings, const Vector& uniqueness
       throw Error(ErrorCode::invalid_argument, "the factor correlations contain a missing or infinite value");
   }
   const Matrix phi = phi_in.size() != 0 ? phi_in : Matrix(Matrix::Identity(k, k));
+  // Reverse-keyed items enter with their rows of loadings reversed (D Lambda; see OmegaOptions).
+  if (!options.reverse_keyed.empty() && static_cast<Index>(options.reverse_keyed.size()) != p)
+    throw Error(ErrorCode::invalid_argument, fmt::format("the reverse-keyed flags list {} items, but the loadings have {}",
+                                                         options.reverse_keyed.size(), p));
+  out.reversed.assign(static_cast<std::size_t>(p), false);
+  Matrix keyed = loadings;
+  std::string reversed_list;
+  for (Index i = 0; i < p; ++i) {
+    const auto u = static_cast<std::size_t>(i);
+    const Index f = out.assignment[u];
+    const bool negative = f >= 0 && loadings(i, f) < 0.0;
+    out.reversed[u] = (!options.reverse_keyed.empty() && options.reverse_keyed[u]) ||
+                      (options.reverse_negative_loaders && negative);
+    if (!out.reversed[u]) continue;
+    keyed.row(i) = -keyed.row(i);
+    reversed_list += (reversed_list.empty() ? "" : ", ") + item_label(names, i);
+  }
+  if (!reversed_list.empty())
+    out.notes.push_back(fmt::format("Reverse-scored in their scales: {}; omega uses their loadings reversed, as a "
+                                    "refit to the reverse-scored answers gives them.",
+                                    reversed_list));
   for (Index f = 0; f < k; ++f) {
     ScaleOmega sc;
     sc.factor = f;
@@ -182,13 +203,13 @@ OmegaResult omega_from_loadings(const Matrix& loadings, const Vector& uniqueness
     for (Index i = 0; i < p; ++i)
       if (out.assignment[static_cast<std::size_t>(i)] == f) {
         sc.items.push_back(i);
-        sc.sum_loadings += loadings(i, f);
+        sc.sum_loadings += keyed(i, f);
         sc.sum_uniquenesses += uniquenesses(i);
-        lambda_sum += loadings.row(i).transpose();
-        if (loadings(i, f) < 0.0)
+        lambda_sum += keyed.row(i).transpose();
+        if (keyed(i, f) < 0.0)
           out.notes.push_back(fmt::format("{} loads negatively ({:.2f}) on factor {}: omega sums loadings as they are; "
                                           "reverse-score the item if the scale score is to add it.",
-                                          item_label(names, i), loadings(i, f), f + 1));
+                                          item_label(names, i), keyed(i, f), f + 1));
         if (uniquenesses(i) <= 0.0)
           out.notes.push_back(fmt::format("{} has a uniqueness of {:.3f} (a Heywood case): omega for factor {} is "
                                           "overstated.",

@@ -1,9 +1,12 @@
 #include "arguments.hpp"
 
+#include <cstdint>
+#include <cstring>
 #include <algorithm>
 #include <cctype>
 #include <cmath>
 #include <cstdio>
+#include <new>
 #include <string>
 
 namespace lode::addin {
@@ -105,6 +108,37 @@ Input read_input(const Arg& a, const char* name) {
   const std::string problem = classify_square(g, in.is_correlation);
   if (!problem.empty()) throw CellError(Failure::bad_argument, std::string("'") + name + "' " + problem);
   return in;
+}
+
+double error_value(Failure failure) {
+  // FormulaError codes (LibreOffice formula/errorcodes.hxx): 502 invalid argument, 503 #NUM!,
+  // 519 #VALUE!, 523 no convergence. Calc stores an error as a quiet NaN whose low word is the code.
+  std::uint32_t code = 519;
+  switch (failure) {
+    case Failure::bad_argument:
+    case Failure::too_large: code = 502; break;
+    case Failure::not_converged: code = 523; break;
+    case Failure::not_computable: code = 503; break;
+    case Failure::internal: code = 519; break;
+  }
+  const std::uint64_t bits = 0x7FF8000000000000ULL | code;
+  double d;
+  std::memcpy(&d, &bits, sizeof d);
+  return d;
+}
+
+std::pair<Failure, std::string> failure_of(const std::exception_ptr& e) {
+  try {
+    std::rethrow_exception(e);
+  } catch (const CellError& c) {
+    return {c.failure(), c.what()};
+  } catch (const std::bad_alloc&) {
+    return {Failure::too_large, "not enough memory for this input"};
+  } catch (const std::exception& x) {
+    return {Failure::internal, x.what()};
+  } catch (...) {
+    return {Failure::internal, "unexpected failure"};
+  }
 }
 
 }  // namespace lode::addin

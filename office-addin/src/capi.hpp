@@ -9,6 +9,7 @@
 #include <chrono>
 #include <cstdint>
 #include <functional>
+#include <limits>
 #include <future>
 #include <memory>
 #include <string>
@@ -48,12 +49,19 @@ std::shared_ptr<const T> within_time(const Deadline& deadline, const char* what,
 // Throws CellError with lode_error_message()'s text when `status` is not LODE_OK.
 void check(int status, const char* what);
 
+// How a caller turns a C ABI status into its own failure: throws unless `status` is LODE_OK. The
+// cells use `check` (CellError); the report passes its own (report_analysis.cpp).
+using StatusCheck = void (*)(int status, const char* what);
+
 template <class T, void (*Free)(T*)>
 struct HandleFree {
   void operator()(T* p) const noexcept { Free(p); }
 };
-using DataHandle = std::unique_ptr<lode_data, HandleFree<lode_data, lode_data_free>>;
-using CorrelationHandle = std::unique_ptr<lode_correlation, HandleFree<lode_correlation, lode_correlation_free>>;
+// An owning handle of any C ABI result type, freed by its lode_*_free.
+template <class T, void (*Free)(T*)>
+using Handle = std::unique_ptr<T, HandleFree<T, Free>>;
+using DataHandle = Handle<lode_data, lode_data_free>;
+using CorrelationHandle = Handle<lode_correlation, lode_correlation_free>;
 
 // A matrix read from the C ABI, row-major.
 struct Matrix {
@@ -65,12 +73,31 @@ struct Matrix {
 // Reads a matrix result through a getter of the C ABI's shape (handle, key, out, capacity, rows, cols):
 // a size query first, then the values.
 template <class H, class Getter>
-Matrix read_matrix(const H* handle, int key, Getter getter, const char* what) {
+Matrix read_matrix(const H* handle, int key, Getter getter, const char* what, StatusCheck on_status = check) {
   Matrix m;
-  check(getter(handle, key, nullptr, 0, &m.rows, &m.cols), what);
+  on_status(getter(handle, key, nullptr, 0, &m.rows, &m.cols), what);
   m.values.resize(static_cast<std::size_t>(m.rows * m.cols));
-  check(getter(handle, key, m.values.data(), m.values.size(), &m.rows, &m.cols), what);
+  on_status(getter(handle, key, m.values.data(), m.values.size(), &m.rows, &m.cols), what);
   return m;
+}
+
+// A number result through a getter of the shape (handle, key, out).
+template <class H, class Getter>
+double read_value(const H* handle, int key, Getter getter, const char* what, StatusCheck on_status = check) {
+  double v = std::numeric_limits<double>::quiet_NaN();
+  on_status(getter(handle, key, &v), what);
+  return v;
+}
+
+// A text result through a getter of the shape (handle, key, out, capacity, length): its length first.
+template <class H, class Getter>
+std::string read_text(const H* handle, int key, Getter getter, const char* what, StatusCheck on_status = check) {
+  std::size_t length = 0;
+  on_status(getter(handle, key, nullptr, 0, &length), what);
+  std::string text(length + 1, '\0');
+  on_status(getter(handle, key, text.data(), text.size(), &length), what);
+  text.resize(length);
+  return text;
 }
 
 // A matrix result as a table of numbers (NaN entries become #NUM! cells).

@@ -9,6 +9,7 @@
 #include <limits>
 #include <optional>
 #include <string>
+#include <utility>
 #include <vector>
 
 namespace lode::addin {
@@ -88,5 +89,13 @@ struct Deadline {
   std::chrono::steady_clock::time_point until = std::chrono::steady_clock::now() + kTimeLimit;
   bool passed() const { return std::chrono::steady_clock::now() > until; }
 };
+
+// Calc's code for each failure as a NaN payload (formula/errorcodes.hxx): cells of an array result
+// and scalar results carry it. Err:502 and Err:523 are raised as exceptions instead.
+double error_value(Failure failure);
+
+// The cell failure and message of an exception caught at the add-in's boundary: a CellError as it
+// says, lack of memory as too large an input, anything else as an internal failure.
+std::pair<Failure, std::string> failure_of(const std::exception_ptr& e);
 
 }  // namespace lode::addin

@@ -3,6 +3,7 @@
 // failure into what Calc shows. Nothing escapes this boundary except the two UNO exceptions Calc
 // maps to documented error values.
 #include "convert.hpp"
+#include "uno_text.hpp"
 #include "report_uno.hpp"
 #include "table.hpp"
 
@@ -37,8 +38,6 @@ constexpr const char kServiceName[] = "org.lode.calc.CellFunctions";
 constexpr const char kImplementationName[] = "org.lode.calc.CellFunctionsImpl";
 constexpr const char kAddInService[] = "com.sun.star.sheet.AddIn";
 
-OUString ustr(std::string_view s) { return OUString(s.data(), static_cast<sal_Int32>(s.size()), RTL_TEXTENCODING_UTF8); }
-std::string utf8(const OUString& s) { return std::string(OUStringToOString(s, RTL_TEXTENCODING_UTF8).getStr()); }
 
 // One argument as the generated methods pass it on: a range or an optional value.
 struct UnoArg {
@@ -61,21 +60,13 @@ class CellFunctions : public cppu::WeakImplHelper4<org::lode::calc::XCellFunctio
     const FunctionSpec* f = find_by_display(utf8(display));
     return f ? ustr(f->method) : OUString();
   }
-  OUString SAL_CALL getDisplayFunctionName(const OUString& method) override {
-    const FunctionSpec* f = find_by_method(utf8(method));
-    return f ? ustr(f->display) : OUString();
+  OUString SAL_CALL getDisplayFunctionName(const OUString& m) override { return ustr(addin_text(utf8(m), AddinText::display)); }
+  OUString SAL_CALL getFunctionDescription(const OUString& m) override { return ustr(addin_text(utf8(m), AddinText::description)); }
+  OUString SAL_CALL getDisplayArgumentName(const OUString& m, sal_Int32 n) override {
+    return ustr(addin_text(utf8(m), AddinText::argument_name, n));
   }
-  OUString SAL_CALL getFunctionDescription(const OUString& method) override {
-    const FunctionSpec* f = find_by_method(utf8(method));
-    return f ? ustr(f->description) : OUString();
-  }
-  OUString SAL_CALL getDisplayArgumentName(const OUString& method, sal_Int32 n) override {
-    const FunctionSpec* f = find_by_method(utf8(method));
-    return f && n >= 0 && static_cast<std::size_t>(n) < f->args.size() ? ustr(f->args[n].name) : OUString();
-  }
-  OUString SAL_CALL getArgumentDescription(const OUString& method, sal_Int32 n) override {
-    const FunctionSpec* f = find_by_method(utf8(method));
-    return f && n >= 0 && static_cast<std::size_t>(n) < f->args.size() ? ustr(f->args[n].help) : OUString();
+  OUString SAL_CALL getArgumentDescription(const OUString& m, sal_Int32 n) override {
+    return ustr(addin_text(utf8(m), AddinText::argument_help, n));
   }
   OUString SAL_CALL getProgrammaticCategoryName(const OUString&) override { return ustr(kCategory); }
   OUString SAL_CALL getDisplayCategoryName(const OUString&) override { return ustr(kCategoryDisplay); }
@@ -100,8 +91,6 @@ class CellFunctions : public cppu::WeakImplHelper4<org::lode::calc::XCellFunctio
  private:
   // Runs row `index` of the table. Every failure becomes a documented cell result here.
   Any invoke(std::size_t index, std::initializer_list<UnoArg> uno_args) {
-    std::string message;
-    Failure failure = Failure::internal;
     try {
       const FunctionSpec& f = function_table().at(index);
       std::vector<Arg> args;
@@ -112,20 +101,10 @@ class CellFunctions : public cppu::WeakImplHelper4<org::lode::calc::XCellFunctio
         ++i;
       }
       return to_any(f.compute(Call{args, cache_, Deadline{}}));
-    } catch (const CellError& e) {
-      failure = e.failure();
-      message = e.what();
-    } catch (const std::bad_alloc&) {
-      failure = Failure::too_large;
-      message = "not enough memory for this input";
-    } catch (const std::exception& e) {
-      failure = Failure::internal;
-      message = e.what();
     } catch (...) {
-      failure = Failure::internal;
-      message = "unexpected failure";
+      const auto [failure, message] = failure_of(std::current_exception());
+      return failure_to_any(failure, message, static_cast<cppu::OWeakObject&>(*this));
     }
-    return failure_to_any(failure, message, static_cast<cppu::OWeakObject&>(*this));
   }
 
   css::lang::Locale locale_;

@@ -1,4 +1,5 @@
 #include "convert.hpp"
+#include "uno_text.hpp"
 
 #include <com/sun/star/lang/IllegalArgumentException.hpp>
 #include <com/sun/star/sheet/NoConvergenceException.hpp>
@@ -17,8 +18,6 @@ using rtl::OUString;
 namespace lode::addin {
 namespace {
 
-std::string utf8(const OUString& s) { return std::string(OUStringToOString(s, RTL_TEXTENCODING_UTF8).getStr()); }
-OUString ustr(const std::string& s) { return OUString(s.data(), static_cast<sal_Int32>(s.size()), RTL_TEXTENCODING_UTF8); }
 
 bool is_blank(const Any& a) {
   if (!a.hasValue()) return true;
@@ -143,23 +142,6 @@ Arg arg_from_value(const Any& value, std::string_view name) {
     return arg_from_range(range, name);
   }
   throw CellError(Failure::bad_argument, "'" + std::string(name) + "' has a type Lode cannot read");
-}
-
-double error_value(Failure failure) {
-  // FormulaError codes (LibreOffice formula/errorcodes.hxx): 502 invalid argument, 503 #NUM!,
-  // 519 #VALUE!, 523 no convergence. Calc stores an error as a quiet NaN whose low word is the code.
-  std::uint32_t code = 519;
-  switch (failure) {
-    case Failure::bad_argument:
-    case Failure::too_large: code = 502; break;
-    case Failure::not_converged: code = 523; break;
-    case Failure::not_computable: code = 503; break;
-    case Failure::internal: code = 519; break;
-  }
-  const std::uint64_t bits = 0x7FF8000000000000ULL | code;
-  double d;
-  std::memcpy(&d, &bits, sizeof d);
-  return d;
 }
 
 Any to_any(const Output& out) {

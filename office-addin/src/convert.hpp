@@ -23,9 +23,6 @@ Arg arg_from_value(const com::sun::star::uno::Any& value, std::string_view name)
 
 com::sun::star::uno::Any to_any(const Output& out);
 
-// Calc's code for each failure as a NaN payload (formula/errorcodes.hxx): cells of an array result
-// and scalar results carry it. Err:502 and Err:523 are raised as exceptions instead.
-double error_value(Failure failure);
 
 // The cell result of a failure: throws IllegalArgumentException (Err:502) for bad arguments and
 // too-large input, NoConvergenceException (Err:523) for non-convergence, and returns an error

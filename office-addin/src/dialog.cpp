@@ -3,6 +3,9 @@
 // (UnoControlDialogModel), prefilled from the selection, and on Run hands the range and the options to
 // the AnalysisReport service, which works on a thread of its own with progress in the status bar.
 #include "report_uno.hpp"
+#include "uno_text.hpp"
+#include "option_table.hpp"
+#include "report_text.hpp"
 
 #include <cppuhelper/implbase4.hxx>
 #include <cppuhelper/supportsservice.hxx>
@@ -39,7 +42,6 @@
 #include <com/sun/star/view/XSelectionSupplier.hpp>
 #include <org/lode/calc/XAnalysisReport.hpp>
 
-#include <cctype>
 #include <mutex>
 #include <string>
 #include <utility>
@@ -60,8 +62,6 @@ constexpr const char kProtocol[] = "org.lode.calc:";
 constexpr const char kServiceName[] = "org.lode.calc.DialogHandler";
 constexpr const char kImplementationName[] = "org.lode.calc.DialogHandlerImpl";
 
-OUString ustr(const std::string& s) { return OUString(s.data(), static_cast<sal_Int32>(s.size()), RTL_TEXTENCODING_UTF8); }
-std::string utf8(const OUString& s) { return std::string(OUStringToOString(s, RTL_TEXTENCODING_UTF8).getStr()); }
 OUString A(const char* s) { return OUString::createFromAscii(s); }
 
 // The one report service of this office: "stop" must reach the run "analyse" started.
@@ -82,31 +82,6 @@ Sequence<OUString> strings(const std::vector<std::string>& v) {
   return Sequence<OUString>(u.data(), static_cast<sal_Int32>(u.size()));
 }
 
-// The dialog's choices: the words shown and the option value each stands for.
-struct Choice {
-  const char* shown;
-  const char* value;
-};
-const std::vector<Choice> kCorrelations = {
-    {"Pearson", "pearson"}, {"Spearman (ranks)", "spearman"}, {"Polychoric (ordered answers)", "polychoric"}};
-const std::vector<Choice> kMissing = {{"Pairwise: all who answered both", "pairwise"},
-                                      {"Listwise: complete answers only", "listwise"}};
-const std::vector<Choice> kExtraction = {
-    {"Minimum residual", "minres"}, {"Maximum likelihood", "ml"}, {"Principal axis", "paf"}};
-const std::vector<Choice> kRotation = {{"Oblimin (factors may correlate)", "oblimin"},
-                                       {"Promax (factors may correlate)", "promax"},
-                                       {"Varimax (factors kept apart)", "varimax"},
-                                       {"None", "none"}};
-const std::vector<Choice> kScores = {
-    {"None", "none"}, {"Regression", "regression"}, {"Bartlett", "bartlett"}, {"Correlation-preserving", "tenberge"}};
-const std::vector<Choice> kPlace = {{"Beside the data, if empty", "beside"},
-                                    {"On a sheet of their own", "sheet"}};
-
-std::vector<std::string> shown(const std::vector<Choice>& c) {
-  std::vector<std::string> s;
-  for (const Choice& x : c) s.push_back(x.shown);
-  return s;
-}
 
 class DialogBuilder {
  public:
@@ -135,11 +110,14 @@ class DialogBuilder {
   void heading(const char* name, const char* text, sal_Int32 x, sal_Int32 y, sal_Int32 w) {
     add("com.sun.star.awt.UnoControlFixedLineModel", name, x, y, w, 10, {{"Label", Any(A(text))}});
   }
-  void dropdown(const char* name, const std::vector<Choice>& choices, sal_Int32 x, sal_Int32 y, sal_Int32 w) {
-    sal_Int16 first = 0;
-    add("com.sun.star.awt.UnoControlListBoxModel", name, x, y, w, 12,
-        {{"Dropdown", Any(true)}, {"StringItemList", Any(strings(shown(choices)))},
-         {"SelectedItems", Any(Sequence<sal_Int16>(&first, 1))}, {"LineCount", Any(sal_Int16(8))}});
+  // A labelled list of one word option, its default selected, its help as the tooltip.
+  void dropdown(const WordOption& option, sal_Int32 label_x, sal_Int32 x, sal_Int32 y, sal_Int32 w) {
+    label((std::string(option.property) + "Label").c_str(), option.label, label_x, y, x - label_x - 2);
+    auto first = static_cast<sal_Int16>(word_index(option, option.fallback));
+    add("com.sun.star.awt.UnoControlListBoxModel", option.property, x, y, w, 12,
+        {{"Dropdown", Any(true)}, {"StringItemList", Any(strings(word_labels(option)))},
+         {"SelectedItems", Any(Sequence<sal_Int16>(&first, 1))}, {"LineCount", Any(sal_Int16(8))},
+         {"HelpText", Any(ustr(option.help))}});
   }
   void number(const char* name, double value, double lo, double hi, sal_Int16 decimals, sal_Int32 x, sal_Int32 y, sal_Int32 w) {
     add("com.sun.star.awt.UnoControlNumericFieldModel", name, x, y, w, 12,
@@ -176,9 +154,10 @@ sal_Int16 selected(const Reference<css::beans::XPropertySet>& listbox) {
   listbox->getPropertyValue("SelectedItems") >>= sel;
   return sel.getLength() > 0 ? sel[0] : 0;
 }
-const char* chosen(const std::vector<Choice>& c, const Reference<css::beans::XPropertySet>& listbox) {
-  sal_Int16 i = selected(listbox);
-  return c[static_cast<std::size_t>(i >= 0 && static_cast<std::size_t>(i) < c.size() ? i : 0)].value;
+const char* chosen(const WordOption& option, const Reference<css::beans::XPropertySet>& listbox) {
+  const sal_Int16 i = selected(listbox);
+  const bool inside = i >= 0 && static_cast<std::size_t>(i) < option.words.size();
+  return option.words[inside ? static_cast<std::size_t>(i) : word_index(option, option.fallback)].word;
 }
 double value_of(const Reference<css::beans::XPropertySet>& field) {
   double v = 0;
@@ -195,12 +174,6 @@ css::beans::PropertyValue prop(const char* name, Any value) {
   p.Name = A(name);
   p.Value = std::move(value);
   return p;
-}
-
-std::string column_letters(sal_Int32 col) {
-  std::string s;
-  for (sal_Int32 c = col + 1; c > 0; c = (c - 1) / 26) s.insert(s.begin(), static_cast<char>('A' + (c - 1) % 26));
-  return s;
 }
 
 class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider, css::frame::XDispatch,
@@ -270,34 +243,15 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
   static std::string range_text(const Reference<css::sheet::XSpreadsheetDocument>& doc, const css::table::CellRangeAddress& a) {
     Reference<css::container::XIndexAccess> sheets(doc->getSheets(), UNO_QUERY_THROW);
     Reference<css::container::XNamed> named(sheets->getByIndex(a.Sheet), UNO_QUERY_THROW);
-    std::string name = utf8(named->getName());
-    bool plain = true;
-    for (char ch : name)
-      if (!(std::isalnum(static_cast<unsigned char>(ch)) || ch == '_')) plain = false;
-    std::string sheet = plain ? name : "'" + name + "'";
-    return "$" + sheet + ".$" + column_letters(a.StartColumn) + "$" + std::to_string(a.StartRow + 1) + ":$" +
-           column_letters(a.EndColumn) + "$" + std::to_string(a.EndRow + 1);
+    return range_address(utf8(named->getName()), a.StartColumn, a.StartRow, a.EndColumn, a.EndRow);
   }
 
   // "$Sheet.$A$1:$B$9" or "Sheet.A1:B9" or "A1:B9" (on `fallback_sheet`) -> address; false if unreadable.
   static bool parse_range(const Reference<css::sheet::XSpreadsheetDocument>& doc, const std::string& text,
                           sal_Int16 fallback_sheet, css::table::CellRangeAddress& out) {
     try {
-      std::string sheet_part, cells = text;
-      const std::size_t dot = text.rfind('.');
-      if (dot != std::string::npos) {
-        sheet_part = text.substr(0, dot);
-        cells = text.substr(dot + 1);
-        if (!sheet_part.empty() && sheet_part[0] == '$') sheet_part.erase(0, 1);
-        if (sheet_part.size() >= 2 && sheet_part.front() == '\'' && sheet_part.back() == '\'') {
-          std::string s;
-          for (std::size_t i = 1; i + 1 < sheet_part.size(); ++i) {
-            s += sheet_part[i];
-            if (sheet_part[i] == '\'' && sheet_part[i + 1] == '\'') ++i;
-          }
-          sheet_part = s;
-        }
-      }
+      std::string sheet_part, cells;
+      split_range_text(text, sheet_part, cells);
       Reference<css::container::XIndexAccess> sheets(doc->getSheets(), UNO_QUERY_THROW);
       Reference<css::sheet::XSpreadsheet> sheet;
       if (sheet_part.empty()) sheet.set(sheets->getByIndex(fallback_sheet), UNO_QUERY_THROW);
@@ -365,34 +319,28 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     // Right: the analysis.
     const sal_Int32 L = 166, F = 250, W = 136;
     b.heading("AnalysisHeading", "The analysis", L, 4, 220);
-    b.label("CorrelationLabel", "Correlations", L, 18, 82);
-    b.dropdown("Correlation", kCorrelations, F, 18, W);
-    b.label("MissingLabel", "Missing answers", L, 33, 82);
-    b.dropdown("Missing", kMissing, F, 33, W);
+    b.dropdown(*find_word_option("Correlation"), L, F, 18, W);
+    b.dropdown(*find_word_option("Missing"), L, F, 33, W);
     b.label("FactorsLabel", "Number of factors", L, 48, 82);
     b.add("com.sun.star.awt.UnoControlRadioButtonModel", "FactorsSuggest", F, 48, W, 10,
           {{"Label", Any(A("Suggest from the data"))}, {"State", Any(sal_Int16(1))}});
     b.add("com.sun.star.awt.UnoControlRadioButtonModel", "FactorsFixed", F, 60, 40, 10,
           {{"Label", Any(A("Fixed:"))}, {"State", Any(sal_Int16(0))}});
     b.number("FactorCount", 3, 1, 100, 0, F + 42, 59, W - 42);
-    b.label("ExtractionLabel", "Extraction", L, 74, 82);
-    b.dropdown("Extraction", kExtraction, F, 74, W);
-    b.label("RotationLabel", "Rotation", L, 89, 82);
-    b.dropdown("Rotation", kRotation, F, 89, W);
+    b.dropdown(*find_word_option("Extraction"), L, F, 74, W);
+    b.dropdown(*find_word_option("Rotation"), L, F, 89, W);
     b.label("RotationParameterLabel", "Rotation setting (0: usual)", L, 104, 82);
     b.number("RotationParameter", 0, -10, 10, 2, F, 104, W);
 
     b.heading("ExtrasHeading", "Extras", L, 120, 220);
-    b.label("ScoresLabel", "Factor scores", L, 134, 82);
-    b.dropdown("Scores", kScores, F, 134, W);
-    b.label("PlaceLabel", "Put the scores", L, 149, 82);
-    b.dropdown("ScoresPlace", kPlace, F, 149, W);
+    b.dropdown(*find_word_option("Scores"), L, F, 134, W);
+    b.dropdown(*find_word_option("ScoresPlace"), L, F, 149, W);
     b.add("com.sun.star.awt.UnoControlCheckBoxModel", "Bootstrap", L, 165, 82, 10,
           {{"Label", Any(A("Bootstrap intervals"))}, {"State", Any(sal_Int16(0))}});
     b.label("ReplicatesLabel", "Resamples", F, 164, 40);
     b.number("Replicates", 500, 50, 100000, 0, F + 42, 164, W - 42);
     b.label("SalientLabel", "Strong loading from", L, 180, 82);
-    b.number("Salient", 0.30, 0.05, 0.95, 2, F, 180, W);
+    b.number("Salient", defaults::salient, 0.05, 0.95, 2, F, 180, W);
     b.label("SeedLabel", "Random seed", L, 195, 82);
     b.number("Seed", 20260101, 0, 9007199254740991.0, 0, F, 195, W);
 
@@ -432,14 +380,9 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     opts.push_back(prop("HeaderRow", Any(sal_Int32(header_state))));
     if (!chosen_items.empty())
       opts.push_back(prop("Items", Any(Sequence<OUString>(chosen_items.data(), static_cast<sal_Int32>(chosen_items.size())))));
-    opts.push_back(prop("Correlation", Any(A(chosen(kCorrelations, b.get("Correlation"))))));
-    opts.push_back(prop("Missing", Any(A(chosen(kMissing, b.get("Missing"))))));
+    for (const WordOption& w : word_options()) opts.push_back(prop(w.property, Any(A(chosen(w, b.get(w.property))))));
     opts.push_back(prop("Factors", Any(sal_Int32(state_of(b.get("FactorsFixed")) ? value_of(b.get("FactorCount")) : 0))));
-    opts.push_back(prop("Extraction", Any(A(chosen(kExtraction, b.get("Extraction"))))));
-    opts.push_back(prop("Rotation", Any(A(chosen(kRotation, b.get("Rotation"))))));
     opts.push_back(prop("RotationParameter", Any(value_of(b.get("RotationParameter")))));
-    opts.push_back(prop("Scores", Any(A(chosen(kScores, b.get("Scores"))))));
-    opts.push_back(prop("ScoresPlace", Any(A(chosen(kPlace, b.get("ScoresPlace"))))));
     opts.push_back(prop("Bootstrap", Any(sal_Int32(state_of(b.get("Bootstrap")) ? value_of(b.get("Replicates")) : 0))));
     opts.push_back(prop("Salient", Any(value_of(b.get("Salient")))));
     opts.push_back(prop("Seed", Any(static_cast<sal_Int64>(value_of(b.get("Seed"))))));

@@ -2,6 +2,7 @@
 
 #include "arguments.hpp"
 #include "capi.hpp"
+#include "defaults.hpp"
 
 #include <algorithm>
 #include <cctype>
@@ -12,60 +13,6 @@
 #include <string>
 
 namespace lode::addin {
-
-// ---------------------------------------------------------------------------------------------
-// The C ABI's statuses as cell results
-// ---------------------------------------------------------------------------------------------
-
-Failure failure_of_status(int status) noexcept {
-  switch (status) {
-    case LODE_E_INVALID_ARGUMENT:
-    case LODE_E_INSUFFICIENT_DATA:
-    case LODE_E_TOO_MANY_FACTORS:
-      return Failure::bad_argument;  // Err:502
-    case LODE_E_NOT_POSITIVE_DEFINITE:
-      return Failure::not_computable;  // #NUM!
-    case LODE_E_NOT_CONVERGED:
-      return Failure::not_converged;  // Err:523
-    case LODE_E_CANCELLED:  // only the add-in's own time limit cancels
-    case LODE_E_NOMEM:
-      return Failure::too_large;  // Err:502
-    default:  // LODE_E_INTERNAL, LODE_E_BUFFER_TOO_SMALL, LODE_E_UNSUPPORTED, unknown
-      return Failure::internal;  // #VALUE!
-  }
-}
-
-void time_limit_passed(const char* what) {
-  throw CellError(Failure::too_large, std::string(what) + ": stopped after " + std::to_string(kTimeLimit.count()) +
-                                          " s, the time limit of a cell function; use fewer rows, items or "
-                                          "replicates");
-}
-
-void check_time(const Deadline& deadline, const char* what) {
-  if (deadline.passed()) time_limit_passed(what);
-}
-
-void check(int status, const char* what) {
-  if (status == LODE_OK) return;
-  if (status == LODE_E_CANCELLED) time_limit_passed(what);
-  const char* detail = lode_error_message();
-  throw CellError(failure_of_status(status),
-                  std::string(what) + ": " + (detail && *detail ? detail : lode_status_name(status)));
-}
-
-Output to_output(const Matrix& m) {
-  Output out = Output::table(static_cast<std::size_t>(m.rows), static_cast<std::size_t>(m.cols));
-  for (std::size_t i = 0; i < out.cells.size(); ++i) {
-    const double v = m.values[i];
-    out.cells[i] = OutCell::of(v);
-    if (!std::isfinite(v)) out.cells[i].error = Failure::not_computable;
-  }
-  return out;
-}
-
-int deadline_progress(void* user, std::int64_t, std::int64_t) {
-  return static_cast<const Deadline*>(user)->passed() ? 1 : 0;
-}
 
 namespace {
 
@@ -184,9 +131,27 @@ Output fn_eigen(const Call& call) {
 // ---------------------------------------------------------------------------------------------
 namespace {
 
-int method_arg(const Arg& a) { return choice(a, "method", {"ml", "paf", "minres"}); }
+// An option word left out stands for its default (defaults.hpp: the one set of defaults).
+Arg or_default(const Arg& a, const char* word) {
+  if (a.kind != Arg::Kind::missing) return a;
+  Arg d;
+  d.kind = Arg::Kind::text;
+  d.text = word;
+  return d;
+}
+// The extraction a cell asks for, as the C ABI's method.
+int method_arg(const Arg& a) {
+  static constexpr int kMethods[] = {LODE_EXTRACTION_ML, LODE_EXTRACTION_PAF, LODE_EXTRACTION_MINRES};
+  return kMethods[choice(or_default(a, defaults::extraction), "method", {"ml", "paf", "minres"})];
+}
+// The rotation a cell asks for, as the C ABI's method (lode_rotation_method_from_name).
 int rotation_arg(const Arg& a) {
-  return choice(a, "rotation", {"oblimin", "none", "varimax", "quartimax", "equamax", "promax", "quartimin", "geomin"});
+  static constexpr std::initializer_list<const char*> kWords = {"oblimin", "none",    "varimax",   "quartimax",
+                                                                "equamax", "promax", "quartimin", "geomin"};
+  const Arg word = or_default(a, defaults::rotation);
+  int method = LODE_CRITERION_NONE;
+  check(lode_rotation_method_from_name(kWords.begin()[choice(word, "rotation", kWords)], &method), "rotation");
+  return method;
 }
 
 constexpr std::int64_t kMaxFactors = 100;
@@ -196,8 +161,8 @@ constexpr std::size_t kNoArg = static_cast<std::size_t>(-1);
 
 struct FitSpec {
   int factors = 0;   // 0 = the count parallel analysis suggests
-  int method = 0;    // index into method_arg's choices
-  int rotation = 0;  // index into rotation_arg's choices
+  int method = LODE_EXTRACTION_ML;                // the C ABI's extraction method (method_arg)
+  int rotation = LODE_CRITERION_OBLIMIN;  // the C ABI's rotation method (rotation_arg)
 };
 
 // What every fit-reading cell needs, computed once per distinct (data, options).
@@ -324,10 +289,6 @@ double factorability_value(const lode_factorability* f, int key, const char* wha
   return v;
 }
 
-const int kRotationMethods[] = {LODE_CRITERION_OBLIMIN, LODE_CRITERION_NONE,    LODE_CRITERION_VARIMAX,
-                                LODE_CRITERION_QUARTIMAX, LODE_CRITERION_EQUAMAX, LODE_CRITERION_PROMAX,
-                                LODE_CRITERION_QUARTIMIN, LODE_CRITERION_GEOMIN};
-const int kExtractionMethods[] = {LODE_EXTRACTION_ML, LODE_EXTRACTION_PAF, LODE_EXTRACTION_MINRES};
 
 double model_value(const lode_model* m, int key, const char* what) {
   double v = 0.0;
@@ -339,11 +300,11 @@ std::shared_ptr<const FitOutputs> run_fit(const lode_correlation* corr, const Fi
   check_time(deadline, "factor analysis");
   lode_rotation_options ro;
   check(lode_rotation_options_init(&ro, sizeof ro), "rotation options");
-  ro.method = kRotationMethods[spec.rotation];
+  ro.method = spec.rotation;
   lode_model_options fo;
   check(lode_model_options_init(&fo, sizeof fo), "fit options");
   fo.factors = spec.factors;
-  fo.method = kExtractionMethods[spec.method];
+  fo.method = spec.method;
   fo.rotation = &ro;
   fo.progress = deadline_progress;  // checked before and after the extraction and at every rotation start
   fo.progress_user = const_cast<Deadline*>(&deadline);
@@ -437,7 +398,7 @@ std::int64_t run_nfactors(const lode_correlation* corr, int rule, std::int64_t s
 Matrix run_rotate(const Grid& loadings, int rotation, const Arg& parameter) {
   lode_rotation_options ro;
   check(lode_rotation_options_init(&ro, sizeof ro), "rotation options");
-  ro.method = kRotationMethods[rotation];
+  ro.method = rotation;
   if (parameter.kind != Arg::Kind::missing) {
     if (parameter.kind != Arg::Kind::number)
       throw CellError(Failure::bad_argument, "'parameter' must be a number");

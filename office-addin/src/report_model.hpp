@@ -2,6 +2,8 @@
 // through the C ABI (lode.h), and the report as plain sheets of cells that report_uno.cpp writes.
 #pragma once
 
+#include "defaults.hpp"
+
 #include <atomic>
 #include <cstdint>
 #include <functional>
@@ -16,20 +18,21 @@ inline constexpr int kMaxReportFactors = 100;
 inline constexpr int kMaxReportBootstrap = 100000;
 
 // Everything the dialog (or any UNO caller) can choose. Text values are the option words of the
-// README's table ("pearson", "pairwise", ...); parse_* functions check them.
+// README's table ("pearson", "pairwise", ...); validate() checks them against option_table.cpp.
 struct Options {
   int header = -1;                 // -1 detect, 0 no header row, 1 the first row holds item names
   std::vector<std::string> items;  // names of the columns to analyse; empty = every column holding numbers
-  std::string correlation = "pearson";  // pearson | spearman | polychoric
-  std::string missing = "pairwise";     // pairwise | listwise
+  // The word options: their accepted words, labels and help are in option_table.cpp.
+  std::string correlation = defaults::correlation;
+  std::string missing = defaults::missing;
   int factors = 0;                       // 0 = suggest from the data, else this many
-  std::string extraction = "minres";     // minres | ml | paf
-  std::string rotation = "oblimin";      // oblimin | promax | varimax | none
+  std::string extraction = defaults::extraction;
+  std::string rotation = defaults::rotation;
   double rotation_parameter = 0.0;       // oblimin gamma; promax power (0 = the method's usual value)
-  std::string scores = "none";           // none | regression | bartlett | tenberge (correlation-preserving)
-  std::string scores_place = "beside";   // beside (new columns right of the data, when empty) | sheet
+  std::string scores = defaults::scores;
+  std::string scores_place = defaults::scores_place;  // beside: new columns right of the data, when empty
   int bootstrap = 0;                     // resamples; 0 = off
-  double salient = 0.30;                 // loadings at least this large (absolute) are emphasised
+  double salient = defaults::salient;    // loadings at least this large (absolute) are emphasised
   std::uint64_t seed = 20260101;  // the library's default seed, so the factor count agrees with the cells and Python
   int cancel_after_sheets = -1;          // tests only: cancel after this many writing steps (the score
                                          // columns beside the data, when written, are the first step;

@@ -3,8 +3,13 @@
 // failure or a cancellation removes what it wrote (sheets and the cell styles it added) and restores
 // the document's modified state.
 #include "report_uno.hpp"
+#include "uno_text.hpp"
+#include "option_table.hpp"
 
 #include "report_model.hpp"
+#include "report_run.hpp"
+#include "report_styles.hpp"
+#include "report_text.hpp"
 
 #include <cppuhelper/implbase2.hxx>
 #include <cppuhelper/supportsservice.hxx>
@@ -53,15 +58,10 @@
 #include <org/lode/calc/XAnalysisReport.hpp>
 
 #include <algorithm>
-#include <atomic>
-#include <cctype>
 #include <memory>
-#include <chrono>
 #include <cmath>
 #include <cstdio>
-#include <ctime>
 #include <limits>
-#include <mutex>
 #include <stdexcept>
 #include <thread>
 
@@ -79,102 +79,33 @@ namespace {
 constexpr const char kServiceName[] = "org.lode.calc.AnalysisReport";
 constexpr const char kImplementationName[] = "org.lode.calc.AnalysisReportImpl";
 
-OUString ustr(const std::string& s) { return OUString(s.data(), static_cast<sal_Int32>(s.size()), RTL_TEXTENCODING_UTF8); }
-std::string utf8(const OUString& s) { return std::string(OUStringToOString(s, RTL_TEXTENCODING_UTF8).getStr()); }
 
-// A whole number held in a double, written out in full (4294967298, not 4.29e+09).
-std::string fmt_whole(double d) {
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.0f", d);
-  return buf;
-}
-
-// The text without the white space around it: option words are trimmed, as the C ABI's name lookups do.
-std::string trimmed(const std::string& s) {
-  const auto first = s.find_first_not_of(" \t\r\n\v\f");
-  if (first == std::string::npos) return std::string();
-  return s.substr(first, s.find_last_not_of(" \t\r\n\v\f") - first + 1);
-}
-
-std::string column_letters(sal_Int32 col) {
-  std::string s;
-  for (sal_Int32 c = col + 1; c > 0; c = (c - 1) / 26) s.insert(s.begin(), static_cast<char>('A' + (c - 1) % 26));
-  return s;
-}
-
-std::string sheet_ref(const std::string& name) {
-  bool plain = !name.empty();
-  for (char ch : name)
-    if (!(std::isalnum(static_cast<unsigned char>(ch)) || ch == '_')) plain = false;
-  if (plain) return "$" + name;
-  std::string q = "$'";
-  for (char ch : name) q += ch == '\'' ? std::string("''") : std::string(1, ch);
-  return q + "'";
-}
-
-std::string utc_now() {
-  std::time_t t = std::chrono::system_clock::to_time_t(std::chrono::system_clock::now());
-  std::tm tm{};
-  gmtime_r(&t, &tm);
-  char buf[40];
-  std::strftime(buf, sizeof buf, "%Y-%m-%d %H:%M:%S UTC", &tm);
-  return buf;
-}
-
-// ---- options from named values -----------------------------------------------------------------
-Options options_from(const Sequence<css::beans::PropertyValue>& props) {
-  Options o;
-  for (const css::beans::PropertyValue& p : props) {
-    const std::string n = utf8(p.Name);
-    auto text = [&]() {
-      OUString s;
-      if (!(p.Value >>= s)) throw std::invalid_argument("option " + n + " must be text");
-      return trimmed(utf8(s));
-    };
-    // A whole number in [lo, hi], refused by name otherwise (never wrapped into a smaller type).
-    auto integer = [&](sal_Int64 lo, sal_Int64 hi, const char* range) {
-      sal_Int64 i = 0;
-      double d = 0;
-      bool whole = false;
-      if (p.Value >>= i) {
-        whole = true;
-      } else if ((p.Value >>= d) && std::isfinite(d) && d == std::floor(d)) {
-        if (d < static_cast<double>(lo) || d > static_cast<double>(hi))
-          throw std::invalid_argument("option " + n + " is " + fmt_whole(d) + "; it must be " + range);
-        i = static_cast<sal_Int64>(d);
-        whole = true;
-      }
-      if (!whole) throw std::invalid_argument("option " + n + " must be a whole number, " + range);
-      if (i < lo || i > hi) throw std::invalid_argument("option " + n + " is " + std::to_string(i) + "; it must be " + range);
-      return i;
-    };
-    auto small = [&](sal_Int64 lo, sal_Int64 hi, const char* range) { return static_cast<int>(integer(lo, hi, range)); };
-    auto number = [&]() {
-      double d = 0;
-      if (p.Value >>= d) return d;
-      throw std::invalid_argument("option " + n + " must be a number");
-    };
-    if (n == "HeaderRow") o.header = small(-1, 1, "-1 (detect), 0 or 1");
-    else if (n == "Items") {
-      Sequence<OUString> items;
-      if (!(p.Value >>= items)) throw std::invalid_argument("option Items must be a list of item names");
-      for (const OUString& s : items) o.items.push_back(utf8(s));
-    } else if (n == "Correlation") o.correlation = text();
-    else if (n == "Missing") o.missing = text();
-    else if (n == "Factors") o.factors = small(0, kMaxReportFactors, "0 (suggest) to 100");
-    else if (n == "Extraction") o.extraction = text();
-    else if (n == "Rotation") o.rotation = text();
-    else if (n == "RotationParameter") o.rotation_parameter = number();
-    else if (n == "Scores") o.scores = text();
-    else if (n == "ScoresPlace") o.scores_place = text();
-    else if (n == "Bootstrap") o.bootstrap = small(0, kMaxReportBootstrap, "0 (off) or 2 to 100000 resamples");
-    else if (n == "Salient") o.salient = number();
-    else if (n == "Seed") {
-      o.seed = static_cast<std::uint64_t>(integer(0, std::numeric_limits<sal_Int64>::max(), "0 or more"));
-    } else if (n == "CancelAfterSheets") o.cancel_after_sheets = small(-1, 1000, "-1 (never) to 1000");
-    else throw std::invalid_argument("unknown option " + n);
+// ---- options from named values: UNO's Any as plain values, read by options_from (option_table.cpp)
+OptionValue plain_option(const css::beans::PropertyValue& p) {
+  OptionValue v;
+  v.name = utf8(p.Name);
+  OUString text;
+  sal_Int64 whole = 0;
+  Sequence<OUString> list;
+  if (p.Value >>= text) {
+    v.kind = OptionValue::Kind::text;
+    v.text = utf8(text);
+  } else if (p.Value >>= whole) {
+    v.kind = OptionValue::Kind::integer;
+    v.integer = whole;
+    v.number = static_cast<double>(whole);
+  } else if (p.Value >>= v.number) {
+    v.kind = OptionValue::Kind::number;
+  } else if (p.Value >>= list) {
+    v.kind = OptionValue::Kind::list;
+    for (const OUString& s : list) v.list.push_back(utf8(s));
   }
-  return o;
+  return v;
+}
+Options options_from(const Sequence<css::beans::PropertyValue>& props) {
+  std::vector<OptionValue> values;
+  for (const css::beans::PropertyValue& p : props) values.push_back(plain_option(p));
+  return options_from(values);
 }
 
 // ---- reading the source range ------------------------------------------------------------------
@@ -243,32 +174,11 @@ SourceTable read_source(const Reference<css::sheet::XSpreadsheetDocument>& doc, 
   t.first_column = static_cast<std::size_t>(a.StartColumn);
   t.first_row = static_cast<std::size_t>(a.StartRow);
   t.free_columns_right = free_columns_right(sheet, a);
-  t.address = sheet_ref(utf8(named->getName())) + ".$" + column_letters(a.StartColumn) + "$" + std::to_string(a.StartRow + 1) +
-              ":$" + column_letters(a.EndColumn) + "$" + std::to_string(a.EndRow + 1);
+  t.address = range_address(utf8(named->getName()), a.StartColumn, a.StartRow, a.EndColumn, a.EndRow);
   return t;
 }
 
 // ---- writing -----------------------------------------------------------------------------------
-struct StyleLook {
-  const char* name;
-  sal_Int32 back = -1, color = -1;
-  bool bold = false, italic = false, wrap = false;
-  float height = 0;
-  const char* format = nullptr;
-};
-// Lode's own palette: moss and sage for structure, amber for strong loadings, brick for flags.
-const StyleLook kLooks[] = {
-    {styles::title, -1, 0x2E4A3B, true, false, false, 14.0f, nullptr},
-    {styles::heading, 0xDCE8D2, 0x1F3328, true, false, false, 0, nullptr},
-    {styles::label, -1, 0x1F3328, false, false, false, 0, nullptr},
-    {styles::number, -1, -1, false, false, false, 0, "0.000"},
-    {styles::salient, 0xF5D38A, 0x3A2A00, true, false, false, 0, "0.000"},
-    {styles::faint, -1, 0xA3A3A3, false, false, false, 0, "0.000"},
-    {styles::flag, -1, 0xA23B2A, true, false, false, 0, nullptr},
-    {styles::note, -1, 0x5A5A5A, false, true, false, 0, nullptr},
-    {styles::caution, 0xFBE3D6, 0x5C2A1A, false, false, false, 0, nullptr},
-};
-
 class Writer {
  public:
   explicit Writer(const Reference<css::sheet::XSpreadsheetDocument>& doc) : doc_(doc) {
@@ -453,19 +363,10 @@ class AnalysisReport : public cppu::WeakImplHelper2<org::lode::calc::XAnalysisRe
  public:
   OUString SAL_CALL run(const Reference<css::sheet::XSpreadsheetDocument>& doc, const css::table::CellRangeAddress& source,
                         const Sequence<css::beans::PropertyValue>& options) override {
-    {
-      // A cancel() made while nothing ran, or aimed at an earlier run, does not stop this one.
-      std::lock_guard<std::mutex> lock(mutex_);
-      if (!running_ && synchronous_ == 0) cancel_ = false;
-      ++synchronous_;
-    }
+    control_.begin_call();
     std::string outcome;
     bool ok = execute(doc, source, options, nullptr, outcome);
-    {
-      std::lock_guard<std::mutex> lock(mutex_);
-      last_outcome_ = outcome;
-      --synchronous_;
-    }
+    control_.end_call(outcome);
     if (!ok) throw css::lang::IllegalArgumentException(ustr(outcome), static_cast<cppu::OWeakObject*>(this), 0);
     return ustr(outcome);
   }
@@ -473,36 +374,20 @@ class AnalysisReport : public cppu::WeakImplHelper2<org::lode::calc::XAnalysisRe
   sal_Bool SAL_CALL start(const Reference<css::sheet::XSpreadsheetDocument>& doc, const css::table::CellRangeAddress& source,
                           const Sequence<css::beans::PropertyValue>& options,
                           const Reference<css::task::XStatusIndicator>& indicator) override {
-    std::lock_guard<std::mutex> lock(mutex_);
-    if (running_) return false;
-    running_ = true;
-    cancel_ = false;
+    if (!control_.begin_background()) return false;
     rtl::Reference<AnalysisReport> self(this);
-    worker_ = std::thread([self, doc, source, options, indicator]() {
+    std::thread([self, doc, source, options, indicator]() {
       std::string outcome;
       self->execute(doc, source, options, indicator, outcome);
-      std::lock_guard<std::mutex> l(self->mutex_);
-      self->last_outcome_ = outcome;
-      self->running_ = false;
-    });
-    worker_.detach();  // it holds a reference to this service; nothing waits for it
+      self->control_.end_background(outcome);
+    }).detach();  // it holds a reference to this service; nothing waits for it
     return true;
   }
 
-  // Stops the run in progress (start's, or a run() on another thread); with nothing running it does
-  // nothing, so it never stops a later run.
-  void SAL_CALL cancel() override {
-    std::lock_guard<std::mutex> lock(mutex_);
-    if (running_ || synchronous_ > 0) cancel_ = true;
-  }
-  sal_Bool SAL_CALL isRunning() override {
-    std::lock_guard<std::mutex> lock(mutex_);
-    return running_;
-  }
-  OUString SAL_CALL lastOutcome() override {
-    std::lock_guard<std::mutex> lock(mutex_);
-    return ustr(last_outcome_);
-  }
+  // Stops the run in progress (start's, or a run() on another thread), never a later one.
+  void SAL_CALL cancel() override { control_.cancel(); }
+  sal_Bool SAL_CALL isRunning() override { return control_.running(); }
+  OUString SAL_CALL lastOutcome() override { return ustr(control_.last_outcome()); }
 
   Sequence<OUString> SAL_CALL describeColumns(const Reference<css::sheet::XSpreadsheetDocument>& doc,
                                               const css::table::CellRangeAddress& source, sal_Int32 header) override {
@@ -546,7 +431,7 @@ class AnalysisReport : public cppu::WeakImplHelper2<org::lode::calc::XAnalysisRe
       SourceTable src = read_source(doc, source);
       Progress progress = [&](const std::string& phase, double share) {
         say(phase, 0.8 * share);
-        return !cancel_.load();
+        return !control_.cancelled();
       };
       Report rep = build_report(src, opts, utc_now(), progress);
 
@@ -563,30 +448,24 @@ class AnalysisReport : public cppu::WeakImplHelper2<org::lode::calc::XAnalysisRe
         }
       } unlock{model};
       writer->ensure_styles();
-      std::vector<std::pair<std::string, OUString>> renames;
-      for (const Sheet& s : rep.sheets) renames.emplace_back(s.base_name, OUString());
       // Names are decided up front so the overview can list them; each is checked again on insert.
-      {
-        Reference<css::container::XNameAccess> names(doc->getSheets(), UNO_QUERY_THROW);
-        std::vector<OUString> taken;
-        for (auto& [base, actual] : renames) {
-          OUString n = ustr(base);
-          for (int k = 2; names->hasByName(n) || std::find(taken.begin(), taken.end(), n) != taken.end(); ++k)
-            n = ustr(base + " " + std::to_string(k));
-          actual = n;
-          taken.push_back(n);
-        }
-      }
+      std::vector<std::string> bases;
+      for (const Sheet& s : rep.sheets) bases.push_back(s.base_name);
+      Reference<css::container::XNameAccess> names(doc->getSheets(), UNO_QUERY_THROW);
+      const std::vector<std::string> unique =
+          unique_sheet_names(bases, [&](const std::string& n) { return bool(names->hasByName(ustr(n))); });
+      std::vector<std::pair<std::string, OUString>> renames;
+      for (std::size_t i = 0; i < bases.size(); ++i) renames.emplace_back(bases[i], ustr(unique[i]));
       std::string where;
       int written = 0;
       if (rep.beside) {
-        if (cancel_.load() || opts.cancel_after_sheets == 0) throw Cancelled{};
+        if (control_.cancelled() || opts.cancel_after_sheets == 0) throw Cancelled{};
         say("writing the factor scores", 0.8);
         writer->write_beside(source, *rep.beside);
         ++written;
       }
       for (std::size_t i = 0; i < rep.sheets.size(); ++i) {
-        if (cancel_.load() || (opts.cancel_after_sheets >= 0 && written >= opts.cancel_after_sheets)) throw Cancelled{};
+        if (control_.cancelled() || (opts.cancel_after_sheets >= 0 && written >= opts.cancel_after_sheets)) throw Cancelled{};
         say("writing " + rep.sheets[i].base_name, 0.8 + 0.2 * static_cast<double>(i) / static_cast<double>(rep.sheets.size()));
         Sheet s = rep.sheets[i];
         s.base_name = utf8(renames[i].second);
@@ -600,18 +479,10 @@ class AnalysisReport : public cppu::WeakImplHelper2<org::lode::calc::XAnalysisRe
         show_first_sheet(model, renames.front().second);
       }
       return true;
-    } catch (const Cancelled&) {
-      outcome = "stopped: the analysis was cancelled; the workbook is as it was";
-    } catch (const std::invalid_argument& e) {
-      outcome = std::string("stopped: ") + e.what();
     } catch (const css::uno::Exception& e) {
       outcome = "stopped: LibreOffice refused a step: " + utf8(e.Message);
-    } catch (const std::bad_alloc&) {
-      outcome = "stopped: not enough memory for this analysis";
-    } catch (const std::exception& e) {
-      outcome = std::string("stopped: ") + e.what();
     } catch (...) {
-      outcome = "stopped: an unexpected failure in Lode";
+      outcome = stopped_outcome(std::current_exception());
     }
     if (writer) writer->rollback();
     try {
@@ -631,12 +502,7 @@ class AnalysisReport : public cppu::WeakImplHelper2<org::lode::calc::XAnalysisRe
     }
   }
 
-  std::mutex mutex_;
-  bool running_ = false;   // a run started by start() is in progress
-  int synchronous_ = 0;    // run() calls in progress
-  std::atomic<bool> cancel_{false};
-  std::string last_outcome_;
-  std::thread worker_;
+  RunControl control_;
 };
 
 }  // namespace

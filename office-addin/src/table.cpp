@@ -234,4 +234,17 @@ const FunctionSpec* find_by_display(std::string_view display) {
   return nullptr;
 }
 
+std::string addin_text(const std::string& method, AddinText what, long argument) {
+  const FunctionSpec* f = find_by_method(method);
+  if (f == nullptr) return {};
+  const bool arg_ok = argument >= 0 && static_cast<std::size_t>(argument) < f->args.size();
+  switch (what) {
+    case AddinText::display: return std::string(f->display);
+    case AddinText::description: return std::string(f->description);
+    case AddinText::argument_name: return arg_ok ? std::string(f->args[static_cast<std::size_t>(argument)].name) : std::string();
+    case AddinText::argument_help: return arg_ok ? std::string(f->args[static_cast<std::size_t>(argument)].help) : std::string();
+  }
+  return {};
+}
+
 }  // namespace lode::addin

@@ -54,4 +54,8 @@ const std::vector<FunctionSpec>& function_table();
 const FunctionSpec* find_by_method(std::string_view method);
 const FunctionSpec* find_by_display(std::string_view display);
 
+// The texts the office asks the add-in for, by method name ("" for an unknown method or argument).
+enum class AddinText { display, description, argument_name, argument_help };
+std::string addin_text(const std::string& method, AddinText what, long argument = 0);
+
 }  // namespace lode::addin

@@ -87,6 +87,90 @@ void test_reliability(void) {
   EXPECT(lode_reliability_compute_omega(f.model, NULL, 0, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
   lode_reliability_free(NULL);
 
+  /* omega with reverse-keyed items (lode_reliability_compute_keyed_omega): a reverse-scored item enters
+   * with its row of loadings reversed. Checked against McDonald's (1999) formula written out here,
+   * omega total = 1' (D L Phi L' D)_SS 1 / (that + sum over S of psi), over the model's loadings,
+   * factor correlations and uniquenesses read through the C ABI (sums of under 200 products of numbers
+   * below 1 in size: rounding far below 1e-12). */
+  {
+    lode_reliability_options qo;
+    int32_t rev[N_ITEMS] = {1, 0, 0, 0, 0, 0};
+    double L[N_ITEMS * 2], phi[4], u[N_ITEMS], om[2], plain[2], flags[N_ITEMS];
+    int64_t f, j, k, a, b;
+    assignment[2] = 0; /* as before the error cases above */
+    OK(lode_model_matrix(f.model, LODE_MODEL_LOADINGS, L, N_ITEMS * 2, NULL, NULL));
+    OK(lode_model_matrix(f.model, LODE_MODEL_FACTOR_CORRELATIONS, phi, 4, NULL, NULL));
+    OK(lode_model_matrix(f.model, LODE_MODEL_UNIQUENESSES, u, N_ITEMS, NULL, NULL));
+    EXPECT(lode_reliability_options_init(NULL, sizeof qo), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
+    OK(lode_reliability_options_init(&qo, sizeof qo));
+    CHECK(qo.keying == LODE_KEYING_AS_SCORED && qo.assignment == NULL && qo.reverse == NULL && qo.reverse_count == 0);
+    qo.assignment = assignment;
+    qo.assignment_count = N_ITEMS;
+    OK(lode_reliability_compute_keyed_omega(f.model, &qo, &rel)); /* nothing reversed: lode_mcdonald_omega's figures */
+    OK(lode_reliability_matrix(rel, LODE_OMEGA, plain, 2, NULL, NULL));
+    OK(lode_reliability_matrix(rel, LODE_RELIABILITY_REVERSED, flags, N_ITEMS, &rows, &cols));
+    CHECK(rows == N_ITEMS && cols == 1);
+    for (i = 0; i < N_ITEMS; ++i) CHECK(flags[i] == 0.0);
+    lode_reliability_free(rel);
+    rel = NULL;
+    qo.reverse = rev;
+    qo.reverse_count = N_ITEMS;
+    OK(lode_reliability_compute_keyed_omega(f.model, &qo, &rel));
+    OK(lode_reliability_matrix(rel, LODE_OMEGA, om, 2, NULL, NULL));
+    OK(lode_reliability_matrix(rel, LODE_RELIABILITY_REVERSED, flags, N_ITEMS, NULL, NULL));
+    CHECK(flags[0] == 1.0 && flags[1] == 0.0);
+    lode_reliability_free(rel);
+    rel = NULL;
+    for (f = 0; f < 2; ++f) {
+      double common = 0.0, psi = 0.0;
+      for (j = 0; j < N_ITEMS; ++j) {
+        if (assignment[j] != f) continue;
+        psi += u[j];
+        for (k = 0; k < N_ITEMS; ++k) {
+          if (assignment[k] != f) continue;
+          for (a = 0; a < 2; ++a)
+            for (b = 0; b < 2; ++b)
+              common += (rev[j] ? -1.0 : 1.0) * L[j * 2 + a] * phi[a * 2 + b] * L[k * 2 + b] * (rev[k] ? -1.0 : 1.0);
+        }
+      }
+      CHECK(fabs(om[f] - common / (common + psi)) < 1e-12);
+    }
+    CHECK(fabs(om[0] - plain[0]) > 1e-3 && om[1] == plain[1]); /* only the scale holding item 1 changes */
+    /* the rule: items loading negatively on their scale's factor */
+    qo.reverse = NULL;
+    qo.reverse_count = 0;
+    qo.keying = LODE_KEYING_REVERSE_NEGATIVE;
+    OK(lode_reliability_compute_keyed_omega(f.model, &qo, &rel));
+    OK(lode_reliability_matrix(rel, LODE_RELIABILITY_REVERSED, flags, N_ITEMS, NULL, NULL));
+    for (j = 0; j < N_ITEMS; ++j) CHECK(flags[j] == (L[j * 2 + assignment[j]] < 0.0 ? 1.0 : 0.0));
+    lode_reliability_free(rel);
+    rel = NULL;
+    /* an older struct without the keying field: as scored */
+    qo.struct_size = offsetof(lode_reliability_options, keying);
+    OK(lode_reliability_compute_keyed_omega(f.model, &qo, &rel));
+    OK(lode_reliability_matrix(rel, LODE_OMEGA, om, 2, NULL, NULL));
+    CHECK(om[0] == plain[0] && om[1] == plain[1]);
+    lode_reliability_free(rel);
+    rel = NULL;
+    OK(lode_reliability_options_init(&qo, sizeof qo));
+    qo.keying = 7;
+    EXPECT(lode_reliability_compute_keyed_omega(f.model, &qo, &rel), LODE_E_INVALID_ARGUMENT, "unknown keying 7");
+    qo.keying = LODE_KEYING_AS_SCORED;
+    qo.reverse = rev;
+    qo.reverse_count = 3;
+    EXPECT(lode_reliability_compute_keyed_omega(f.model, &qo, &rel), LODE_E_INVALID_ARGUMENT,
+           "3 reverse-keyed flags were given for 6 items");
+    qo.reverse = NULL;
+    EXPECT(lode_reliability_compute_keyed_omega(f.model, &qo, &rel), LODE_E_INVALID_ARGUMENT, "'reverse' is NULL");
+    qo.reverse_count = 0;
+    qo.assignment_count = 2;
+    EXPECT(lode_reliability_compute_keyed_omega(f.model, &qo, &rel), LODE_E_INVALID_ARGUMENT, "'assignment' is NULL");
+    qo.struct_size = 0;
+    EXPECT(lode_reliability_compute_keyed_omega(f.model, &qo, &rel), LODE_E_INVALID_ARGUMENT, "struct_size");
+    EXPECT(lode_reliability_compute_keyed_omega(NULL, NULL, &rel), LODE_E_INVALID_ARGUMENT, "'model' is NULL");
+    EXPECT(lode_reliability_compute_keyed_omega(f.model, NULL, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+  }
+
 
   /* omega of a single scale from a one-factor fit of its items' correlations: the stored loadings
    * and uniquenesses reproduce McDonald's (1999) formula (sum l)^2 / ((sum l)^2 + sum psi) */

@@ -141,6 +141,86 @@ s1 = L1[:, 0].sum(); emit('omega1', [s1 * s1 / (s1 * s1 + u1[:, 0].sum())])
             "the factor correlations contain a missing or infinite value");
 }
 
+TEST(Reliability, OmegaOfReverseKeyedItemsMatchesARefitToReflectedAnswers) {
+  // Two correlated factors on five-point answers; items 3 and 6 are keyed against their factor.
+  Matrix l(6, 2);
+  l << 0.8, 0.0, 0.7, 0.1, -0.6, 0.0, 0.0, 0.75, 0.1, 0.7, 0.0, -0.65;
+  Matrix x = lode::testing::simulate_factor_data(l, lode::testing::two_factor_phi(0.3), 600, 41).x;
+  x = (x.array() + 3.0).round().max(1.0).min(5.0).matrix();
+  // Reference: numpy reflects the answers of items 3 and 6 (6 - answer, as a scale score reverse-scores
+  // them); R's stats::factanal fits two factors by maximum likelihood to the answers and to the
+  // reflected answers, each rotated by stats::varimax (columns reflected to a positive sum), both run
+  // to tight tolerances; numpy computes omega of the refit as in OmegaMatchesItsFormulaInNumpy. Factor
+  // correlations are checked with a given Phi below (an oblique rotation criterion sees the loadings
+  // only through their squares too, so nothing in the reversal depends on it).
+  const auto reflected = run_python("Y = X.copy(); Y[:, [2, 5]] = 6.0 - Y[:, [2, 5]]; emit('Y', Y)", {{"X", x}});
+  const auto fa = run_r(R"(
+    fit <- function(D) {
+      f <- factanal(D, factors = 2, rotation = "none", control = list(nstart = 1, opt = list(factr = 10, maxit = 10000)))
+      v <- unclass(varimax(unclass(f$loadings), eps = 1e-14)$loadings)
+      s <- sign(colSums(v))
+      list(L = v %*% diag(s), u = f$uniquenesses, phi = diag(2))
+    }
+    a <- fit(X); b <- fit(Y)
+    emit("L", a$L); emit("u", a$u); emit("phi", a$phi); emit("Lr", b$L); emit("ur", b$u); emit("phir", b$phi)
+  )", {{"X", x}, {"Y", reflected.at("Y")}});
+  const auto py = run_python(R"(
+a = np.abs(L).argmax(axis=1)
+common = L @ phi @ L.T
+sigma = common + np.diag(u[:, 0])
+om, share = [], []
+for f in range(L.shape[1]):
+    S = np.ix_(a == f, a == f)
+    om.append(common[S].sum() / sigma[S].sum()); share.append(L[a == f, f].sum() ** 2 / sigma[S].sum())
+emit('omega', om); emit('share', share); emit('assign', a)
+)", {{"L", fa.at("Lr")}, {"u", fa.at("ur")}, {"phi", fa.at("phir")}});
+  OmegaOptions o;
+  o.factor_correlations = fa.at("phi");
+  o.reverse_negative_loaders = true;
+  const auto om = omega_from_loadings(fa.at("L"), fa.at("u").col(0), o);
+  const std::vector<bool> expected_reversed{false, false, true, false, false, true};
+  EXPECT_EQ(om.reversed, expected_reversed);
+  // The two ML fits each stop at factanal's convergence tolerance (optim's L-BFGS-B on the uniquenesses,
+  // factr 10: a relative change of the objective of about 2e-15, so uniquenesses good to about 1e-7), so
+  // the refit reproduces the reflected loadings to about 1e-7, not to rounding.
+  for (Index f = 0; f < 2; ++f) {
+    EXPECT_EQ(om.assignment[static_cast<std::size_t>(f == 0 ? 0 : 3)], static_cast<Index>(py.at("assign")(f == 0 ? 0 : 3, 0)));
+    EXPECT_NEAR(om.scales[static_cast<std::size_t>(f)].omega, py.at("omega")(f, 0), 1e-6);
+    EXPECT_NEAR(om.scales[static_cast<std::size_t>(f)].factor_share, py.at("share")(f, 0), 1e-6);
+  }
+  // With correlated factors (a given Phi): the keyed omega is the formula of OmegaMatchesItsFormulaInNumpy
+  // over D L, computed in numpy (sums of 6 x 2 x 2 products of numbers below 1: rounding far below 1e-12).
+  Matrix phi(2, 2);
+  phi << 1.0, 0.3, 0.3, 1.0;
+  const auto oblique_ref = run_python(R"(
+D = np.where(np.arange(6) % 3 == 2, -1.0, 1.0)[:, None]
+Lr = L * D
+a = np.abs(L).argmax(axis=1)
+common = Lr @ phi @ Lr.T
+sigma = common + np.diag(u[:, 0])
+emit('omega', [common[np.ix_(a == f, a == f)].sum() / sigma[np.ix_(a == f, a == f)].sum() for f in range(2)])
+)", {{"L", fa.at("L")}, {"u", fa.at("u")}, {"phi", phi}});
+  OmegaOptions oblique;
+  oblique.factor_correlations = phi;
+  oblique.reverse_keyed = expected_reversed;
+  const auto ob = omega_from_loadings(fa.at("L"), fa.at("u").col(0), oblique);
+  for (std::size_t f = 0; f < 2; ++f) EXPECT_NEAR(ob.scales[f].omega, oblique_ref.at("omega")(static_cast<Index>(f), 0), 1e-12);
+  // The same items flagged by hand give the same figures; without reverse-keying the figures differ.
+  OmegaOptions given;
+  given.factor_correlations = fa.at("phi");
+  given.reverse_keyed = expected_reversed;
+  const auto by_hand = omega_from_loadings(fa.at("L"), fa.at("u").col(0), given);
+  for (std::size_t f = 0; f < 2; ++f) EXPECT_EQ(by_hand.scales[f].omega, om.scales[f].omega);
+  OmegaOptions plain;
+  plain.factor_correlations = fa.at("phi");
+  const auto as_scored = omega_from_loadings(fa.at("L"), fa.at("u").col(0), plain);
+  EXPECT_GT(om.scales[0].omega - as_scored.scales[0].omega, 0.05);
+  EXPECT_EQ(as_scored.reversed, std::vector<bool>(6, false));
+  given.reverse_keyed = {true};
+  EXPECT_EQ(error_message([&] { omega_from_loadings(fa.at("L"), fa.at("u").col(0), given); }),
+            "the reverse-keyed flags list 1 items, but the loadings have 6");
+}
+
 TEST(Reliability, OmegaWithGivenAssignmentAndNotes) {
   Matrix l(4, 2);
   l << 0.7, 0.1, -0.6, 0.0, 0.1, 0.8, 0.0, 0.7;

@@ -151,7 +151,7 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
     styles_before = cell_styles(survey)
     with office.watchdog(300):
         said = service.run(survey, source(survey), props(Correlation="pearson", Missing="pairwise", Seed=4242,
-                                                         Salient=0.35, Factors=0))
+                                                         Salient=0.35, Factors=0, Extraction="minres"))
     after_names = sheet_names(survey)
     new = [n for n in after_names if n not in before]
     assert new == REPORT_SHEETS, new
@@ -492,7 +492,7 @@ def test_reliability_per_scale_matches_the_c_library_and_numpy(office, survey, s
     p = len(names)
     before = sheet_names(survey)
     with office.watchdog(300):
-        service.run(survey, source(survey), props(Factors=K_FIXED, Seed=77))
+        service.run(survey, source(survey), props(Factors=K_FIXED, Seed=77, Extraction="minres"))
     new = [n for n in sheet_names(survey) if n not in before]
     fc = read_sheet(survey.Sheets.getByName(new[2]))
     # The C library with the report's options (minres, oblimin gamma 0, pairwise Pearson, the seed).
@@ -583,7 +583,7 @@ def test_scores_beside_the_data_when_the_columns_are_empty(office, service):
         before = snapshot(doc)
         with office.watchdog(300):
             said = service.run(doc, range_of(doc, "Answers", cols, n),
-                               props(Factors=K_FIXED, Scores="regression", ScoresPlace="beside", Seed=5))
+                               props(Factors=K_FIXED, Scores="regression", ScoresPlace="beside", Seed=5, Extraction="minres"))
         assert "columns AF to AJ of Answers" in said
         answers = doc.Sheets.getByName("Answers")
         # The data block itself is unchanged; the only new cells of the sheet are the score columns.
@@ -625,7 +625,7 @@ def test_scores_beside_the_data_when_the_columns_are_empty(office, service):
         first = snapshot(doc)
         with office.watchdog(300):
             said = service.run(doc, range_of(doc, "Answers", cols, n),
-                               props(Factors=K_FIXED, Scores="bartlett", ScoresPlace="beside", Seed=5))
+                               props(Factors=K_FIXED, Scores="bartlett", ScoresPlace="beside", Seed=5, Extraction="minres"))
         assert used_block(answers) == first["Answers"]
         assert "Lode scores" in sheet_names(doc) and "Lode scores" in said
     finally:
@@ -643,7 +643,7 @@ def test_scores_never_overwrite_a_filled_column(office, service):
         before = snapshot(doc)
         with office.watchdog(300):
             said = service.run(doc, range_of(doc, "Answers", cols, n),
-                               props(Factors=K_FIXED, Scores="tenberge", ScoresPlace="beside", Missing="listwise",
+                               props(Factors=K_FIXED, Scores="tenberge", ScoresPlace="beside", Missing="listwise", Extraction="minres",
                                      Seed=9))
         assert snapshot(doc)["Answers"] == before["Answers"]  # nothing written beside the data
         assert "Lode scores" in said
@@ -744,7 +744,7 @@ def test_bootstrap_intervals_beside_the_loadings(office, survey, service):
     p, B = len(names), 40
     before = sheet_names(survey)
     with office.watchdog(600):
-        service.run(survey, source(survey), props(Factors=K_FIXED, Bootstrap=B, Seed=31))
+        service.run(survey, source(survey), props(Factors=K_FIXED, Bootstrap=B, Seed=31, Extraction="minres"))
     new = [n for n in sheet_names(survey) if n not in before]
     ov = read_sheet(survey.Sheets.getByName(new[0]))
     ld = read_sheet(survey.Sheets.getByName(new[1]))
@@ -891,3 +891,41 @@ def test_one_factor_count_on_every_surface(office):
     from_matrix = lode.fit(corr=r, n_obs=145, factors=0).factors
     assert report == cells == fitted == python_count == python_fit == from_matrix == 4, \
         (report, cells, fitted, python_count, python_fit, from_matrix)
+
+
+def test_same_loadings_on_every_surface(office):
+    """One set of defaults (README, "Defaults"): with no options given, the same data give the same
+    loadings through a cell (LODE.LOADINGS with only the range), the report service as the dialog starts
+    it (no options: what the dialog's defaults send) and Python (lode.fit(x)): maximum likelihood,
+    oblimin, the suggested count (4 on Harman74.cor, R's datasets). Every surface is the same C library;
+    the report's rotation takes its random starts from the run's seed rather than the library's default
+    one, and reaches the same optimum to the rotation's convergence tolerance, hence 1e-6 rather than
+    rounding."""
+    from office import array_formula, read_block
+    service = office.smgr.createInstanceWithContext("org.lode.calc.AnalysisReport", office.ctx)
+    r, x = harman74_data()
+    names = [f"T{j + 1:02d}" for j in range(24)]
+    python = lode.fit(x)
+    assert python.factors == 4 and python.method == "ml" and python.rotation == "oblimin"
+    L = python.loadings
+    doc = new_book(office, [names] + [list(row) for row in x])
+    try:
+        with office.watchdog(300):
+            service.run(doc, range_of(doc, "Answers", 24, 146), props())
+        ld = read_sheet(doc.Sheets.getByName("Lode loadings"))
+        rr = read_sheet(doc.Sheets.getByName("Lode run record"))
+        rec = {row[0]: row[1] for row in rr if len(row) > 1}
+        assert rec["Extraction"] == "ml" and rec["Rotation"] == "oblimin" and rec["Strong loading from"] == 0.40
+        hdr = [i for i, row in enumerate(ld) if row[:2] == ["Item", "Factor 1"]][0]
+        assert ld[hdr][1:6] == ["Factor 1", "Factor 2", "Factor 3", "Factor 4", "Communality"]
+        report = {row[0]: row[1:5] for row in ld[hdr + 1:hdr + 25]}
+        sheet = doc.Sheets.getByName("Answers")
+        with office.watchdog(300):
+            array_formula(sheet, 30, 0, 4, 24, "=LODE.LOADINGS($Answers.$A$1:$X$146)")
+            cells = read_block(sheet, 30, 0, 4, 24)
+    finally:
+        with office.watchdog(60):
+            doc.close(True)
+    for j, name in enumerate(names):
+        assert np.max(np.abs(np.array(cells[j]) - L[j])) < 1e-10, (name, cells[j], L[j])
+        assert np.max(np.abs(np.array(report[name]) - L[j])) < 1e-6, (name, report[name], L[j])

@@ -266,7 +266,7 @@ def test_fit_progress_counts_extraction_and_starts_and_cancels():
     assert e.value.status_name == "cancelled"
     # With factors=0 the factor count reports first (its replicates), then the fit.
     seen.clear()
-    lode.fit(x, factors=0, replicates=50, seed=1, progress=lambda d, t: seen.append((d, t)))
+    lode.fit(x, factors=0, replicates=50, seed=1, rotation="none", progress=lambda d, t: seen.append((d, t)))
     assert (50, 50) in seen and seen[-1] == (1, 1)
 
 

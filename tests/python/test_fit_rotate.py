@@ -37,7 +37,7 @@ def test_ml_fit_matches_factanal(dataset, n, k):
     r = r_dataset(dataset)
     # Reference: R's stats::factanal with tight optimiser controls (datasets::Harman74.cor, ability.cov).
     ref = run_r(FACTANAL, R=r, k=k, n=n)
-    m = lode.fit(corr=r, n_obs=n, factors=k, method="ml")
+    m = lode.fit(corr=r, n_obs=n, factors=k, method="ml", rotation="none")
     assert m.converged and m.factors == k and m.method == "ml" and m.rotation == "none"
     assert np.max(np.abs(m.uniquenesses - ref["u"][:, 0])) < 1e-4
     assert np.max(np.abs(align(m.loadings, ref["l"]) - ref["l"])) < 1e-4

@@ -562,7 +562,7 @@ class Model(_native.Handle):
 
 
 @accepts_summary
-def fit(X=None, *, corr=None, cov=None, n_obs=None, factors=None, method="ml", rotation="none", missing="pairwise",
+def fit(X=None, *, corr=None, cov=None, n_obs=None, factors=0, method="ml", rotation="oblimin", missing="pairwise",
         correlation="pearson", smooth=False, seed=None, max_iterations=1000, tolerance=1e-9, min_uniqueness=0.005,
         interval_level=0.90, replicates=None, progress=None, item_names=None, **rotation_keywords):
     """Fits an exploratory factor model.
@@ -570,19 +570,20 @@ def fit(X=None, *, corr=None, cov=None, n_obs=None, factors=None, method="ml", r
     Data: raw ``X`` (rows are respondents, NaN missing; ``missing`` "pairwise" or "listwise",
     ``correlation`` "pearson" or "spearman", ``smooth`` a non-positive-definite matrix), or a
     correlation matrix ``corr`` / covariance matrix ``cov`` with ``n_obs``, or a
-    :class:`Correlation`. ``factors``: how many (0 = the count parallel analysis suggests: reduced-matrix
+    :class:`Correlation`. ``factors``: how many (0, the default = the count parallel analysis suggests: reduced-matrix
     factor eigenvalues against the 95th percentile of ``replicates`` random data sets, None = 500, with
     ``seed``; the rule the cell functions and the report use too). ``method``: "ml" (maximum
     likelihood), "paf" (principal axis), "minres" (minimum residual) or "pca" (components, for
     comparison). With "paf" and "minres" the chi-square, p-value, RMSEA, TLI and BIC in ``statistics``
     are the maximum likelihood discrepancy evaluated at that solution, not a likelihood-ratio test
-    (descriptive; the p-value runs small). ``rotation`` and the
+    (descriptive; the p-value runs small). ``rotation`` (default "oblimin") and the
     ``rotation_keywords`` (normalize, gamma, kappa, epsilon, power, target, random_starts) as in
     :func:`rotate`; ``seed`` seeds the random starts and the factor count. ``progress(done, total)``
     is called during the work (by the factor count when ``factors`` is 0, with its replicates; then
     by the fit, where the extraction counts one unit and each rotation start one); returning False
     cancels (:class:`LodeError`, status "cancelled"). Returns a :class:`Model`; non-convergence and
-    Heywood cases are reported in it, not raised."""
+    Heywood cases are reported in it, not raised. The defaults (maximum likelihood, oblimin, the
+    suggested count) are the ones the cells and the report use (README, "Defaults")."""
     c = _correlation_of(X, corr, cov, n_obs, correlation, missing, smooth, item_names)
     o, keep = _fit_options(factors, method, max_iterations, tolerance, min_uniqueness, rotation, seed,
                            rotation_keywords, "fit")

@@ -135,7 +135,7 @@ class Bootstrap(_native.Handle):
 
 
 @accepts_summary(needs_rows="bootstrap replicates")
-def bootstrap(X=None, *, factors=None, method="ml", rotation="none", replicates=1000, level=0.95, seed=None, progress=None,
+def bootstrap(X=None, *, factors=None, method="ml", rotation="oblimin", replicates=1000, level=0.95, seed=None, progress=None,
               missing="pairwise", correlation="pearson", smooth=False, max_iterations=1000, tolerance=1e-9,
               min_uniqueness=0.005, threads=0, replicate_random_starts=0, keep_replicates=False, item_names=None,
               **rotation_keywords):

@@ -48,6 +48,18 @@ struct OmegaOptions {
   std::vector<std::string> item_names;
   // Factor correlations Phi (factors x factors) of an oblique solution; empty = uncorrelated factors.
   Matrix factor_correlations;
+  // Reverse-keyed items, one flag per item (empty = none): a flagged item enters its scale's sum
+  // reverse-scored (a constant minus the answer). Reverse-scoring item i changes the correlations R to
+  // D R D (D = diag(+-1), -1 at i); the common factor model fitted to D R D is D Lambda with the same Phi
+  // and Psi, because the extraction's discrepancy (maximum likelihood, least squares, principal axis)
+  // and every rotation criterion Lode offers other than a fixed target depend on the loadings only
+  // through the fitted D Sigma D and the squares of the loadings. So the omega of the reverse-keyed
+  // scale is computed here from D Lambda, exactly, without refitting (the refit would reproduce it up to
+  // its convergence tolerance).
+  std::vector<bool> reverse_keyed;
+  // When true, an item loading negatively on the factor of its scale is reverse-keyed too (as a scale
+  // score that adds the items the way they point would score it).
+  bool reverse_negative_loaders = false;
 };
 
 // Two figures for the scale (the sum) of the items S assigned to factor f, both ratios to the variance of
@@ -72,14 +84,15 @@ struct ScaleOmega {
 struct OmegaResult {
   std::vector<ScaleOmega> scales;  // one per factor, in factor order
   std::vector<Index> assignment;   // the assignment used (per item, -1 = none)
+  std::vector<bool> reversed;      // per item: reverse-scored in its scale (OmegaOptions::reverse_keyed and rule)
   std::vector<std::string> notes;
 };
 
 // Omega total and the factor's share for the scale of each factor, from fitted pattern loadings (items x
 // factors), uniquenesses and (oblique solutions) the factor correlations, e.g. of a correlation-matrix fit.
-// Negative loadings are used as they are (the scale adds the item as scored); the notes name items loading
-// negatively on their scale's factor (reverse-score them and refit). With a one-factor fit this is omega for
-// that single scale.
+// Negative loadings are used as they are (the scale adds the item as scored) unless the item is reverse-keyed
+// (OmegaOptions::reverse_keyed, reverse_negative_loaders); the notes name items loading negatively on their
+// scale's factor that are not reverse-keyed. With a one-factor fit this is omega for that single scale.
 OmegaResult omega_from_loadings(const Matrix& loadings, const Vector& uniquenesses, const OmegaOptions& options = {});
 
 // Omega for a single scale from a one-factor fit of its items' correlation matrix (maximum likelihood by

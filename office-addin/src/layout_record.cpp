@@ -1,0 +1,53 @@
+// The run record sheet: everything needed to repeat the analysis exactly.
+#include "option_table.hpp"
+#include "report_layout.hpp"
+
+#include <cstdio>
+
+namespace lode::addin::report {
+
+using namespace styles;
+
+Sheet layout_record(const Analysis& a) {
+  const Options& o = a.options;
+  Sheet rr;
+  rr.base_name = names::record;
+  rr.column_widths = {6000, 9000};
+  char hash[32];
+  std::snprintf(hash, sizeof hash, "%016llx", static_cast<unsigned long long>(a.values_hash));
+  std::string items_text;
+  for (const std::string& n : a.items.names) items_text += (items_text.empty() ? "" : ", ") + n;
+  rr.line({Cell::txt("Run record", title)});
+  rr.line({Cell::txt("Everything needed to repeat this analysis exactly.", note)});
+  auto rec = [&rr](const char* k, Cell val) { rr.line({Cell::txt(k, label), std::move(val)}); };
+  rec("Lode version", Cell::txt(a.library_version));
+  rec("Written", Cell::txt(a.timestamp));
+  rec("Source range", Cell::txt(a.address));
+  rec("First row holds item names", Cell::txt(a.items.header ? "yes" : "no"));
+  rec("Items", Cell::txt(items_text));
+  rec("Values hash (FNV-1a 64)", Cell::txt(hash));
+  for (const WordOption& w : word_options()) rec(w.record, Cell::txt(o.*(w.field)));
+  rec("Number of factors", o.factors > 0 ? Cell::num(o.factors) : Cell::txt("suggest"));
+  rec("Rotation parameter", Cell::num(o.rotation_parameter));
+  if (o.scores != "none") {
+    rec("Factor scores written to", Cell::txt(a.scores.available ? a.scores.where : "not written: " + a.scores.reason));
+    rec("Rule for skipped items (scores)", Cell::txt(a.scores.available ? a.scores.rule : ""));
+  }
+  rec("Scale membership (reliability)", Cell::txt("largest absolute loading; negative loaders reverse-scored"));
+  rec("Bootstrap resamples", Cell::num(o.bootstrap));
+  if (a.bootstrap_asked()) {
+    rec("Bootstrap seed", Cell::txt(std::to_string(o.seed) + " (resample i draws from stream i of it)"));
+    if (a.boot.available) {
+      rec("Bootstrap resamples used", Cell::num(a.boot.used));
+      rec("Bootstrap resamples failed", Cell::num(a.boot.failed));
+      rec("Bootstrap interval level", Cell::num(a.boot.level));
+    } else {
+      rec("Bootstrap intervals", Cell::txt("not computed: " + a.boot.reason));
+    }
+  }
+  rec("Strong loading from", Cell::num(o.salient));
+  rec("Random seed", Cell::txt(std::to_string(o.seed)));
+  return rr;
+}
+
+}  // namespace lode::addin::report

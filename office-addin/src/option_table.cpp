@@ -1,0 +1,118 @@
+// The table of the analysis's word options (see option_table.hpp).
+#include "option_table.hpp"
+
+#include "report_text.hpp"
+
+#include <cmath>
+#include <limits>
+#include <stdexcept>
+
+namespace lode::addin::report {
+
+const std::vector<WordOption>& word_options() {
+  static const std::vector<WordOption> table = {
+      {"Correlation", "Correlations", "Correlations",
+       {{"pearson", "Pearson"}, {"spearman", "Spearman (ranks)"}, {"polychoric", "Polychoric (ordered answers)"}},
+       defaults::correlation,
+       "How items are correlated: Pearson takes answers as numbers; Spearman uses their ranks; polychoric treats "
+       "them as ordered categories.",
+       &Options::correlation},
+      {"Missing", "Missing answers", "Missing answers",
+       {{"pairwise", "Pairwise: all who answered both"}, {"listwise", "Listwise: complete answers only"}},
+       defaults::missing,
+       "Pairwise: each correlation uses everyone who answered both items. Listwise: only respondents who "
+       "answered every item.",
+       &Options::missing},
+      {"Extraction", "Extraction", "Extraction",
+       {{"ml", "Maximum likelihood"}, {"minres", "Minimum residual"}, {"paf", "Principal axis"}},
+       defaults::extraction,
+       "How the factors are estimated: maximum likelihood also gives tests of fit (chi-square, RMSEA, TLI).",
+       &Options::extraction},
+      {"Rotation", "Rotation", "Rotation",
+       {{"oblimin", "Oblimin (factors may correlate)"},
+        {"promax", "Promax (factors may correlate)"},
+        {"varimax", "Varimax (factors kept apart)"},
+        {"none", "None"}},
+       defaults::rotation,
+       "How the factors are turned to be read: oblique rotations let them correlate, as survey factors usually do.",
+       &Options::rotation},
+      {"Scores", "Factor scores", "Factor scores",
+       {{"none", "None"}, {"regression", "Regression"}, {"bartlett", "Bartlett"}, {"tenberge", "Correlation-preserving"}},
+       defaults::scores,
+       "Respondents' estimated scores on each factor, and how they are estimated.",
+       &Options::scores},
+      {"ScoresPlace", "Put the scores", "Factor scores placed",
+       {{"beside", "Beside the data, if empty"}, {"sheet", "On a sheet of their own"}},
+       defaults::scores_place,
+       "Where the scores go: new columns right of the data (only when those cells are empty) or a new sheet.",
+       &Options::scores_place},
+  };
+  return table;
+}
+
+const WordOption* find_word_option(std::string_view property) {
+  for (const WordOption& w : word_options())
+    if (property == w.property) return &w;
+  return nullptr;
+}
+
+std::vector<std::string> word_labels(const WordOption& option) {
+  std::vector<std::string> s;
+  for (const OptionWord& w : option.words) s.push_back(w.label);
+  return s;
+}
+
+std::size_t word_index(const WordOption& option, std::string_view word) {
+  std::size_t fallback = 0;
+  for (std::size_t i = 0; i < option.words.size(); ++i) {
+    if (word == option.words[i].word) return i;
+    if (std::string_view(option.fallback) == option.words[i].word) fallback = i;
+  }
+  return fallback;
+}
+
+Options options_from(const std::vector<OptionValue>& values) {
+  using Kind = OptionValue::Kind;
+  Options o;
+  for (const OptionValue& v : values) {
+    const std::string& n = v.name;
+    auto text = [&]() {
+      if (v.kind != Kind::text) throw std::invalid_argument("option " + n + " must be text");
+      return trimmed(v.text);
+    };
+    // A whole number in [lo, hi], refused by name otherwise (never wrapped into a smaller type).
+    auto integer = [&](std::int64_t lo, std::int64_t hi, const char* range) {
+      std::int64_t i = v.integer;
+      bool whole = v.kind == Kind::integer;
+      if (v.kind == Kind::number && std::isfinite(v.number) && v.number == std::floor(v.number)) {
+        if (v.number < static_cast<double>(lo) || v.number > static_cast<double>(hi))
+          throw std::invalid_argument("option " + n + " is " + fmt_whole(v.number) + "; it must be " + range);
+        i = static_cast<std::int64_t>(v.number);
+        whole = true;
+      }
+      if (!whole) throw std::invalid_argument("option " + n + " must be a whole number, " + range);
+      if (i < lo || i > hi) throw std::invalid_argument("option " + n + " is " + std::to_string(i) + "; it must be " + range);
+      return i;
+    };
+    auto small = [&](std::int64_t lo, std::int64_t hi, const char* range) { return static_cast<int>(integer(lo, hi, range)); };
+    auto number = [&]() {
+      if (v.kind == Kind::number || v.kind == Kind::integer) return v.number;
+      throw std::invalid_argument("option " + n + " must be a number");
+    };
+    if (n == "HeaderRow") o.header = small(-1, 1, "-1 (detect), 0 or 1");
+    else if (n == "Items") {
+      if (v.kind != Kind::list) throw std::invalid_argument("option Items must be a list of item names");
+      o.items = v.list;
+    } else if (const WordOption* w = find_word_option(n)) o.*(w->field) = text();
+    else if (n == "Factors") o.factors = small(0, kMaxReportFactors, "0 (suggest) to 100");
+    else if (n == "RotationParameter") o.rotation_parameter = number();
+    else if (n == "Bootstrap") o.bootstrap = small(0, kMaxReportBootstrap, "0 (off) or 2 to 100000 resamples");
+    else if (n == "Salient") o.salient = number();
+    else if (n == "Seed") o.seed = static_cast<std::uint64_t>(integer(0, std::numeric_limits<std::int64_t>::max(), "0 or more"));
+    else if (n == "CancelAfterSheets") o.cancel_after_sheets = small(-1, 1000, "-1 (never) to 1000");
+    else throw std::invalid_argument("unknown option " + n);
+  }
+  return o;
+}
+
+}  // namespace lode::addin::report

@@ -1,0 +1,29 @@
+// The report's sheets, one layout function per sheet (one file each, layout_*.cpp), from the plain
+// Analysis value. UNO-free: report_uno.cpp writes what these return.
+#pragma once
+
+#include "report_analysis.hpp"
+
+namespace lode::addin::report {
+
+Sheet layout_overview(const Analysis& a);   // layout_overview.cpp
+Sheet layout_loadings(const Analysis& a);   // layout_loadings.cpp
+Sheet layout_factors(const Analysis& a);    // layout_factors.cpp
+Sheet layout_scree(const Analysis& a);      // layout_scree.cpp
+Sheet layout_record(const Analysis& a);     // layout_record.cpp
+// The factor scores (layout_scores.cpp): on a sheet of their own, or as columns beside the data.
+// Only when the scores were computed (a.scores.available) and placed there.
+Sheet layout_scores(const Analysis& a);
+Beside layout_scores_beside(const Analysis& a);
+
+// A heading row: `text` in the first cell, then cells-1 empty cells in the heading style.
+inline void heading_row(Sheet& sheet, std::string text, std::size_t cells) {
+  std::vector<Cell> row{Cell::txt(std::move(text), styles::heading)};
+  for (std::size_t c = 1; c < cells; ++c) row.push_back(Cell::txt("", styles::heading));
+  sheet.line(std::move(row));
+}
+
+// "Random data (95th percentile of 100)": the heading of parallel analysis's column (overview, scree).
+std::string random_data_words(const CountResult& count);
+
+}  // namespace lode::addin::report

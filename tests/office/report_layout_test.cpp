@@ -1,0 +1,395 @@
+// The report's sheet layouts without an office: one real analysis of R's datasets::attitude (30
+// departments' ratings of their employer, Chatterjee and Price 1977; read live from R), laid out by
+// each layout function, checked for structure and for numbers equal to the C ABI's own results for
+// the same options (lode.h called directly here). "complaints" enters reversed (100 - rating), so
+// its scale holds a reverse-keyed item.
+#include "capi.hpp"
+#include "report_analysis.hpp"
+#include "option_table.hpp"
+#include "report_layout.hpp"
+#include "report_run.hpp"
+#include "report_text.hpp"
+
+#include "support/external.hpp"
+
+#include <gtest/gtest.h>
+
+#include <cmath>
+#include <cstdio>
+#include <set>
+
+namespace lode::addin::report {
+namespace {
+
+const std::vector<std::string> kNames{"rating", "complaints", "privileges", "learning", "raises", "critical", "advance"};
+
+SourceTable attitude_table() {
+  const auto r = lode::testing::run_r(R"( emit("x", as.matrix(datasets::attitude)) )", {});
+  const auto& x = r.at("x");
+  SourceTable t;
+  t.rows = static_cast<std::size_t>(x.rows()) + 1;
+  t.cols = 1 + kNames.size();  // a department code first (text), then the items
+  t.address = "$Ratings.$A$1:$H$31";
+  t.sheet_name = "Ratings";
+  t.free_columns_right = 5;
+  for (std::size_t c = 0; c < t.cols; ++c) t.column_letters.push_back(column_name(c));
+  auto text = [](std::string s) { return SourceCell{SourceCell::Kind::text, 0.0, std::move(s)}; };
+  t.cells.push_back(text("department"));
+  for (const std::string& n : kNames) t.cells.push_back(text(n));
+  for (Index i = 0; i < x.rows(); ++i) {
+    t.cells.push_back(text("D" + std::to_string(i + 1)));
+    for (Index j = 0; j < x.cols(); ++j)
+      t.cells.push_back({SourceCell::Kind::number, j == 1 ? 100.0 - x(i, j) : x(i, j), {}});
+  }
+  return t;
+}
+
+Options run_options() {
+  Options o;
+  o.factors = 2;
+  o.extraction = "ml";
+  o.rotation = "oblimin";
+  o.scores = "regression";
+  o.scores_place = "sheet";
+  o.bootstrap = 40;
+  return o;
+}
+
+// The C ABI's results for the same data and options, computed here directly.
+struct Reference {
+  DataHandle data;
+  CorrelationHandle corr;
+  Handle<lode_model, lode_model_free> model;
+  Matrix R, eig, smc, L, phi, residuals, communalities, uniquenesses;
+};
+
+Reference reference(const Analysis& a) {
+  Reference ref;
+  const auto p = static_cast<std::int64_t>(a.p());
+  lode_data* d = nullptr;
+  check(lode_data_from_raw(a.items.values.data(), static_cast<std::int64_t>(a.items.rows), p, p, 1, &d), "data");
+  ref.data.reset(d);
+  lode_correlation* c = nullptr;
+  check(lode_correlation_compute(d, nullptr, &c), "correlations");
+  ref.corr.reset(c);
+  lode_model_options fo;
+  lode_model_options_init(&fo, sizeof fo);
+  fo.factors = 2;
+  fo.method = LODE_EXTRACTION_ML;
+  lode_rotation_options ro;
+  lode_rotation_options_init(&ro, sizeof ro);
+  ro.method = LODE_CRITERION_OBLIMIN;
+  ro.seed = a.options.seed;
+  fo.rotation = &ro;
+  lode_model* m = nullptr;
+  check(lode_model_compute(c, &fo, &m), "fit");
+  ref.model.reset(m);
+  ref.R = read_matrix(c, LODE_CORRELATION_MATRIX, lode_correlation_matrix, "R");
+  ref.eig = read_matrix(c, LODE_CORRELATION_EIGENVALUES, lode_correlation_matrix, "eigenvalues");
+  ref.smc = read_matrix(c, LODE_CORRELATION_SMC, lode_correlation_matrix, "smc");
+  ref.L = read_matrix(m, LODE_MODEL_LOADINGS, lode_model_matrix, "loadings");
+  ref.phi = read_matrix(m, LODE_MODEL_FACTOR_CORRELATIONS, lode_model_matrix, "phi");
+  ref.residuals = read_matrix(m, LODE_MODEL_RESIDUALS, lode_model_matrix, "residuals");
+  ref.communalities = read_matrix(m, LODE_MODEL_COMMUNALITIES, lode_model_matrix, "communalities");
+  ref.uniquenesses = read_matrix(m, LODE_MODEL_UNIQUENESSES, lode_model_matrix, "uniquenesses");
+  return ref;
+}
+
+class ReportLayout : public ::testing::Test {
+ protected:
+  static void SetUpTestSuite() {
+    source_ = new SourceTable(attitude_table());
+    analysis_ = new Analysis(analyse(*source_, run_options(), "2026-01-02 03:04", {}));
+  }
+  static void TearDownTestSuite() {
+    delete analysis_;
+    delete source_;
+  }
+  static const Analysis& a() { return *analysis_; }
+  static SourceTable* source_;
+  static Analysis* analysis_;
+};
+SourceTable* ReportLayout::source_ = nullptr;
+Analysis* ReportLayout::analysis_ = nullptr;
+
+// The first row whose first cell reads `text` (at or after row `from`); -1 when none.
+long find_row(const Sheet& s, const std::string& text, std::size_t from = 0) {
+  for (std::size_t r = from; r < s.rows.size(); ++r)
+    if (!s.rows[r].empty() && s.rows[r][0].kind == Cell::Kind::text && s.rows[r][0].text == text) return static_cast<long>(r);
+  return -1;
+}
+double num(const Sheet& s, long row, std::size_t col) {
+  const Cell& c = s.rows.at(static_cast<std::size_t>(row)).at(col);
+  EXPECT_EQ(c.kind, Cell::Kind::number) << "row " << row << " col " << col;
+  return c.number;
+}
+
+// Both sides read the same doubles out of the same C library: equal exactly, except where the
+// analysis ran with one thread and the reference with the default (sums in another order): the
+// rotation and fit are deterministic given the seed, so the difference is rounding of sums over a
+// few hundred products of numbers below 1 in size.
+constexpr double kSame = 1e-12;
+
+TEST_F(ReportLayout, AnalysisReadsTheItemsAndMatchesTheCApi) {
+  ASSERT_EQ(a().items.names, kNames);
+  EXPECT_EQ(a().items.rows, 30u);
+  EXPECT_TRUE(a().items.header);
+  ASSERT_TRUE(a().model.available) << a().model.reason;
+  const Reference ref = reference(a());
+  for (std::size_t i = 0; i < ref.L.values.size(); ++i) EXPECT_NEAR(a().model.loadings[i], ref.L.values[i], kSame);
+  EXPECT_EQ(a().values_hash, hash_values(a().items.values, a().items.names));
+  // complaints is reversed in the source, so it loads negatively and its scale reverse-scores it
+  ASSERT_TRUE(a().reliability.available) << a().reliability.reason;
+  EXPECT_EQ(a().reliability.reversed_names, std::vector<std::string>{"complaints"});
+}
+
+TEST_F(ReportLayout, OverviewShowsTheDataFactorabilityAndDecision) {
+  const Sheet s = layout_overview(a());
+  EXPECT_EQ(s.base_name, names::overview);
+  EXPECT_EQ(s.rows[0][0].text, "Lode factor analysis report");
+  EXPECT_EQ(s.rows[0][0].style, styles::title);
+  for (const char* h : {"Data used", "Can these items be factored?", "How many factors", "How well the model fits",
+                        "Items to look at", "Before using factor scores about people", "Factor scores",
+                        "Bootstrap intervals"}) {
+    const long r = find_row(s, h);
+    ASSERT_GE(r, 0) << h;
+    EXPECT_EQ(s.rows[static_cast<std::size_t>(r)][0].style, styles::heading) << h;
+  }
+  EXPECT_EQ(num(s, find_row(s, "Items analysed"), 1), 7.0);
+  EXPECT_EQ(num(s, find_row(s, "Respondents used"), 1), 30.0);
+  EXPECT_EQ(num(s, find_row(s, "Decision"), 1), 2.0);
+  const Reference ref = reference(a());
+  lode_factorability* f = nullptr;
+  check(lode_factorability_compute(ref.corr.get(), &f), "factorability");
+  const Handle<lode_factorability, lode_factorability_free> fact(f);
+  EXPECT_EQ(num(s, find_row(s, "KMO sampling adequacy"), 1),
+            read_value(fact.get(), LODE_FACTORABILITY_KMO, lode_factorability_value, "KMO"));
+  // the eigenvalue table: one row per item, factor number then eigenvalue
+  const long top = find_row(s, "Factor", static_cast<std::size_t>(find_row(s, "How many factors")));
+  for (std::size_t j = 0; j < 7; ++j) {
+    EXPECT_EQ(num(s, top + 1 + static_cast<long>(j), 0), static_cast<double>(j + 1));
+    EXPECT_EQ(num(s, top + 1 + static_cast<long>(j), 1), ref.eig.values[j]);
+  }
+  EXPECT_EQ(num(s, find_row(s, "Root mean square residual (RMSR)"), 1),
+            read_value(ref.model.get(), LODE_MODEL_RMSR, lode_model_value, "RMSR"));
+}
+
+TEST_F(ReportLayout, LoadingsAreGroupedAndMatchTheModel) {
+  const Sheet s = layout_loadings(a());
+  const Reference ref = reference(a());
+  const long hdr = find_row(s, "Item");
+  ASSERT_GE(hdr, 0);
+  const auto& h = s.rows[static_cast<std::size_t>(hdr)];
+  ASSERT_EQ(h.size(), 1u + 2 + 2 + 4);  // item, 2 factors, communality, uniqueness, 2 intervals of 2 ends
+  EXPECT_EQ(h[1].text, "Factor 1");
+  EXPECT_EQ(h[3].text, "Communality");
+  EXPECT_EQ(h[5].text, "Factor 1 95% from");
+  const std::vector<std::size_t> order = loading_order(ref.L.values, 7, 2);
+  for (std::size_t r = 0; r < 7; ++r) {
+    const auto& row = s.rows[static_cast<std::size_t>(hdr) + 1 + r];
+    const std::size_t j = order[r];
+    EXPECT_EQ(row[0].text, kNames[j]);
+    for (std::size_t f = 0; f < 2; ++f) {
+      EXPECT_NEAR(row[1 + f].number, ref.L.at(static_cast<std::int64_t>(j), static_cast<std::int64_t>(f)), kSame);
+      EXPECT_EQ(row[1 + f].style, std::fabs(row[1 + f].number) >= a().options.salient ? styles::salient : styles::faint);
+    }
+    EXPECT_NEAR(row[3].number, ref.communalities.values[j], kSame);
+    EXPECT_NEAR(row[4].number, ref.uniquenesses.values[j], kSame);
+    EXPECT_LE(row[5].number, row[6].number);  // an interval's ends in order
+  }
+  EXPECT_EQ(s.rows[static_cast<std::size_t>(hdr) + 8][0].text, "Sum of squared loadings");
+  const long smc = find_row(s, "Item", static_cast<std::size_t>(hdr) + 1);
+  ASSERT_GE(smc, 0);
+  for (std::size_t j = 0; j < 7; ++j) EXPECT_EQ(num(s, smc + 1 + static_cast<long>(j), 1), ref.smc.values[j]);
+}
+
+TEST_F(ReportLayout, FactorsSheetMatchesCorrelationsResidualsAndKeyedOmega) {
+  const Sheet s = layout_factors(a());
+  const Reference ref = reference(a());
+  const long phi = find_row(s, "Factor correlations");
+  ASSERT_GE(phi, 0);
+  EXPECT_NEAR(num(s, phi + 3, 1), ref.phi.at(1, 0), kSame);
+  const long res = find_row(s, "Residual correlations (observed minus model); above 0.10 in size is flagged (common practice)");
+  ASSERT_GE(res, 0);
+  for (std::size_t i = 0; i < 7; ++i)
+    for (std::size_t j = 0; j < 7; ++j)
+      EXPECT_NEAR(num(s, res + 2 + static_cast<long>(i), 1 + j), ref.residuals.values[i * 7 + j], kSame);
+  // omega from the C ABI's keyed omega of the same model (reverse-keying items loading negatively)
+  lode_reliability_options ro;
+  lode_reliability_options_init(&ro, sizeof ro);
+  ro.keying = LODE_KEYING_REVERSE_NEGATIVE;
+  lode_reliability* r = nullptr;
+  check(lode_reliability_compute_keyed_omega(ref.model.get(), &ro, &r), "omega");
+  const Handle<lode_reliability, lode_reliability_free> om(r);
+  const Matrix omega = read_matrix(om.get(), LODE_OMEGA, lode_reliability_matrix, "omega");
+  const Matrix share = read_matrix(om.get(), LODE_RELIABILITY_OMEGA_FACTOR_SHARE, lode_reliability_matrix, "share");
+  const long scales = find_row(s, "Scale");
+  ASSERT_GE(scales, 0);
+  for (std::size_t f = 0; f < 2; ++f) {
+    EXPECT_EQ(s.rows[static_cast<std::size_t>(scales) + 1 + f][0].text, "Factor " + std::to_string(f + 1));
+    EXPECT_NEAR(num(s, scales + 1 + static_cast<long>(f), 4), omega.values[f], kSame);
+    EXPECT_NEAR(num(s, scales + 1 + static_cast<long>(f), 5), share.values[f], kSame);
+  }
+  // the reverse-scored item is marked in its scale's item table
+  bool marked = false;
+  for (const auto& row : s.rows)
+    if (row.size() > 2 && row[0].text == "complaints" && row[2].kind == Cell::Kind::text) marked = row[2].text == "yes";
+  EXPECT_TRUE(marked);
+  const long used = find_row(s, "Item correlations used");
+  ASSERT_GE(used, 0);
+  for (std::size_t i = 0; i < 7; ++i)
+    for (std::size_t j = 0; j < 7; ++j) EXPECT_EQ(num(s, used + 2 + static_cast<long>(i), 1 + j), ref.R.values[i * 7 + j]);
+}
+
+TEST_F(ReportLayout, ScreeTableAndChartCoverTheEigenvalues) {
+  const Sheet s = layout_scree(a());
+  const Reference ref = reference(a());
+  ASSERT_EQ(s.charts.size(), 1u);
+  const Chart& ch = s.charts[0];
+  EXPECT_EQ(ch.rows, 8u);
+  EXPECT_EQ(ch.cols, a().count.available ? 3u : 2u);
+  EXPECT_EQ(s.rows[ch.top][0].text, "Factor");
+  for (std::size_t j = 0; j < 7; ++j) EXPECT_EQ(s.rows[ch.top + 1 + j][1].number, ref.eig.values[j]);
+}
+
+TEST_F(ReportLayout, RunRecordStatesTheOptionsAndHash) {
+  const Sheet s = layout_record(a());
+  auto value = [&](const char* key) { return s.rows.at(static_cast<std::size_t>(find_row(s, key)))[1]; };
+  EXPECT_EQ(value("Extraction").text, "ml");
+  EXPECT_EQ(value("Rotation").text, "oblimin");
+  EXPECT_EQ(value("Number of factors").number, 2.0);
+  EXPECT_EQ(value("Bootstrap resamples").number, 40.0);
+  char hash[32];
+  std::snprintf(hash, sizeof hash, "%016llx", static_cast<unsigned long long>(a().values_hash));
+  EXPECT_EQ(value("Values hash (FNV-1a 64)").text, hash);
+  EXPECT_EQ(value("Items").text, "rating, complaints, privileges, learning, raises, critical, advance");
+}
+
+TEST_F(ReportLayout, ScoresSheetAndColumnsMatchTheCApiScores) {
+  const Reference ref = reference(a());
+  lode_scores* raw = nullptr;
+  check(lode_scores_compute(ref.model.get(), ref.data.get(), nullptr, &raw), "scores");
+  const Handle<lode_scores, lode_scores_free> sc(raw);
+  const Matrix values = read_matrix(sc.get(), LODE_SCORES_VALUES, lode_scores_matrix, "scores");
+  ASSERT_TRUE(a().scores.sheet);
+  const Sheet s = layout_scores(a());
+  const long hdr = find_row(s, "Row in Ratings");
+  ASSERT_GE(hdr, 0);
+  EXPECT_EQ(s.rows[static_cast<std::size_t>(hdr)][1].text, "department");  // the code column comes along
+  EXPECT_EQ(s.rows[static_cast<std::size_t>(hdr)][2].text, "Factor 1 score (regression)");
+  for (std::size_t r = 0; r < 30; ++r) {
+    const auto& row = s.rows[static_cast<std::size_t>(hdr) + 1 + r];
+    EXPECT_EQ(row[0].number, static_cast<double>(r + 2));  // sheet row of the respondent, below the header
+    EXPECT_EQ(row[1].text, "D" + std::to_string(r + 1));
+    for (std::size_t f = 0; f < 2; ++f) EXPECT_NEAR(row[2 + f].number, values.values[r * 2 + f], kSame);
+  }
+  // beside the data: the same values in new columns right of the range
+  Options o = run_options();
+  o.scores_place = "beside";
+  o.bootstrap = 0;
+  const Analysis b = analyse(*source_, o, "t", {});
+  ASSERT_TRUE(b.scores.beside) << b.scores.moved;
+  EXPECT_EQ(b.scores.where, "columns I to J of Ratings, beside the data");
+  const Beside cols = layout_scores_beside(b);
+  ASSERT_EQ(cols.rows.size(), 31u);
+  EXPECT_EQ(cols.header_comments.size(), 2u);
+  for (std::size_t r = 0; r < 30; ++r)
+    for (std::size_t f = 0; f < 2; ++f) EXPECT_NEAR(cols.rows[1 + r][f].number, values.values[r * 2 + f], kSame);
+}
+
+TEST_F(ReportLayout, BuildReportWritesEverySheetInOrder) {
+  const Report rep = build_report(*source_, run_options(), "t", {});
+  std::vector<std::string> order;
+  for (const Sheet& s : rep.sheets) order.push_back(s.base_name);
+  EXPECT_EQ(order, (std::vector<std::string>{names::overview, names::loadings, names::factors, names::scree,
+                                             names::record, names::scores}));
+  EXPECT_FALSE(rep.beside.has_value());
+  EXPECT_EQ(rep.summary, "Lode analysed 7 items of 30 respondents");
+}
+
+}  // namespace
+}  // namespace lode::addin::report
+
+namespace lode::addin::report {
+namespace {
+
+TEST(ReportOptions, TableDrivesDefaultsAndValidation) {
+  const Options o;  // the defaults
+  std::set<std::string> properties;
+  for (const WordOption& w : word_options()) {
+    EXPECT_TRUE(properties.insert(w.property).second) << w.property;
+    EXPECT_EQ(find_word_option(w.property), &w);
+    // the default is an accepted word, and Options starts with it
+    EXPECT_EQ(o.*(w.field), w.fallback) << w.property;
+    EXPECT_EQ(std::string(w.words[word_index(w, w.fallback)].word), w.fallback);
+    EXPECT_GT(std::string(w.help).size(), 20u) << w.property;
+    Options bad;
+    bad.*(w.field) = "nonsense";
+    try {
+      validate(bad);
+      ADD_FAILURE() << w.property << " accepted a word it does not list";
+    } catch (const std::invalid_argument& e) {
+      EXPECT_NE(std::string(e.what()).find(std::string("option ") + w.property + " is \"nonsense\""), std::string::npos)
+          << e.what();
+    }
+  }
+  EXPECT_NO_THROW(validate(o));
+  EXPECT_EQ(find_word_option("Seed"), nullptr);
+  // the one set of defaults (README, "Defaults")
+  EXPECT_EQ(o.extraction, "ml");
+  EXPECT_EQ(o.rotation, "oblimin");
+  EXPECT_EQ(o.salient, 0.40);
+  // the run record lists every word option under its record key
+  Analysis a;
+  a.options = o;
+  const Sheet rec = layout_record(a);
+  for (const WordOption& w : word_options()) {
+    const long r = find_row(rec, w.record);
+    ASSERT_GE(r, 0) << w.record;
+    EXPECT_EQ(rec.rows[static_cast<std::size_t>(r)][1].text, o.*(w.field));
+  }
+}
+
+}  // namespace
+}  // namespace lode::addin::report
+
+namespace lode::addin::report {
+namespace {
+
+TEST(ReportText, RangeAddressesRoundTrip) {
+  EXPECT_EQ(range_address("Ratings", 0, 0, 7, 30), "$Ratings.$A$1:$H$31");
+  EXPECT_EQ(range_address("Jo's answers", 26, 4, 27, 9), "$'Jo''s answers'.$AA$5:$AB$10");
+  std::string sheet, cells;
+  split_range_text("$'Jo''s answers'.$AA$5:$AB$10", sheet, cells);
+  EXPECT_EQ(sheet, "Jo's answers");
+  EXPECT_EQ(cells, "$AA$5:$AB$10");
+  split_range_text("A1:B9", sheet, cells);
+  EXPECT_EQ(sheet, "");
+  EXPECT_EQ(cells, "A1:B9");
+}
+
+TEST(ReportRun, CancelStopsOnlyARunInProgressAndNamesAreUnique) {
+  RunControl c;
+  c.cancel();  // nothing running: no effect on the next run
+  c.begin_call();
+  EXPECT_FALSE(c.cancelled());
+  c.cancel();
+  EXPECT_TRUE(c.cancelled());
+  c.end_call("stopped: the analysis was cancelled; the workbook is as it was");
+  EXPECT_TRUE(c.begin_background());
+  EXPECT_FALSE(c.cancelled());
+  EXPECT_FALSE(c.begin_background());  // one background run at a time
+  EXPECT_TRUE(c.running());
+  c.end_background("done");
+  EXPECT_FALSE(c.running());
+  EXPECT_EQ(c.last_outcome(), "done");
+  EXPECT_EQ(stopped_outcome(std::make_exception_ptr(std::invalid_argument("option X"))), "stopped: option X");
+  EXPECT_EQ(stopped_outcome(std::make_exception_ptr(Cancelled{})),
+            "stopped: the analysis was cancelled; the workbook is as it was");
+  const std::vector<std::string> names = unique_sheet_names(
+      {"Lode overview", "Lode loadings", "Lode overview"}, [](const std::string& n) { return n == "Lode overview"; });
+  EXPECT_EQ(names, (std::vector<std::string>{"Lode overview 2", "Lode loadings", "Lode overview 3"}));
+}
+
+}  // namespace
+}  // namespace lode::addin::report
