@@ -30,6 +30,7 @@ SECTIONS = [
         ("corr_n100000_p100", "n = 100,000, p = 100"),
         ("corr_n100000_p200", "n = 100,000, p = 200"),
         ("corr_n100000_p50_missing", "n = 100,000, p = 50, 5% missing, pairwise"),
+        ("corr_n1000000_p50_missing", "n = 1,000,000, p = 50, 5% missing, pairwise"),
         ("corr_checks_n1000000_p50", "the separate input checks (validate_data; complete data now check in the summing pass), n = 1,000,000, p = 50"),
     ]),
     ("Extraction from a correlation matrix (n = 2000)", [
@@ -52,10 +53,13 @@ SECTIONS = [
         ("polychoric_p20_n2000", "20 items"),
         ("polychoric_p60_n2000", "60 items"),
     ]),
-    ("Bootstrap (ML + oblimin, n = 500, p = 30, k = 3)", [
-        ("bootstrap_n500_p30_k3_r1000", "1000 replicates"),
-        ("bootstrap_n500_p30_k3_r100", "100 replicates"),
-        ("bootstrap_n500_p30_k3_r100_scratch", "100 replicates, each fitted from scratch with 10 random rotation starts"),
+    ("Bootstrap (ML + oblimin)", [
+        ("bootstrap_n500_p30_k3_r1000", "n = 500, p = 30, k = 3: 1000 replicates"),
+        ("bootstrap_n500_p30_k3_r100", "n = 500, p = 30, k = 3: 100 replicates"),
+        ("bootstrap_n500_p30_k3_r100_scratch", "n = 500, p = 30, k = 3: 100 replicates, each fitted from scratch with 10 random rotation starts"),
+        ("bootstrap_n3000_p30_k5_r1000", "n = 3,000, p = 30, k = 5: 1000 replicates"),
+        ("bootstrap_n3000_p30_k5_r100_missing", "n = 3,000, p = 30, k = 5, 5% blanks: 100 replicates"),
+        ("bootstrap_n10000_p60_k5_r200_missing", "n = 10,000, p = 60, k = 5, 5% blanks: 200 replicates"),
     ]),
     ("Summaries (5 categories, 30 items)", [
         ("add_p30_n2000", "summary of 2000 rows"),
