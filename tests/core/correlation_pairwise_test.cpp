@@ -1,6 +1,7 @@
 // Pairwise-complete Pearson correlations from products of the zero-filled data and its answer mask
 // (core/src/correlation_pairwise.cpp): against the former algorithm, against pandas' pairwise
 // DataFrame.corr run live, and the data report's counts against direct counting.
+#include "lode/bootstrap.hpp"
 #include "lode/correlation.hpp"
 #include "lode/random.hpp"
 #include "../../core/src/correlation_detail.hpp"
@@ -182,5 +183,37 @@ TEST(PairwiseCorrelation, ResamplesFromRowCountsEqualTheCopiedRows) {
       EXPECT_EQ(got.n_obs, copy.n_obs);
       EXPECT_DOUBLE_EQ(got.report.missing_fraction, copy.report.missing_fraction);
     }
+  }
+}
+
+TEST(PairwiseCorrelation, BootstrapDrawsTheSameRowsAndCorrelatesThemAsBefore) {
+  // The bootstrap's random streams are untouched: replicate i still draws its rows from stream i of the
+  // seed, and the correlations it fits (now from row counts) equal the former algorithm's on those rows,
+  // copied, to 1e-12; so its intervals are those of before to the same order. A recording fitter
+  // (one thread: replicates run in order) captures what each replicate fits.
+  const Matrix x = survey_with_blanks(3000, 8, 36, 0.05);
+  std::vector<Matrix> seen;
+  const SolutionFitter record = [&](const Matrix& r) {
+    seen.push_back(r);
+    FactorSolution s;
+    s.loadings = r.leftCols(2);
+    s.uniquenesses = Vector::Ones(r.rows());
+    return s;
+  };
+  FactorSolution full;
+  full.loadings = correlation(x).matrix.leftCols(2);
+  full.uniquenesses = Vector::Ones(x.cols());
+  BootstrapOptions options;
+  options.replicates = 12;
+  options.seed = 20261203;
+  options.threads = 1;
+  bootstrap_solution(x, full, record, options);
+  ASSERT_EQ(seen.size(), 12u);
+  for (std::size_t i = 0; i < seen.size(); ++i) {
+    auto rng = random_stream(options.seed, i);
+    std::uniform_int_distribution<Index> pick(0, x.rows() - 1);
+    std::vector<Index> rows(static_cast<std::size_t>(x.rows()));
+    for (auto& r : rows) r = pick(rng);
+    EXPECT_LT((seen[i] - former_pairwise(x(rows, Eigen::all))).cwiseAbs().maxCoeff(), 1e-12) << "replicate " << i;
   }
 }
