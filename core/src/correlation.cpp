@@ -76,12 +76,9 @@ double pearson_of(const Vector& x, const Vector& y) {
   return dx.dot(dy) / std::sqrt(sxx * syy);
 }
 
-// Rows are processed in fixed chunks whose partial sums are added in chunk order, so the result does
-// not depend on the number of threads, and no copy of the whole data set is made (peak memory stays
-// close to the size of the data).
-constexpr Index kChunkRows = 8192;
-
-Index chunk_count(Index rows) { return rows == 0 ? 0 : (rows + kChunkRows - 1) / kChunkRows; }
+using detail::chunk_count;
+using detail::kBlockRows;
+using detail::kChunkRows;
 
 // What one pass over complete data learns about each column besides its sums: where the first
 // infinite value is, whether a value is missing, and whether every value equals the column's first.
@@ -156,8 +153,6 @@ bool use_avx2_cross_products() {
 // so neither the thread count nor a large common offset in a column changes the result materially.
 // A chunk holding a missing or infinite value is only checked, and once a value is missing the chunks
 // not yet started are skipped (the caller takes the general path then).
-constexpr Index kBlockRows = 256;
-
 Matrix centred_cross_products(const Matrix& x, int threads, ColumnChecks* checks, detail::CrossProductKernel kernel) {
   const Index n = x.rows(), p = x.cols(), chunks = chunk_count(n);
   const Index pp = (p + 3) / 4 * 4;
@@ -279,62 +274,6 @@ Matrix pearson_complete(const Matrix& x, int threads) {
   return correlation_from_cross_products(centred_cross_products(x, threads, nullptr, detail::CrossProductKernel::automatic));
 }
 
-// Exact pairwise-complete Pearson correlations by matrix products over the presence mask: for each
-// pair, means and sums of squares use only the rows where both items are present.
-Matrix pearson_pairwise(const Matrix& data, const Mask& present, int threads) {
-  const Index p = data.cols();
-  // Centre each column by its own mean first, to keep the sums small (less cancellation).
-  Vector mean(p);
-  for (Index j = 0; j < p; ++j) {
-    double sum = 0.0;
-    Index count = 0;
-    for (Index i = 0; i < data.rows(); ++i)
-      if (present(i, j)) {
-        sum += data(i, j);
-        ++count;
-      }
-    mean(j) = count > 0 ? sum / static_cast<double>(count) : 0.0;
-  }
-  struct Sums {
-    Matrix n, sx, sxx, sxy;
-  };
-  const Index chunks = chunk_count(data.rows());
-  std::vector<Sums> partial(static_cast<std::size_t>(chunks));
-  parallel_for(chunks, threads, [&](Index c) {
-    const Index begin = c * kChunkRows, rows = std::min(kChunkRows, data.rows() - begin);
-    const Matrix m = present.middleRows(begin, rows).cast<double>();
-    Matrix z = Matrix::Zero(rows, p);
-    for (Index j = 0; j < p; ++j)
-      for (Index i = 0; i < rows; ++i)
-        if (present(begin + i, j)) z(i, j) = data(begin + i, j) - mean(j);
-    Sums& s = partial[static_cast<std::size_t>(c)];
-    s.n = m.transpose() * m;                               // pair counts
-    s.sx = z.transpose() * m;                              // sx(i,j): sum of item i over rows where j present
-    s.sxx = z.array().square().matrix().transpose() * m;  // sums of squares, same rows
-    s.sxy = z.transpose() * z;                             // cross-products over rows with both
-  });
-  Matrix n = Matrix::Zero(p, p), sx = n, sxx = n, sxy = n;
-  for (const auto& s : partial) {
-    n += s.n;
-    sx += s.sx;
-    sxx += s.sxx;
-    sxy += s.sxy;
-  }
-  Matrix r(p, p);
-  for (Index j = 0; j < p; ++j) {
-    r(j, j) = 1.0;
-    for (Index i = j + 1; i < p; ++i) {
-      const double nij = n(i, j);
-      const double cov = sxy(i, j) - sx(i, j) * sx(j, i) / nij;
-      const double vi = sxx(i, j) - sx(i, j) * sx(i, j) / nij;
-      const double vj = sxx(j, i) - sx(j, i) * sx(j, i) / nij;
-      const double v = (vi > 0.0 && vj > 0.0) ? cov / std::sqrt(vi * vj) : std::numeric_limits<double>::quiet_NaN();
-      r(i, j) = r(j, i) = std::clamp(v, -1.0, 1.0);
-    }
-  }
-  return r;
-}
-
 Matrix spearman(const Matrix& data, const Mask& present, MissingPolicy missing, const std::vector<Index>& complete) {
   const Index p = data.cols();
   if (missing == MissingPolicy::listwise || complete.size() == static_cast<std::size_t>(data.rows())) {
@@ -373,6 +312,11 @@ Matrix spearman(const Matrix& data, const Mask& present, MissingPolicy missing, 
 namespace detail {
 
 bool avx2_cross_products_available() { return use_avx2_cross_products(); }
+
+void add_block_cross_products(const double* y, Index rows, Index cols, Matrix& s, bool avx2) {
+  if (avx2) add_cross_products_avx2(y, rows, cols, s);
+  else add_cross_products_portable(y, rows, cols, s);
+}
 
 Matrix centred_cross_products(const Matrix& x, int threads, CrossProductKernel kernel) {
   return lode::centred_cross_products(x, threads, nullptr, kernel);
@@ -416,68 +360,6 @@ void finish(CorrelationResult& result, const CorrelationOptions& options) {
           result.smoothing.smallest_eigenvalue_before));
     }
   }
-}
-
-ResampleCorrelation::ResampleCorrelation(const Matrix& data, const CorrelationOptions& options)
-    : data_(data), options_(options) {
-  if (options.kind != CorrelationKind::pearson || data.array().isNaN().any()) return;
-  try {
-    validate_data(data, options);  // data that fail here fail in every resample too: leave them to correlation()
-  } catch (const Error&) {
-    return;
-  }
-  by_counts_ = true;
-  centred_ = data.rowwise() - data.colwise().mean();
-}
-
-CorrelationResult ResampleCorrelation::resample(const std::vector<Index>& rows) const {
-  if (!by_counts_) return correlation(data_(rows, Eigen::all), options_);
-  const Index n = data_.rows(), p = data_.cols();
-  std::vector<Index> count(static_cast<std::size_t>(n), 0);
-  for (Index i : rows) ++count[static_cast<std::size_t>(i)];
-  std::vector<Index> drawn;
-  for (Index i = 0; i < n; ++i)
-    if (count[static_cast<std::size_t>(i)] > 0) drawn.push_back(i);
-  const auto m = static_cast<Index>(drawn.size());
-  // A resample can hold one value only for an item (then its correlations are undefined); the same
-  // check and message as validate_data.
-  for (Index j = 0; j < p; ++j) {
-    const double first = data_(drawn.front(), j);
-    bool constant = true;
-    for (Index t = 1; t < m && constant; ++t) constant = data_(drawn[static_cast<std::size_t>(t)], j) == first;
-    if (constant)
-      throw Error(ErrorCode::insufficient_data,
-                  fmt::format("{} is constant (every answer is {}); remove it, it carries no information",
-                              item_label(options_.item_names, j), first));
-  }
-  // Cross-products of the drawn rows, each scaled by the square root of its count, and the resample's
-  // mean of the centred data: covariance * rows = Y'Y - rows * mean mean'.
-  Matrix y(m, p);
-  Vector sum = Vector::Zero(p);
-  for (Index t = 0; t < m; ++t) {
-    const Index i = drawn[static_cast<std::size_t>(t)];
-    const double c = static_cast<double>(count[static_cast<std::size_t>(i)]);
-    y.row(t) = std::sqrt(c) * centred_.row(i);
-    sum += c * centred_.row(i).transpose();
-  }
-  const double total = static_cast<double>(rows.size());
-  const Vector mean = sum / total;
-  Matrix s = Matrix::Zero(p, p);
-  s.selfadjointView<Eigen::Lower>().rankUpdate(y.transpose());
-  s.selfadjointView<Eigen::Lower>().rankUpdate(mean, -total);
-  s = s.selfadjointView<Eigen::Lower>();
-  const Vector inv_sd = s.diagonal().cwiseSqrt().cwiseInverse();
-  CorrelationResult result;
-  result.matrix = inv_sd.asDiagonal() * s * inv_sd.asDiagonal();
-  result.matrix.diagonal().setOnes();
-  result.n_obs = static_cast<Index>(rows.size());
-  result.kind = options_.kind;
-  result.missing = options_.missing;
-  result.report.rows_total = result.report.rows_complete = result.report.rows_used = result.n_obs;
-  result.report.pair_counts = IndexMatrix::Constant(p, p, result.n_obs);
-  result.report.min_pair_count = result.n_obs;
-  finish(result, options_);
-  return result;
 }
 
 }  // namespace detail
@@ -577,8 +459,10 @@ bool pearson_if_complete(const Matrix& data, const CorrelationOptions& options, 
 CorrelationResult correlation(const Matrix& data, const CorrelationOptions& options) {
   if (options.kind == CorrelationKind::polychoric) return polychoric_correlation(data, options).correlation;
   if (options.kind == CorrelationKind::pearson) {
+    // Complete data, then pairwise deletion over missing values; either returns false for data that
+    // need the general path (checks that fail and are worded below, columns that need rescaling).
     CorrelationResult fast;
-    if (pearson_if_complete(data, options, fast)) {
+    if (pearson_if_complete(data, options, fast) || detail::pearson_pairwise(data, options, fast)) {
       fast.report.min_pair_count = fast.report.pair_counts.minCoeff();
       check_pairs(fast.matrix, fast.report.pair_counts, options);
       fast.n_obs = n_obs_of(fast, options);
@@ -621,6 +505,9 @@ CorrelationResult correlation(const Matrix& data, const CorrelationOptions& opti
       result.matrix = spearman(data, present, MissingPolicy::listwise, complete);
     }
   } else {
+    // Pairwise Pearson data that pass validate_data and need no rescaling took the path above.
+    if (options.kind == CorrelationKind::pearson)
+      throw Error(ErrorCode::internal, "pairwise Pearson correlations reached the general path");
     Index used = 0;
     for (Index i = 0; i < n; ++i)
       if (present.row(i).any()) ++used;
@@ -629,8 +516,7 @@ CorrelationResult correlation(const Matrix& data, const CorrelationOptions& opti
     for (Index a = 0; a < p; ++a)
       for (Index b = a; b < p; ++b)
         result.report.pair_counts(a, b) = result.report.pair_counts(b, a) = (present.col(a) && present.col(b)).count();
-    result.matrix = options.kind == CorrelationKind::pearson ? pearson_pairwise(data, present, options.threads)
-                                                             : spearman(data, present, MissingPolicy::pairwise, complete);
+    result.matrix = spearman(data, present, MissingPolicy::pairwise, complete);
   }
   result.report.min_pair_count = result.report.pair_counts.minCoeff();
   check_pairs(result.matrix, result.report.pair_counts, options);

@@ -62,12 +62,14 @@ for (name in c("corr_n10000_p50", "corr_n100000_p50", "corr_n1000000_p50", "corr
     invisible(gc())
   }
 }
-if (wanted("corr_n100000_p50_missing")) {
-  x <- read_input("corr_n100000_p50_missing")
-  x[is.nan(x)] <- NA
-  record("corr_n100000_p50_missing", "R cor(use = \"pairwise.complete.obs\")",
-         function() cor(x, use = "pairwise.complete.obs"))
-  rm(x)
+for (name in c("corr_n100000_p50_missing", "corr_n1000000_p50_missing")) {
+  if (wanted(name)) {
+    x <- read_input(name)
+    x[is.nan(x)] <- NA
+    record(name, "R cor(use = \"pairwise.complete.obs\")", function() cor(x, use = "pairwise.complete.obs"))
+    rm(x)
+    invisible(gc())
+  }
 }
 
 for (pk in list(c(30, 3), c(60, 6), c(100, 10), c(200, 15))) {

@@ -104,11 +104,12 @@ def main():
             x = read(folder, name)
             record(name, "numpy.corrcoef", lambda x=x: np.corrcoef(x, rowvar=False))
             del x
-    if wanted("corr_n100000_p50_missing"):
-        import pandas as pd
-        df = pd.DataFrame(read(folder, "corr_n100000_p50_missing"))
-        record("corr_n100000_p50_missing", "pandas DataFrame.corr (pairwise)", lambda: df.corr())
-        del df
+    for name in ("corr_n100000_p50_missing", "corr_n1000000_p50_missing"):
+        if wanted(name):
+            import pandas as pd
+            df = pd.DataFrame(read(folder, name))
+            record(name, "pandas DataFrame.corr (pairwise)", lambda df=df: df.corr())
+            del df
 
     from statsmodels.multivariate.factor import Factor
     from statsmodels.multivariate.factor_rotation import rotate_factors

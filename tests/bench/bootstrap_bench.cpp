@@ -50,6 +50,20 @@ BENCHMARK_CAPTURE(BM_Bootstrap, bootstrap_n500_p30_k3_r100, "boot_n500_p30_X", 3
     ->Unit(benchmark::kMillisecond)
     ->UseRealTime()
     ->MeasureProcessCPUTime();
+// Survey-sized data (k = 5): complete, and with 5% blank answers (pairwise deletion; resamples are
+// correlated from row counts, nothing copied).
+BENCHMARK_CAPTURE(BM_Bootstrap, bootstrap_n3000_p30_k5_r1000, "boot_n3000_p30_X", 5, 1000, false)
+    ->Unit(benchmark::kMillisecond)
+    ->UseRealTime()
+    ->MeasureProcessCPUTime();
+BENCHMARK_CAPTURE(BM_Bootstrap, bootstrap_n3000_p30_k5_r100_missing, "boot_n3000_p30_missing_X", 5, 100, false)
+    ->Unit(benchmark::kMillisecond)
+    ->UseRealTime()
+    ->MeasureProcessCPUTime();
+BENCHMARK_CAPTURE(BM_Bootstrap, bootstrap_n10000_p60_k5_r200_missing, "boot_n10000_p60_missing_X", 5, 200, false)
+    ->Unit(benchmark::kMillisecond)
+    ->UseRealTime()
+    ->MeasureProcessCPUTime();
 BENCHMARK_CAPTURE(BM_Bootstrap, bootstrap_n500_p30_k3_r100_scratch, "boot_n500_p30_X", 3, 100, true)
     ->Unit(benchmark::kMillisecond)
     ->UseRealTime()

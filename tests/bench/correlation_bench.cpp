@@ -82,6 +82,9 @@ BENCHMARK_CAPTURE(BM_Correlation, corr_n100000_p200, "corr_n100000_p200")->Unit(
 BENCHMARK_CAPTURE(BM_CorrelationPairwiseMissing, corr_n100000_p50_missing, "corr_n100000_p50_missing")
     ->Unit(benchmark::kMillisecond)
     ->UseRealTime()->MeasureProcessCPUTime();
+BENCHMARK_CAPTURE(BM_CorrelationPairwiseMissing, corr_n1000000_p50_missing, "corr_n1000000_p50_missing")
+    ->Unit(benchmark::kMillisecond)
+    ->UseRealTime()->MeasureProcessCPUTime();
 BENCHMARK_CAPTURE(BM_CorrelationChecks, corr_checks_n1000000_p50, "corr_n1000000_p50")
     ->Unit(benchmark::kMillisecond)
     ->UseRealTime()->MeasureProcessCPUTime();

@@ -59,18 +59,20 @@ def main():
             print(f"  writing {name}", flush=True)
             write(folder, name, make(stream(name)))
 
-    # Correlation: cost growth in n (p = 50) and in p (n = 100,000); one case with 5% missing.
+    # Correlation: cost growth in n (p = 50) and in p (n = 100,000); 5% missing at n = 100,000 and
+    # 1,000,000 (p = 50), beside the complete data of the same shape.
     for n in (10_000, 100_000, 1_000_000):
         once(f"corr_n{n}_p50", lambda rng, n=n: factor_data(rng, n, 50, 5))
     for p in (10, 100, 200):
         once(f"corr_n100000_p{p}", lambda rng, p=p: factor_data(rng, 100_000, p, 5))
 
-    def with_missing(rng):
-        x = factor_data(rng, 100_000, 50, 5)
+    def with_missing(rng, n):
+        x = factor_data(rng, n, 50, 5)
         x[rng.random(x.shape) < 0.05] = np.nan
         return x
 
-    once("corr_n100000_p50_missing", with_missing)
+    once("corr_n100000_p50_missing", lambda rng: with_missing(rng, 100_000))
+    once("corr_n1000000_p50_missing", lambda rng: with_missing(rng, 1_000_000))
 
     # Extraction inputs: raw data (n = 2000) and their correlation matrices, for p/k pairs.
     for p, k in ((30, 3), (60, 6), (100, 10), (200, 15)):
@@ -90,6 +92,16 @@ def main():
 
     # Bootstrap / dialog-style analysis: n = 500, p = 30, k = 3.
     once("boot_n500_p30_X", lambda rng: factor_data(rng, 500, 30, 3))
+    # Survey-sized bootstrap inputs (k = 5): complete, and with 5% of the answers blank.
+    once("boot_n3000_p30_X", lambda rng: factor_data(rng, 3000, 30, 5))
+
+    def blanks(rng, n, p):
+        x = factor_data(rng, n, p, 5)
+        x[rng.random(x.shape) < 0.05] = np.nan
+        return x
+
+    once("boot_n3000_p30_missing_X", lambda rng: blanks(rng, 3000, 30))
+    once("boot_n10000_p60_missing_X", lambda rng: blanks(rng, 10_000, 60))
 
     # Rotation input: unrotated loadings of 100 items on 10 factors (principal components of the
     # p = 100 correlation matrix scaled by the root eigenvalues), derived without random draws.
