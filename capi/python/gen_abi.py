@@ -24,7 +24,12 @@ CTYPES = {
     "uint64_t": "ctypes.c_uint64",
     "void*": "ctypes.c_void_p",
     "const char*": "ctypes.c_char_p",
+    "int32_t": "ctypes.c_int32",
     "const double*": "ctypes.POINTER(ctypes.c_double)",
+    "const int64_t*": "ctypes.POINTER(ctypes.c_int64)",
+    "const int32_t*": "ctypes.POINTER(ctypes.c_int32)",
+    "const int*": "ctypes.POINTER(ctypes.c_int)",
+    "const char* const*": "ctypes.POINTER(ctypes.c_char_p)",
     "lode_progress_fn": "lode_progress_fn",
 }
 
