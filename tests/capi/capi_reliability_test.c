@@ -96,7 +96,7 @@ void test_reliability(void) {
     lode_reliability_options qo;
     int32_t rev[N_ITEMS] = {1, 0, 0, 0, 0, 0};
     double L[N_ITEMS * 2], phi[4], u[N_ITEMS], om[2], plain[2], flags[N_ITEMS];
-    int64_t f, j, k, a, b;
+    int64_t fac, j, k, a, b;
     assignment[2] = 0; /* as before the error cases above */
     OK(lode_model_matrix(f.model, LODE_MODEL_LOADINGS, L, N_ITEMS * 2, NULL, NULL));
     OK(lode_model_matrix(f.model, LODE_MODEL_FACTOR_CORRELATIONS, phi, 4, NULL, NULL));
@@ -121,19 +121,19 @@ void test_reliability(void) {
     CHECK(flags[0] == 1.0 && flags[1] == 0.0);
     lode_reliability_free(rel);
     rel = NULL;
-    for (f = 0; f < 2; ++f) {
+    for (fac = 0; fac < 2; ++fac) {
       double common = 0.0, psi = 0.0;
       for (j = 0; j < N_ITEMS; ++j) {
-        if (assignment[j] != f) continue;
+        if (assignment[j] != fac) continue;
         psi += u[j];
         for (k = 0; k < N_ITEMS; ++k) {
-          if (assignment[k] != f) continue;
+          if (assignment[k] != fac) continue;
           for (a = 0; a < 2; ++a)
             for (b = 0; b < 2; ++b)
               common += (rev[j] ? -1.0 : 1.0) * L[j * 2 + a] * phi[a * 2 + b] * L[k * 2 + b] * (rev[k] ? -1.0 : 1.0);
         }
       }
-      CHECK(fabs(om[f] - common / (common + psi)) < 1e-12);
+      CHECK(fabs(om[fac] - common / (common + psi)) < 1e-12);
     }
     CHECK(fabs(om[0] - plain[0]) > 1e-3 && om[1] == plain[1]); /* only the scale holding item 1 changes */
     /* the rule: items loading negatively on their scale's factor */
