@@ -55,12 +55,16 @@ lode_rotation_options rotation_defaults() {
   return d;
 }
 
-RotationMethod rotation_method_of(int m) {
+}  // namespace
+
+RotationMethod lode::capi::rotation_method_of(int m) {
   if (m < LODE_ROTATION_NONE || m > LODE_ROTATION_PROMAX)
     fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown rotation method {}", m));
   // lode.h numbers the methods as the core does (checked by static_asserts below).
   return static_cast<RotationMethod>(m);
 }
+
+namespace {
 static_assert(static_cast<int>(RotationMethod::none) == LODE_ROTATION_NONE);
 static_assert(static_cast<int>(RotationMethod::varimax) == LODE_ROTATION_VARIMAX);
 static_assert(static_cast<int>(RotationMethod::varimax_kaiser) == LODE_ROTATION_VARIMAX_KAISER);
@@ -151,7 +155,9 @@ lode_fit_options fit_defaults() {
   return d;
 }
 
-ExtractionMethod extraction_method_of(int m) {
+}  // namespace
+
+ExtractionMethod lode::capi::extraction_method_of(int m) {
   switch (m) {
     case LODE_ML: return ExtractionMethod::maximum_likelihood;
     case LODE_PAF: return ExtractionMethod::principal_axis;
@@ -160,6 +166,8 @@ ExtractionMethod extraction_method_of(int m) {
     default: fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown extraction method {}", m));
   }
 }
+
+namespace {
 
 // The extraction fields of lode_fit_options, checked, for the matrix behind `corr`.
 ExtractionOptions extraction_options_of(const lode_fit_options& o, const lode_correlation* corr) {
@@ -353,9 +361,16 @@ namespace {
 
 // The means and standard deviations (n - 1) behind the model's correlation matrix: over the complete
 // rows under listwise deletion, else over each item's answered values (see lode_model::means).
-void fit_standardisation(lode_model& m) {
+void fit_standardisation(lode_model& m, const CorrelationResult& r) {
   const Matrix& x = m.data->values;
   const Index p = x.cols();
+  if (m.missing == MissingPolicy::em) {
+    // The EM estimate's means, and its variances with the divisor n - 1 like the other rules.
+    const double rows = static_cast<double>(r.em.rows_used);
+    m.means = r.em.means;
+    m.sds = (r.em.covariance.diagonal() * (rows / (rows - 1.0))).cwiseSqrt();
+    return;
+  }
   m.means = Vector::Constant(p, std::numeric_limits<double>::quiet_NaN());
   m.sds = m.means;
   std::vector<Index> complete;
@@ -396,7 +411,7 @@ LODE_API int lode_fit(const lode_correlation* corr, const lode_fit_options* opts
     m->item_names = names;
     m->data = corr->data;
     m->missing = corr->result.missing;
-    if (m->data && m->data->source == DataSource::raw) fit_standardisation(*m);
+    if (m->data && m->data->source == DataSource::raw) fit_standardisation(*m, corr->result);
     int factors = setup.factors;
     if (factors == 0) {
       const FactorCountResult count = count_for(corr, read_factor_count_options(setup.factor_count));

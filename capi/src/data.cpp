@@ -155,71 +155,93 @@ LODE_API int lode_correlation_options_init(lode_correlation_options* opts, size_
     d.zero_cell_add = 0.5;
     d.progress = nullptr;
     d.progress_user = nullptr;
+    d.em_tolerance = 1e-10;
+    d.em_max_iterations = 1000;
     init_options(opts, struct_size, d, "lode_correlation_options");
   });
 }
+
+}  // extern "C"
+
+// lode_correlation_options (older sizes included), checked, as the core's options.
+CorrelationOptions lode::capi::read_correlation_options(const lode_correlation_options* opts) {
+  lode_correlation_options o{};
+  lode_correlation_options_init(&o, sizeof o);
+  if (opts) {
+    check_options_size(opts, "lode_correlation_options");
+    LODE_OPTION_FIELD(o, opts, kind);
+    LODE_OPTION_FIELD(o, opts, missing);
+    LODE_OPTION_FIELD(o, opts, smooth);
+    LODE_OPTION_FIELD(o, opts, min_eigenvalue);
+    LODE_OPTION_FIELD(o, opts, min_pair_observations);
+    LODE_OPTION_FIELD(o, opts, threads);
+    LODE_OPTION_FIELD(o, opts, max_categories);
+    LODE_OPTION_FIELD(o, opts, zero_cells);
+    LODE_OPTION_FIELD(o, opts, zero_cell_add);
+    LODE_OPTION_FIELD(o, opts, progress);
+    LODE_OPTION_FIELD(o, opts, progress_user);
+    LODE_OPTION_FIELD(o, opts, em_tolerance);
+    LODE_OPTION_FIELD(o, opts, em_max_iterations);
+  }
+  CorrelationOptions co;
+  switch (o.kind) {
+    case LODE_PEARSON: co.kind = CorrelationKind::pearson; break;
+    case LODE_SPEARMAN: co.kind = CorrelationKind::spearman; break;
+    case LODE_POLYCHORIC: co.kind = CorrelationKind::polychoric; break;
+    default: fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown correlation kind {}", o.kind));
+  }
+  switch (o.missing) {
+    case LODE_PAIRWISE: co.missing = MissingPolicy::pairwise; break;
+    case LODE_LISTWISE: co.missing = MissingPolicy::listwise; break;
+    case LODE_MISSING_EM: co.missing = MissingPolicy::em; break;
+    default: fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown missing-value policy {}", o.missing));
+  }
+  co.smooth_if_not_positive_definite = o.smooth != 0;
+  if (!(o.min_eigenvalue >= 0.0 && o.min_eigenvalue < 1.0))
+    fail(LODE_E_INVALID_ARGUMENT,
+         fmt::format("min_eigenvalue must be at least 0 and below 1; it is {}", o.min_eigenvalue));
+  co.min_eigenvalue = o.min_eigenvalue;
+  if (o.min_pair_observations < 2)
+    fail(LODE_E_INVALID_ARGUMENT,
+         fmt::format("min_pair_observations must be at least 2; it is {}", o.min_pair_observations));
+  co.min_pair_observations = static_cast<Index>(o.min_pair_observations);
+  if (o.threads < 0) fail(LODE_E_INVALID_ARGUMENT, fmt::format("threads must be 0 (all cores) or more; it is {}", o.threads));
+  co.threads = o.threads;
+  if (o.max_categories < 2 || o.max_categories > 100)
+    fail(LODE_E_INVALID_ARGUMENT, fmt::format("max_categories must be between 2 and 100; it is {}", o.max_categories));
+  co.polychoric.max_categories = o.max_categories;
+  switch (o.zero_cells) {
+    case LODE_ZERO_CELLS_NONE: co.polychoric.zero_cells = ZeroCellPolicy::none; break;
+    case LODE_ZERO_CELLS_AT_BOUND: co.polychoric.zero_cells = ZeroCellPolicy::at_bound; break;
+    case LODE_ZERO_CELLS_ALWAYS: co.polychoric.zero_cells = ZeroCellPolicy::always; break;
+    default: fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown zero-cell policy {}", o.zero_cells));
+  }
+  if (!(o.zero_cell_add > 0.0 && o.zero_cell_add <= 1.0))
+    fail(LODE_E_INVALID_ARGUMENT, fmt::format("zero_cell_add must be above 0 and at most 1; it is {}", o.zero_cell_add));
+  co.polychoric.zero_cell_add = o.zero_cell_add;
+  if (!(o.em_tolerance > 0.0 && o.em_tolerance < 1.0))
+    fail(LODE_E_INVALID_ARGUMENT, fmt::format("em_tolerance must be above 0 and below 1; it is {}", o.em_tolerance));
+  if (o.em_max_iterations < 1)
+    fail(LODE_E_INVALID_ARGUMENT, fmt::format("em_max_iterations must be at least 1; it is {}", o.em_max_iterations));
+  co.em.tolerance = o.em_tolerance;
+  co.em.max_iterations = o.em_max_iterations;
+  if (o.progress) {
+    const lode_progress_fn fn = o.progress;
+    void* user = o.progress_user;
+    co.polychoric.progress = [fn, user](std::int64_t done, std::int64_t total) { return fn(user, done, total) == 0; };
+    co.em.progress = co.polychoric.progress;
+  }
+  return co;
+}
+
+extern "C" {
 
 LODE_API int lode_correlate(const lode_data* data, const lode_correlation_options* opts, lode_correlation** out) {
   return guarded([&] {
     require_pointer(data, "data");
     require_pointer(out, "out");
     *out = nullptr;
-    lode_correlation_options o{};
-    lode_correlation_options_init(&o, sizeof o);
-    if (opts) {
-      check_options_size(opts, "lode_correlation_options");
-      LODE_OPTION_FIELD(o, opts, kind);
-      LODE_OPTION_FIELD(o, opts, missing);
-      LODE_OPTION_FIELD(o, opts, smooth);
-      LODE_OPTION_FIELD(o, opts, min_eigenvalue);
-      LODE_OPTION_FIELD(o, opts, min_pair_observations);
-      LODE_OPTION_FIELD(o, opts, threads);
-      LODE_OPTION_FIELD(o, opts, max_categories);
-      LODE_OPTION_FIELD(o, opts, zero_cells);
-      LODE_OPTION_FIELD(o, opts, zero_cell_add);
-      LODE_OPTION_FIELD(o, opts, progress);
-      LODE_OPTION_FIELD(o, opts, progress_user);
-    }
-    CorrelationOptions co;
-    switch (o.kind) {
-      case LODE_PEARSON: co.kind = CorrelationKind::pearson; break;
-      case LODE_SPEARMAN: co.kind = CorrelationKind::spearman; break;
-      case LODE_POLYCHORIC: co.kind = CorrelationKind::polychoric; break;
-      default: fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown correlation kind {}", o.kind));
-    }
-    switch (o.missing) {
-      case LODE_PAIRWISE: co.missing = MissingPolicy::pairwise; break;
-      case LODE_LISTWISE: co.missing = MissingPolicy::listwise; break;
-      default: fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown missing-value policy {}", o.missing));
-    }
-    co.smooth_if_not_positive_definite = o.smooth != 0;
-    if (!(o.min_eigenvalue >= 0.0 && o.min_eigenvalue < 1.0))
-      fail(LODE_E_INVALID_ARGUMENT,
-           fmt::format("min_eigenvalue must be at least 0 and below 1; it is {}", o.min_eigenvalue));
-    co.min_eigenvalue = o.min_eigenvalue;
-    if (o.min_pair_observations < 2)
-      fail(LODE_E_INVALID_ARGUMENT,
-           fmt::format("min_pair_observations must be at least 2; it is {}", o.min_pair_observations));
-    co.min_pair_observations = static_cast<Index>(o.min_pair_observations);
-    if (o.threads < 0) fail(LODE_E_INVALID_ARGUMENT, fmt::format("threads must be 0 (all cores) or more; it is {}", o.threads));
-    co.threads = o.threads;
-    if (o.max_categories < 2 || o.max_categories > 100)
-      fail(LODE_E_INVALID_ARGUMENT, fmt::format("max_categories must be between 2 and 100; it is {}", o.max_categories));
-    co.polychoric.max_categories = o.max_categories;
-    switch (o.zero_cells) {
-      case LODE_ZERO_CELLS_NONE: co.polychoric.zero_cells = ZeroCellPolicy::none; break;
-      case LODE_ZERO_CELLS_AT_BOUND: co.polychoric.zero_cells = ZeroCellPolicy::at_bound; break;
-      case LODE_ZERO_CELLS_ALWAYS: co.polychoric.zero_cells = ZeroCellPolicy::always; break;
-      default: fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown zero-cell policy {}", o.zero_cells));
-    }
-    if (!(o.zero_cell_add > 0.0 && o.zero_cell_add <= 1.0))
-      fail(LODE_E_INVALID_ARGUMENT, fmt::format("zero_cell_add must be above 0 and at most 1; it is {}", o.zero_cell_add));
-    co.polychoric.zero_cell_add = o.zero_cell_add;
-    if (o.progress) {
-      const lode_progress_fn fn = o.progress;
-      void* user = o.progress_user;
-      co.polychoric.progress = [fn, user](std::int64_t done, std::int64_t total) { return fn(user, done, total) == 0; };
-    }
+    CorrelationOptions co = read_correlation_options(opts);
     const auto& content = data->content;
     co.item_names = content->item_names;
 
@@ -238,6 +260,7 @@ LODE_API int lode_correlate(const lode_data* data, const lode_correlation_option
       case DataSource::covariance: c->result = correlation_from_covariance(content->values, content->n_obs, co); break;
     }
     co.polychoric.progress = {};  // the caller's callback and its user data are for this call only
+    co.em.progress = {};
     c->options = co;
     c->eigenvalues = eigenvalues_descending(c->result.matrix);
     try {
@@ -269,6 +292,12 @@ LODE_API int lode_correlation_matrix(const lode_correlation* corr, int key, doub
           fail(LODE_E_INVALID_ARGUMENT, "standard errors and thresholds exist only for polychoric correlations of raw data");
         write_matrix(key == LODE_CORRELATION_THRESHOLDS ? corr->thresholds : corr->standard_errors, out, capacity, rows,
                      cols);
+        break;
+      case LODE_CORRELATION_EM_MEANS:
+      case LODE_CORRELATION_EM_COVARIANCE:
+        if (r.missing != MissingPolicy::em || r.em.means.size() == 0)
+          fail(LODE_E_INVALID_ARGUMENT, "EM means and covariances exist only for correlations of raw data with the em rule");
+        write_matrix(key == LODE_CORRELATION_EM_MEANS ? Matrix(r.em.means) : r.em.covariance, out, capacity, rows, cols);
         break;
       case LODE_CORRELATION_REDUCED_EIGENVALUES:
       case LODE_CORRELATION_SMC:
@@ -311,7 +340,24 @@ LODE_API int lode_correlation_value(const lode_correlation* corr, int key, doubl
       case LODE_CORRELATION_PAIRS_NOT_CONVERGED: v = static_cast<double>(corr->pairs_not_converged); break;
       case LODE_CORRELATION_PAIRS_AT_BOUND: v = static_cast<double>(corr->pairs_at_bound); break;
       case LODE_CORRELATION_PAIRS_ZERO_CELL_CORRECTED: v = static_cast<double>(corr->pairs_zero_cell_corrected); break;
-      case LODE_CORRELATION_MISSING: v = r.missing == MissingPolicy::listwise ? LODE_LISTWISE : LODE_PAIRWISE; break;
+      case LODE_CORRELATION_MISSING:
+        v = r.missing == MissingPolicy::listwise ? LODE_LISTWISE : r.missing == MissingPolicy::em ? LODE_MISSING_EM : LODE_PAIRWISE;
+        break;
+      case LODE_CORRELATION_EM_CONVERGED:
+      case LODE_CORRELATION_EM_ITERATIONS:
+      case LODE_CORRELATION_EM_FINAL_CHANGE:
+      case LODE_CORRELATION_EM_TOLERANCE:
+      case LODE_CORRELATION_EM_MAX_ITERATIONS: {
+        if (r.missing != MissingPolicy::em || r.em.means.size() == 0)
+          fail(LODE_E_INVALID_ARGUMENT, "EM convergence exists only for correlations of raw data with the em rule");
+        const Convergence& c = r.em.convergence;
+        v = key == LODE_CORRELATION_EM_CONVERGED    ? (c.converged ? 1.0 : 0.0)
+            : key == LODE_CORRELATION_EM_ITERATIONS ? static_cast<double>(c.iterations)
+            : key == LODE_CORRELATION_EM_FINAL_CHANGE ? c.final_change
+            : key == LODE_CORRELATION_EM_TOLERANCE    ? c.tolerance
+                                                      : static_cast<double>(c.max_iterations);
+        break;
+      }
       default: fail(LODE_E_INVALID_ARGUMENT, key_text(key, "lode_correlation number (lode_correlation_value)"));
     }
     *value = v;
