@@ -43,7 +43,8 @@ class CorrelationOptions(ctypes.Structure):
     _fields_ = [("struct_size", c_size_t), ("kind", c_int), ("missing", c_int), ("smooth", c_int),
                 ("min_eigenvalue", c_double), ("min_pair_observations", c_int64), ("threads", c_int),
                 ("max_categories", c_int), ("zero_cells", c_int), ("zero_cell_add", c_double),
-                ("progress", PROGRESS_FN), ("progress_user", c_void_p)]
+                ("progress", PROGRESS_FN), ("progress_user", c_void_p), ("em_tolerance", c_double),
+                ("em_max_iterations", c_int)]
 
 
 def _candidates(here=None, platform=None):
