@@ -38,7 +38,7 @@ Vector flags_of_heywood(const ExtractionResult& e) {
 lode_rotation_options rotation_defaults() {
   lode_rotation_options d{};
   d.struct_size = sizeof d;
-  d.method = LODE_ROTATION_VARIMAX;
+  d.method = LODE_CRITERION_VARIMAX;
   d.normalize = 1;
   d.gamma = 0.0;
   d.kappa = 0.0;
@@ -58,27 +58,27 @@ lode_rotation_options rotation_defaults() {
 }  // namespace
 
 RotationMethod lode::capi::rotation_method_of(int m) {
-  if (m < LODE_ROTATION_NONE || m > LODE_ROTATION_PROMAX)
+  if (m < LODE_CRITERION_NONE || m > LODE_CRITERION_PROMAX)
     fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown rotation method {}", m));
   // lode.h numbers the methods as the core does (checked by static_asserts below).
   return static_cast<RotationMethod>(m);
 }
 
 namespace {
-static_assert(static_cast<int>(RotationMethod::none) == LODE_ROTATION_NONE);
-static_assert(static_cast<int>(RotationMethod::varimax) == LODE_ROTATION_VARIMAX);
-static_assert(static_cast<int>(RotationMethod::varimax_kaiser) == LODE_ROTATION_VARIMAX_KAISER);
-static_assert(static_cast<int>(RotationMethod::quartimax) == LODE_ROTATION_QUARTIMAX);
-static_assert(static_cast<int>(RotationMethod::equamax) == LODE_ROTATION_EQUAMAX);
-static_assert(static_cast<int>(RotationMethod::crawford_ferguson) == LODE_ROTATION_CRAWFORD_FERGUSON);
-static_assert(static_cast<int>(RotationMethod::geomin_orthogonal) == LODE_ROTATION_GEOMIN_ORTHOGONAL);
-static_assert(static_cast<int>(RotationMethod::target_orthogonal) == LODE_ROTATION_TARGET_ORTHOGONAL);
-static_assert(static_cast<int>(RotationMethod::oblimin) == LODE_ROTATION_OBLIMIN);
-static_assert(static_cast<int>(RotationMethod::quartimin) == LODE_ROTATION_QUARTIMIN);
-static_assert(static_cast<int>(RotationMethod::crawford_ferguson_oblique) == LODE_ROTATION_CRAWFORD_FERGUSON_OBLIQUE);
-static_assert(static_cast<int>(RotationMethod::geomin) == LODE_ROTATION_GEOMIN);
-static_assert(static_cast<int>(RotationMethod::target_oblique) == LODE_ROTATION_TARGET_OBLIQUE);
-static_assert(static_cast<int>(RotationMethod::promax) == LODE_ROTATION_PROMAX);
+static_assert(static_cast<int>(RotationMethod::none) == LODE_CRITERION_NONE);
+static_assert(static_cast<int>(RotationMethod::varimax) == LODE_CRITERION_VARIMAX);
+static_assert(static_cast<int>(RotationMethod::varimax_kaiser) == LODE_CRITERION_VARIMAX_KAISER);
+static_assert(static_cast<int>(RotationMethod::quartimax) == LODE_CRITERION_QUARTIMAX);
+static_assert(static_cast<int>(RotationMethod::equamax) == LODE_CRITERION_EQUAMAX);
+static_assert(static_cast<int>(RotationMethod::crawford_ferguson) == LODE_CRITERION_CRAWFORD_FERGUSON);
+static_assert(static_cast<int>(RotationMethod::geomin_orthogonal) == LODE_CRITERION_GEOMIN_ORTHOGONAL);
+static_assert(static_cast<int>(RotationMethod::target_orthogonal) == LODE_CRITERION_TARGET_ORTHOGONAL);
+static_assert(static_cast<int>(RotationMethod::oblimin) == LODE_CRITERION_OBLIMIN);
+static_assert(static_cast<int>(RotationMethod::quartimin) == LODE_CRITERION_QUARTIMIN);
+static_assert(static_cast<int>(RotationMethod::crawford_ferguson_oblique) == LODE_CRITERION_CRAWFORD_FERGUSON_OBLIQUE);
+static_assert(static_cast<int>(RotationMethod::geomin) == LODE_CRITERION_GEOMIN);
+static_assert(static_cast<int>(RotationMethod::target_oblique) == LODE_CRITERION_TARGET_OBLIQUE);
+static_assert(static_cast<int>(RotationMethod::promax) == LODE_CRITERION_PROMAX);
 
 RotationOptions read_rotation_options(const lode_rotation_options* opts, const std::vector<std::string>& names) {
   lode_rotation_options o = rotation_defaults();
@@ -138,11 +138,11 @@ RotationOptions read_rotation_options(const lode_rotation_options* opts, const s
   return r;
 }
 
-lode_fit_options fit_defaults() {
-  lode_fit_options d{};
+lode_model_options fit_defaults() {
+  lode_model_options d{};
   d.struct_size = sizeof d;
   d.factors = 0;
-  d.method = LODE_ML;
+  d.method = LODE_EXTRACTION_ML;
   const ExtractionOptions core;  // the core's defaults
   d.max_iterations = core.max_iterations;
   d.tolerance = core.tolerance;
@@ -159,18 +159,18 @@ lode_fit_options fit_defaults() {
 
 ExtractionMethod lode::capi::extraction_method_of(int m) {
   switch (m) {
-    case LODE_ML: return ExtractionMethod::maximum_likelihood;
-    case LODE_PAF: return ExtractionMethod::principal_axis;
-    case LODE_MINRES: return ExtractionMethod::minimum_residual;
-    case LODE_PCA: return ExtractionMethod::principal_components;
+    case LODE_EXTRACTION_ML: return ExtractionMethod::maximum_likelihood;
+    case LODE_EXTRACTION_PAF: return ExtractionMethod::principal_axis;
+    case LODE_EXTRACTION_MINRES: return ExtractionMethod::minimum_residual;
+    case LODE_EXTRACTION_PCA: return ExtractionMethod::principal_components;
     default: fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown extraction method {}", m));
   }
 }
 
 namespace {
 
-// The extraction fields of lode_fit_options, checked, for the matrix behind `corr`.
-ExtractionOptions extraction_options_of(const lode_fit_options& o, const lode_correlation* corr) {
+// The extraction fields of lode_model_options, checked, for the matrix behind `corr`.
+ExtractionOptions extraction_options_of(const lode_model_options& o, const lode_correlation* corr) {
   ExtractionOptions eo;
   eo.method = extraction_method_of(o.method);
   if (o.max_iterations < 1)
@@ -189,20 +189,20 @@ ExtractionOptions extraction_options_of(const lode_fit_options& o, const lode_co
 
 int extraction_code_of(ExtractionMethod m) {
   switch (m) {
-    case ExtractionMethod::maximum_likelihood: return LODE_ML;
-    case ExtractionMethod::principal_axis: return LODE_PAF;
-    case ExtractionMethod::minimum_residual: return LODE_MINRES;
-    case ExtractionMethod::principal_components: return LODE_PCA;
+    case ExtractionMethod::maximum_likelihood: return LODE_EXTRACTION_ML;
+    case ExtractionMethod::principal_axis: return LODE_EXTRACTION_PAF;
+    case ExtractionMethod::minimum_residual: return LODE_EXTRACTION_MINRES;
+    case ExtractionMethod::principal_components: return LODE_EXTRACTION_PCA;
   }
   return -1;
 }
 
 }  // namespace
 
-FitSetup lode::capi::read_fit_options(const lode_fit_options* opts, const lode_correlation* corr) {
-  lode_fit_options o = fit_defaults();
+FitSetup lode::capi::read_fit_options(const lode_model_options* opts, const lode_correlation* corr) {
+  lode_model_options o = fit_defaults();
   if (opts) {
-    check_options_size(opts, "lode_fit_options");
+    check_options_size(opts, "lode_model_options");
     LODE_OPTION_FIELD(o, opts, factors);
     LODE_OPTION_FIELD(o, opts, method);
     LODE_OPTION_FIELD(o, opts, max_iterations);
@@ -229,10 +229,10 @@ FitSetup lode::capi::read_fit_options(const lode_fit_options* opts, const lode_c
   return setup;
 }
 
-ExtractionOptions lode::capi::read_extraction_options(const lode_fit_options* opts, const lode_correlation* corr) {
-  lode_fit_options o = fit_defaults();
+ExtractionOptions lode::capi::read_extraction_options(const lode_model_options* opts, const lode_correlation* corr) {
+  lode_model_options o = fit_defaults();
   if (opts) {
-    check_options_size(opts, "lode_fit_options");
+    check_options_size(opts, "lode_model_options");
     LODE_OPTION_FIELD(o, opts, method);
     LODE_OPTION_FIELD(o, opts, max_iterations);
     LODE_OPTION_FIELD(o, opts, tolerance);
@@ -284,7 +284,7 @@ LODE_API int lode_rotation_method_from_name(const char* name, int* method) {
 }
 
 LODE_API const char* lode_rotation_method_name(int method) {
-  if (method < LODE_ROTATION_NONE || method > LODE_ROTATION_PROMAX) return nullptr;
+  if (method < LODE_CRITERION_NONE || method > LODE_CRITERION_PROMAX) return nullptr;
   return rotation_name(static_cast<RotationMethod>(method));
 }
 
@@ -292,7 +292,7 @@ LODE_API int lode_rotation_options_init(lode_rotation_options* opts, size_t stru
   return guarded([&] { init_options(opts, struct_size, rotation_defaults(), "lode_rotation_options"); });
 }
 
-LODE_API int lode_rotate(const double* loadings, int64_t items, int64_t factors, int64_t row_stride,
+LODE_API int lode_rotation_compute(const double* loadings, int64_t items, int64_t factors, int64_t row_stride,
                          int64_t col_stride, const lode_rotation_options* opts, lode_rotation** out) {
   return guarded([&] {
     require_pointer(out, "out");
@@ -353,8 +353,8 @@ LODE_API int lode_rotation_text(const lode_rotation* rotation, int key, char* ou
 
 // ---- fitted models -------------------------------------------------------------------------------
 
-LODE_API int lode_fit_options_init(lode_fit_options* opts, size_t struct_size) {
-  return guarded([&] { init_options(opts, struct_size, fit_defaults(), "lode_fit_options"); });
+LODE_API int lode_model_options_init(lode_model_options* opts, size_t struct_size) {
+  return guarded([&] { init_options(opts, struct_size, fit_defaults(), "lode_model_options"); });
 }
 
 namespace {
@@ -394,7 +394,7 @@ void fit_standardisation(lode_model& m, const CorrelationResult& r) {
 
 }  // namespace
 
-LODE_API int lode_fit(const lode_correlation* corr, const lode_fit_options* opts, lode_model** out) {
+LODE_API int lode_model_compute(const lode_correlation* corr, const lode_model_options* opts, lode_model** out) {
   return guarded([&] {
     require_pointer(corr, "corr");
     require_pointer(out, "out");

@@ -85,7 +85,7 @@ LODE_API const char* lode_status_name(int status) {
   }
 }
 
-LODE_API const char* lode_last_error(void) { return lode::capi::last_error(); }
+LODE_API const char* lode_error_message(void) { return lode::capi::last_error(); }
 
 LODE_API int lode_data_from_raw(const double* values, int64_t rows, int64_t cols, int64_t row_stride,
                                 int64_t col_stride, lode_data** out) {
@@ -144,8 +144,8 @@ LODE_API int lode_correlation_options_init(lode_correlation_options* opts, size_
   return guarded([&] {
     lode_correlation_options d{};
     d.struct_size = sizeof d;
-    d.kind = LODE_PEARSON;
-    d.missing = LODE_PAIRWISE;
+    d.kind = LODE_COEFFICIENT_PEARSON;
+    d.missing = LODE_MISSING_PAIRWISE;
     d.smooth = 0;
     d.min_eigenvalue = 1e-6;
     d.min_pair_observations = 3;
@@ -185,14 +185,14 @@ CorrelationOptions lode::capi::read_correlation_options(const lode_correlation_o
   }
   CorrelationOptions co;
   switch (o.kind) {
-    case LODE_PEARSON: co.kind = CorrelationKind::pearson; break;
-    case LODE_SPEARMAN: co.kind = CorrelationKind::spearman; break;
-    case LODE_POLYCHORIC: co.kind = CorrelationKind::polychoric; break;
+    case LODE_COEFFICIENT_PEARSON: co.kind = CorrelationKind::pearson; break;
+    case LODE_COEFFICIENT_SPEARMAN: co.kind = CorrelationKind::spearman; break;
+    case LODE_COEFFICIENT_POLYCHORIC: co.kind = CorrelationKind::polychoric; break;
     default: fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown correlation kind {}", o.kind));
   }
   switch (o.missing) {
-    case LODE_PAIRWISE: co.missing = MissingPolicy::pairwise; break;
-    case LODE_LISTWISE: co.missing = MissingPolicy::listwise; break;
+    case LODE_MISSING_PAIRWISE: co.missing = MissingPolicy::pairwise; break;
+    case LODE_MISSING_LISTWISE: co.missing = MissingPolicy::listwise; break;
     case LODE_MISSING_EM: co.missing = MissingPolicy::em; break;
     default: fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown missing-value policy {}", o.missing));
   }
@@ -236,7 +236,7 @@ CorrelationOptions lode::capi::read_correlation_options(const lode_correlation_o
 
 extern "C" {
 
-LODE_API int lode_correlate(const lode_data* data, const lode_correlation_options* opts, lode_correlation** out) {
+LODE_API int lode_correlation_compute(const lode_data* data, const lode_correlation_options* opts, lode_correlation** out) {
   return guarded([&] {
     require_pointer(data, "data");
     require_pointer(out, "out");
@@ -333,15 +333,15 @@ LODE_API int lode_correlation_value(const lode_correlation* corr, int key, doubl
       case LODE_CORRELATION_SMOOTHING_CONVERGED: v = s.convergence.converged ? 1.0 : 0.0; break;
       case LODE_CORRELATION_SMOOTHING_ITERATIONS: v = static_cast<double>(s.convergence.iterations); break;
       case LODE_CORRELATION_KIND:
-        v = r.kind == CorrelationKind::spearman     ? LODE_SPEARMAN
-            : r.kind == CorrelationKind::polychoric ? LODE_POLYCHORIC
-                                                    : LODE_PEARSON;
+        v = r.kind == CorrelationKind::spearman     ? LODE_COEFFICIENT_SPEARMAN
+            : r.kind == CorrelationKind::polychoric ? LODE_COEFFICIENT_POLYCHORIC
+                                                    : LODE_COEFFICIENT_PEARSON;
         break;
       case LODE_CORRELATION_PAIRS_NOT_CONVERGED: v = static_cast<double>(corr->pairs_not_converged); break;
       case LODE_CORRELATION_PAIRS_AT_BOUND: v = static_cast<double>(corr->pairs_at_bound); break;
       case LODE_CORRELATION_PAIRS_ZERO_CELL_CORRECTED: v = static_cast<double>(corr->pairs_zero_cell_corrected); break;
       case LODE_CORRELATION_MISSING:
-        v = r.missing == MissingPolicy::listwise ? LODE_LISTWISE : r.missing == MissingPolicy::em ? LODE_MISSING_EM : LODE_PAIRWISE;
+        v = r.missing == MissingPolicy::listwise ? LODE_MISSING_LISTWISE : r.missing == MissingPolicy::em ? LODE_MISSING_EM : LODE_MISSING_PAIRWISE;
         break;
       case LODE_CORRELATION_EM_CONVERGED:
       case LODE_CORRELATION_EM_ITERATIONS:

@@ -31,8 +31,8 @@ LODE_API int lode_group_comparison_options_init(lode_group_comparison_options* o
     lode_group_comparison_options d{};
     d.struct_size = sizeof d;
     d.factors = 0;
-    d.method = LODE_ML;
-    d.rotation = LODE_ROTATION_OBLIMIN;
+    d.method = LODE_EXTRACTION_ML;
+    d.rotation = LODE_CRITERION_OBLIMIN;
     d.correlation = nullptr;
     d.min_group = 100;
     d.difference_threshold = 0.2;

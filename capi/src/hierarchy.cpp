@@ -19,7 +19,7 @@ LODE_API int lode_schmid_leiman_options_init(lode_schmid_leiman_options* opts, s
   return guarded([&] {
     lode_schmid_leiman_options d{};
     d.struct_size = sizeof d;
-    d.second_order = LODE_MINRES;
+    d.second_order = LODE_EXTRACTION_MINRES;
     d.max_iterations = 1000;
     d.tolerance = 1e-10;
     init_options(opts, struct_size, d, "lode_schmid_leiman_options");

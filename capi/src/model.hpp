@@ -1,4 +1,4 @@
-// The fitted model handle and the reading of lode_fit_options, shared by lode_fit, the item flags and
+// The fitted model handle and the reading of lode_model_options, shared by lode_model_compute, the item flags and
 // the bootstrap. Internal to liblode.
 #pragma once
 
@@ -16,7 +16,7 @@
 
 namespace lode::capi {
 
-// lode_fit_options, read (older struct sizes included) and checked.
+// lode_model_options, read (older struct sizes included) and checked.
 struct FitSetup {
   int factors = 0;  // 0 = suggested by the factor count
   ExtractionOptions extraction;          // with corr's n_obs and item names
@@ -27,17 +27,17 @@ struct FitSetup {
   void* progress_user = nullptr;
 };
 
-FitSetup read_fit_options(const lode_fit_options* opts, const lode_correlation* corr);
+FitSetup read_fit_options(const lode_model_options* opts, const lode_correlation* corr);
 
-// enum lode_extraction_method -> ExtractionMethod (unknown values fail with the number).
+// enum lode_extraction -> ExtractionMethod (unknown values fail with the number).
 ExtractionMethod extraction_method_of(int method);
 
-// enum lode_rotation_method -> RotationMethod (unknown values fail with the number).
+// enum lode_criterion -> RotationMethod (unknown values fail with the number).
 RotationMethod rotation_method_of(int method);
 
-// Only the extraction fields of lode_fit_options (method, max_iterations, tolerance, min_uniqueness), read
-// and checked, with the defaults of lode_fit_options_init for the rest.
-ExtractionOptions read_extraction_options(const lode_fit_options* opts, const lode_correlation* corr);
+// Only the extraction fields of lode_model_options (method, max_iterations, tolerance, min_uniqueness), read
+// and checked, with the defaults of lode_model_options_init for the rest.
+ExtractionOptions read_extraction_options(const lode_model_options* opts, const lode_correlation* corr);
 
 }  // namespace lode::capi
 

@@ -48,7 +48,7 @@ void check_time(const Deadline& deadline, const char* what) {
 void check(int status, const char* what) {
   if (status == LODE_OK) return;
   if (status == LODE_E_CANCELLED) time_limit_passed(what);
-  const char* detail = lode_last_error();
+  const char* detail = lode_error_message();
   throw CellError(failure_of_status(status),
                   std::string(what) + ": " + (detail && *detail ? detail : lode_status_name(status)));
 }
@@ -107,8 +107,8 @@ DataHandle make_data(const Input& in, std::int64_t n_obs) {
 }
 
 struct CorrelationSpec {
-  int kind = LODE_PEARSON;
-  int missing = LODE_PAIRWISE;
+  int kind = LODE_COEFFICIENT_PEARSON;
+  int missing = LODE_MISSING_PAIRWISE;
   std::int64_t n_obs = 0;  // for a correlation matrix given as data
 };
 
@@ -133,7 +133,7 @@ std::shared_ptr<const lode_correlation> correlation(const Call& call, const Inpu
         opts.progress = deadline_progress;
         opts.progress_user = const_cast<Deadline*>(&call.deadline);
         lode_correlation* c = nullptr;
-        check(lode_correlate(data.get(), &opts, &c), "correlation");
+        check(lode_correlation_compute(data.get(), &opts, &c), "correlation");
         return std::shared_ptr<const lode_correlation>(c, [](const lode_correlation* p) {
           lode_correlation_free(const_cast<lode_correlation*>(p));
         });
@@ -163,9 +163,9 @@ Output fn_version(const Call&) {
 Output fn_corr(const Call& call) {
   const Input in = read_input(call.args[0], "data");
   CorrelationSpec spec;
-  const int kinds[] = {LODE_PEARSON, LODE_SPEARMAN, LODE_POLYCHORIC};
+  const int kinds[] = {LODE_COEFFICIENT_PEARSON, LODE_COEFFICIENT_SPEARMAN, LODE_COEFFICIENT_POLYCHORIC};
   spec.kind = kinds[choice(call.args[1], "kind", {"pearson", "spearman", "polychoric"})];
-  const int rules[] = {LODE_PAIRWISE, LODE_LISTWISE, LODE_MISSING_EM};
+  const int rules[] = {LODE_MISSING_PAIRWISE, LODE_MISSING_LISTWISE, LODE_MISSING_EM};
   spec.missing = rules[choice(call.args[2], "missing", {"pairwise", "listwise", "em"})];
   auto c = correlation(call, in, spec);
   return to_output(correlation_matrix(c.get(), LODE_CORRELATION_MATRIX, "correlation matrix"));
@@ -283,7 +283,7 @@ std::shared_ptr<const FitOutputs> fit(const Call& call, const FitRequest& req) {
   const std::size_t p = req.src.input.grid->cols;
   const std::size_t k = static_cast<std::size_t>(req.spec.factors);
   // The outputs copied out of the model, plus the model itself (its matrices, about 4 p x p).
-  // lode_fit reports no progress inside one extraction, one rotation start or the fit statistics
+  // lode_model_compute reports no progress inside one extraction, one rotation start or the fit statistics
   return cached_in_time<FitOutputs>(
       call, req.key, "factor analysis",
       [corr, spec = req.spec, deadline = call.deadline] { return run_fit(corr.get(), spec, deadline); }, (p * p * 6 + p * k * 6) * sizeof(double) + 8192);
@@ -313,7 +313,7 @@ std::shared_ptr<const lode_factorability> factorability(const Call& call, std::s
       call, k.take(), "factorability",
       [corr] {
         lode_factorability* f = nullptr;
-        check(lode_assess_factorability(corr.get(), &f), "factorability");
+        check(lode_factorability_compute(corr.get(), &f), "factorability");
         return shared_handle<lode_factorability, lode_factorability_free>(f);
       },
       src.input.grid->cols * 2 * sizeof(double) + 1024);
@@ -325,10 +325,10 @@ double factorability_value(const lode_factorability* f, int key, const char* wha
   return v;
 }
 
-const int kRotationMethods[] = {LODE_ROTATION_OBLIMIN, LODE_ROTATION_NONE,    LODE_ROTATION_VARIMAX,
-                                LODE_ROTATION_QUARTIMAX, LODE_ROTATION_EQUAMAX, LODE_ROTATION_PROMAX,
-                                LODE_ROTATION_QUARTIMIN, LODE_ROTATION_GEOMIN};
-const int kExtractionMethods[] = {LODE_ML, LODE_PAF, LODE_MINRES};
+const int kRotationMethods[] = {LODE_CRITERION_OBLIMIN, LODE_CRITERION_NONE,    LODE_CRITERION_VARIMAX,
+                                LODE_CRITERION_QUARTIMAX, LODE_CRITERION_EQUAMAX, LODE_CRITERION_PROMAX,
+                                LODE_CRITERION_QUARTIMIN, LODE_CRITERION_GEOMIN};
+const int kExtractionMethods[] = {LODE_EXTRACTION_ML, LODE_EXTRACTION_PAF, LODE_EXTRACTION_MINRES};
 
 double model_value(const lode_model* m, int key, const char* what) {
   double v = 0.0;
@@ -341,15 +341,15 @@ std::shared_ptr<const FitOutputs> run_fit(const lode_correlation* corr, const Fi
   lode_rotation_options ro;
   check(lode_rotation_options_init(&ro, sizeof ro), "rotation options");
   ro.method = kRotationMethods[spec.rotation];
-  lode_fit_options fo;
-  check(lode_fit_options_init(&fo, sizeof fo), "fit options");
+  lode_model_options fo;
+  check(lode_model_options_init(&fo, sizeof fo), "fit options");
   fo.factors = spec.factors;
   fo.method = kExtractionMethods[spec.method];
   fo.rotation = &ro;
   fo.progress = deadline_progress;  // checked before and after the extraction and at every rotation start
   fo.progress_user = const_cast<Deadline*>(&deadline);
   lode_model* raw = nullptr;
-  check(lode_fit(corr, &fo, &raw), "factor analysis");
+  check(lode_model_compute(corr, &fo, &raw), "factor analysis");
   auto model = shared_handle<lode_model, lode_model_free>(raw);
   const lode_model* m = model.get();
   auto out = std::make_shared<FitOutputs>();
@@ -380,7 +380,7 @@ std::shared_ptr<const FitOutputs> run_fit(const lode_correlation* corr, const Fi
     double v = 0.0;
     const int status = lode_model_value(m, key, &v);
     if (status != LODE_OK) {
-      out->statistics_error = lode_last_error();
+      out->statistics_error = lode_error_message();
       if (out->statistics_error.empty()) out->statistics_error = lode_status_name(status);
       out->statistics.clear();
       break;
@@ -402,17 +402,17 @@ std::shared_ptr<const lode_factor_count> run_count(const lode_correlation* corr,
   o.progress = deadline_progress;
   o.progress_user = const_cast<Deadline*>(&deadline);
   lode_factor_count* raw = nullptr;
-  check(lode_count_factors(corr, &o, &raw), "factor count");
+  check(lode_factor_count_compute(corr, &o, &raw), "factor count");
   return shared_handle<lode_factor_count, lode_factor_count_free>(raw);
 }
 
 std::shared_ptr<const ParallelOutputs> run_parallel(const lode_correlation* corr, std::int64_t replicates,
                                                     double percentile, std::int64_t seed, const Deadline& deadline) {
   auto c = run_count(corr, replicates, percentile, seed, deadline);
-  const Matrix observed = read_matrix(c.get(), LODE_COUNT_OBSERVED_PC, lode_factor_count_matrix, "eigenvalues");
-  const Matrix mean = read_matrix(c.get(), LODE_COUNT_RANDOM_PC_MEAN, lode_factor_count_matrix, "random eigenvalues");
+  const Matrix observed = read_matrix(c.get(), LODE_FACTOR_COUNT_OBSERVED_PC, lode_factor_count_matrix, "eigenvalues");
+  const Matrix mean = read_matrix(c.get(), LODE_FACTOR_COUNT_RANDOM_PC_MEAN, lode_factor_count_matrix, "random eigenvalues");
   const Matrix pct =
-      read_matrix(c.get(), LODE_COUNT_RANDOM_PC_PERCENTILE, lode_factor_count_matrix, "random eigenvalues");
+      read_matrix(c.get(), LODE_FACTOR_COUNT_RANDOM_PC_PERCENTILE, lode_factor_count_matrix, "random eigenvalues");
   auto out = std::make_shared<ParallelOutputs>();
   out->table.rows = observed.rows;
   out->table.cols = 3;
@@ -427,9 +427,9 @@ std::shared_ptr<const ParallelOutputs> run_parallel(const lode_correlation* corr
 std::int64_t run_nfactors(const lode_correlation* corr, int rule, std::int64_t seed, const Deadline& deadline) {
   auto c = run_count(corr, 0, 0.0, seed, deadline);
   // "parallel" is the library's suggested count (parallel analysis of the reduced-matrix factor eigenvalues
-  // against the 95th percentile), the one rule lode_fit, the report and Python use when factors is 0.
-  const int keys[] = {LODE_COUNT_SUGGESTED, LODE_COUNT_MAP_SQUARED_SUGGESTED, LODE_COUNT_KAISER,
-                      LODE_COUNT_EMPIRICAL_KAISER};
+  // against the 95th percentile), the one rule lode_model_compute, the report and Python use when factors is 0.
+  const int keys[] = {LODE_FACTOR_COUNT_SUGGESTED, LODE_FACTOR_COUNT_MAP_SQUARED_SUGGESTED, LODE_FACTOR_COUNT_KAISER,
+                      LODE_FACTOR_COUNT_EMPIRICAL_KAISER};
   double v = 0.0;
   check(lode_factor_count_value(c.get(), keys[rule], &v), "factor count");
   return static_cast<std::int64_t>(v);
@@ -443,14 +443,14 @@ Matrix run_rotate(const Grid& loadings, int rotation, const Arg& parameter) {
     if (parameter.kind != Arg::Kind::number)
       throw CellError(Failure::bad_argument, "'parameter' must be a number");
     switch (ro.method) {
-      case LODE_ROTATION_OBLIMIN: ro.gamma = parameter.number; break;
-      case LODE_ROTATION_PROMAX: ro.power = parameter.number; break;
-      case LODE_ROTATION_GEOMIN: ro.epsilon = parameter.number; break;
+      case LODE_CRITERION_OBLIMIN: ro.gamma = parameter.number; break;
+      case LODE_CRITERION_PROMAX: ro.power = parameter.number; break;
+      case LODE_CRITERION_GEOMIN: ro.epsilon = parameter.number; break;
       default: break;  // the other rotations take no parameter
     }
   }
   lode_rotation* raw = nullptr;
-  check(lode_rotate(loadings.values.data(), static_cast<std::int64_t>(loadings.rows),
+  check(lode_rotation_compute(loadings.values.data(), static_cast<std::int64_t>(loadings.rows),
                     static_cast<std::int64_t>(loadings.cols), static_cast<std::int64_t>(loadings.cols), 1, &ro, &raw),
         "rotation");
   auto r = shared_handle<lode_rotation, lode_rotation_free>(raw);
@@ -546,7 +546,7 @@ Output fn_rotate(const Call& call) {
   // `rotation` left out or empty: oblimin, the default of every function that rotates.
   check_time(call.deadline, "rotation");
   const int rotation = rotation_arg(call.args[1]);
-  // lode_rotate reports no progress: it runs on a thread of its own, waited for until the deadline
+  // lode_rotation_compute reports no progress: it runs on a thread of its own, waited for until the deadline
   auto rotated = within_time<Matrix>(call.deadline, "rotation", [loadings = a.grid, rotation, parameter = call.args[2]] {
     return std::make_shared<const Matrix>(run_rotate(loadings, rotation, parameter));
   });
@@ -558,17 +558,17 @@ Output fn_rotate(const Call& call) {
 // ---------------------------------------------------------------------------------------------
 namespace {
 
-const int kScoreMethods[] = {LODE_SCORES_REGRESSION, LODE_SCORES_BARTLETT, LODE_SCORES_TENBERGE};
+const int kScoreMethods[] = {LODE_ESTIMATOR_REGRESSION, LODE_ESTIMATOR_BARTLETT, LODE_ESTIMATOR_CORRELATION_PRESERVING};
 
-// Scores of the rows the model was fitted to (lode_score with data = NULL), with the C ABI's rule
-// for rows with missing items (LODE_SCORE_FROM_ANSWERED: a row that answered at least half of the
+// Scores of the rows the model was fitted to (lode_scores_compute with data = NULL), with the C ABI's rule
+// for rows with missing items (LODE_GAPS_FROM_ANSWERED: a row that answered at least half of the
 // items is scored from the items it answered; the others are left NaN, shown as #NUM!).
 std::shared_ptr<const Matrix> run_scores(const lode_model* model, int method) {
-  lode_score_options so;
-  check(lode_score_options_init(&so, sizeof so), "score options");
+  lode_scores_options so;
+  check(lode_scores_options_init(&so, sizeof so), "score options");
   so.method = kScoreMethods[method];
   lode_scores* raw = nullptr;
-  check(lode_score(model, nullptr, &so, &raw), "factor scores");
+  check(lode_scores_compute(model, nullptr, &so, &raw), "factor scores");
   auto s = shared_handle<lode_scores, lode_scores_free>(raw);
   return std::make_shared<const Matrix>(read_matrix(s.get(), LODE_SCORES_VALUES, lode_scores_matrix, "factor scores"));
 }
@@ -587,7 +587,7 @@ struct AlphaOutputs {
 std::shared_ptr<const AlphaOutputs> run_alpha(const Input& in) {
   DataHandle data = make_data(in, 0);
   lode_reliability* raw = nullptr;
-  check(lode_cronbach_alpha(data.get(), &raw), "Cronbach's alpha");
+  check(lode_reliability_compute_alpha(data.get(), &raw), "Cronbach's alpha");
   auto r = shared_handle<lode_reliability, lode_reliability_free>(raw);
   auto value = [&](int key) {
     double v = 0.0;
@@ -609,7 +609,7 @@ struct OmegaOutputs {
 
 std::shared_ptr<const OmegaOutputs> run_omega(const lode_correlation* corr) {
   lode_reliability* raw = nullptr;
-  check(lode_omega_single_scale(corr, nullptr, &raw), "McDonald's omega");  // NULL: maximum likelihood, defaults
+  check(lode_reliability_compute_scale_omega(corr, nullptr, &raw), "McDonald's omega");  // NULL: maximum likelihood, defaults
   auto r = shared_handle<lode_reliability, lode_reliability_free>(raw);
   auto out = std::make_shared<OmegaOutputs>();
   const Matrix omega = read_matrix(r.get(), LODE_OMEGA, lode_reliability_matrix, "McDonald's omega");
@@ -695,7 +695,7 @@ Output fn_congruence(const Call& call) {
   const auto items = static_cast<std::int64_t>(a.rows), factors = static_cast<std::int64_t>(a.cols);
   check_time(call.deadline, "congruence");
   lode_comparison* raw = nullptr;
-  check(lode_compare_loadings(a.values.data(), b.values.data(), items, factors, factors, 1, factors, 1, &raw),
+  check(lode_comparison_compute(a.values.data(), b.values.data(), items, factors, factors, 1, factors, 1, &raw),
         "congruence");
   auto c = shared_handle<lode_comparison, lode_comparison_free>(raw);
   const Matrix matched =

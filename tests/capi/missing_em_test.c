@@ -16,7 +16,7 @@ static int failures = 0;
   do {                                                                         \
     if (!(cond)) {                                                             \
       ++failures;                                                              \
-      fprintf(stderr, "failed: %s (last error: %s)\n", what, lode_last_error()); \
+      fprintf(stderr, "failed: %s (last error: %s)\n", what, lode_error_message()); \
     }                                                                          \
   } while (0)
 
@@ -43,7 +43,7 @@ int main(void) {
   CHECK(lode_correlation_options_init(&o, sizeof o) == LODE_OK, "options init");
   CHECK(o.em_tolerance == 1e-10 && o.em_max_iterations == 1000, "EM defaults");
   o.missing = LODE_MISSING_EM;
-  CHECK(lode_correlate(d, &o, &c) == LODE_OK, "em correlation");
+  CHECK(lode_correlation_compute(d, &o, &c) == LODE_OK, "em correlation");
   CHECK(lode_correlation_value(c, LODE_CORRELATION_MISSING, &v) == LODE_OK && v == LODE_MISSING_EM, "missing key");
   CHECK(lode_correlation_value(c, LODE_CORRELATION_N_OBS, &v) == LODE_OK && v == ROWS, "n_obs is every row");
   CHECK(lode_correlation_value(c, LODE_CORRELATION_EM_CONVERGED, &v) == LODE_OK && v == 1.0, "converged");
@@ -64,28 +64,28 @@ int main(void) {
   /* A caller compiled before the EM fields: its struct ends at progress_user; defaults apply. */
   CHECK(lode_correlation_options_init(&o, offsetof(lode_correlation_options, em_tolerance)) == LODE_OK, "old init");
   o.missing = LODE_MISSING_EM;
-  CHECK(lode_correlate(d, &o, &c) == LODE_OK, "old-size options");
+  CHECK(lode_correlation_compute(d, &o, &c) == LODE_OK, "old-size options");
   CHECK(lode_correlation_value(c, LODE_CORRELATION_EM_TOLERANCE, &v) == LODE_OK && v == 1e-10, "old-size default");
   lode_correlation_free(c);
   c = NULL;
 
   /* Pairwise: no EM keys. */
   lode_correlation_options_init(&o, sizeof o);
-  CHECK(lode_correlate(d, &o, &c) == LODE_OK, "pairwise");
+  CHECK(lode_correlation_compute(d, &o, &c) == LODE_OK, "pairwise");
   CHECK(lode_correlation_value(c, LODE_CORRELATION_EM_ITERATIONS, &v) == LODE_E_INVALID_ARGUMENT &&
-            strstr(lode_last_error(), "only for correlations of raw data with the em rule") != NULL,
+            strstr(lode_error_message(), "only for correlations of raw data with the em rule") != NULL,
         "EM keys refused for pairwise");
   lode_correlation_free(c);
   c = NULL;
 
   o.missing = LODE_MISSING_EM;
   o.em_max_iterations = 0;
-  CHECK(lode_correlate(d, &o, &c) == LODE_E_INVALID_ARGUMENT &&
-            strcmp(lode_last_error(), "em_max_iterations must be at least 1; it is 0") == 0,
+  CHECK(lode_correlation_compute(d, &o, &c) == LODE_E_INVALID_ARGUMENT &&
+            strcmp(lode_error_message(), "em_max_iterations must be at least 1; it is 0") == 0,
         "bad cap");
   o.em_max_iterations = 1000;
-  o.kind = LODE_POLYCHORIC;
-  CHECK(lode_correlate(d, &o, &c) == LODE_E_INVALID_ARGUMENT && strstr(lode_last_error(), "Pearson correlations only"),
+  o.kind = LODE_COEFFICIENT_POLYCHORIC;
+  CHECK(lode_correlation_compute(d, &o, &c) == LODE_E_INVALID_ARGUMENT && strstr(lode_error_message(), "Pearson correlations only"),
         "polychoric refused");
   CHECK(c == NULL, "no handle on failure");
   lode_data_free(d);
