@@ -162,7 +162,10 @@ enum lode_coefficient {
   LODE_COEFFICIENT_SPEARMAN = 1,
   LODE_COEFFICIENT_POLYCHORIC = 2 /* ordinal items (Olsson 1979, two-step); tetrachoric for binary items */
 };
-enum lode_missing { LODE_MISSING_PAIRWISE = 0, LODE_MISSING_LISTWISE = 1 };
+/* LODE_MISSING_EM: maximum likelihood means and covariances under missing at random by the EM
+ * algorithm (Dempster, Laird & Rubin 1977), Pearson only, raw data only; n_obs is every row with at
+ * least one answer. */
+enum lode_missing { LODE_MISSING_PAIRWISE = 0, LODE_MISSING_LISTWISE = 1, LODE_MISSING_EM = 2 };
 /* Polychoric: what to do with empty cells of a pair's table (adding zero_cell_add to them). */
 enum lode_zero_cells {
   LODE_ZERO_CELLS_NONE = 0,
@@ -178,12 +181,16 @@ typedef struct lode_correlation_options {
                                     nearest correlation matrix (Higham 2002); default 0 (flag it) */
   double min_eigenvalue;         /* the smallest eigenvalue smoothing allows; default 1e-6 */
   int64_t min_pair_observations; /* fewer observations behind any correlation is an error; default 3 */
-  int threads;                   /* polychoric pairs in parallel; 0 (default) = all cores */
+  int threads;                   /* polychoric pairs, em rows in parallel; 0 (default) = all cores */
   int max_categories;            /* polychoric: an item with more distinct codes is refused; default 10 */
   int zero_cells;                /* polychoric: enum lode_zero_cells; default LODE_ZERO_CELLS_AT_BOUND */
   double zero_cell_add;          /* polychoric: added to empty cells; default 0.5 */
-  lode_progress_fn progress;     /* polychoric: pairs done / all pairs; optional */
+  lode_progress_fn progress;     /* polychoric: pairs done / all pairs; em: iterations done / cap; optional */
   void* progress_user;           /* passed to progress */
+  /* appended after 1.3 (the em rule) */
+  double em_tolerance;           /* em: stop when no mean or covariance of the standardised items changes
+                                    by more than this; default 1e-10 */
+  int em_max_iterations;         /* em: iteration cap; default 1000 (not converging is reported) */
 } lode_correlation_options;
 
 /* Fills `opts` with the defaults; pass sizeof(*opts). */
@@ -212,10 +219,13 @@ enum lode_correlation_key {
                                               than a full maximum likelihood standard error */
   LODE_CORRELATION_THRESHOLDS = 106,       /* polychoric only: items x (most categories - 1), each item's
                                               thresholds from the left, NaN-padded */
+  LODE_CORRELATION_EM_MEANS = 107,         /* em only: the estimated means (items x 1) */
+  LODE_CORRELATION_EM_COVARIANCE = 108,    /* em only: the estimated covariance matrix (divisor: rows used) */
   /* numbers: lode_correlation_value */
   LODE_CORRELATION_ITEMS = 120,            /* number of items */
   LODE_CORRELATION_N_OBS = 121,            /* sample size for tests: listwise, rows used; pairwise, the
-                                              smallest pair count; matrix input, as given */
+                                              smallest pair count; em, rows with an answer; matrix input,
+                                              as given */
   LODE_CORRELATION_ROWS_TOTAL = 122,       /* rows in the input */
   LODE_CORRELATION_ROWS_COMPLETE = 123,    /* rows with every item answered */
   LODE_CORRELATION_ROWS_USED = 124,        /* rows that contributed */
@@ -233,6 +243,11 @@ enum lode_correlation_key {
   LODE_CORRELATION_PAIRS_NOT_CONVERGED = 136, /* polychoric: pairs whose estimate did not converge */
   LODE_CORRELATION_PAIRS_AT_BOUND = 137,      /* polychoric: pairs estimated at |rho| = bound */
   LODE_CORRELATION_PAIRS_ZERO_CELL_CORRECTED = 138, /* polychoric: pairs with the zero-cell addition */
+  LODE_CORRELATION_EM_CONVERGED = 139,     /* em only: 1 when the EM iteration met its criterion, else 0 */
+  LODE_CORRELATION_EM_ITERATIONS = 140,    /* em only: iterations run */
+  LODE_CORRELATION_EM_FINAL_CHANGE = 141,  /* em only: largest change at the last iteration */
+  LODE_CORRELATION_EM_TOLERANCE = 142,     /* em only: the criterion it was tested against */
+  LODE_CORRELATION_EM_MAX_ITERATIONS = 143,/* em only: the iteration cap */
   /* text: lode_correlation_text */
   LODE_CORRELATION_NOTES = 150             /* plain-language remarks, one per line ("" when none) */
 };
@@ -687,6 +702,130 @@ LODE_API int lode_reliability_matrix(const lode_reliability* reliability, int ke
 LODE_API int lode_reliability_value(const lode_reliability* reliability, int key, double* value);
 LODE_API int lode_reliability_text(const lode_reliability* reliability, int key, char* out, size_t capacity,
                                    size_t* length);
+
+/* ------------------------------------------------------------------------------------------- */
+/* A general factor: the Schmid-Leiman transformation and omega hierarchical                    */
+/* ------------------------------------------------------------------------------------------- */
+
+typedef struct lode_schmid_leiman lode_schmid_leiman;
+
+typedef struct lode_schmid_leiman_options {
+  size_t struct_size;  /* set by lode_schmid_leiman_options_init */
+  int second_order;    /* enum lode_extraction of the one-factor fit of the factor correlations;
+                          default LODE_EXTRACTION_MINRES */
+  int max_iterations;  /* of that fit; default 1000 */
+  double tolerance;    /* its convergence criterion; default 1e-10 */
+} lode_schmid_leiman_options;
+
+LODE_API int lode_schmid_leiman_options_init(lode_schmid_leiman_options* opts, size_t struct_size);
+
+/* The Schmid & Leiman (1957) transformation of `model`'s oblique solution (at least 3 factors): the
+ * factor correlations Phi get a one-factor (second-order) fit with loadings gamma; general loadings
+ * L gamma and group loadings L diag(sqrt(1 - gamma^2)), which reproduce L Phi L' wherever the second-
+ * order model reproduces Phi (always with 3 factors). Omega total, omega hierarchical and omega
+ * subscales (McDonald 1999; Zinbarg et al. 2005) are ratios to the model-implied variance of the
+ * unit-weighted sum (of all items; of a subscale's items, each item in the subscale of its largest
+ * absolute pattern loading); ECV is the general factor's share of the common variance. `assignment`
+ * (items entries, 0-based factor or -1) may be NULL with count 0. Opts may be NULL (defaults). */
+LODE_API int lode_schmid_leiman_compute(const lode_model* model, const lode_schmid_leiman_options* opts,
+                                        const int64_t* assignment, int64_t count, lode_schmid_leiman** out);
+
+LODE_API void lode_schmid_leiman_free(lode_schmid_leiman* result);
+
+enum lode_schmid_leiman_key {
+  /* matrices */
+  LODE_SCHMID_LEIMAN_GENERAL = 1400,              /* items x 1: loadings on the general factor */
+  LODE_SCHMID_LEIMAN_GROUP = 1401,                /* items x factors: loadings on the group factors */
+  LODE_SCHMID_LEIMAN_UNIQUENESSES = 1402,         /* items x 1 */
+  LODE_SCHMID_LEIMAN_SECOND_ORDER_LOADINGS = 1403,/* factors x 1: gamma */
+  LODE_SCHMID_LEIMAN_OMEGA_SUBSCALES = 1404,      /* factors x 1: the group factor's share of its subscale
+                                                     (NaN: no items) */
+  LODE_SCHMID_LEIMAN_SUBSCALE_OMEGA_TOTAL = 1405, /* factors x 1: all common factors' share of it */
+  LODE_SCHMID_LEIMAN_ASSIGNMENT = 1406,           /* items x 1: each item's subscale (0-based, -1 = none) */
+  /* numbers */
+  LODE_SCHMID_LEIMAN_OMEGA_TOTAL = 1420,
+  LODE_SCHMID_LEIMAN_OMEGA_HIERARCHICAL = 1421,
+  LODE_SCHMID_LEIMAN_ECV = 1422,                  /* explained common variance of the general factor */
+  LODE_SCHMID_LEIMAN_SECOND_ORDER_MAX_RESIDUAL = 1423, /* largest |Phi - implied| off the diagonal */
+  LODE_SCHMID_LEIMAN_SECOND_ORDER_CONVERGED = 1424,    /* 1 or 0 */
+  LODE_SCHMID_LEIMAN_SECOND_ORDER_ITERATIONS = 1425,
+  /* text */
+  LODE_SCHMID_LEIMAN_NOTES = 1450                 /* remarks (Heywood cases, a rough second-order fit) */
+};
+
+LODE_API int lode_schmid_leiman_matrix(const lode_schmid_leiman* result, int key, double* out, size_t capacity,
+                                       int64_t* rows, int64_t* cols);
+LODE_API int lode_schmid_leiman_value(const lode_schmid_leiman* result, int key, double* value);
+LODE_API int lode_schmid_leiman_text(const lode_schmid_leiman* result, int key, char* out, size_t capacity,
+                                     size_t* length);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Groups: does the structure hold in every group of respondents?                               */
+/* ------------------------------------------------------------------------------------------- */
+
+typedef struct lode_group_comparison lode_group_comparison;
+
+typedef struct lode_group_comparison_options {
+  size_t struct_size;                            /* set by lode_group_comparison_options_init */
+  int factors;                                   /* at least 1; no default (0 is refused) */
+  int method;                                    /* enum lode_extraction; default LODE_EXTRACTION_ML */
+  int rotation;                                  /* enum lode_criterion of the pooled solution, not a
+                                                    target method; default LODE_CRITERION_OBLIMIN. Oblique
+                                                    methods give oblique Procrustes in the groups */
+  const lode_correlation_options* correlation;   /* NULL = defaults (Pearson, pairwise) */
+  int64_t min_group;                             /* smaller groups are listed and skipped; default 100
+                                                    (common practice; the rule is max(min_group, items + 1)) */
+  double difference_threshold;                   /* |group - pooled loading| above this is flagged; default 0.2 */
+  int threads;                                   /* groups in parallel; 0 (default) = all cores */
+  lode_progress_fn progress;                     /* groups done / groups analysed; optional */
+  void* progress_user;
+} lode_group_comparison_options;
+
+LODE_API int lode_group_comparison_options_init(lode_group_comparison_options* opts, size_t struct_size);
+
+/* The analysis of all rows of `data` (raw answers) together, then of each group of rows sharing a code
+ * in `groups` (`rows` entries, one per row of data) with enough respondents: extraction of the same
+ * number of factors, rotated towards the pooled pattern by orthogonal (Schonemann 1966) or oblique
+ * (Hurley & Cattell 1962) Procrustes; Tucker's congruence per factor; alpha and omega per group and
+ * scale (each item in the scale of its largest absolute pooled loading, reversed when that loading is
+ * negative); loadings differing from the pooled ones by more than the threshold. Congruence is a
+ * descriptive check, not a formal test of measurement invariance. */
+LODE_API int lode_group_comparison_compute(const lode_data* data, const int64_t* groups, int64_t rows,
+                                           const lode_group_comparison_options* opts, lode_group_comparison** out);
+
+LODE_API void lode_group_comparison_free(lode_group_comparison* comparison);
+
+enum lode_group_comparison_key {
+  /* matrices (groups: the analysed groups by ascending code) */
+  LODE_GROUP_COMPARISON_CODES = 1500,           /* groups x 1 */
+  LODE_GROUP_COMPARISON_ROWS = 1501,            /* groups x 1: respondents per group */
+  LODE_GROUP_COMPARISON_CONGRUENCE = 1502,      /* groups x factors: Tucker's congruence with the pooled factor */
+  LODE_GROUP_COMPARISON_ALPHA = 1503,           /* groups x factors: raw alpha of each scale (NaN: < 2 items) */
+  LODE_GROUP_COMPARISON_OMEGA = 1504,           /* groups x factors: omega total of each scale */
+  LODE_GROUP_COMPARISON_POOLED_PATTERN = 1505,  /* items x factors */
+  LODE_GROUP_COMPARISON_POOLED_FACTOR_CORRELATIONS = 1506, /* factors x factors */
+  LODE_GROUP_COMPARISON_ASSIGNMENT = 1507,      /* items x 1: each item's scale (0-based factor) */
+  LODE_GROUP_COMPARISON_SKIPPED = 1508,         /* skipped x 2: code, respondents */
+  LODE_GROUP_COMPARISON_DIFFERENCES = 1509,     /* flagged x 5: code, item (0-based), factor (0-based), group
+                                                   loading, pooled loading */
+  LODE_GROUP_COMPARISON_PATTERNS = 1510,        /* (groups * items) x factors: each group's rotated pattern,
+                                                   groups stacked in order */
+  /* numbers */
+  LODE_GROUP_COMPARISON_GROUPS = 1520,          /* groups analysed */
+  LODE_GROUP_COMPARISON_FACTORS = 1521,
+  LODE_GROUP_COMPARISON_OBLIQUE = 1522,         /* 1 when oblique Procrustes was used */
+  LODE_GROUP_COMPARISON_POOLED_N_OBS = 1523,
+  /* text, one line each */
+  LODE_GROUP_COMPARISON_NOTES = 1550,           /* readings per group and factor, the caution */
+  LODE_GROUP_COMPARISON_SKIPPED_REASONS = 1551, /* one per skipped group */
+  LODE_GROUP_COMPARISON_DIFFERENCE_TEXTS = 1552 /* one per flagged loading, in plain words */
+};
+
+LODE_API int lode_group_comparison_matrix(const lode_group_comparison* comparison, int key, double* out,
+                                          size_t capacity, int64_t* rows, int64_t* cols);
+LODE_API int lode_group_comparison_value(const lode_group_comparison* comparison, int key, double* value);
+LODE_API int lode_group_comparison_text(const lode_group_comparison* comparison, int key, char* out,
+                                        size_t capacity, size_t* length);
 
 /* ------------------------------------------------------------------------------------------- */
 /* Comparing two solutions: Tucker's congruence after matching factors                           */

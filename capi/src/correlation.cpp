@@ -26,6 +26,7 @@ constexpr Code<CorrelationKind> coefficient_codes[] = {
 constexpr Code<MissingPolicy> missing_codes[] = {
     {LODE_MISSING_PAIRWISE, MissingPolicy::pairwise},
     {LODE_MISSING_LISTWISE, MissingPolicy::listwise},
+    {LODE_MISSING_EM, MissingPolicy::em},
 };
 
 constexpr Code<ZeroCellPolicy> zero_cell_codes[] = {
@@ -46,12 +47,16 @@ constexpr Code<ZeroCellPolicy> zero_cell_codes[] = {
   F(zero_cells, c_code(zero_cell_codes, core.polychoric.zero_cells))   \
   F(zero_cell_add, core.polychoric.zero_cell_add)                      \
   F(progress, nullptr)                                                 \
-  F(progress_user, nullptr)
+  F(progress_user, nullptr)                                            \
+  F(em_tolerance, core.em.tolerance)                                   \
+  F(em_max_iterations, core.em.max_iterations)
 
 LODE_OPTIONS_FUNCTIONS(lode_correlation_options, LODE_CORRELATION_OPTIONS_FIELDS, CorrelationOptions,
                        correlation_defaults, merged_correlation_options)
 
-CorrelationOptions read_correlation_options(const lode_correlation_options* opts) {
+}  // namespace
+
+CorrelationOptions lode::capi::read_correlation_options(const lode_correlation_options* opts) {
   const lode_correlation_options o = merged_correlation_options(opts);
   CorrelationOptions co;
   co.kind = core_value(coefficient_codes, o.kind, "correlation kind");
@@ -74,8 +79,17 @@ CorrelationOptions read_correlation_options(const lode_correlation_options* opts
     fail(LODE_E_INVALID_ARGUMENT, fmt::format("zero_cell_add must be above 0 and at most 1; it is {}", o.zero_cell_add));
   co.polychoric.zero_cell_add = o.zero_cell_add;
   co.polychoric.progress = progress_of(o.progress, o.progress_user);
+  if (!(o.em_tolerance > 0.0 && o.em_tolerance < 1.0))
+    fail(LODE_E_INVALID_ARGUMENT, fmt::format("em_tolerance must be above 0 and below 1; it is {}", o.em_tolerance));
+  if (o.em_max_iterations < 1)
+    fail(LODE_E_INVALID_ARGUMENT, fmt::format("em_max_iterations must be at least 1; it is {}", o.em_max_iterations));
+  co.em.tolerance = o.em_tolerance;
+  co.em.max_iterations = o.em_max_iterations;
+  co.em.progress = co.polychoric.progress;
   return co;
 }
+
+namespace {
 
 // The correlations of any kind of data handle.
 void compute(lode_correlation& c, const DataContent& content, const CorrelationOptions& co) {
@@ -100,6 +114,12 @@ const lode_correlation& polychoric_of(const lode_correlation& c) {
   return c;
 }
 
+const EmEstimate& em_of(const lode_correlation& c) {
+  if (c.result.missing != MissingPolicy::em || c.result.em.means.size() == 0)
+    fail(LODE_E_INVALID_ARGUMENT, "EM means, covariances and convergence exist only for correlations of raw data with the em rule");
+  return c.result.em;
+}
+
 const lode_correlation& with_smc(const lode_correlation& c) {
   if (c.smc.size() == 0) fail(LODE_E_NOT_POSITIVE_DEFINITE, c.smc_error);
   return c;
@@ -115,6 +135,8 @@ constexpr MatrixKey<lode_correlation> correlation_matrices[] = {
     {LODE_CORRELATION_SMC, [](const lode_correlation& c) -> Matrix { return with_smc(c).smc; }},
     {LODE_CORRELATION_STANDARD_ERRORS, [](const lode_correlation& c) -> Matrix { return polychoric_of(c).standard_errors; }},
     {LODE_CORRELATION_THRESHOLDS, [](const lode_correlation& c) -> Matrix { return polychoric_of(c).thresholds; }},
+    {LODE_CORRELATION_EM_MEANS, [](const lode_correlation& c) -> Matrix { return em_of(c).means; }},
+    {LODE_CORRELATION_EM_COVARIANCE, [](const lode_correlation& c) -> Matrix { return em_of(c).covariance; }},
 };
 
 constexpr ValueKey<lode_correlation> correlation_values[] = {
@@ -140,6 +162,11 @@ constexpr ValueKey<lode_correlation> correlation_values[] = {
     {LODE_CORRELATION_MISSING,
      [](const lode_correlation& c) { return static_cast<double>(c_code(missing_codes, c.result.missing)); }},
     {LODE_CORRELATION_PAIRS_NOT_CONVERGED, [](const lode_correlation& c) { return number(c.pairs_not_converged); }},
+    {LODE_CORRELATION_EM_CONVERGED, [](const lode_correlation& c) { return flag(em_of(c).convergence.converged); }},
+    {LODE_CORRELATION_EM_ITERATIONS, [](const lode_correlation& c) { return number(em_of(c).convergence.iterations); }},
+    {LODE_CORRELATION_EM_FINAL_CHANGE, [](const lode_correlation& c) { return em_of(c).convergence.final_change; }},
+    {LODE_CORRELATION_EM_TOLERANCE, [](const lode_correlation& c) { return em_of(c).convergence.tolerance; }},
+    {LODE_CORRELATION_EM_MAX_ITERATIONS, [](const lode_correlation& c) { return number(em_of(c).convergence.max_iterations); }},
     {LODE_CORRELATION_PAIRS_AT_BOUND, [](const lode_correlation& c) { return number(c.pairs_at_bound); }},
     {LODE_CORRELATION_PAIRS_ZERO_CELL_CORRECTED, [](const lode_correlation& c) { return number(c.pairs_zero_cell_corrected); }},
 };
@@ -182,6 +209,7 @@ LODE_API int lode_correlation_compute(const lode_data* data, const lode_correlat
     c->data = content;
     compute(*c, *content, co);
     co.polychoric.progress = {};  // the caller's callback and its user data are for this call only
+    co.em.progress = {};
     c->options = co;
     c->eigenvalues = eigenvalues_descending(c->result.matrix);
     try {

@@ -50,6 +50,10 @@ struct lode_summary {
 
 namespace lode::capi {
 
+// lode_correlation_options (older sizes included, NULL for the defaults), checked, as the core's options;
+// its progress callback goes into the polychoric and EM options.
+CorrelationOptions read_correlation_options(const lode_correlation_options* opts);
+
 // Keeps a polychoric result in a correlation handle (matrix, standard errors, thresholds, counters).
 void keep_polychoric(lode_correlation& c, PolychoricResult&& pr);
 

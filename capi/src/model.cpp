@@ -72,9 +72,16 @@ ExtractionOptions extraction_options_of(const lode_model_options& o, const lode_
 
 // The means and standard deviations (n - 1) behind the model's correlation matrix: over the complete
 // rows under listwise deletion, else over each item's answered values (see lode_model::means).
-void fit_standardisation(lode_model& m) {
+void fit_standardisation(lode_model& m, const CorrelationResult& r) {
   const Matrix& x = m.data->values;
   const Index p = x.cols();
+  if (m.missing == MissingPolicy::em) {
+    // The EM estimate's means, and its variances with the divisor n - 1 like the other rules.
+    const double rows = static_cast<double>(r.em.rows_used);
+    m.means = r.em.means;
+    m.sds = (r.em.covariance.diagonal() * (rows / (rows - 1.0))).cwiseSqrt();
+    return;
+  }
   m.means = Vector::Constant(p, std::numeric_limits<double>::quiet_NaN());
   m.sds = m.means;
   std::vector<Index> complete;
@@ -256,7 +263,7 @@ LODE_API int lode_model_compute(const lode_correlation* corr, const lode_model_o
     m->item_names = corr->options.item_names;
     m->data = corr->data;
     m->missing = corr->result.missing;
-    if (m->data && m->data->source == DataSource::raw) fit_standardisation(*m);
+    if (m->data && m->data->source == DataSource::raw) fit_standardisation(*m, corr->result);
     const int factors = factors_to_extract(setup, corr, *m);
     // Progress: the extraction is one unit, each rotation start one.
     std::optional<RotationOptions>& ro = setup.rotation;
@@ -282,3 +289,7 @@ LODE_API void lode_model_free(lode_model* model) { delete model; }
 LODE_KEY_GETTERS(lode_model, lode_model, model_handle, model_matrices, model_values, model_texts)
 
 }  // extern "C"
+
+ExtractionMethod lode::capi::extraction_method_of(int method) {
+  return core_value(extraction_codes, method, "extraction method");
+}

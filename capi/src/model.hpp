@@ -33,6 +33,12 @@ FitSetup read_fit_options(const lode_model_options* opts, const lode_correlation
 // name the items in messages.
 RotationOptions read_rotation_options(const lode_rotation_options* opts, const std::vector<std::string>& names);
 
+// enum lode_extraction -> ExtractionMethod (unknown values fail with the number).
+ExtractionMethod extraction_method_of(int method);
+
+// enum lode_criterion -> RotationMethod (unknown values fail with the number).
+RotationMethod rotation_method_of(int method);
+
 // Only the extraction fields of lode_model_options (method, max_iterations, tolerance, min_uniqueness), read
 // and checked, with the defaults of lode_model_options_init for the rest.
 ExtractionOptions read_extraction_options(const lode_model_options* opts, const lode_correlation* corr);
@@ -46,7 +52,7 @@ struct lode_model {
   lode::MissingPolicy missing = lode::MissingPolicy::pairwise;  // how `correlation` treated missing answers
   // The fit's standardisation of raw data (empty for a model fitted to a matrix): the means and
   // standard deviations (n - 1) behind `correlation`, over the complete rows under listwise deletion,
-  // else over each item's answered values. Every respondent scored is standardised with these, so a
+  // the EM estimate's under em, else over each item's answered values. Every respondent scored is standardised with these, so a
   // respondent's scores do not depend on who else is scored in the same call.
   lode::Vector means, sds;
   lode::ExtractionResult extraction;

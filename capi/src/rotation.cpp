@@ -176,3 +176,8 @@ LODE_API void lode_rotation_free(lode_rotation* rotation) { delete rotation; }
 LODE_KEY_GETTERS(lode_rotation, lode_rotation, rotation_handle, rotation_matrices, rotation_values, rotation_texts)
 
 }  // extern "C"
+
+RotationMethod lode::capi::rotation_method_of(int method) {
+  if (!known_criterion(method)) fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown rotation method {}", method));
+  return static_cast<RotationMethod>(method);  // lode.h numbers the criteria as the core does (static_asserts above)
+}

@@ -87,6 +87,11 @@ std::vector<Index> best_assignment(const Matrix& score) {
   return match;
 }
 
+const char* congruence_reading(double congruence) noexcept {
+  const double a = std::abs(congruence);
+  return a >= 0.95 ? "can be considered the same factor" : a >= 0.85 ? "shows fair similarity" : "is not the same factor";
+}
+
 FactorMatch match_factors(const Matrix& reference, const Matrix& other) {
   if (reference.rows() != other.rows() || reference.cols() != other.cols())
     throw Error(ErrorCode::invalid_argument,
@@ -114,9 +119,7 @@ FactorMatch match_factors(const Matrix& reference, const Matrix& other) {
     m.matched_congruence(j) = std::abs(c);
     m.aligned.col(j) = m.signs(j) * other.col(o);
     const double a = std::abs(c);
-    const char* reading = a >= 0.95   ? "can be considered the same factor"
-                          : a >= 0.85 ? "shows fair similarity"
-                                      : "is not the same factor";
+    const char* reading = congruence_reading(a);
     m.notes.push_back(fmt::format("factor {} of the first solution matches factor {} of the second{} with congruence "
                                   "{:.3f}: it {} (bands of Lorenzo-Seva & ten Berge 2006)",
                                   j + 1, o + 1, m.signs(j) < 0 ? " (reflected)" : "", a, reading));

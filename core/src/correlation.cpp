@@ -18,7 +18,12 @@
 namespace lode {
 
 const char* to_string(MissingPolicy policy) noexcept {
-  return policy == MissingPolicy::pairwise ? "pairwise" : "listwise";
+  switch (policy) {
+    case MissingPolicy::pairwise: return "pairwise";
+    case MissingPolicy::listwise: return "listwise";
+    case MissingPolicy::em: return "em";
+  }
+  return "unknown";
 }
 
 const char* to_string(CorrelationKind kind) noexcept {
@@ -369,6 +374,11 @@ using detail::finish;
 
 void validate_data(const Matrix& data, const CorrelationOptions& options) {
   const Index n = data.rows(), p = data.cols();
+  if (options.missing == MissingPolicy::em && options.kind != CorrelationKind::pearson)
+    throw Error(ErrorCode::invalid_argument,
+                fmt::format("the em rule estimates the means and covariances of normally distributed answers and works "
+                            "with Pearson correlations only; for {} correlations use pairwise or listwise deletion",
+                            to_string(options.kind)));
   if (p < 3)
     throw Error(ErrorCode::insufficient_data,
                 fmt::format("factor analysis needs at least 3 items (columns); the data have {}", p));
@@ -410,7 +420,17 @@ void validate_data(const Matrix& data, const CorrelationOptions& options) {
 
 namespace {
 
+// Rows answering both items, for every pair.
+IndexMatrix pair_counts_of(const Mask& present) {
+  const Index p = present.cols();
+  IndexMatrix counts(p, p);
+  for (Index a = 0; a < p; ++a)
+    for (Index b = a; b < p; ++b) counts(a, b) = counts(b, a) = (present.col(a) && present.col(b)).count();
+  return counts;
+}
+
 Index n_obs_of(const CorrelationResult& result, const CorrelationOptions& options) {
+  if (options.missing == MissingPolicy::em) return result.report.rows_used;
   return options.missing == MissingPolicy::listwise ? result.report.rows_used : result.report.min_pair_count;
 }
 
@@ -458,7 +478,7 @@ bool pearson_if_complete(const Matrix& data, const CorrelationOptions& options, 
 
 CorrelationResult correlation(const Matrix& data, const CorrelationOptions& options) {
   if (options.kind == CorrelationKind::polychoric) return polychoric_correlation(data, options).correlation;
-  if (options.kind == CorrelationKind::pearson) {
+  if (options.kind == CorrelationKind::pearson && options.missing != MissingPolicy::em) {
     // Complete data, then pairwise deletion over missing values; either returns false for data that
     // need the general path (checks that fail and are worded below, columns that need rescaling).
     CorrelationResult fast;
@@ -486,7 +506,10 @@ CorrelationResult correlation(const Matrix& data, const CorrelationOptions& opti
   result.report.missing_fraction = 1.0 - static_cast<double>(present.count()) / static_cast<double>(n * p);
 
   const bool all_complete = complete.size() == static_cast<std::size_t>(n);
-  if (options.missing == MissingPolicy::listwise || all_complete) {
+  if (options.missing == MissingPolicy::em) {
+    result.report.pair_counts = pair_counts_of(present);
+    detail::correlation_by_em(data, options, result);
+  } else if (options.missing == MissingPolicy::listwise || all_complete) {
     result.report.rows_used = static_cast<Index>(complete.size());
     result.report.pair_counts = IndexMatrix::Constant(p, p, result.report.rows_used);
     if (options.kind == CorrelationKind::pearson) {
@@ -512,10 +535,7 @@ CorrelationResult correlation(const Matrix& data, const CorrelationOptions& opti
     for (Index i = 0; i < n; ++i)
       if (present.row(i).any()) ++used;
     result.report.rows_used = used;
-    result.report.pair_counts = IndexMatrix(p, p);
-    for (Index a = 0; a < p; ++a)
-      for (Index b = a; b < p; ++b)
-        result.report.pair_counts(a, b) = result.report.pair_counts(b, a) = (present.col(a) && present.col(b)).count();
+    result.report.pair_counts = pair_counts_of(present);
     result.matrix = spearman(data, present, MissingPolicy::pairwise, complete);
   }
   result.report.min_pair_count = result.report.pair_counts.minCoeff();

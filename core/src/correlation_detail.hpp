@@ -39,6 +39,9 @@ bool pearson_pairwise(const Matrix& data, const CorrelationOptions& options, Cor
 // Fails when a pair has fewer than options.min_pair_observations rows or a non-finite correlation.
 void check_pairs(const Matrix& r, const IndexMatrix& counts, const CorrelationOptions& options);
 
+// The em rule's matrix, sample size and notes in `result` (whose pair counts and row totals are set).
+void correlation_by_em(const Matrix& data, const CorrelationOptions& options, CorrelationResult& result);
+
 // Positive-definiteness check and, when asked, smoothing to the nearest correlation matrix; both
 // reported in the result's smoothing report and notes.
 void finish(CorrelationResult& result, const CorrelationOptions& options);

@@ -513,12 +513,10 @@ RotationResult rotate(const Matrix& loadings, const RotationOptions& options) {
     const StartResult s = gpa(a, Matrix::Identity(m, m), vo, false);
     const Matrix v = loadings * s.t;
     const Matrix q = v.cwiseProduct(v.cwiseAbs().array().pow(options.power - 1.0).matrix());
-    Matrix u = (v.transpose() * v).ldlt().solve(v.transpose() * q);
-    const Vector d = (u.transpose() * u).inverse().diagonal();
-    u = u * d.cwiseSqrt().asDiagonal();
-    const Matrix total = s.t * u;  // pattern = loadings * total
+    const ProcrustesFit fit = procrustes_oblique(v, q);
+    const Matrix total = s.t * fit.transformation;  // pattern = loadings * total
     r.rotation = total.inverse().transpose();
-    r.pattern = v * u;
+    r.pattern = fit.pattern;
     r.factor_correlations = r.rotation.transpose() * r.rotation;
     r.criterion = s.value;
     r.convergence = s.convergence;

@@ -24,6 +24,10 @@ std::vector<std::string> names_for(const Summary& s, const CorrelationOptions& o
 // The intake checks of validate_data, on what the summary kept (same messages).
 void validate_summary(const Summary& s, const CorrelationOptions& o) {
   const Index p = s.items();
+  if (o.missing == MissingPolicy::em)
+    throw Error(ErrorCode::invalid_argument,
+                "the em rule needs the respondents' rows; a summary keeps only sums over pairs of items: use pairwise "
+                "or listwise deletion with a summary, or pass the rows");
   const bool listwise = o.missing == MissingPolicy::listwise;
   if (listwise != s.options.listwise)
     throw Error(ErrorCode::invalid_argument,

@@ -112,7 +112,8 @@ Output fn_corr(const Call& call) {
   CorrelationSpec spec;
   const int kinds[] = {LODE_COEFFICIENT_PEARSON, LODE_COEFFICIENT_SPEARMAN, LODE_COEFFICIENT_POLYCHORIC};
   spec.kind = kinds[choice(call.args[1], "kind", {"pearson", "spearman", "polychoric"})];
-  spec.missing = choice(call.args[2], "missing", {"pairwise", "listwise"}) == 0 ? LODE_MISSING_PAIRWISE : LODE_MISSING_LISTWISE;
+  const int rules[] = {LODE_MISSING_PAIRWISE, LODE_MISSING_LISTWISE, LODE_MISSING_EM};
+  spec.missing = rules[choice(call.args[2], "missing", {"pairwise", "listwise", "em"})];
   auto c = correlation(call, in, spec);
   return to_output(correlation_matrix(c.get(), LODE_CORRELATION_MATRIX, "correlation matrix"));
 }

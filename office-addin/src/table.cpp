@@ -39,8 +39,9 @@ const std::vector<FunctionSpec> kTable = {
       {"kind", ArgKind::value,
        "\"pearson\" (default), \"spearman\" or \"polychoric\" (ordinal items with at most 10 categories; "
        "tetrachoric for two)"},
-      {"missing", ArgKind::value, "\"pairwise\" (default: each correlation uses the rows answering both items) or "
-                                  "\"listwise\" (only rows answering every item)"}},
+      {"missing", ArgKind::value, "\"pairwise\" (default: each correlation uses the rows answering both items), "
+                                  "\"listwise\" (only rows answering every item) or \"em\" (maximum likelihood "
+                                  "under missing at random, Pearson only)"}},
      "items x items", "none beyond Err:502", fn_corr},
     {"eigen",
      "LODE.EIGEN",

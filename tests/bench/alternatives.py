@@ -142,6 +142,28 @@ def main():
     L = read(folder, "rot_p100_k10_L")
     record("oblimin20_p100_k10", "statsmodels rotate_factors oblimin, 21 starts", lambda: oblimin_starts(L), budget_s=20)
 
+    # Groups: statsmodels ML on the pooled correlations + oblimin, then per group ML extraction and a
+    # least-squares oblique Procrustes towards the pooled pattern, and Tucker's congruence.
+    def compare_groups(x, g, k=5):
+        pooled = Factor(corr=np.corrcoef(x, rowvar=False), n_factor=k, method="ml", nobs=len(x)).fit(maxiter=1000)
+        target = rotate_factors(pooled.loadings, "oblimin", 0.0, "oblique")[0]
+        out = []
+        for code in np.unique(g):
+            xs = x[g == code]
+            a = Factor(corr=np.corrcoef(xs, rowvar=False), n_factor=k, method="ml", nobs=len(xs)).fit(
+                maxiter=1000).loadings
+            u = np.linalg.lstsq(a, target, rcond=None)[0]
+            u = u * np.sqrt(np.diag(np.linalg.inv(u.T @ u)))
+            p = a @ u
+            out.append((p * target).sum(0) / np.sqrt((p * p).sum(0) * (target * target).sum(0)))
+        return out
+
+    if wanted("groups_10x1000_p30_k5"):
+        gx = read(folder, "groups_10x1000_p30_X")
+        gg = read(folder, "groups_10x1000_p30_G")[:, 0]
+        record("groups_10x1000_p30_k5", "statsmodels Factor ml per group + numpy oblique Procrustes",
+               lambda: compare_groups(gx, gg), budget_s=20)
+
     # Parallel analysis written plainly: 1000 normal data sets of n x p, their correlation matrices'
     # eigenvalues.
     def parallel_analysis(n=2000, p=60, replicates=1000, seed=11):

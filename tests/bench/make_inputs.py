@@ -74,6 +74,18 @@ def main():
     once("corr_n100000_p50_missing", lambda rng: with_missing(rng, 100_000))
     once("corr_n1000000_p50_missing", lambda rng: with_missing(rng, 1_000_000))
 
+    # The em rule: n = 100,000, p = 50, 10% of the cells missing (each cell with probability 0.1).
+    def em_input(rng):
+        x = factor_data(rng, 100_000, 50, 5)
+        x[rng.random(x.shape) < 0.10] = np.nan
+        return x
+
+    once("em_n100000_p50_missing10", em_input)
+
+    # Groups: 10 groups of 1,000 respondents, p = 30, k = 5 (one model); the codes 0..9 in blocks.
+    once("groups_10x1000_p30_X", lambda rng: factor_data(rng, 10_000, 30, 5))
+    once("groups_10x1000_p30_G", lambda rng: np.repeat(np.arange(10.0), 1000).reshape(-1, 1))
+
     # Extraction inputs: raw data (n = 2000) and their correlation matrices, for p/k pairs.
     for p, k in ((30, 3), (60, 6), (100, 10), (200, 15)):
         once(f"fa_p{p}_k{k}_X", lambda rng, p=p, k=k: factor_data(rng, 2000, p, k))

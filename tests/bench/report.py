@@ -35,6 +35,10 @@ SECTIONS = [
         ("corr_n100000_p50_missing", "n = 100,000, p = 50, 5% missing, pairwise"),
         ("corr_n1000000_p50_missing", "n = 1,000,000, p = 50, 5% missing, pairwise"),
         ("corr_checks_n1000000_p50", "the separate input checks (validate_data; complete data now check in the summing pass), n = 1,000,000, p = 50"),
+        ("em_n100000_p50_missing10", "n = 100,000, p = 50, 10% missing, the em rule (EM to 1e-10)"),
+    ]),
+    ("Groups (ML + oblimin pooled, oblique Procrustes per group)", [
+        ("groups_10x1000_p30_k5", "10 groups of n = 1,000, p = 30, k = 5"),
     ]),
     ("Extraction from a correlation matrix (n = 2000)", [
         (f"{m}_p{p}_k{k}", f"{label}, p = {p}, k = {k}")

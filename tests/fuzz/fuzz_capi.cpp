@@ -292,6 +292,16 @@ void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
     lode_reliability_text(rel, LODE_RELIABILITY_NOTES, text, sizeof text, nullptr);
     lode_reliability_free(rel);
   }
+  lode_schmid_leiman_options slo;
+  lode_schmid_leiman_options_init(&slo, sizeof slo);
+  slo.second_order = in.byte() % 4;
+  lode_schmid_leiman* sl = nullptr;
+  if (lode_schmid_leiman_compute(m, &slo, nullptr, 0, &sl) == LODE_OK) {
+    for (int key = 1400; key < 1408; ++key) lode_schmid_leiman_matrix(sl, key, buf, 256, nullptr, nullptr);
+    for (int key = 1420; key < 1426; ++key) lode_schmid_leiman_value(sl, key, &v);
+    lode_schmid_leiman_text(sl, LODE_SCHMID_LEIMAN_NOTES, text, sizeof text, nullptr);
+    lode_schmid_leiman_free(sl);
+  }
   double rotated[256];
   if (lode_model_matrix(m, LODE_MODEL_UNROTATED_LOADINGS, buf, 256, &rows, &cols) == LODE_OK &&
       lode_model_matrix(m, LODE_MODEL_LOADINGS, rotated, 256, nullptr, nullptr) == LODE_OK) {
@@ -304,6 +314,29 @@ void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
     }
   }
   lode_model_free(m);
+}
+
+// Groups: codes from the bytes (a few groups), small minimum sizes so analyses are reached.
+void groups(const lode_data* d, Bytes& in) {
+  int64_t rows = 0, items = 0;
+  if (lode_data_shape(d, &rows, &items) != LODE_OK || rows <= 0 || rows > 4096) return;
+  std::vector<int64_t> codes(static_cast<size_t>(rows));
+  for (auto& code : codes) code = in.byte() % 3;
+  lode_group_comparison_options o;
+  lode_group_comparison_options_init(&o, sizeof o);
+  o.factors = 1 + in.byte() % 3;
+  o.min_group = 2 + in.byte() % 8;
+  o.rotation = in.byte() % 14;
+  o.threads = 1;
+  lode_group_comparison* g = nullptr;
+  if (lode_group_comparison_compute(d, codes.data(), rows, &o, &g) == LODE_OK) {
+    double buf[512], v;
+    char text[1024];
+    for (int key = 1500; key < 1511; ++key) lode_group_comparison_matrix(g, key, buf, 512, nullptr, nullptr);
+    for (int key = 1520; key < 1524; ++key) lode_group_comparison_value(g, key, &v);
+    for (int key = 1550; key < 1553; ++key) lode_group_comparison_text(g, key, text, sizeof text, nullptr);
+    lode_group_comparison_free(g);
+  }
 }
 
 // Reliability straight from the data: alpha of raw data, omega of a single scale from its correlations.
@@ -459,6 +492,10 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
   const uint8_t flags = in.byte();
   o.kind = flags & 1 ? LODE_COEFFICIENT_SPEARMAN : LODE_COEFFICIENT_PEARSON;
   o.missing = flags & 2 ? LODE_MISSING_LISTWISE : LODE_MISSING_PAIRWISE;
+  if ((flags & 0xC0) == 0xC0) {  // the em rule, with a small cap so a case stays quick
+    o.missing = LODE_MISSING_EM;
+    o.em_max_iterations = 1 + in.byte() % 50;
+  }
   o.smooth = (flags & 4) != 0;
   o.min_eigenvalue = (flags & 8) ? 0.0 : 1e-6;
   if (flags & 16) o.struct_size = offsetof(lode_correlation_options, smooth);
@@ -471,6 +508,7 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
     reliability(d, c);
     lode_correlation_free(c);
   }
+  groups(d, in);
   lode_data_free(d);
   return 0;
 }

@@ -19,7 +19,8 @@ from ._checks import ArgumentError
 __all__ = ["LodeError", "ArgumentError", "version", "correlation", "Correlation", "factorability", "Factorability",
            "n_factors", "parallel_analysis", "map_test", "FactorCount", "rotate", "Rotation", "fit", "Model",
            "scores", "Scores", "alpha", "Alpha", "omega", "Omega", "congruence", "Comparison", "item_flags",
-           "ItemFlags", "bootstrap", "Bootstrap", "Summary", "summary_from_sql"]
+           "ItemFlags", "bootstrap", "Bootstrap", "Summary", "summary_from_sql", "schmid_leiman", "SchmidLeiman",
+           "compare_groups", "GroupComparison"]
 
 # The numbers of a correlation handle, by attribute name (keys of lode.h: LODE_CORRELATION_<NAME>).
 _CORRELATION_VALUES = {name: getattr(_abi, "LODE_CORRELATION_" + name.upper()) for name in (
@@ -31,7 +32,10 @@ _KINDS = {"pearson": _abi.LODE_COEFFICIENT_PEARSON, "spearman": _abi.LODE_COEFFI
           "polychoric": _abi.LODE_COEFFICIENT_POLYCHORIC}
 _ZERO_CELLS = {"none": _abi.LODE_ZERO_CELLS_NONE, "at_bound": _abi.LODE_ZERO_CELLS_AT_BOUND,
                "always": _abi.LODE_ZERO_CELLS_ALWAYS}
-_MISSING = {"pairwise": _abi.LODE_MISSING_PAIRWISE, "listwise": _abi.LODE_MISSING_LISTWISE}
+_MISSING = {"pairwise": _abi.LODE_MISSING_PAIRWISE, "listwise": _abi.LODE_MISSING_LISTWISE,
+            "em": _abi.LODE_MISSING_EM}
+_CORRELATION_EM_VALUES = {name: getattr(_abi, "LODE_CORRELATION_EM_" + name.upper()) for name in (
+    "converged", "iterations", "final_change", "tolerance", "max_iterations")}
 
 
 def version():
@@ -100,6 +104,9 @@ class Correlation(_native.Handle):
     errors, by about 8% in one simulated pair),
     ``thresholds`` (a list with each item's thresholds) and ``polychoric`` (a dict counting pairs
     ``not_converged``, ``at_bound`` and ``zero_cell_corrected``); otherwise these are None.
+    With ``missing="em"``, ``em`` is a dict with the EM estimate's ``means``, ``covariance``
+    (maximum likelihood, divisor ``rows_used``) and its convergence (``converged``, ``iterations``,
+    ``final_change``, ``tolerance``, ``max_iterations``); otherwise None.
     ``numpy.asarray(result)`` gives the matrix.
     """
 
@@ -148,6 +155,19 @@ class Correlation(_native.Handle):
                                    "zero_cell_corrected": int(v["pairs_zero_cell_corrected"])}
             except LodeError:  # a polychoric kind given with a matrix: no per-pair estimates
                 pass
+        self.em = None
+        if int(_native.get_value(lib.lode_correlation_value, pointer, _abi.LODE_CORRELATION_MISSING)) == _MISSING["em"]:
+            try:
+                self.em = {k: _native.get_value(lib.lode_correlation_value, pointer, key)
+                           for k, key in _CORRELATION_EM_VALUES.items()}
+            except LodeError:  # the em rule given with a matrix: nothing was estimated
+                pass
+        if self.em is not None:
+            self.em["converged"] = bool(self.em["converged"])
+            self.em["iterations"] = int(self.em["iterations"])
+            self.em["max_iterations"] = int(self.em["max_iterations"])
+            self.em["means"] = _native.get_matrix(fm, pointer, _abi.LODE_CORRELATION_EM_MEANS)[:, 0]
+            self.em["covariance"] = _native.get_matrix(fm, pointer, _abi.LODE_CORRELATION_EM_COVARIANCE)
         text = _native.get_text(lib.lode_correlation_text, pointer, _abi.LODE_CORRELATION_NOTES)
         self.notes = text.split("\n") if text else []
 
@@ -163,14 +183,16 @@ class Correlation(_native.Handle):
 
 
 def _correlate(data, method, missing, smooth, min_eigenvalue=1e-6, min_pair_observations=3, threads=0,
-               max_categories=10, zero_cells="at_bound", zero_cell_add=0.5, progress=None):
+               max_categories=10, zero_cells="at_bound", zero_cell_add=0.5, progress=None, em_tolerance=1e-10,
+               em_max_iterations=1000):
     o = _native.options("lode_correlation_options",
                         kind=_choice(method, _KINDS, "correlation method"),
                         missing=_choice(missing, _MISSING, "missing-value policy"),
                         smooth=1 if smooth else 0, min_eigenvalue=min_eigenvalue,
                         min_pair_observations=min_pair_observations, threads=threads,
                         max_categories=max_categories, zero_cells=_choice(zero_cells, _ZERO_CELLS, "zero-cell policy"),
-                        zero_cell_add=zero_cell_add)
+                        zero_cell_add=zero_cell_add, em_tolerance=em_tolerance,
+                        em_max_iterations=em_max_iterations)
     callback = _native.make_progress(progress)
     if callback is not None:
         o.progress = callback
@@ -183,14 +205,18 @@ def _correlate(data, method, missing, smooth, min_eigenvalue=1e-6, min_pair_obse
 @accepts_summary
 def correlation(X=None, *, corr=None, cov=None, n_obs=None, method="pearson", missing="pairwise", smooth=False,
                 min_eigenvalue=1e-6, min_pair_observations=3, item_names=None, threads=0, max_categories=10,
-                zero_cells="at_bound", zero_cell_add=0.5, progress=None):
+                zero_cells="at_bound", zero_cell_add=0.5, progress=None, em_tolerance=1e-10, em_max_iterations=1000):
     """The correlation matrix of raw data ``X`` (rows are respondents, columns items, NaN missing),
     or a given correlation matrix ``corr`` / covariance matrix ``cov`` with its ``n_obs``, checked.
 
     ``method`` is "pearson", "spearman" or "polychoric" (ordinal items, Olsson's two-step
     estimate; tetrachoric for binary items; ``max_categories``, ``zero_cells`` "none", "at_bound"
     or "always" with ``zero_cell_add``, ``threads``, and ``progress(done, total)`` returning False
-    to cancel); ``missing`` is "pairwise" or "listwise"; ``smooth``
+    to cancel); ``missing`` is "pairwise", "listwise" or "em" (Pearson only: maximum likelihood
+    means and covariances under missing at random by the EM algorithm, Dempster, Laird & Rubin
+    1977, stopping when no standardised mean or covariance changes by more than ``em_tolerance`` or
+    after ``em_max_iterations``, with ``threads`` and ``progress`` (iterations) as above; ``n_obs``
+    is then every row with an answer); ``smooth``
     replaces a matrix that is not positive definite by the nearest correlation matrix with
     eigenvalues at least ``min_eigenvalue`` (Higham 2002) and reports the change. ``item_names``
     (or the columns of a data frame) name the items in error messages. Returns a
@@ -198,7 +224,7 @@ def correlation(X=None, *, corr=None, cov=None, n_obs=None, method="pearson", mi
     """
     data = _make_data(X, corr, cov, n_obs, item_names)
     return _correlate(data, method, missing, smooth, min_eigenvalue, min_pair_observations, threads, max_categories,
-                      zero_cells, zero_cell_add, progress)
+                      zero_cells, zero_cell_add, progress, em_tolerance, em_max_iterations)
 
 
 # ---- factorability ---------------------------------------------------------------------------------
@@ -567,7 +593,7 @@ def fit(X=None, *, corr=None, cov=None, n_obs=None, factors=0, method="ml", rota
         interval_level=0.90, replicates=None, progress=None, item_names=None, **rotation_keywords):
     """Fits an exploratory factor model.
 
-    Data: raw ``X`` (rows are respondents, NaN missing; ``missing`` "pairwise" or "listwise",
+    Data: raw ``X`` (rows are respondents, NaN missing; ``missing`` "pairwise", "listwise" or "em",
     ``correlation`` "pearson" or "spearman", ``smooth`` a non-positive-definite matrix), or a
     correlation matrix ``corr`` / covariance matrix ``cov`` with ``n_obs``, or a
     :class:`Correlation`. ``factors``: how many (0, the default = the count parallel analysis suggests: reduced-matrix
@@ -631,3 +657,5 @@ def _fit_options(factors, method, max_iterations, tolerance, min_uniqueness, rot
 # last because they build on the helpers above.
 from .scales import Alpha, Comparison, Omega, Scores, alpha, congruence, omega, scores  # noqa: E402
 from .uncertainty import Bootstrap, ItemFlags, bootstrap, item_flags  # noqa: E402
+from .hierarchy import SchmidLeiman, schmid_leiman  # noqa: E402
+from .groups import GroupComparison, compare_groups  # noqa: E402

@@ -37,6 +37,10 @@ struct FactorMatch {
 // similarity, below 0.85 not the same factor.
 FactorMatch match_factors(const Matrix& reference, const Matrix& other);
 
+// The reading of a congruence by those bands, as the end of "it ...": "can be considered the same
+// factor", "shows fair similarity", "is not the same factor".
+const char* congruence_reading(double congruence) noexcept;
+
 // Applies a match to a factor correlation matrix of `other`: returns D P' Phi P D, where P is the column
 // permutation and D the signs, so that it refers to the aligned factors.
 Matrix align_factor_correlations(const Matrix& phi, const FactorMatch& match);

@@ -4,6 +4,7 @@
 #pragma once
 
 #include "lode/common.hpp"
+#include "lode/missing_em.hpp"
 
 #include <string>
 #include <vector>
@@ -12,7 +13,10 @@ namespace lode {
 
 using IndexMatrix = Eigen::Matrix<Index, Eigen::Dynamic, Eigen::Dynamic>;
 
-enum class MissingPolicy { pairwise, listwise };
+// pairwise: each correlation from the rows answering both items; listwise: only rows answering every
+// item; em: maximum likelihood means and covariances under missing at random (missing_em.hpp), Pearson
+// only, from every row with at least one answer.
+enum class MissingPolicy { pairwise, listwise, em };
 enum class CorrelationKind { pearson, spearman, polychoric };
 
 const char* to_string(MissingPolicy policy) noexcept;
@@ -68,18 +72,20 @@ struct CorrelationOptions {
   std::vector<std::string> item_names;  // optional, used in messages; else "column 1", "column 2", ...
   int threads = 0;                      // 0 = all hardware threads
   PolychoricOptions polychoric;         // used when kind == polychoric
+  EmOptions em;                         // used when missing == em (its threads field is ignored: `threads` applies)
 };
 
 struct CorrelationResult {
   Matrix matrix;  // items x items
   // Sample size for tests and fit indices: listwise, the rows used; pairwise, the smallest pair
-  // count (the conservative choice; common practice varies).
+  // count (the conservative choice; common practice varies); em, the rows with at least one answer.
   Index n_obs = 0;
   CorrelationKind kind = CorrelationKind::pearson;
   MissingPolicy missing = MissingPolicy::pairwise;
   DataReport report;
   bool positive_definite = true;
   SmoothingReport smoothing;
+  EmEstimate em;  // missing == em only: the means, covariance and convergence behind `matrix`
   std::vector<std::string> notes;  // plain-language remarks for the report (e.g. smoothing applied)
 };
 

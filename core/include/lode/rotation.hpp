@@ -123,6 +123,23 @@ struct RotationResult {
   RandomStartReport starts;
 };
 
+// Rotation of loadings `a` toward a full target (both items x factors) in closed form, without
+// reordering or reflecting: pattern = a * transformation.
+struct ProcrustesFit {
+  Matrix pattern;
+  Matrix factor_correlations;  // identity for the orthogonal fit
+  Matrix transformation;       // factors x factors
+};
+
+// Orthogonal: the T with T'T = I minimising ||a T - target|| (Schonemann 1966): T = U V' from the
+// singular value decomposition a' target = U S V'.
+ProcrustesFit procrustes_orthogonal(const Matrix& a, const Matrix& target);
+
+// Oblique: the least-squares U = (a'a)^-1 a' target, its columns scaled so that the factors have unit
+// variance (diag((U'U)^-1) = 1); factor correlations (U'U)^-1 (Hurley & Cattell 1962; the step of
+// promax, Hendrickson & White 1964).
+ProcrustesFit procrustes_oblique(const Matrix& a, const Matrix& target);
+
 // Rotates unrotated loadings (items x factors, at least 2 factors, all finite) and presents the result
 // with order_and_reflect (except target rotations, whose factor order and signs the target fixes).
 RotationResult rotate(const Matrix& loadings, const RotationOptions& options = {});
