@@ -106,7 +106,7 @@ void test_reliability(void) {
     CHECK(qo.keying == LODE_KEYING_AS_SCORED && qo.assignment == NULL && qo.reverse == NULL && qo.reverse_count == 0);
     qo.assignment = assignment;
     qo.assignment_count = N_ITEMS;
-    OK(lode_reliability_compute_keyed_omega(f.model, &qo, &rel)); /* nothing reversed: lode_mcdonald_omega's figures */
+    OK(lode_reliability_compute_keyed_omega(f.model, &qo, &rel)); /* nothing reversed: lode_reliability_compute_omega's figures */
     OK(lode_reliability_matrix(rel, LODE_OMEGA, plain, 2, NULL, NULL));
     OK(lode_reliability_matrix(rel, LODE_RELIABILITY_REVERSED, flags, N_ITEMS, &rows, &cols));
     CHECK(rows == N_ITEMS && cols == 1);
