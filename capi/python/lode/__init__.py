@@ -19,7 +19,8 @@ from ._checks import ArgumentError
 __all__ = ["LodeError", "ArgumentError", "version", "correlation", "Correlation", "factorability", "Factorability",
            "n_factors", "parallel_analysis", "map_test", "FactorCount", "rotate", "Rotation", "fit", "Model",
            "scores", "Scores", "alpha", "Alpha", "omega", "Omega", "congruence", "Comparison", "item_flags",
-           "ItemFlags", "bootstrap", "Bootstrap", "Summary", "summary_from_sql"]
+           "ItemFlags", "bootstrap", "Bootstrap", "Summary", "summary_from_sql", "fit_pattern", "RestrictedFit",
+           "replicate", "Replication", "holdout_check", "HoldoutCheck"]
 
 # Keys of lode.h (enum lode_correlation_key).
 _CORRELATION_MATRIX = 100
@@ -619,3 +620,5 @@ def _fit_options(factors, method, max_iterations, tolerance, min_uniqueness, rot
 # last because they build on the helpers above.
 from .scales import Alpha, Comparison, Omega, Scores, alpha, congruence, omega, scores  # noqa: E402
 from .uncertainty import Bootstrap, ItemFlags, bootstrap, item_flags  # noqa: E402
+from .replication import (HoldoutCheck, Replication, RestrictedFit, fit_pattern, holdout_check,  # noqa: E402
+                          replicate)

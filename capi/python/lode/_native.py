@@ -344,3 +344,39 @@ def require(name, abi_minor):
     if not hasattr(lib, name):
         raise LodeError(10, "unsupported", f"{name} needs liblode ABI {ABI_MAJOR}.{abi_minor}; the loaded library "
                                            f"has ABI {ABI_MAJOR}.{ABI_MINOR}")
+
+
+# ---- ABI 1.4: restricted fit, replication, hold-out check -----------------------------------------
+
+class RestrictedFitOptions(ctypes.Structure):
+    _fields_ = [("struct_size", c_size_t), ("max_iterations", c_int), ("tolerance", c_double),
+                ("min_uniqueness", c_double), ("interval_level", c_double)]
+
+
+class ReplicationOptions(ctypes.Structure):
+    _fields_ = [("struct_size", c_size_t), ("splits", c_int64), ("seed", ctypes.c_uint64), ("threads", c_int),
+                ("progress", PROGRESS_FN), ("progress_user", c_void_p)]
+
+
+class HoldoutOptions(ctypes.Structure):
+    _fields_ = [("struct_size", c_size_t), ("share", c_double), ("seed", ctypes.c_uint64), ("salient", c_double),
+                ("restricted", ctypes.POINTER(RestrictedFitOptions))]
+
+
+_abi_1_4 = {
+    "lode_restricted_fit_options_init": (c_int, [ctypes.POINTER(RestrictedFitOptions), c_size_t]),
+    "lode_restricted_fit_compute": (c_int, [c_void_p, P_double, c_int64, c_int64, c_int64, c_int64,
+                                            ctypes.POINTER(RestrictedFitOptions), P_void_p]),
+    "lode_replication_options_init": (c_int, [ctypes.POINTER(ReplicationOptions), c_size_t]),
+    "lode_replication_compute": (c_int, [c_void_p, ctypes.POINTER(FitOptions), ctypes.POINTER(ReplicationOptions),
+                                         P_void_p]),
+    "lode_holdout_options_init": (c_int, [ctypes.POINTER(HoldoutOptions), c_size_t]),
+    "lode_holdout_compute": (c_int, [c_void_p, ctypes.POINTER(FitOptions), ctypes.POINTER(HoldoutOptions), P_void_p]),
+    "lode_restricted_fit_from_holdout": (c_int, [c_void_p, P_void_p]),
+}
+for _kind in ("restricted_fit", "replication", "holdout"):
+    _abi_1_4[f"lode_{_kind}_matrix"] = (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64])
+    _abi_1_4[f"lode_{_kind}_value"] = (c_int, [c_void_p, c_int, P_double])
+    _abi_1_4[f"lode_{_kind}_text"] = (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t])
+    _abi_1_4[f"lode_{_kind}_free"] = (None, [c_void_p])
+declare({name: sig for name, sig in _abi_1_4.items() if hasattr(lib, name)})
