@@ -226,6 +226,16 @@ void fit_statistics(RestrictedFitResult& out, const Matrix& r, const Matrix& sig
       sum += e * e;
     }
   out.srmr = std::sqrt(sum / (0.5 * static_cast<double>(p) * static_cast<double>(p + 1)));
+  // A plain reading with the cut-offs of Hu & Bentler (1999): guides, not laws.
+  auto side = [](double v, double cut, bool high_is_good) {
+    return (high_is_good ? v >= cut : v <= cut) ? "within" : "outside";
+  };
+  if (out.df > 0.0)
+    out.notes.push_back(fmt::format("read with the cut-offs of Hu & Bentler (1999): CFI {:.3f} ({} 0.95 or more), TLI "
+                                    "{:.3f} ({} 0.95 or more), RMSEA {:.3f} ({} 0.06 or less), SRMR {:.3f} ({} 0.08 "
+                                    "or less); they are guides, not laws",
+                                    out.cfi, side(out.cfi, 0.95, true), out.tli, side(out.tli, 0.95, true), out.rmsea,
+                                    side(out.rmsea, 0.06, false), out.srmr, side(out.srmr, 0.08, false)));
 }
 
 }  // namespace

@@ -107,6 +107,9 @@ TEST(RestrictedFit, MatchesAnIndependentMinimisationWithROptim) {
   // The discrepancy is flat at the optimum: F agrees to the square of the parameter error.
   EXPECT_NEAR(f.chi_square / (111.0 * ref.at("F")(0, 0)), 1.0, 1e-6);
   EXPECT_EQ(f.df, 21 - (7 + 1 + 6));
+  bool read = false;
+  for (const auto& note : f.notes) read = read || note.find("Hu & Bentler (1999): CFI") != std::string::npos;
+  EXPECT_TRUE(read);
 }
 
 TEST(RestrictedFit, StandardErrorsMatchANumericalSecondDerivative) {

@@ -119,11 +119,20 @@ class Replication(_native.Handle):
         return f"<lode.Replication {self.splits_used} of {self.splits} splits, {self.factors} factor(s)>"
 
 
-def _raw_only(X, what, keywords):
+def _split_analysis(X, factors, what, caller, method, rotation, missing, correlation, smooth, max_iterations,
+                    tolerance, min_uniqueness, seed, item_names, rotation_keywords):
+    """The correlation handle of raw data ``X`` and the lode_fit_options of the analysis a split repeats
+    (with the objects they point to, kept alive by the caller)."""
     if X is None:
-        given = [k for k in ("corr", "cov") if k in keywords]
+        given = [k for k in ("corr", "cov") if k in rotation_keywords]
         raise ArgumentError(f"{what} splits the respondents, so it needs their raw data X (rows x items)"
                             + (f"; {given[0]}= cannot be split" if given else ""))
+    if factors is None or _checks.whole(factors, "factors", -2 ** 31, 2 ** 31 - 1) < 1:
+        raise ArgumentError(f"{what} needs the number of factors (factors >= 1)")
+    c = _correlation_of(X, None, None, None, correlation, missing, smooth, item_names)
+    o, keep = _fit_options(factors, method, max_iterations, tolerance, min_uniqueness, rotation, seed,
+                           rotation_keywords, caller)
+    return c, o, keep
 
 
 @accepts_summary(needs_rows="split-sample replication")
@@ -137,12 +146,8 @@ def replicate(X=None, *, splits=100, seed=None, factors=None, method="ml", rotat
     full-sample solution and compares the halves. ``progress(done, total)`` counts splits; returning
     False cancels. Returns :class:`Replication`."""
     _native.require("lode_replication_compute", 4)
-    _raw_only(X, "replication", rotation_keywords)
-    if factors is None or _checks.whole(factors, "factors", -2 ** 31, 2 ** 31 - 1) < 1:
-        raise ArgumentError("replication needs the number of factors (factors >= 1)")
-    c = _correlation_of(X, None, None, None, correlation, missing, smooth, item_names)
-    o, keep = _fit_options(factors, method, max_iterations, tolerance, min_uniqueness, rotation, seed,
-                           rotation_keywords, "replicate")
+    c, o, keep = _split_analysis(X, factors, "replication", "replicate", method, rotation, missing, correlation, smooth,
+                                 max_iterations, tolerance, min_uniqueness, seed, item_names, rotation_keywords)
     r = _native.options(_native.ReplicationOptions, "lode_replication_options_init", splits=splits, threads=threads)
     if seed is not None:
         _checks.put(r, "seed", seed)
@@ -198,12 +203,9 @@ def holdout_check(X=None, *, factors=None, share=0.5, seed=None, salient=0.40, m
     likelihood to the held-out respondents. A share too small for either part raises
     :class:`LodeError` naming the workable shares. Returns :class:`HoldoutCheck`."""
     _native.require("lode_holdout_compute", 4)
-    _raw_only(X, "the hold-out check", rotation_keywords)
-    if factors is None or _checks.whole(factors, "factors", -2 ** 31, 2 ** 31 - 1) < 1:
-        raise ArgumentError("the hold-out check needs the number of factors (factors >= 1)")
-    c = _correlation_of(X, None, None, None, correlation, missing, smooth, item_names)
-    o, keep = _fit_options(factors, method, max_iterations, tolerance, min_uniqueness, rotation, seed,
-                           rotation_keywords, "holdout_check")
+    c, o, keep = _split_analysis(X, factors, "the hold-out check", "holdout_check", method, rotation, missing,
+                                 correlation, smooth, max_iterations, tolerance, min_uniqueness, seed, item_names,
+                                 rotation_keywords)
     h = _native.options(_native.HoldoutOptions, "lode_holdout_options_init", share=share, salient=salient)
     if seed is not None:
         _checks.put(h, "seed", seed)
