@@ -91,6 +91,9 @@ def main():
     # Bootstrap / dialog-style analysis: n = 500, p = 30, k = 3.
     once("boot_n500_p30_X", lambda rng: factor_data(rng, 500, 30, 3))
 
+    # Split-sample replication: n = 2000, p = 30, k = 5.
+    once("rep_n2000_p30_k5_X", lambda rng: factor_data(rng, 2000, 30, 5))
+
     # Rotation input: unrotated loadings of 100 items on 10 factors (principal components of the
     # p = 100 correlation matrix scaled by the root eigenvalues), derived without random draws.
     def unrotated(rng):
