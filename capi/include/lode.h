@@ -10,7 +10,7 @@
  * - Status. Every function that can fail returns an `int` status: LODE_OK (0) or one of the
  *   LODE_E_* codes below. The text of the most recent failure on the calling thread, naming the
  *   problem in the analyst's terms (which item, which value, how many rows survive), is returned
- *   by lode_last_error(). No C++ exception ever leaves the library.
+ *   by lode_error_message(). No C++ exception ever leaves the library.
  *
  * - Handles. Results live in opaque handles (lode_data, lode_correlation, ...) created by one
  *   function and released by its `_free` partner; `_free(NULL)` does nothing. A handle is
@@ -108,7 +108,7 @@ LODE_API const char* lode_status_name(int status);
 
 /* The message of the most recent call on this thread that returned a status: "" after LODE_OK,
  * else the reason of the failure. The text stays valid until the next lode_ call on this thread. */
-LODE_API const char* lode_last_error(void);
+LODE_API const char* lode_error_message(void);
 
 /* ------------------------------------------------------------------------------------------- */
 /* Progress and cancellation of long calls                                                       */
@@ -157,12 +157,12 @@ LODE_API void lode_data_free(lode_data* data);
 /* Correlations                                                                                  */
 /* ------------------------------------------------------------------------------------------- */
 
-enum lode_correlation_kind {
-  LODE_PEARSON = 0,
-  LODE_SPEARMAN = 1,
-  LODE_POLYCHORIC = 2 /* ordinal items (Olsson 1979, two-step); tetrachoric for binary items */
+enum lode_coefficient {
+  LODE_COEFFICIENT_PEARSON = 0,
+  LODE_COEFFICIENT_SPEARMAN = 1,
+  LODE_COEFFICIENT_POLYCHORIC = 2 /* ordinal items (Olsson 1979, two-step); tetrachoric for binary items */
 };
-enum lode_missing { LODE_PAIRWISE = 0, LODE_LISTWISE = 1 };
+enum lode_missing { LODE_MISSING_PAIRWISE = 0, LODE_MISSING_LISTWISE = 1 };
 /* Polychoric: what to do with empty cells of a pair's table (adding zero_cell_add to them). */
 enum lode_zero_cells {
   LODE_ZERO_CELLS_NONE = 0,
@@ -172,8 +172,8 @@ enum lode_zero_cells {
 
 typedef struct lode_correlation_options {
   size_t struct_size;            /* set by lode_correlation_options_init */
-  int kind;                      /* enum lode_correlation_kind; default LODE_PEARSON */
-  int missing;                   /* enum lode_missing; default LODE_PAIRWISE */
+  int kind;                      /* enum lode_coefficient; default LODE_COEFFICIENT_PEARSON */
+  int missing;                   /* enum lode_missing; default LODE_MISSING_PAIRWISE */
   int smooth;                    /* nonzero: replace a matrix that is not positive definite by the
                                     nearest correlation matrix (Higham 2002); default 0 (flag it) */
   double min_eigenvalue;         /* the smallest eigenvalue smoothing allows; default 1e-6 */
@@ -193,7 +193,7 @@ typedef struct lode_correlation lode_correlation;
 
 /* The correlation matrix of `data` (for matrix input: the matrix as given, checked, and smoothed
  * on request). The result keeps what it needs of `data`; `data` may be freed at once. */
-LODE_API int lode_correlate(const lode_data* data, const lode_correlation_options* opts, lode_correlation** out);
+LODE_API int lode_correlation_compute(const lode_data* data, const lode_correlation_options* opts, lode_correlation** out);
 
 LODE_API void lode_correlation_free(lode_correlation* corr);
 
@@ -228,7 +228,7 @@ enum lode_correlation_key {
   LODE_CORRELATION_SMOOTHING_RMS_CHANGE = 131,       /* root mean square change off the diagonal */
   LODE_CORRELATION_SMOOTHING_CONVERGED = 132,        /* 1 when the smoothing iteration converged */
   LODE_CORRELATION_SMOOTHING_ITERATIONS = 133,
-  LODE_CORRELATION_KIND = 134,             /* enum lode_correlation_kind */
+  LODE_CORRELATION_KIND = 134,             /* enum lode_coefficient */
   LODE_CORRELATION_MISSING = 135,          /* enum lode_missing */
   LODE_CORRELATION_PAIRS_NOT_CONVERGED = 136, /* polychoric: pairs whose estimate did not converge */
   LODE_CORRELATION_PAIRS_AT_BOUND = 137,      /* polychoric: pairs estimated at |rho| = bound */
@@ -253,7 +253,7 @@ typedef struct lode_factorability lode_factorability;
  * determinant and the squared multiple correlations of `corr`'s matrix. Parts that cannot be
  * computed (KMO of a matrix that is not positive definite, Bartlett's test without n_obs) are left
  * out with a note; asking for them gives the status and the reason. */
-LODE_API int lode_assess_factorability(const lode_correlation* corr, lode_factorability** out);
+LODE_API int lode_factorability_compute(const lode_correlation* corr, lode_factorability** out);
 
 LODE_API void lode_factorability_free(lode_factorability* f);
 
@@ -286,8 +286,8 @@ LODE_API int lode_factorability_text(const lode_factorability* f, int key, char*
 /* ------------------------------------------------------------------------------------------- */
 
 enum lode_random_source {
-  LODE_RANDOM_NORMAL = 0,      /* normal-theory random correlation matrices (Wishart, Bartlett decomposition) */
-  LODE_RANDOM_PERMUTATION = 1  /* each item's answers shuffled (needs raw data) */
+  LODE_RANDOM_SOURCE_NORMAL = 0,      /* normal-theory random correlation matrices (Wishart, Bartlett decomposition) */
+  LODE_RANDOM_SOURCE_PERMUTATION = 1  /* each item's answers shuffled (needs raw data) */
 };
 enum lode_threshold { LODE_THRESHOLD_PERCENTILE = 0, LODE_THRESHOLD_MEAN = 1 };
 
@@ -296,7 +296,7 @@ typedef struct lode_factor_count_options {
   int64_t replicates;         /* random data sets; default 500 */
   int threshold;              /* enum lode_threshold; default LODE_THRESHOLD_PERCENTILE */
   double percentile;          /* in (0, 100); default 95 */
-  int source;                 /* enum lode_random_source; default LODE_RANDOM_NORMAL */
+  int source;                 /* enum lode_random_source; default LODE_RANDOM_SOURCE_NORMAL */
   uint64_t seed;              /* replicate i draws from stream i of this seed; default 20260101 */
   int threads;                /* 0 = all cores; results do not depend on it */
   lode_progress_fn progress;  /* optional; replicates done / total */
@@ -310,37 +310,37 @@ typedef struct lode_factor_count lode_factor_count;
 /* Parallel analysis (Horn 1965) on component and reduced-matrix eigenvalues, Velicer's (1976) MAP
  * test (squared and fourth-power), eigenvalues above one, the empirical Kaiser criterion (Braeken &
  * van Assen 2017), and the suggested count with its reason. Needs n_obs. */
-LODE_API int lode_count_factors(const lode_correlation* corr, const lode_factor_count_options* opts,
+LODE_API int lode_factor_count_compute(const lode_correlation* corr, const lode_factor_count_options* opts,
                                 lode_factor_count** out);
 
 LODE_API void lode_factor_count_free(lode_factor_count* count);
 
 enum lode_factor_count_key {
   /* matrices (items x 1, by position, largest first): lode_factor_count_matrix */
-  LODE_COUNT_OBSERVED_PC = 300,              /* eigenvalues of the correlation matrix */
-  LODE_COUNT_OBSERVED_FACTOR = 301,          /* eigenvalues of the reduced matrix (SMC diagonal) */
-  LODE_COUNT_RANDOM_PC_MEAN = 302,
-  LODE_COUNT_RANDOM_PC_PERCENTILE = 303,
-  LODE_COUNT_RANDOM_FACTOR_MEAN = 304,
-  LODE_COUNT_RANDOM_FACTOR_PERCENTILE = 305,
-  LODE_COUNT_MAP_SQUARED = 306,              /* entry m: average squared partial correlation after m components */
-  LODE_COUNT_MAP_FOURTH = 307,
-  LODE_COUNT_EKC_REFERENCE = 308,            /* empirical Kaiser criterion reference values */
+  LODE_FACTOR_COUNT_OBSERVED_PC = 300,              /* eigenvalues of the correlation matrix */
+  LODE_FACTOR_COUNT_OBSERVED_FACTOR = 301,          /* eigenvalues of the reduced matrix (SMC diagonal) */
+  LODE_FACTOR_COUNT_RANDOM_PC_MEAN = 302,
+  LODE_FACTOR_COUNT_RANDOM_PC_PERCENTILE = 303,
+  LODE_FACTOR_COUNT_RANDOM_FACTOR_MEAN = 304,
+  LODE_FACTOR_COUNT_RANDOM_FACTOR_PERCENTILE = 305,
+  LODE_FACTOR_COUNT_MAP_SQUARED = 306,              /* entry m: average squared partial correlation after m components */
+  LODE_FACTOR_COUNT_MAP_FOURTH = 307,
+  LODE_FACTOR_COUNT_EKC_REFERENCE = 308,            /* empirical Kaiser criterion reference values */
   /* numbers: lode_factor_count_value */
-  LODE_COUNT_SUGGESTED = 320,                /* the suggested number of factors */
-  LODE_COUNT_PARALLEL_PC = 321,              /* parallel analysis, component eigenvalues */
-  LODE_COUNT_PARALLEL_FACTOR = 322,          /* parallel analysis, factor eigenvalues */
-  LODE_COUNT_MAP_SQUARED_SUGGESTED = 323,
-  LODE_COUNT_MAP_FOURTH_SUGGESTED = 324,
-  LODE_COUNT_KAISER = 325,                   /* eigenvalues above one */
-  LODE_COUNT_EMPIRICAL_KAISER = 326,
-  LODE_COUNT_REPLICATES = 327,
-  LODE_COUNT_N_OBS = 328,
-  LODE_COUNT_PERCENTILE = 329,
+  LODE_FACTOR_COUNT_SUGGESTED = 320,                /* the suggested number of factors */
+  LODE_FACTOR_COUNT_PARALLEL_PC = 321,              /* parallel analysis, component eigenvalues */
+  LODE_FACTOR_COUNT_PARALLEL_FACTOR = 322,          /* parallel analysis, factor eigenvalues */
+  LODE_FACTOR_COUNT_MAP_SQUARED_SUGGESTED = 323,
+  LODE_FACTOR_COUNT_MAP_FOURTH_SUGGESTED = 324,
+  LODE_FACTOR_COUNT_KAISER = 325,                   /* eigenvalues above one */
+  LODE_FACTOR_COUNT_EMPIRICAL_KAISER = 326,
+  LODE_FACTOR_COUNT_REPLICATES = 327,
+  LODE_FACTOR_COUNT_N_OBS = 328,
+  LODE_FACTOR_COUNT_PERCENTILE = 329,
   /* text: lode_factor_count_text */
-  LODE_COUNT_REASON = 350,                   /* why the suggested count */
-  LODE_COUNT_TABLE = 351,                    /* one line per rule: rule TAB count TAB primary(0/1) TAB basis */
-  LODE_COUNT_NOTES = 352
+  LODE_FACTOR_COUNT_REASON = 350,                   /* why the suggested count */
+  LODE_FACTOR_COUNT_TABLE = 351,                    /* one line per rule: rule TAB count TAB primary(0/1) TAB basis */
+  LODE_FACTOR_COUNT_NOTES = 352
 };
 
 LODE_API int lode_factor_count_matrix(const lode_factor_count* count, int key, double* out, size_t capacity,
@@ -353,21 +353,21 @@ LODE_API int lode_factor_count_text(const lode_factor_count* count, int key, cha
 /* Rotation                                                                                      */
 /* ------------------------------------------------------------------------------------------- */
 
-enum lode_rotation_method {
-  LODE_ROTATION_NONE = 0,              /* unrotated (still ordered and reflected) */
-  LODE_ROTATION_VARIMAX = 1,           /* orthogonal, gradient projection */
-  LODE_ROTATION_VARIMAX_KAISER = 2,    /* varimax by Kaiser's (1958) pairwise algorithm */
-  LODE_ROTATION_QUARTIMAX = 3,
-  LODE_ROTATION_EQUAMAX = 4,
-  LODE_ROTATION_CRAWFORD_FERGUSON = 5, /* orthogonal, with kappa */
-  LODE_ROTATION_GEOMIN_ORTHOGONAL = 6, /* with epsilon */
-  LODE_ROTATION_TARGET_ORTHOGONAL = 7, /* toward target */
-  LODE_ROTATION_OBLIMIN = 8,           /* oblique, with gamma */
-  LODE_ROTATION_QUARTIMIN = 9,         /* oblimin with gamma 0 */
-  LODE_ROTATION_CRAWFORD_FERGUSON_OBLIQUE = 10,
-  LODE_ROTATION_GEOMIN = 11,           /* oblique, with epsilon */
-  LODE_ROTATION_TARGET_OBLIQUE = 12,
-  LODE_ROTATION_PROMAX = 13            /* oblique, with power */
+enum lode_criterion {
+  LODE_CRITERION_NONE = 0,              /* unrotated (still ordered and reflected) */
+  LODE_CRITERION_VARIMAX = 1,           /* orthogonal, gradient projection */
+  LODE_CRITERION_VARIMAX_KAISER = 2,    /* varimax by Kaiser's (1958) pairwise algorithm */
+  LODE_CRITERION_QUARTIMAX = 3,
+  LODE_CRITERION_EQUAMAX = 4,
+  LODE_CRITERION_CRAWFORD_FERGUSON = 5, /* orthogonal, with kappa */
+  LODE_CRITERION_GEOMIN_ORTHOGONAL = 6, /* with epsilon */
+  LODE_CRITERION_TARGET_ORTHOGONAL = 7, /* toward target */
+  LODE_CRITERION_OBLIMIN = 8,           /* oblique, with gamma */
+  LODE_CRITERION_QUARTIMIN = 9,         /* oblimin with gamma 0 */
+  LODE_CRITERION_CRAWFORD_FERGUSON_OBLIQUE = 10,
+  LODE_CRITERION_GEOMIN = 11,           /* oblique, with epsilon */
+  LODE_CRITERION_TARGET_OBLIQUE = 12,
+  LODE_CRITERION_PROMAX = 13            /* oblique, with power */
 };
 
 /* The method of a name ("varimax", "oblimin", "geomin", "target", ...; case-insensitive, '-', ' '
@@ -378,7 +378,7 @@ LODE_API const char* lode_rotation_method_name(int method);
 
 typedef struct lode_rotation_options {
   size_t struct_size;
-  int method;              /* enum lode_rotation_method; default LODE_ROTATION_VARIMAX */
+  int method;              /* enum lode_criterion; default LODE_CRITERION_VARIMAX */
   int normalize;           /* Kaiser row normalisation; default 1 */
   double gamma;            /* oblimin; default 0 */
   double kappa;            /* Crawford-Ferguson, 0..1; default 0 */
@@ -402,7 +402,7 @@ typedef struct lode_rotation lode_rotation;
 /* Rotates a caller's loading matrix (items x factors, at least 2 factors, finite). Presentation:
  * factors ordered by the variance they account for, each reflected to sum positive (target
  * rotations keep the target's order). */
-LODE_API int lode_rotate(const double* loadings, int64_t items, int64_t factors, int64_t row_stride,
+LODE_API int lode_rotation_compute(const double* loadings, int64_t items, int64_t factors, int64_t row_stride,
                          int64_t col_stride, const lode_rotation_options* opts, lode_rotation** out);
 
 LODE_API void lode_rotation_free(lode_rotation* rotation);
@@ -425,7 +425,7 @@ enum lode_rotation_key {
   LODE_ROTATION_STARTS_CONVERGED = 525,
   LODE_ROTATION_REACHED_BEST = 526,        /* converged starts within tolerance of the best criterion */
   LODE_ROTATION_DISTINCT_SOLUTIONS = 527,
-  LODE_ROTATION_METHOD = 528,              /* enum lode_rotation_method */
+  LODE_ROTATION_METHOD = 528,              /* enum lode_criterion */
   LODE_ROTATION_FINAL_CHANGE = 529,        /* the convergence criterion at the last iteration */
   LODE_ROTATION_TOLERANCE = 530,           /* what it was tested against */
   LODE_ROTATION_MAX_ITERATIONS = 531,
@@ -443,18 +443,18 @@ LODE_API int lode_rotation_text(const lode_rotation* rotation, int key, char* ou
 /* Fitting a factor model: extraction, rotation, fit statistics, residuals                      */
 /* ------------------------------------------------------------------------------------------- */
 
-enum lode_extraction_method {
-  LODE_ML = 0,     /* maximum likelihood (Joreskog 1967; Lawley & Maxwell 1971) */
-  LODE_PAF = 1,    /* iterated principal axis factoring from SMCs */
-  LODE_MINRES = 2, /* minimum residual (unweighted least squares) */
-  LODE_PCA = 3     /* principal components, a comparison method */
+enum lode_extraction {
+  LODE_EXTRACTION_ML = 0,     /* maximum likelihood (Joreskog 1967; Lawley & Maxwell 1971) */
+  LODE_EXTRACTION_PAF = 1,    /* iterated principal axis factoring from SMCs */
+  LODE_EXTRACTION_MINRES = 2, /* minimum residual (unweighted least squares) */
+  LODE_EXTRACTION_PCA = 3     /* principal components, a comparison method */
 };
 
-typedef struct lode_fit_options {
+typedef struct lode_model_options {
   size_t struct_size;
   int factors;              /* number of factors; 0 (default) = the count suggested by
-                               lode_count_factors with `factor_count`'s options */
-  int method;               /* enum lode_extraction_method; default LODE_ML */
+                               lode_factor_count_compute with `factor_count`'s options */
+  int method;               /* enum lode_extraction; default LODE_EXTRACTION_ML */
   int max_iterations;       /* extraction; default 1000 */
   double tolerance;         /* extraction; default 1e-9 */
   double min_uniqueness;    /* lower bound of uniquenesses (ML, MINRES); default 0.005 */
@@ -467,9 +467,9 @@ typedef struct lode_fit_options {
      it, as rotation starts finish, and once at the end. Optional; never changes a result. */
   lode_progress_fn progress;
   void* progress_user;                           /* passed to progress */
-} lode_fit_options;
+} lode_model_options;
 
-LODE_API int lode_fit_options_init(lode_fit_options* opts, size_t struct_size);
+LODE_API int lode_model_options_init(lode_model_options* opts, size_t struct_size);
 
 typedef struct lode_model lode_model;
 
@@ -477,7 +477,7 @@ typedef struct lode_model lode_model;
  * cases are reported (LODE_MODEL_CONVERGED, LODE_MODEL_HEYWOOD, the notes), not errors. Fit
  * statistics need n_obs: without it they are unavailable (their getters say why) while loadings and
  * residuals are there. */
-LODE_API int lode_fit(const lode_correlation* corr, const lode_fit_options* opts, lode_model** out);
+LODE_API int lode_model_compute(const lode_correlation* corr, const lode_model_options* opts, lode_model** out);
 
 LODE_API void lode_model_free(lode_model* model);
 
@@ -518,8 +518,8 @@ enum lode_model_key {
   LODE_MODEL_ROTATION_CRITERION = 439,
   LODE_MODEL_ROTATION_CONVERGED = 440,
   LODE_MODEL_OBLIQUE = 441,
-  LODE_MODEL_METHOD = 442,              /* enum lode_extraction_method */
-  LODE_MODEL_ROTATION_METHOD = 443,     /* enum lode_rotation_method */
+  LODE_MODEL_METHOD = 442,              /* enum lode_extraction */
+  LODE_MODEL_ROTATION_METHOD = 443,     /* enum lode_criterion */
   LODE_MODEL_SUGGESTED_FACTORS = 444,   /* when factors was 0: the count used; else 0 */
   LODE_MODEL_FINAL_CHANGE = 445,        /* extraction's convergence criterion at the last iteration */
   LODE_MODEL_TOLERANCE = 446,           /* what it was tested against */
@@ -538,25 +538,25 @@ LODE_API int lode_model_text(const lode_model* model, int key, char* out, size_t
 /* Factor scores                                                                                  */
 /* ------------------------------------------------------------------------------------------- */
 
-enum lode_score_method {
-  LODE_SCORES_REGRESSION = 0, /* Thurstone (1935) */
-  LODE_SCORES_BARTLETT = 1,   /* Bartlett (1937) */
-  LODE_SCORES_TENBERGE = 2    /* correlation-preserving (ten Berge et al. 1999) */
+enum lode_estimator {
+  LODE_ESTIMATOR_REGRESSION = 0, /* Thurstone (1935) */
+  LODE_ESTIMATOR_BARTLETT = 1,   /* Bartlett (1937) */
+  LODE_ESTIMATOR_CORRELATION_PRESERVING = 2    /* correlation-preserving (ten Berge et al. 1999) */
 };
-enum lode_score_missing {
-  LODE_SCORE_FROM_ANSWERED = 0, /* weights from the answered items, when enough were answered */
-  LODE_SCORE_LEAVE_MISSING = 1  /* any missing item leaves the row's scores NaN */
+enum lode_gaps {
+  LODE_GAPS_FROM_ANSWERED = 0, /* weights from the answered items, when enough were answered */
+  LODE_GAPS_LEAVE_MISSING = 1  /* any missing item leaves the row's scores NaN */
 };
 
-typedef struct lode_score_options {
+typedef struct lode_scores_options {
   size_t struct_size;
-  int method;                /* enum lode_score_method; default LODE_SCORES_REGRESSION */
-  int missing;               /* enum lode_score_missing; default LODE_SCORE_FROM_ANSWERED */
+  int method;                /* enum lode_estimator; default LODE_ESTIMATOR_REGRESSION */
+  int missing;               /* enum lode_gaps; default LODE_GAPS_FROM_ANSWERED */
   double min_answered_share; /* share of items a row must answer to be scored; default 0.5 */
   double low_determinacy;    /* determinacy below this is flagged; default 0.80 */
-} lode_score_options;
+} lode_scores_options;
 
-LODE_API int lode_score_options_init(lode_score_options* opts, size_t struct_size);
+LODE_API int lode_scores_options_init(lode_scores_options* opts, size_t struct_size);
 
 typedef struct lode_scores lode_scores;
 
@@ -566,7 +566,7 @@ typedef struct lode_scores lode_scores;
  * the model's own respondents (NULL, the same handle or the same values) and its correlations dropped
  * incomplete rows (listwise), over the complete rows, the ones behind the correlation matrix. Factor scores are estimates: the notes carry the cautions that go
  * with using them to select, rate or diagnose people. */
-LODE_API int lode_score(const lode_model* model, const lode_data* data, const lode_score_options* opts,
+LODE_API int lode_scores_compute(const lode_model* model, const lode_data* data, const lode_scores_options* opts,
                         lode_scores** out);
 
 LODE_API void lode_scores_free(lode_scores* scores);
@@ -602,7 +602,7 @@ typedef struct lode_reliability lode_reliability;
 
 /* Cronbach's (1951) alpha of one scale: `data` holds the scale's items (raw data, already
  * reverse-scored where needed); rows with a missing item are left out. */
-LODE_API int lode_cronbach_alpha(const lode_data* data, lode_reliability** out);
+LODE_API int lode_reliability_compute_alpha(const lode_data* data, lode_reliability** out);
 
 /* McDonald's (1999) omega for the scale (the sum) of each factor's items S of `model`, both as ratios
  * to the model-implied variance of that sum, 1' Sigma_SS 1 with Sigma = Lambda Phi Lambda' + Psi:
@@ -614,20 +614,20 @@ LODE_API int lode_cronbach_alpha(const lode_data* data, lode_reliability** out);
  * `assignment` gives each item's factor (0-based; -1 = in no scale), `count` the number of items;
  * NULL with count 0 assigns each item to the factor of its largest absolute loading (stated in the
  * notes). */
-LODE_API int lode_mcdonald_omega(const lode_model* model, const int64_t* assignment, int64_t count,
+LODE_API int lode_reliability_compute_omega(const lode_model* model, const int64_t* assignment, int64_t count,
                                  lode_reliability** out);
 
 /* McDonald's (1999) omega for a single scale from a one-factor fit of `corr` (the correlations of
  * the scale's items alone). Of `opts` only method, max_iterations, tolerance and min_uniqueness are
  * read (NULL = maximum likelihood with the defaults); non-convergence and Heywood cases are stated in
  * the notes and LODE_OMEGA_CONVERGED, not hidden. */
-LODE_API int lode_omega_single_scale(const lode_correlation* corr, const lode_fit_options* opts,
+LODE_API int lode_reliability_compute_scale_omega(const lode_correlation* corr, const lode_model_options* opts,
                                      lode_reliability** out);
 
 LODE_API void lode_reliability_free(lode_reliability* reliability);
 
 enum lode_reliability_key {
-  /* alpha (lode_cronbach_alpha) - matrices, items x 1 */
+  /* alpha (lode_reliability_compute_alpha) - matrices, items x 1 */
   LODE_ALPHA_IF_DELETED = 700,
   LODE_ALPHA_STANDARDIZED_IF_DELETED = 701,
   LODE_ALPHA_ITEM_TOTAL = 702,          /* corrected item-total correlations */
@@ -640,7 +640,7 @@ enum lode_reliability_key {
   LODE_ALPHA_ROWS_TOTAL = 723,
   LODE_ALPHA_ROWS_USED = 724,
   LODE_ALPHA_ITEMS = 725,
-  /* omega (lode_mcdonald_omega) - matrices */
+  /* omega (lode_reliability_compute_omega) - matrices */
   LODE_OMEGA = 740,                     /* factors x 1: omega total of each factor's scale (NaN: no items) */
   LODE_OMEGA_ASSIGNMENT = 741,          /* items x 1: the factor of each item (0-based, -1 = none) */
   LODE_OMEGA_SUM_LOADINGS = 742,        /* factors x 1 */
@@ -670,7 +670,7 @@ typedef struct lode_comparison lode_comparison;
 /* Tucker's (1951) congruence between every factor of loading matrix `a` and every factor of `b`
  * (same items, same number of factors), then the one-to-one matching of b's factors to a's with the
  * largest total |congruence| (Hungarian method), reflecting matched factors with negative congruence. */
-LODE_API int lode_compare_loadings(const double* a, const double* b, int64_t items, int64_t factors,
+LODE_API int lode_comparison_compute(const double* a, const double* b, int64_t items, int64_t factors,
                                    int64_t a_row_stride, int64_t a_col_stride, int64_t b_row_stride,
                                    int64_t b_col_stride, lode_comparison** out);
 
@@ -695,7 +695,7 @@ LODE_API int lode_comparison_text(const lode_comparison* comparison, int key, ch
 /* ------------------------------------------------------------------------------------------- */
 
 /* Kinds of flag. Each is a bit, so an item's code (LODE_ITEM_FLAGS_CODES) is the OR of its flags. */
-enum lode_item_flag_kind {
+enum lode_flag {
   LODE_FLAG_CROSS_LOADING = 1,      /* a second loading salient too, or within cross_loading_gap of the largest */
   LODE_FLAG_NO_SALIENT_LOADING = 2, /* the largest |loading| is below salient */
   LODE_FLAG_LOW_COMMUNALITY = 4,    /* communality below low_communality */
@@ -704,28 +704,28 @@ enum lode_item_flag_kind {
 
 /* Thresholds. The defaults of the first three are rules of thumb of the trade (common practice), not
  * results of a method; the notes say so. */
-typedef struct lode_item_flag_options {
+typedef struct lode_item_flags_options {
   size_t struct_size;
   double salient;            /* a loading is salient when |loading| >= this; default 0.40 */
   double cross_loading_gap;  /* a second loading within this of the largest (in |.|) cross-loads; default 0.20 */
   double low_communality;    /* communality below this is low; default 0.20 */
   double heywood_uniqueness; /* uniqueness at or below this is a Heywood case; default 0.005 (the lower
-                                bound of uniquenesses in lode_fit_options and R's stats::factanal) */
-} lode_item_flag_options;
+                                bound of uniquenesses in lode_model_options and R's stats::factanal) */
+} lode_item_flags_options;
 
-LODE_API int lode_item_flag_options_init(lode_item_flag_options* opts, size_t struct_size);
+LODE_API int lode_item_flags_options_init(lode_item_flags_options* opts, size_t struct_size);
 
 typedef struct lode_item_flags lode_item_flags;
 
 /* Flags the items of a fitted model from its pattern loadings, factor correlations and uniquenesses
  * (communality = 1 - uniqueness). Every threshold must lie in [0, 1]. */
-LODE_API int lode_flag_items(const lode_model* model, const lode_item_flag_options* opts, lode_item_flags** out);
+LODE_API int lode_item_flags_compute(const lode_model* model, const lode_item_flags_options* opts, lode_item_flags** out);
 
 LODE_API void lode_item_flags_free(lode_item_flags* flags);
 
 enum lode_item_flags_key {
   /* matrices: lode_item_flags_matrix */
-  LODE_ITEM_FLAGS_CODES = 1000,      /* items x 1: the OR of the item's enum lode_item_flag_kind values (0 = none) */
+  LODE_ITEM_FLAGS_CODES = 1000,      /* items x 1: the OR of the item's enum lode_flag values (0 = none) */
   LODE_ITEM_FLAGS_TABLE = 1001,      /* flags x 5, one row per flag in item order: item (0-based), kind,
                                         first factor, second factor (0-based; -1 where none), value (the
                                         loading, communality or uniqueness that raised the flag; for a
@@ -776,7 +776,7 @@ LODE_API int lode_bootstrap_options_init(lode_bootstrap_options* opts, size_t st
 
 typedef struct lode_bootstrap_result lode_bootstrap_result;
 
-/* Percentile bootstrap (Efron & Tibshirani 1993) of the factor solution that lode_fit(corr, fit) gives:
+/* Percentile bootstrap (Efron & Tibshirani 1993) of the factor solution that lode_model_compute(corr, fit) gives:
  * the respondents behind `corr` (raw data; a correlation handle made from a matrix is refused) are
  * resampled with replacement, their correlations recomputed with corr's options, and each replicate is
  * extracted and rotated as `fit` says, then aligned to the full-sample solution (factors matched by
@@ -785,7 +785,7 @@ typedef struct lode_bootstrap_result lode_bootstrap_result;
  * min_uniqueness, rotation (NULL = unrotated); its progress is not used (`opts` has its own).
  * Replicates that fail or do not converge are counted, named by reason and excluded. A full-sample fit
  * that does not converge is LODE_E_NOT_CONVERGED; fewer than 2 usable replicates LODE_E_INSUFFICIENT_DATA. */
-LODE_API int lode_bootstrap(const lode_correlation* corr, const lode_fit_options* fit,
+LODE_API int lode_bootstrap_compute(const lode_correlation* corr, const lode_model_options* fit,
                             const lode_bootstrap_options* opts, lode_bootstrap_result** out);
 
 LODE_API void lode_bootstrap_free(lode_bootstrap_result* result);
@@ -840,7 +840,7 @@ LODE_API int lode_bootstrap_text(const lode_bootstrap_result* result, int key, c
  * each item's mean and sum of squares about that mean over those rows and the pair's co-moment, and
  * for items with at most max_categories distinct values the count of each value and every pair's
  * contingency table. It gives Pearson, Spearman and polychoric correlations exactly as the rows
- * would (lode_summary_to_data, then lode_correlate), merges exactly up to rounding in any order, and
+ * would (lode_summary_to_data, then lode_correlation_compute), merges exactly up to rounding in any order, and
  * has a documented portable byte form (README, "Summaries"). A summary is changed by
  * lode_summary_add and lode_summary_merge: do not use one handle from several threads while either
  * runs. */
@@ -876,7 +876,7 @@ LODE_API int lode_summary_to_bytes(const lode_summary* summary, uint8_t* out, si
  * with a message saying what is wrong. */
 LODE_API int lode_summary_from_bytes(const uint8_t* bytes, size_t length, lode_summary** out);
 
-/* A data handle for lode_correlate (and everything built on a correlation: factorability, factor
+/* A data handle for lode_correlation_compute (and everything built on a correlation: factorability, factor
  * count, fit, omega). Its correlation's missing option must match the summary's policy. Scores,
  * alpha and the bootstrap need rows and refuse it. The data handle keeps its own copy. */
 LODE_API int lode_summary_to_data(const lode_summary* summary, lode_data** out);
@@ -1014,7 +1014,7 @@ typedef struct lode_replication lode_replication;
  * correlated with corr's options and extracted and rotated as `fit` says (factors at least 1; its
  * progress is not used), aligned to the full-sample solution (Tucker congruence, Hungarian matching,
  * reflection), and the halves' factors compared. Splits whose halves fail are counted and left out. */
-LODE_API int lode_replication_compute(const lode_correlation* corr, const lode_fit_options* fit,
+LODE_API int lode_replication_compute(const lode_correlation* corr, const lode_model_options* fit,
                                       const lode_replication_options* opts, lode_replication** out);
 
 LODE_API void lode_replication_free(lode_replication* replication);
@@ -1069,7 +1069,7 @@ typedef struct lode_holdout lode_holdout;
  * at or above `salient`; items salient nowhere left out and listed) and fits that restricted model to
  * the held-out respondents' correlations. A share leaving either part with no more respondents than
  * items is LODE_E_INSUFFICIENT_DATA naming the workable shares. */
-LODE_API int lode_holdout_compute(const lode_correlation* corr, const lode_fit_options* fit,
+LODE_API int lode_holdout_compute(const lode_correlation* corr, const lode_model_options* fit,
                                   const lode_holdout_options* opts, lode_holdout** out);
 
 /* The confirmatory fit of a hold-out check as a restricted fit handle of its own (items: those

@@ -92,11 +92,11 @@ struct Analysis {
   RotationOptions rotation;
 };
 
-Analysis read_analysis(const lode_correlation* corr, const lode_fit_options* fit, const char* what) {
+Analysis read_analysis(const lode_correlation* corr, const lode_model_options* fit, const char* what) {
   FitSetup setup = read_fit_options(fit, corr);
   if (setup.factors < 1)
     fail(LODE_E_INVALID_ARGUMENT,
-         fmt::format("{} needs the number of factors (lode_fit_options.factors); it is {}", what, setup.factors));
+         fmt::format("{} needs the number of factors (lode_model_options.factors); it is {}", what, setup.factors));
   if (corr->data->source != DataSource::raw)
     fail(LODE_E_INVALID_ARGUMENT,
          fmt::format("{} splits the respondents, so it needs raw data; this correlation was given as a matrix", what));
@@ -222,7 +222,7 @@ LODE_API int lode_replication_options_init(lode_replication_options* opts, size_
   return guarded([&] { init_options(opts, struct_size, replication_defaults(), "lode_replication_options"); });
 }
 
-LODE_API int lode_replication_compute(const lode_correlation* corr, const lode_fit_options* fit,
+LODE_API int lode_replication_compute(const lode_correlation* corr, const lode_model_options* fit,
                                       const lode_replication_options* opts, lode_replication** out) {
   return guarded([&] {
     require_pointer(corr, "corr");
@@ -312,7 +312,7 @@ LODE_API int lode_holdout_options_init(lode_holdout_options* opts, size_t struct
   return guarded([&] { init_options(opts, struct_size, holdout_defaults(), "lode_holdout_options"); });
 }
 
-LODE_API int lode_holdout_compute(const lode_correlation* corr, const lode_fit_options* fit,
+LODE_API int lode_holdout_compute(const lode_correlation* corr, const lode_model_options* fit,
                                   const lode_holdout_options* opts, lode_holdout** out) {
   return guarded([&] {
     require_pointer(corr, "corr");

@@ -20,9 +20,9 @@ static int failures = 0;
     }                                                                          \
   } while (0)
 static void expect(int got, int status, const char* fragment, const char* call, int line) {
-  if (got != status || (fragment != NULL && strstr(lode_last_error(), fragment) == NULL)) {
+  if (got != status || (fragment != NULL && strstr(lode_error_message(), fragment) == NULL)) {
     ++failures;
-    fprintf(stderr, "line %d: %s gave %d (%s)\n", line, call, got, lode_last_error());
+    fprintf(stderr, "line %d: %s gave %d (%s)\n", line, call, got, lode_error_message());
   }
 }
 #define EXPECT(call, status, fragment) expect((call), (status), (fragment), #call, __LINE__)
@@ -77,10 +77,10 @@ static void test_restricted_fit(void) {
 
   population_matrix(r);
   OK(lode_data_from_correlation(r, ITEMS, ITEMS, 1, 250, &d));
-  OK(lode_correlate(d, NULL, &c));
+  OK(lode_correlation_compute(d, NULL, &c));
   lode_data_free(d);
   OK(lode_data_from_correlation(r, ITEMS, ITEMS, 1, 0, &d));
-  OK(lode_correlate(d, NULL, &c0));
+  OK(lode_correlation_compute(d, NULL, &c0));
   lode_data_free(d);
   OK(lode_restricted_fit_options_init(&o, sizeof o));
   CHECK(o.max_iterations == 500 && o.tolerance == 1e-10 && o.min_uniqueness == 0.005 && o.interval_level == 0.90);
@@ -198,7 +198,7 @@ static void test_replication_and_holdout(void) {
   double m[64], v = 0.0, r[ITEMS * ITEMS];
   lode_data *d = NULL, *dm = NULL;
   lode_correlation *c = NULL, *cm = NULL;
-  lode_fit_options fo;
+  lode_model_options fo;
   lode_rotation_options ro;
   lode_replication_options o;
   lode_replication *rep = NULL, *rep2 = NULL;
@@ -212,13 +212,13 @@ static void test_replication_and_holdout(void) {
 
   simulate(x);
   OK(lode_data_from_raw(x, ROWS, ITEMS, ITEMS, 1, &d));
-  OK(lode_correlate(d, NULL, &c));
+  OK(lode_correlation_compute(d, NULL, &c));
   population_matrix(r);
   OK(lode_data_from_correlation(r, ITEMS, ITEMS, 1, 300, &dm));
-  OK(lode_correlate(dm, NULL, &cm));
+  OK(lode_correlation_compute(dm, NULL, &cm));
   OK(lode_rotation_options_init(&ro, sizeof ro));
-  ro.method = LODE_ROTATION_OBLIMIN;
-  OK(lode_fit_options_init(&fo, sizeof fo));
+  ro.method = LODE_CRITERION_OBLIMIN;
+  OK(lode_model_options_init(&fo, sizeof fo));
   fo.factors = 2;
   fo.rotation = &ro;
   OK(lode_replication_options_init(&o, sizeof o));

@@ -77,7 +77,7 @@ void missing_pattern(std::vector<double>& values, int64_t rows, int64_t cols, in
 void plain_calls(Bytes& in) {
   lode_version();
   for (int status = -2; status < 13; ++status) lode_status_name(status);
-  lode_last_error();
+  lode_error_message();
   char word[24];
   const size_t length = in.byte() % sizeof word;
   for (size_t k = 0; k < length; ++k) word[k] = static_cast<char>(in.byte());
@@ -123,16 +123,16 @@ int fuzz_progress(void* user, int64_t done, int64_t total) {
 
 // Item flags of a fitted model with thresholds chosen by the input (some outside [0, 1]), read back.
 void flag(const lode_model* m, Bytes& in) {
-  lode_item_flag_options o;
-  lode_item_flag_options_init(&o, sizeof o);
+  lode_item_flags_options o;
+  lode_item_flags_options_init(&o, sizeof o);
   const uint8_t plan = in.byte();
   if (plan & 1) o.salient = (in.byte() % 12) / 10.0;
   if (plan & 2) o.cross_loading_gap = (in.byte() % 12) / 10.0 - 0.05;
   if (plan & 4) o.low_communality = (in.byte() % 12) / 10.0;
   if (plan & 8) o.heywood_uniqueness = (in.byte() % 12) / 10.0;
-  if (plan & 16) o.struct_size = offsetof(lode_item_flag_options, low_communality);
+  if (plan & 16) o.struct_size = offsetof(lode_item_flags_options, low_communality);
   lode_item_flags* f = nullptr;
-  if (lode_flag_items(m, &o, &f) != LODE_OK) return;
+  if (lode_item_flags_compute(m, &o, &f) != LODE_OK) return;
   double buf[512], v;
   for (int key = 1000; key < 1003; ++key) lode_item_flags_matrix(f, key, buf, 512, nullptr, nullptr);
   for (int key = 1020; key < 1027; ++key) lode_item_flags_value(f, key, &v);
@@ -143,7 +143,7 @@ void flag(const lode_model* m, Bytes& in) {
 }
 
 // The bootstrap of the fit's solution with a tiny number of replicates, read back in full.
-void bootstrap(const lode_correlation* c, const lode_fit_options& fit, Bytes& in) {
+void bootstrap(const lode_correlation* c, const lode_model_options& fit, Bytes& in) {
   lode_bootstrap_options o;
   lode_bootstrap_options_init(&o, sizeof o);
   const uint8_t plan = in.byte();
@@ -157,7 +157,7 @@ void bootstrap(const lode_correlation* c, const lode_fit_options& fit, Bytes& in
   o.progress = fuzz_progress;
   o.progress_user = &cancel_after;
   lode_bootstrap_result* b = nullptr;
-  if (lode_bootstrap(c, &fit, &o, &b) != LODE_OK) return;
+  if (lode_bootstrap_compute(c, &fit, &o, &b) != LODE_OK) return;
   double buf[1024], v;
   for (int key = 900; key < 916; ++key) {
     int64_t rows = 0, cols = 0;
@@ -208,7 +208,7 @@ void restricted_fit(const lode_correlation* c, Bytes& in) {
 }
 
 // Split-sample replication and the hold-out check of the fit's solution, tiny, read back in full.
-void replication(const lode_correlation* c, const lode_fit_options& fit, Bytes& in) {
+void replication(const lode_correlation* c, const lode_model_options& fit, Bytes& in) {
   lode_replication_options o;
   lode_replication_options_init(&o, sizeof o);
   const uint8_t plan = in.byte();
@@ -264,7 +264,7 @@ void replication(const lode_correlation* c, const lode_fit_options& fit, Bytes& 
 // the fitted loadings, each read back in full.
 void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
   lode_factorability* f = nullptr;
-  if (lode_assess_factorability(c, &f) == LODE_OK) {
+  if (lode_factorability_compute(c, &f) == LODE_OK) {
     double v;
     for (int key = 218; key < 228; ++key) lode_factorability_value(f, key, &v);
     for (int key : {LODE_FACTORABILITY_MSA, LODE_FACTORABILITY_SMC}) {
@@ -282,10 +282,10 @@ void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
   co.replicates = 5 + in.byte() % 20;
   co.threads = 1;
   co.seed = in.byte();
-  co.source = (plan & 0x80) ? LODE_RANDOM_PERMUTATION : LODE_RANDOM_NORMAL;
+  co.source = (plan & 0x80) ? LODE_RANDOM_SOURCE_PERMUTATION : LODE_RANDOM_SOURCE_NORMAL;
   if (plan & 1) {
     lode_factor_count* n = nullptr;
-    if (lode_count_factors(c, &co, &n) == LODE_OK) {
+    if (lode_factor_count_compute(c, &co, &n) == LODE_OK) {
       double v, buf[16];
       for (int key = 320; key < 330; ++key) lode_factor_count_value(n, key, &v);
       for (int key = 300; key < 309; ++key) lode_factor_count_matrix(n, key, buf, 16, nullptr, nullptr);
@@ -303,8 +303,8 @@ void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
   ro.threads = 1;
   ro.gamma = (in.byte() % 5) / 4.0;
   ro.kappa = (in.byte() % 5) / 4.0;
-  lode_fit_options fo;
-  lode_fit_options_init(&fo, sizeof fo);
+  lode_model_options fo;
+  lode_model_options_init(&fo, sizeof fo);
   fo.factors = in.byte() % 5;  // 0 = suggested
   fo.method = in.byte() % 5;   // includes one unknown method
   fo.max_iterations = 200;
@@ -314,13 +314,13 @@ void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
   fo.progress = fuzz_progress;
   fo.progress_user = &cancel_after;
   lode_model* m = nullptr;
-  if (lode_fit(c, &fo, &m) != LODE_OK) return;
+  if (lode_model_compute(c, &fo, &m) != LODE_OK) return;
   flag(m, in);
   // The bootstrap of the same solution (needs a number of factors, so the one found when it was 0).
   {
     double k = 0.0;
     lode_model_value(m, LODE_MODEL_FACTORS, &k);
-    lode_fit_options bf = fo;
+    lode_model_options bf = fo;
     bf.factors = static_cast<int>(k);
     bf.progress = nullptr;
     ro.struct_size = sizeof ro;
@@ -340,7 +340,7 @@ void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
     // random starts), bounded but far slower than a fuzz unit's time limit under the sanitizers.
     // Older struct sizes are exercised by the strict C99 test.
     ro.struct_size = sizeof ro;
-    if (lode_rotate(buf, rows, cols, cols, 1, &ro, &r) == LODE_OK) {
+    if (lode_rotation_compute(buf, rows, cols, cols, 1, &ro, &r) == LODE_OK) {
       for (int key = 500; key < 507; ++key) lode_rotation_matrix(r, key, buf, 256, nullptr, nullptr);
       for (int key = 520; key < 529; ++key) lode_rotation_value(r, key, &v);
       lode_rotation_text(r, LODE_ROTATION_METHOD_NAME, text, sizeof text, nullptr);
@@ -349,8 +349,8 @@ void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
   }
   // Scores of the data the model was fitted to (refused for matrix input), omega per factor, and the
   // congruence of the unrotated with the rotated loadings, each read back in full.
-  lode_score_options so;
-  lode_score_options_init(&so, sizeof so);
+  lode_scores_options so;
+  lode_scores_options_init(&so, sizeof so);
   so.method = in.byte() % 4;   // includes one unknown method
   so.missing = in.byte() % 3;  // includes one unknown rule
   so.min_answered_share = (in.byte() % 5) / 4.0;
@@ -369,7 +369,7 @@ void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
       if (lode_data_from_raw(some.data(), keep, p, p, 1, &first) != LODE_OK) break;
       scored = first;
     }
-    if (lode_score(m, scored, &so, &s) == LODE_OK) {
+    if (lode_scores_compute(m, scored, &so, &s) == LODE_OK) {
       for (int key = 600; key < 606; ++key) lode_scores_matrix(s, key, buf, 256, nullptr, nullptr);
       for (int key = 620; key < 624; ++key) lode_scores_value(s, key, &v);
       for (int key = 650; key < 652; ++key) lode_scores_text(s, key, text, sizeof text, nullptr);
@@ -378,7 +378,7 @@ void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
     lode_data_free(first);
   }
   lode_reliability* rel = nullptr;
-  if (lode_mcdonald_omega(m, nullptr, 0, &rel) == LODE_OK) {
+  if (lode_reliability_compute_omega(m, nullptr, 0, &rel) == LODE_OK) {
     for (int key = 740; key < 746; ++key) lode_reliability_matrix(rel, key, buf, 256, nullptr, nullptr);
     lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v);
     lode_reliability_text(rel, LODE_RELIABILITY_NOTES, text, sizeof text, nullptr);
@@ -388,7 +388,7 @@ void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
   if (lode_model_matrix(m, LODE_MODEL_UNROTATED_LOADINGS, buf, 256, &rows, &cols) == LODE_OK &&
       lode_model_matrix(m, LODE_MODEL_LOADINGS, rotated, 256, nullptr, nullptr) == LODE_OK) {
     lode_comparison* cmp = nullptr;
-    if (lode_compare_loadings(buf, rotated, rows, cols, cols, 1, cols, 1, &cmp) == LODE_OK) {
+    if (lode_comparison_compute(buf, rotated, rows, cols, cols, 1, cols, 1, &cmp) == LODE_OK) {
       double out[256];
       for (int key = 800; key < 805; ++key) lode_comparison_matrix(cmp, key, out, 256, nullptr, nullptr);
       lode_comparison_text(cmp, LODE_COMPARISON_NOTES, text, sizeof text, nullptr);
@@ -403,16 +403,16 @@ void reliability(const lode_data* d, const lode_correlation* c) {
   double buf[64], v;
   char text[1024];
   lode_reliability* rel = nullptr;
-  if (lode_cronbach_alpha(d, &rel) == LODE_OK) {
+  if (lode_reliability_compute_alpha(d, &rel) == LODE_OK) {
     for (int key = 700; key < 705; ++key) lode_reliability_matrix(rel, key, buf, 64, nullptr, nullptr);
     for (int key = 720; key < 726; ++key) lode_reliability_value(rel, key, &v);
     lode_reliability_text(rel, LODE_RELIABILITY_NOTES, text, sizeof text, nullptr);
     lode_reliability_free(rel);
   }
-  lode_fit_options fo;
-  lode_fit_options_init(&fo, sizeof fo);
+  lode_model_options fo;
+  lode_model_options_init(&fo, sizeof fo);
   fo.max_iterations = 200;
-  if (lode_omega_single_scale(c, &fo, &rel) == LODE_OK) {
+  if (lode_reliability_compute_scale_omega(c, &fo, &rel) == LODE_OK) {
     for (int key = 740; key < 746; ++key) lode_reliability_matrix(rel, key, buf, 64, nullptr, nullptr);
     lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v);
     lode_reliability_text(rel, LODE_RELIABILITY_NOTES, text, sizeof text, nullptr);
@@ -429,10 +429,10 @@ void correlate_summary(const lode_summary* s, Bytes& in) {
   lode_correlation_options_init(&o, sizeof o);
   const uint8_t flags = in.byte();
   o.kind = flags % 3;
-  o.missing = (flags & 4) ? LODE_LISTWISE : LODE_PAIRWISE;
+  o.missing = (flags & 4) ? LODE_MISSING_LISTWISE : LODE_MISSING_PAIRWISE;
   o.threads = 1;
   lode_correlation* c = nullptr;
-  if (lode_correlate(d, &o, &c) == LODE_OK) {
+  if (lode_correlation_compute(d, &o, &c) == LODE_OK) {
     read_correlation(c, in);
     lode_correlation_free(c);
   }
@@ -549,15 +549,15 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
   lode_correlation_options o;
   lode_correlation_options_init(&o, sizeof o);
   const uint8_t flags = in.byte();
-  o.kind = flags & 1 ? LODE_SPEARMAN : LODE_PEARSON;
-  o.missing = flags & 2 ? LODE_LISTWISE : LODE_PAIRWISE;
+  o.kind = flags & 1 ? LODE_COEFFICIENT_SPEARMAN : LODE_COEFFICIENT_PEARSON;
+  o.missing = flags & 2 ? LODE_MISSING_LISTWISE : LODE_MISSING_PAIRWISE;
   o.smooth = (flags & 4) != 0;
   o.min_eigenvalue = (flags & 8) ? 0.0 : 1e-6;
   if (flags & 16) o.struct_size = offsetof(lode_correlation_options, smooth);
-  if (flags & 32) o.kind = LODE_POLYCHORIC;
+  if (flags & 32) o.kind = LODE_COEFFICIENT_POLYCHORIC;
   o.threads = 1;
   lode_correlation* c = nullptr;
-  if (lode_correlate(d, &o, &c) == LODE_OK) {
+  if (lode_correlation_compute(d, &o, &c) == LODE_OK) {
     read_correlation(c, in);
     analyse(c, d, in);
     reliability(d, c);

@@ -185,7 +185,7 @@ def _correlate(data, method, missing, smooth, min_eigenvalue=1e-6, min_pair_obse
     if callback is not None:
         o.progress = callback
     ptr = ctypes.c_void_p()
-    check(lib.lode_correlate(data.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    check(lib.lode_correlation_compute(data.pointer, ctypes.byref(o), ctypes.byref(ptr)))
     del callback
     return Correlation(ptr.value)
 
@@ -270,7 +270,7 @@ def factorability(X=None, *, corr=None, cov=None, n_obs=None, correlation="pears
     :class:`Factorability`."""
     c = _correlation_of(X, corr, cov, n_obs, correlation, missing, smooth, item_names)
     ptr = ctypes.c_void_p()
-    check(lib.lode_assess_factorability(c.pointer, ctypes.byref(ptr)))
+    check(lib.lode_factorability_compute(c.pointer, ctypes.byref(ptr)))
     return Factorability(ptr.value)
 
 
@@ -355,7 +355,7 @@ def n_factors(X=None, *, corr=None, cov=None, n_obs=None, replicates=None, seed=
     c = _correlation_of(X, corr, cov, n_obs, correlation, missing, smooth, item_names)
     o, keep = _count_options(replicates, seed, percentile, threshold, source, threads, progress)
     ptr = ctypes.c_void_p()
-    check(lib.lode_count_factors(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    check(lib.lode_factor_count_compute(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
     del keep
     return FactorCount(ptr.value)
 
@@ -468,7 +468,7 @@ def rotate(loadings, rotation="varimax", *, normalize=True, gamma=0.0, kappa=Non
     a, rows, cols, rs, cs = _native.as_strided_matrix(loadings, "loadings")
     o, keep = _rotation_options(rotation, normalize, gamma, kappa, epsilon, power, target, random_starts, seed, threads)
     ptr = ctypes.c_void_p()
-    check(lib.lode_rotate(_native.data_pointer(a), rows, cols, rs, cs, ctypes.byref(o), ctypes.byref(ptr)))
+    check(lib.lode_rotation_compute(_native.data_pointer(a), rows, cols, rs, cs, ctypes.byref(o), ctypes.byref(ptr)))
     del keep
     return Rotation(ptr.value)
 
@@ -586,14 +586,14 @@ def fit(X=None, *, corr=None, cov=None, n_obs=None, factors=None, method="ml", r
         keep.append(callback)
         o.progress = callback
     ptr = ctypes.c_void_p()
-    check(lib.lode_fit(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
+    check(lib.lode_model_compute(c.pointer, ctypes.byref(o), ctypes.byref(ptr)))
     del keep
     return Model(ptr.value)
 
 
 def _fit_options(factors, method, max_iterations, tolerance, min_uniqueness, rotation, seed, rotation_keywords,
                  what):
-    """lode_fit_options for an explicit number of factors and a rotation with its keywords; returns
+    """lode_model_options for an explicit number of factors and a rotation with its keywords; returns
     the struct and the objects it points to (kept alive by the caller)."""
     if seed is not None:
         _checks.whole(seed, "seed", 0, 2 ** 64 - 1)  # (used only by some paths, checked on all)
@@ -601,7 +601,7 @@ def _fit_options(factors, method, max_iterations, tolerance, min_uniqueness, rot
     unknown = set(rotation_keywords) - allowed
     if unknown:
         raise ArgumentError(f"{what}() got unexpected keyword(s): {', '.join(sorted(unknown))}")
-    o = _native.options(_native.FitOptions, "lode_fit_options_init", factors=factors,
+    o = _native.options(_native.FitOptions, "lode_model_options_init", factors=factors,
                         method=_choice(method, _METHODS, "extraction method"), max_iterations=max_iterations,
                         tolerance=tolerance, min_uniqueness=min_uniqueness)
     keep = []

@@ -87,7 +87,7 @@ lib = _load()
 _SIGNATURES = {
     "lode_version": (ctypes.POINTER(VersionInfo), []),
     "lode_status_name": (c_char_p, [c_int]),
-    "lode_last_error": (c_char_p, []),
+    "lode_error_message": (c_char_p, []),
     "lode_data_from_raw": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, P_void_p]),
     "lode_data_from_correlation": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, P_void_p]),
     "lode_data_from_covariance": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, P_void_p]),
@@ -95,7 +95,7 @@ _SIGNATURES = {
     "lode_data_shape": (c_int, [c_void_p, P_int64, P_int64]),
     "lode_data_free": (None, [c_void_p]),
     "lode_correlation_options_init": (c_int, [ctypes.POINTER(CorrelationOptions), c_size_t]),
-    "lode_correlate": (c_int, [c_void_p, ctypes.POINTER(CorrelationOptions), P_void_p]),
+    "lode_correlation_compute": (c_int, [c_void_p, ctypes.POINTER(CorrelationOptions), P_void_p]),
     "lode_correlation_free": (None, [c_void_p]),
     "lode_correlation_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
     "lode_correlation_value": (c_int, [c_void_p, c_int, P_double]),
@@ -119,7 +119,7 @@ if _info.abi_major != ABI_MAJOR:
 
 
 _factorability_signatures = {
-    "lode_assess_factorability": (c_int, [c_void_p, P_void_p]),
+    "lode_factorability_compute": (c_int, [c_void_p, P_void_p]),
     "lode_factorability_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
     "lode_factorability_value": (c_int, [c_void_p, c_int, P_double]),
     "lode_factorability_text": (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t]),
@@ -136,7 +136,7 @@ class FactorCountOptions(ctypes.Structure):
 
 _count_signatures = {
     "lode_factor_count_options_init": (c_int, [ctypes.POINTER(FactorCountOptions), c_size_t]),
-    "lode_count_factors": (c_int, [c_void_p, ctypes.POINTER(FactorCountOptions), P_void_p]),
+    "lode_factor_count_compute": (c_int, [c_void_p, ctypes.POINTER(FactorCountOptions), P_void_p]),
     "lode_factor_count_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
     "lode_factor_count_value": (c_int, [c_void_p, c_int, P_double]),
     "lode_factor_count_text": (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t]),
@@ -161,7 +161,7 @@ class FitOptions(ctypes.Structure):
                 ("progress", PROGRESS_FN), ("progress_user", c_void_p)]
 
 
-# The size of lode_fit_options before ABI 1.2 (without the progress fields): what is passed to an
+# The size of lode_model_options before ABI 1.2 (without the progress fields): what is passed to an
 # older library, which would refuse the larger struct only if its new fields were set.
 FIT_OPTIONS_SIZE_1_1 = FitOptions.progress.offset
 
@@ -176,9 +176,9 @@ _getters.update({
     "lode_rotation_method_from_name": (c_int, [c_char_p, ctypes.POINTER(c_int)]),
     "lode_rotation_method_name": (c_char_p, [c_int]),
     "lode_rotation_options_init": (c_int, [ctypes.POINTER(RotationOptions), c_size_t]),
-    "lode_rotate": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, ctypes.POINTER(RotationOptions), P_void_p]),
-    "lode_fit_options_init": (c_int, [ctypes.POINTER(FitOptions), c_size_t]),
-    "lode_fit": (c_int, [c_void_p, ctypes.POINTER(FitOptions), P_void_p]),
+    "lode_rotation_compute": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64, ctypes.POINTER(RotationOptions), P_void_p]),
+    "lode_model_options_init": (c_int, [ctypes.POINTER(FitOptions), c_size_t]),
+    "lode_model_compute": (c_int, [c_void_p, ctypes.POINTER(FitOptions), P_void_p]),
 })
 declare(_getters)
 
@@ -196,12 +196,12 @@ for _kind in ("scores", "reliability"):
     _more[f"lode_{_kind}_text"] = (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t])
     _more[f"lode_{_kind}_free"] = (None, [c_void_p])
 _more.update({
-    "lode_score_options_init": (c_int, [ctypes.POINTER(ScoreOptions), c_size_t]),
-    "lode_score": (c_int, [c_void_p, c_void_p, ctypes.POINTER(ScoreOptions), P_void_p]),
-    "lode_cronbach_alpha": (c_int, [c_void_p, P_void_p]),
-    "lode_mcdonald_omega": (c_int, [c_void_p, P_int64, c_int64, P_void_p]),
-    "lode_omega_single_scale": (c_int, [c_void_p, ctypes.POINTER(FitOptions), P_void_p]),
-    "lode_compare_loadings": (c_int, [P_double, P_double, c_int64, c_int64, c_int64, c_int64, c_int64, c_int64,
+    "lode_scores_options_init": (c_int, [ctypes.POINTER(ScoreOptions), c_size_t]),
+    "lode_scores_compute": (c_int, [c_void_p, c_void_p, ctypes.POINTER(ScoreOptions), P_void_p]),
+    "lode_reliability_compute_alpha": (c_int, [c_void_p, P_void_p]),
+    "lode_reliability_compute_omega": (c_int, [c_void_p, P_int64, c_int64, P_void_p]),
+    "lode_reliability_compute_scale_omega": (c_int, [c_void_p, ctypes.POINTER(FitOptions), P_void_p]),
+    "lode_comparison_compute": (c_int, [P_double, P_double, c_int64, c_int64, c_int64, c_int64, c_int64, c_int64,
                                       P_void_p]),
     "lode_comparison_matrix": (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64]),
     "lode_comparison_text": (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t]),
@@ -216,7 +216,7 @@ def check(status):
     """Raises LodeError for a failing status, with the library's message."""
     if status != 0:
         name = lib.lode_status_name(status).decode()
-        message = lib.lode_last_error().decode("utf-8", "replace")
+        message = lib.lode_error_message().decode("utf-8", "replace")
         raise LodeError(status, name, message)
 
 
@@ -322,11 +322,11 @@ class BootstrapOptions(ctypes.Structure):
 
 
 _abi_1_2 = {
-    "lode_item_flag_options_init": (c_int, [ctypes.POINTER(ItemFlagOptions), c_size_t]),
-    "lode_flag_items": (c_int, [c_void_p, ctypes.POINTER(ItemFlagOptions), P_void_p]),
+    "lode_item_flags_options_init": (c_int, [ctypes.POINTER(ItemFlagOptions), c_size_t]),
+    "lode_item_flags_compute": (c_int, [c_void_p, ctypes.POINTER(ItemFlagOptions), P_void_p]),
     "lode_item_flags_item_notes": (c_int, [c_void_p, c_int64, c_char_p, c_size_t, P_size_t]),
     "lode_bootstrap_options_init": (c_int, [ctypes.POINTER(BootstrapOptions), c_size_t]),
-    "lode_bootstrap": (c_int, [c_void_p, ctypes.POINTER(FitOptions), ctypes.POINTER(BootstrapOptions), P_void_p]),
+    "lode_bootstrap_compute": (c_int, [c_void_p, ctypes.POINTER(FitOptions), ctypes.POINTER(BootstrapOptions), P_void_p]),
 }
 for _kind in ("item_flags", "bootstrap"):
     _abi_1_2[f"lode_{_kind}_matrix"] = (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64])

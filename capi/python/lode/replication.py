@@ -121,7 +121,7 @@ class Replication(_native.Handle):
 
 def _split_analysis(X, factors, what, caller, method, rotation, missing, correlation, smooth, max_iterations,
                     tolerance, min_uniqueness, seed, item_names, rotation_keywords):
-    """The correlation handle of raw data ``X`` and the lode_fit_options of the analysis a split repeats
+    """The correlation handle of raw data ``X`` and the lode_model_options of the analysis a split repeats
     (with the objects they point to, kept alive by the caller)."""
     if X is None:
         given = [k for k in ("corr", "cov") if k in rotation_keywords]
