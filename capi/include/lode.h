@@ -1083,6 +1083,189 @@ LODE_API int lode_summary_table(const lode_summary* summary, int64_t a, int64_t 
 LODE_API int lode_summary_item_name(const lode_summary* summary, int64_t index, char* out, size_t capacity,
                                     size_t* length);
 
+/* ------------------------------------------------------------------------------------------- */
+/* The restricted (confirmatory) factor model by maximum likelihood (ABI 1.4)                    */
+/* ------------------------------------------------------------------------------------------- */
+
+typedef struct lode_restricted_fit_options {
+  size_t struct_size;     /* set by lode_restricted_fit_options_init */
+  int max_iterations;     /* Newton / Fisher scoring iterations; default 500 */
+  double tolerance;       /* largest component of the projected gradient of F; default 1e-10 */
+  double min_uniqueness;  /* lower bound of the uniquenesses (an item held there is a Heywood case);
+                             default 0.005 */
+  double interval_level;  /* of the RMSEA interval, in (0, 1); default 0.90 */
+} lode_restricted_fit_options;
+
+LODE_API int lode_restricted_fit_options_init(lode_restricted_fit_options* opts, size_t struct_size);
+
+typedef struct lode_restricted_fit lode_restricted_fit;
+
+/* Fits the restricted factor model whose free loadings are the 1s of `pattern` (items x factors of 0
+ * and 1, strides as for input matrices; every other loading is fixed at 0) to `corr`'s matrix by
+ * maximum likelihood (Joreskog 1969): factor variances fixed at 1, factor correlations and
+ * uniquenesses free. Needs corr's number of observations. A pattern with an item on no factor or a
+ * factor with fewer than two items is LODE_E_INVALID_ARGUMENT naming it; one leaving negative degrees
+ * of freedom LODE_E_TOO_MANY_FACTORS. Non-convergence and Heywood cases are reported (keys below),
+ * not errors. Chi-square = (N - 1) F (no Bartlett correction); CFI (Bentler 1990), TLI, RMSEA with
+ * its interval (Browne & Cudeck 1993), SRMR (correlation scale, lower triangle with the diagonal),
+ * BIC = chi2 - df ln N. Standard errors from the inverse observed information. */
+LODE_API int lode_restricted_fit_compute(const lode_correlation* corr, const double* pattern, int64_t items,
+                                         int64_t factors, int64_t row_stride, int64_t col_stride,
+                                         const lode_restricted_fit_options* opts, lode_restricted_fit** out);
+
+LODE_API void lode_restricted_fit_free(lode_restricted_fit* fit);
+
+enum lode_restricted_fit_key {
+  /* matrices: lode_restricted_fit_matrix */
+  LODE_RESTRICTED_FIT_LOADINGS = 1600,               /* items x factors; 0 where the pattern fixes them */
+  LODE_RESTRICTED_FIT_LOADINGS_SE = 1601,            /* items x factors; NaN where fixed */
+  LODE_RESTRICTED_FIT_FACTOR_CORRELATIONS = 1602,    /* factors x factors */
+  LODE_RESTRICTED_FIT_FACTOR_CORRELATIONS_SE = 1603, /* factors x factors; NaN on the diagonal */
+  LODE_RESTRICTED_FIT_UNIQUENESSES = 1604,           /* items x 1 */
+  LODE_RESTRICTED_FIT_UNIQUENESSES_SE = 1605,        /* items x 1; NaN for one held at its bound */
+  LODE_RESTRICTED_FIT_HEYWOOD = 1606,                /* items x 1: 1 where the uniqueness is at its bound */
+  LODE_RESTRICTED_FIT_PATTERN = 1607,                /* items x factors: the pattern fitted */
+  /* numbers: lode_restricted_fit_value */
+  LODE_RESTRICTED_FIT_ITEMS = 1620,
+  LODE_RESTRICTED_FIT_FACTORS = 1621,
+  LODE_RESTRICTED_FIT_N_OBS = 1622,
+  LODE_RESTRICTED_FIT_CONVERGED = 1623,              /* 1 or 0 */
+  LODE_RESTRICTED_FIT_ITERATIONS = 1624,
+  LODE_RESTRICTED_FIT_FINAL_CHANGE = 1625,           /* the criterion at the last iteration */
+  LODE_RESTRICTED_FIT_TOLERANCE = 1626,
+  LODE_RESTRICTED_FIT_HEYWOOD_COUNT = 1627,
+  LODE_RESTRICTED_FIT_FREE_PARAMETERS = 1628,
+  LODE_RESTRICTED_FIT_DISCREPANCY = 1629,            /* F at the estimate */
+  LODE_RESTRICTED_FIT_CHI_SQUARE = 1630,             /* (N - 1) F */
+  LODE_RESTRICTED_FIT_DF = 1631,
+  LODE_RESTRICTED_FIT_P_VALUE = 1632,                /* NaN when df = 0 (also TLI and RMSEA) */
+  LODE_RESTRICTED_FIT_CFI = 1633,
+  LODE_RESTRICTED_FIT_TLI = 1634,
+  LODE_RESTRICTED_FIT_RMSEA = 1635,
+  LODE_RESTRICTED_FIT_RMSEA_LOWER = 1636,
+  LODE_RESTRICTED_FIT_RMSEA_UPPER = 1637,
+  LODE_RESTRICTED_FIT_SRMR = 1638,
+  LODE_RESTRICTED_FIT_BIC = 1639,
+  LODE_RESTRICTED_FIT_NULL_CHI_SQUARE = 1640,        /* of the independence model */
+  LODE_RESTRICTED_FIT_NULL_DF = 1641,
+  LODE_RESTRICTED_FIT_PROPER_CORRELATIONS = 1642,    /* 1 when the factor correlations are positive definite */
+  /* text: lode_restricted_fit_text */
+  LODE_RESTRICTED_FIT_NOTES = 1650
+};
+
+LODE_API int lode_restricted_fit_matrix(const lode_restricted_fit* fit, int key, double* out, size_t capacity,
+                                        int64_t* rows, int64_t* cols);
+LODE_API int lode_restricted_fit_value(const lode_restricted_fit* fit, int key, double* value);
+LODE_API int lode_restricted_fit_text(const lode_restricted_fit* fit, int key, char* out, size_t capacity,
+                                      size_t* length);
+
+/* ------------------------------------------------------------------------------------------- */
+/* Split-sample replication (ABI 1.4)                                                            */
+/* ------------------------------------------------------------------------------------------- */
+
+typedef struct lode_replication_options {
+  size_t struct_size;        /* set by lode_replication_options_init */
+  int64_t splits;            /* random splits into halves (at least 2); default 100 */
+  uint64_t seed;             /* split i shuffles the respondents with stream i of this seed; default 1 */
+  int threads;               /* 0 (default) = all cores; results do not depend on it */
+  lode_progress_fn progress; /* splits done / splits; optional; cancelling gives LODE_E_CANCELLED */
+  void* progress_user;
+} lode_replication_options;
+
+LODE_API int lode_replication_options_init(lode_replication_options* opts, size_t struct_size);
+
+typedef struct lode_replication lode_replication;
+
+/* Splits the respondents behind `corr` (raw data) at random into halves, `splits` times; each half is
+ * correlated with corr's options and extracted and rotated as `fit` says (factors at least 1; its
+ * progress is not used), aligned to the full-sample solution (Tucker congruence, Hungarian matching,
+ * reflection), and the halves' factors compared. Splits whose halves fail are counted and left out. */
+LODE_API int lode_replication_compute(const lode_correlation* corr, const lode_model_options* fit,
+                                      const lode_replication_options* opts, lode_replication** out);
+
+LODE_API void lode_replication_free(lode_replication* replication);
+
+enum lode_replication_key {
+  /* matrices: lode_replication_matrix */
+  LODE_REPLICATION_CONGRUENCE_MEDIAN = 1700, /* factors x 1: median congruence between the halves */
+  LODE_REPLICATION_CONGRUENCE_P5 = 1701,     /* factors x 1: its 5th percentile */
+  LODE_REPLICATION_SHARE_FAIR = 1702,        /* factors x 1: share of splits with congruence >= 0.85 */
+  LODE_REPLICATION_SHARE_EQUAL = 1703,       /* factors x 1: ... >= 0.95 (Lorenzo-Seva & ten Berge 2006) */
+  LODE_REPLICATION_ITEM_STABILITY = 1704,    /* items x 1: share of splits with the item on the same factor */
+  LODE_REPLICATION_CONGRUENCE = 1705,        /* used splits x factors */
+  LODE_REPLICATION_LOADINGS = 1706,          /* items x factors: the full-sample pattern */
+  /* numbers: lode_replication_value */
+  LODE_REPLICATION_SPLITS = 1720,
+  LODE_REPLICATION_USED = 1721,
+  LODE_REPLICATION_FAILED = 1722,
+  LODE_REPLICATION_FACTORS = 1723,
+  LODE_REPLICATION_ITEMS = 1724,
+  LODE_REPLICATION_SUGGESTED_FULL = 1725,    /* count by the empirical Kaiser criterion, full sample */
+  LODE_REPLICATION_SHARE_SAME_COUNT = 1726,  /* share of splits whose halves suggest the same count */
+  LODE_REPLICATION_SHARE_FULL_COUNT = 1727,  /* ... both the full sample's count */
+  /* text: lode_replication_text */
+  LODE_REPLICATION_FAILURES = 1750,
+  LODE_REPLICATION_NOTES = 1751
+};
+
+LODE_API int lode_replication_matrix(const lode_replication* replication, int key, double* out, size_t capacity,
+                                     int64_t* rows, int64_t* cols);
+LODE_API int lode_replication_value(const lode_replication* replication, int key, double* value);
+LODE_API int lode_replication_text(const lode_replication* replication, int key, char* out, size_t capacity,
+                                   size_t* length);
+
+/* ------------------------------------------------------------------------------------------- */
+/* The confirmatory check on held-out respondents (ABI 1.4)                                      */
+/* ------------------------------------------------------------------------------------------- */
+
+typedef struct lode_holdout_options {
+  size_t struct_size;  /* set by lode_holdout_options_init */
+  double share;        /* of the respondents held out, in (0, 1); default 0.5 */
+  uint64_t seed;       /* the hold-out draw uses stream 0 of this seed; default 1 */
+  double salient;      /* the strong-loading cut of the simple structure; default 0.40 */
+  const lode_restricted_fit_options* restricted; /* NULL = defaults */
+} lode_holdout_options;
+
+LODE_API int lode_holdout_options_init(lode_holdout_options* opts, size_t struct_size);
+
+typedef struct lode_holdout lode_holdout;
+
+/* Holds out a share of the respondents behind `corr` (raw data), runs the analysis `fit` says (factors
+ * at least 1) on the rest, takes its simple structure (each item on the factor of its largest |loading|
+ * at or above `salient`; items salient nowhere left out and listed) and fits that restricted model to
+ * the held-out respondents' correlations. A share leaving either part with no more respondents than
+ * items is LODE_E_INSUFFICIENT_DATA naming the workable shares. */
+LODE_API int lode_holdout_compute(const lode_correlation* corr, const lode_model_options* fit,
+                                  const lode_holdout_options* opts, lode_holdout** out);
+
+/* The confirmatory fit of a hold-out check as a restricted fit handle of its own (items: those
+ * fitted, LODE_HOLDOUT_ITEMS_FITTED), freed with lode_restricted_fit_free. */
+LODE_API int lode_restricted_fit_from_holdout(const lode_holdout* holdout, lode_restricted_fit** out);
+
+LODE_API void lode_holdout_free(lode_holdout* holdout);
+
+enum lode_holdout_key {
+  /* matrices: lode_holdout_matrix */
+  LODE_HOLDOUT_EXPLORATORY_LOADINGS = 1800,  /* items x factors: pattern on the remaining respondents */
+  LODE_HOLDOUT_EXPLORATORY_FACTOR_CORRELATIONS = 1801,
+  LODE_HOLDOUT_PATTERN = 1802,               /* items x factors: the simple structure (0/1) */
+  LODE_HOLDOUT_ITEMS_FITTED = 1803,          /* fitted x 1: 0-based item indices in the confirmatory fit */
+  LODE_HOLDOUT_ITEMS_LEFT_OUT = 1804,        /* left out x 1 (0 x 1 when none): salient nowhere */
+  LODE_HOLDOUT_ROWS = 1805,                  /* held out x 1: 0-based row indices of the held-out respondents */
+  /* numbers: lode_holdout_value */
+  LODE_HOLDOUT_N_EXPLORE = 1820,
+  LODE_HOLDOUT_N_HOLDOUT = 1821,
+  LODE_HOLDOUT_SHARE = 1822,
+  LODE_HOLDOUT_SALIENT = 1823,
+  /* text: lode_holdout_text */
+  LODE_HOLDOUT_NOTES = 1850
+};
+
+LODE_API int lode_holdout_matrix(const lode_holdout* holdout, int key, double* out, size_t capacity, int64_t* rows,
+                                 int64_t* cols);
+LODE_API int lode_holdout_value(const lode_holdout* holdout, int key, double* value);
+LODE_API int lode_holdout_text(const lode_holdout* holdout, int key, char* out, size_t capacity, size_t* length);
+
 #ifdef __cplusplus
 } /* extern "C" */
 #endif

@@ -176,6 +176,44 @@ def main():
     record("pa_p60_n2000_r1000", "numpy loop: standard_normal, corrcoef, eigvalsh", parallel_analysis,
            budget_s=20)
 
+    # The restricted ML fit of the generating simple structure (item j on factor j mod 6), p = 60, k = 6:
+    # scipy's L-BFGS-B on the ML discrepancy with its analytic gradient, uniquenesses >= 0.005.
+    if wanted("restricted_p60_k6"):
+        from scipy import optimize
+        r = read(folder, "fa_p60_k6_R")
+        p, k = r.shape[0], 6
+        items = np.arange(p)
+        pairs = [(f, g) for f in range(k) for g in range(f + 1, k)]
+        logdet_r = np.linalg.slogdet(r)[1]
+
+        def unpack(t):
+            lam = np.zeros((p, k))
+            lam[items, items % k] = t[:p]
+            phi = np.eye(k)
+            for i, (f, g) in enumerate(pairs):
+                phi[f, g] = phi[g, f] = t[p + i]
+            return lam, phi, t[p + len(pairs):]
+
+        def value_and_gradient(t):
+            lam, phi, psi = unpack(t)
+            s = lam @ phi @ lam.T + np.diag(psi)
+            sign, logdet = np.linalg.slogdet(s)
+            if sign <= 0:
+                return 1e10, np.zeros_like(t)
+            w = np.linalg.inv(s)
+            m = w - w @ r @ w
+            g_lam, g_phi = 2 * m @ lam @ phi, 2 * lam.T @ m @ lam
+            grad = np.concatenate([g_lam[items, items % k], [g_phi[f, g] for f, g in pairs], np.diag(m)])
+            return logdet - logdet_r + np.sum(w * r) - p, grad
+
+        def restricted():
+            t0 = np.concatenate([np.full(p, 0.6), np.full(len(pairs), 0.2), np.full(p, 0.6)])
+            bounds = [(None, None)] * (p + len(pairs)) + [(0.005, None)] * p
+            return optimize.minimize(value_and_gradient, t0, jac=True, method="L-BFGS-B", bounds=bounds,
+                                     options={"maxiter": 10000, "gtol": 1e-10, "ftol": 1e-15})
+
+        record("restricted_p60_k6", "scipy L-BFGS-B on the ML discrepancy", restricted, budget_s=8)
+
     import pandas
     import sklearn
     import statsmodels

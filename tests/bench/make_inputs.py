@@ -115,6 +115,9 @@ def main():
     once("boot_n3000_p30_missing_X", lambda rng: blanks(rng, 3000, 30))
     once("boot_n10000_p60_missing_X", lambda rng: blanks(rng, 10_000, 60))
 
+    # Split-sample replication: n = 2000, p = 30, k = 5.
+    once("rep_n2000_p30_k5_X", lambda rng: factor_data(rng, 2000, 30, 5))
+
     # Rotation input: unrotated loadings of 100 items on 10 factors (principal components of the
     # p = 100 correlation matrix scaled by the root eigenvalues), derived without random draws.
     def unrotated(rng):

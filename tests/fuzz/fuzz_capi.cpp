@@ -170,6 +170,96 @@ void bootstrap(const lode_correlation* c, const lode_model_options& fit, Bytes& 
   lode_bootstrap_free(b);
 }
 
+// A restricted fit with a pattern chosen by the input (which may leave an item on no factor or a factor
+// with one item), read back in full.
+void read_restricted(const lode_restricted_fit* r) {
+  double buf[1024], v;
+  for (int key = 1600; key < 1609; ++key) {
+    int64_t rows = 0, cols = 0;
+    if (lode_restricted_fit_matrix(r, key, nullptr, 0, &rows, &cols) == LODE_OK && rows * cols <= 1024)
+      lode_restricted_fit_matrix(r, key, buf, static_cast<size_t>(rows * cols), nullptr, nullptr);
+  }
+  for (int key = 1619; key < 1644; ++key) lode_restricted_fit_value(r, key, &v);
+  char text[4096];
+  lode_restricted_fit_text(r, LODE_RESTRICTED_FIT_NOTES, text, sizeof text, nullptr);
+}
+
+void restricted_fit(const lode_correlation* c, Bytes& in) {
+  int64_t items = 0;
+  double v = 0.0;
+  if (lode_correlation_value(c, LODE_CORRELATION_ITEMS, &v) != LODE_OK) return;
+  items = static_cast<int64_t>(v);
+  const int64_t factors = 1 + in.byte() % 3;
+  std::vector<double> pattern(static_cast<size_t>(items * factors), 0.0);
+  const uint8_t plan = in.byte();
+  for (int64_t i = 0; i < items; ++i) {
+    if ((plan & 3) != 3) pattern[static_cast<size_t>(i * factors + i % factors)] = 1.0;  // a simple structure
+    else pattern[static_cast<size_t>(i * factors + in.byte() % factors)] = in.byte() % 7 == 0 ? 0.0 : 1.0;
+  }
+  if ((plan & 12) == 12 && !pattern.empty()) pattern[0] = in.byte() % 3;  // sometimes a 2
+  lode_restricted_fit_options o;
+  lode_restricted_fit_options_init(&o, sizeof o);
+  o.max_iterations = 1 + in.byte() % 100;
+  if ((plan & 48) == 48) o.min_uniqueness = in.byte() / 255.0;
+  lode_restricted_fit* r = nullptr;
+  if (lode_restricted_fit_compute(c, pattern.data(), items, factors, factors, 1, &o, &r) != LODE_OK) return;
+  read_restricted(r);
+  lode_restricted_fit_free(r);
+}
+
+// Split-sample replication and the hold-out check of the fit's solution, tiny, read back in full.
+void replication(const lode_correlation* c, const lode_model_options& fit, Bytes& in) {
+  lode_replication_options o;
+  lode_replication_options_init(&o, sizeof o);
+  const uint8_t plan = in.byte();
+  o.splits = plan % 4;  // 0 and 1 are refused
+  o.seed = in.byte();
+  o.threads = 1 + (plan >> 7);
+  int cancel_after = (plan & 64) ? static_cast<int>(in.byte() % 3) : -1;
+  o.progress = fuzz_progress;
+  o.progress_user = &cancel_after;
+  lode_replication* r = nullptr;
+  if (lode_replication_compute(c, &fit, &o, &r) == LODE_OK) {
+    double buf[1024], v;
+    for (int key = 1700; key < 1708; ++key) {
+      int64_t rows = 0, cols = 0;
+      if (lode_replication_matrix(r, key, nullptr, 0, &rows, &cols) == LODE_OK && rows * cols <= 1024)
+        lode_replication_matrix(r, key, buf, static_cast<size_t>(rows * cols), nullptr, nullptr);
+    }
+    for (int key = 1719; key < 1729; ++key) lode_replication_value(r, key, &v);
+    char text[4096];
+    for (int key = 1749; key < 1753; ++key) lode_replication_text(r, key, text, sizeof text, nullptr);
+    lode_replication_free(r);
+  }
+  lode_holdout_options ho;
+  lode_holdout_options_init(&ho, sizeof ho);
+  ho.share = (in.byte() % 11) / 10.0;  // 0 and 1 are refused
+  ho.seed = in.byte();
+  const uint8_t cut = in.byte();
+  ho.salient = cut % 7 == 0 ? 0.0 : 0.2 + (cut % 5) / 10.0;  // 0 is refused
+  lode_restricted_fit_options ro;
+  lode_restricted_fit_options_init(&ro, sizeof ro);
+  ro.max_iterations = 50;
+  ho.restricted = &ro;
+  lode_holdout* h = nullptr;
+  if (lode_holdout_compute(c, &fit, &ho, &h) != LODE_OK) return;
+  double buf[1024], v;
+  for (int key = 1800; key < 1807; ++key) {
+    int64_t rows = 0, cols = 0;
+    if (lode_holdout_matrix(h, key, nullptr, 0, &rows, &cols) == LODE_OK && rows * cols <= 1024)
+      lode_holdout_matrix(h, key, buf, static_cast<size_t>(rows * cols), nullptr, nullptr);
+  }
+  for (int key = 1819; key < 1825; ++key) lode_holdout_value(h, key, &v);
+  char text[4096];
+  lode_holdout_text(h, LODE_HOLDOUT_NOTES, text, sizeof text, nullptr);
+  lode_restricted_fit* f = nullptr;
+  if (lode_restricted_fit_from_holdout(h, &f) == LODE_OK) {
+    read_restricted(f);
+    lode_restricted_fit_free(f);
+  }
+  lode_holdout_free(h);
+}
+
 // Factorability, a small factor count, a fit with the chosen method and rotation, and a rotation of
 // the fitted loadings, each read back in full.
 void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
@@ -235,7 +325,9 @@ void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
     bf.progress = nullptr;
     ro.struct_size = sizeof ro;
     bootstrap(c, bf, in);
+    replication(c, bf, in);
   }
+  restricted_fit(c, in);
   double buf[256], v;
   for (int key = 400; key < 411; ++key) lode_model_matrix(m, key, buf, 256, nullptr, nullptr);
   for (int key = 420; key < 450; ++key) lode_model_value(m, key, &v);

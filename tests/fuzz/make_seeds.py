@@ -30,6 +30,8 @@ SEEDS = {
     "whole-item-missing-pearson": raw(12, 4, b"none", bytes([1 | 2 << 3]), 0),
     "first-rows-only-listwise": raw(12, 5, b"geomin", bytes([4 | 1 << 3, 2]), 2),
     "complete-fit-scores": raw(40, 6, b"promax", bytes([0]), 0, bytes([5, 2, 7, 1, 3, 9, 4, 1, 1, 0, 2, 1])),
+    # complete data through a fit, split-sample replication, the hold-out check and a restricted fit
+    "complete-fit-replication": raw(40, 6, b"oblimin", bytes([0]), 0, bytes([77, 31, 190, 6, 131, 115, 20, 157, 152, 95, 102, 210, 18, 247, 178, 122, 210, 56, 193, 38, 159, 134, 113, 170, 172, 10, 75, 48, 178, 40, 239, 226, 91, 164, 247, 149, 69, 63, 88, 6])),
     # mode 1: a correlation matrix of `cols` items with n_obs = rows, Likert-derived entries.
     "correlation-matrix": bytes([1, 40, 5, 0]) + bytes([3] * 15) + bytes([0]),
 }

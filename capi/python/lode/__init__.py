@@ -20,7 +20,8 @@ __all__ = ["LodeError", "ArgumentError", "version", "correlation", "Correlation"
            "n_factors", "parallel_analysis", "map_test", "FactorCount", "rotate", "Rotation", "fit", "Model",
            "scores", "Scores", "alpha", "Alpha", "omega", "Omega", "congruence", "Comparison", "item_flags",
            "ItemFlags", "bootstrap", "Bootstrap", "Summary", "summary_from_sql", "schmid_leiman", "SchmidLeiman",
-           "compare_groups", "GroupComparison"]
+           "compare_groups", "GroupComparison", "fit_pattern", "RestrictedFit", "replicate", "Replication",
+           "holdout_check", "HoldoutCheck"]
 
 # The numbers of a correlation handle, by attribute name (keys of lode.h: LODE_CORRELATION_<NAME>).
 _CORRELATION_VALUES = {name: getattr(_abi, "LODE_CORRELATION_" + name.upper()) for name in (
@@ -659,3 +660,5 @@ from .scales import Alpha, Comparison, Omega, Scores, alpha, congruence, omega, 
 from .uncertainty import Bootstrap, ItemFlags, bootstrap, item_flags  # noqa: E402
 from .hierarchy import SchmidLeiman, schmid_leiman  # noqa: E402
 from .groups import GroupComparison, compare_groups  # noqa: E402
+from .replication import (HoldoutCheck, Replication, RestrictedFit, fit_pattern, holdout_check,  # noqa: E402
+                          replicate)

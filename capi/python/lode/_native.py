@@ -287,3 +287,25 @@ for _kind in ("item_flags", "bootstrap"):
     _uncertainty_signatures[f"lode_{_kind}_text"] = (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t])
     _uncertainty_signatures[f"lode_{_kind}_free"] = (None, [c_void_p])
 declare(_uncertainty_signatures)
+
+
+# ---- restricted fit, replication, hold-out check ------------------------------------------------
+
+_replication_signatures = {
+    "lode_restricted_fit_options_init": (c_int, [ctypes.POINTER(_abi.lode_restricted_fit_options), c_size_t]),
+    "lode_restricted_fit_compute": (c_int, [c_void_p, P_double, c_int64, c_int64, c_int64, c_int64,
+                                            ctypes.POINTER(_abi.lode_restricted_fit_options), P_void_p]),
+    "lode_replication_options_init": (c_int, [ctypes.POINTER(_abi.lode_replication_options), c_size_t]),
+    "lode_replication_compute": (c_int, [c_void_p, ctypes.POINTER(_abi.lode_model_options),
+                                         ctypes.POINTER(_abi.lode_replication_options), P_void_p]),
+    "lode_holdout_options_init": (c_int, [ctypes.POINTER(_abi.lode_holdout_options), c_size_t]),
+    "lode_holdout_compute": (c_int, [c_void_p, ctypes.POINTER(_abi.lode_model_options),
+                                     ctypes.POINTER(_abi.lode_holdout_options), P_void_p]),
+    "lode_restricted_fit_from_holdout": (c_int, [c_void_p, P_void_p]),
+}
+for _kind in ("restricted_fit", "replication", "holdout"):
+    _replication_signatures[f"lode_{_kind}_matrix"] = (c_int, [c_void_p, c_int, P_double, c_size_t, P_int64, P_int64])
+    _replication_signatures[f"lode_{_kind}_value"] = (c_int, [c_void_p, c_int, P_double])
+    _replication_signatures[f"lode_{_kind}_text"] = (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t])
+    _replication_signatures[f"lode_{_kind}_free"] = (None, [c_void_p])
+declare(_replication_signatures)
