@@ -10,6 +10,7 @@
 #include <cstdint>
 #include <cstring>
 #include <limits>
+#include <algorithm>
 #include <vector>
 
 namespace {
@@ -383,6 +384,24 @@ void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
     lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v);
     lode_reliability_text(rel, LODE_RELIABILITY_NOTES, text, sizeof text, nullptr);
     lode_reliability_free(rel);
+  }
+  {
+    // Omega with reverse-keyed items: fuzzed keying (valid and not) and per-item reverse flags.
+    lode_reliability_options ro;
+    lode_reliability_options_init(&ro, sizeof ro);
+    ro.keying = in.byte() % 3;
+    int64_t rows = 0, cols = 0;
+    lode_model_matrix(m, LODE_MODEL_LOADINGS, nullptr, 0, &rows, &cols);
+    std::vector<int32_t> reverse(static_cast<std::size_t>(std::max<int64_t>(rows, 0)));
+    for (auto& r : reverse) r = in.byte() & 1;
+    if (!reverse.empty() && (in.byte() & 1)) {
+      ro.reverse = reverse.data();
+      ro.reverse_count = static_cast<int64_t>(reverse.size()) - (in.byte() & 1);
+    }
+    if (lode_reliability_compute_keyed_omega(m, &ro, &rel) == LODE_OK) {
+      lode_reliability_matrix(rel, LODE_RELIABILITY_REVERSED, buf, 256, nullptr, nullptr);
+      lode_reliability_free(rel);
+    }
   }
   lode_schmid_leiman_options slo;
   lode_schmid_leiman_options_init(&slo, sizeof slo);
