@@ -140,9 +140,7 @@ LODE_API int lode_bootstrap_compute(const lode_correlation* corr, const lode_mod
            fmt::format("the bootstrap needs the number of factors (lode_model_options.factors); it is {}", setup.factors));
     const BootstrapOptions bo = read_bootstrap_options(opts, corr);
     const DataContent& data = *corr->data;
-    if (data.source != DataSource::raw)
-      fail(LODE_E_INVALID_ARGUMENT,
-           "the bootstrap resamples respondents, so it needs raw data; this correlation was given as a matrix");
+    require_rows(data, "the bootstrap resamples respondents");
     ExtractionOptions eo = setup.extraction;
     eo.n_obs = 0;  // each computation takes the sample size behind its own correlations
     RotationOptions ro;

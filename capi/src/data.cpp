@@ -121,3 +121,19 @@ LODE_API int lode_data_shape(const lode_data* data, int64_t* rows, int64_t* item
 LODE_API void lode_data_free(lode_data* data) { delete data; }
 
 }  // extern "C"
+
+void lode::capi::require_rows(const DataContent& content, const char* what) {
+  switch (content.source) {
+    case DataSource::raw: return;
+    case DataSource::correlation:
+      fail(LODE_E_INVALID_ARGUMENT, fmt::format("{}, so it needs raw data (the respondents' answers, rows x "
+                                                "items); these data were given as a correlation matrix", what));
+    case DataSource::covariance:
+      fail(LODE_E_INVALID_ARGUMENT, fmt::format("{}, so it needs raw data (the respondents' answers, rows x "
+                                                "items); these data were given as a covariance matrix", what));
+    case DataSource::summary:
+      fail(LODE_E_INVALID_ARGUMENT, fmt::format("{}, so it needs raw data (the respondents' answers, rows x "
+                                                "items); these data come from a summary, which keeps counts and sums but no respondent's "
+                                                "answers: compute it from the rows themselves", what));
+  }
+}

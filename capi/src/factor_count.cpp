@@ -109,7 +109,7 @@ FactorCountResult count_for(const lode_correlation* corr, const FactorCountOptio
   const auto& data = *corr->data;
   if (data.source == DataSource::raw) return count_factors(data.values, corr->options, options);
   if (options.parallel.source == RandomDataSource::permutation)
-    fail(LODE_E_INVALID_ARGUMENT, "permutation parallel analysis needs raw data; this analysis started from a matrix");
+    require_rows(data, "permutation parallel analysis shuffles each item's answers");
   return count_factors_from_correlation(corr->result.matrix, corr->result.n_obs, options);
 }
 

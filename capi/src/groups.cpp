@@ -65,8 +65,7 @@ LODE_API int lode_group_comparison_compute(const lode_data* data, const int64_t*
       LODE_OPTION_FIELD(o, opts, progress_user);
     }
     const auto& content = data->content;
-    if (content->source != DataSource::raw)
-      fail(LODE_E_INVALID_ARGUMENT, "comparing groups needs the respondents' rows; this data handle holds a matrix or a summary");
+    require_rows(*content, "comparing groups analyses each group's respondents");
     if (rows != content->values.rows())
       fail(LODE_E_INVALID_ARGUMENT, fmt::format("{} group codes were given for {} rows; give one per row", rows,
                                                 content->values.rows()));

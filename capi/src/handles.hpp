@@ -24,6 +24,11 @@ struct DataContent {
   std::shared_ptr<const Summary> summary;  // summary: what the correlations come from (values is 0 x items)
 };
 
+// Refuses data that hold no respondents' rows: `what` needs them ("the bootstrap resamples
+// respondents"), and the message names what was given instead, so a summary's user learns that a
+// summary keeps no rows rather than that it is "a matrix".
+void require_rows(const DataContent& content, const char* what);
+
 }  // namespace lode::capi
 
 struct lode_data {

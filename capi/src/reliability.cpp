@@ -150,8 +150,7 @@ extern "C" {
 
 LODE_API int lode_reliability_compute_alpha(const lode_data* data, lode_reliability** out) {
   return compute_handle(data, "data", out, [&] {
-    if (data->content->source != DataSource::raw)
-      fail(LODE_E_INVALID_ARGUMENT, "alpha needs raw data (respondents in rows), not a correlation or covariance matrix");
+    require_rows(*data->content, "alpha is computed from each respondent's sum of the items");
     AlphaOptions ao;
     ao.item_names = data->content->item_names;
     auto r = std::make_unique<lode_reliability>();

@@ -97,9 +97,7 @@ Analysis read_analysis(const lode_correlation* corr, const lode_model_options* f
   if (setup.factors < 1)
     fail(LODE_E_INVALID_ARGUMENT,
          fmt::format("{} needs the number of factors (lode_model_options.factors); it is {}", what, setup.factors));
-  if (corr->data->source != DataSource::raw)
-    fail(LODE_E_INVALID_ARGUMENT,
-         fmt::format("{} splits the respondents, so it needs raw data; this correlation was given as a matrix", what));
+  require_rows(*corr->data, fmt::format("{} splits the respondents", what).c_str());
   Analysis a;
   a.factors = setup.factors;
   a.extraction = setup.extraction;

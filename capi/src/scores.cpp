@@ -88,10 +88,14 @@ LODE_API int lode_scores_compute(const lode_model* model, const lode_data* data,
     ScoreOptions so = read_scores_options(opts);
     so.item_names = model->item_names;
     const DataContent* content = data ? data->content.get() : model->data.get();
-    if (content == nullptr || content->source != DataSource::raw)
-      fail(LODE_E_INVALID_ARGUMENT,
-           data ? "scores need raw data (respondents in rows), not a correlation or covariance matrix"
-                : "this model was fitted to a matrix, not to raw data: pass the respondents' data to score");
+    if (content == nullptr)
+      fail(LODE_E_INVALID_ARGUMENT, "this model was fitted to a matrix, not to raw data: pass the respondents' data to score");
+    if (data) require_rows(*content, "scores are computed for each respondent");
+    else if (content->source != DataSource::raw)
+      fail(LODE_E_INVALID_ARGUMENT, content->source == DataSource::summary
+                                        ? "this model was fitted to a summary, which keeps no respondent's answers: "
+                                          "pass the respondents' data to score"
+                                        : "this model was fitted to a matrix, not to raw data: pass the respondents' data to score");
     if (content->values.cols() != model->correlation.cols())
       fail(LODE_E_INVALID_ARGUMENT, fmt::format("the data have {} items but the model has {}",
                                                 content->values.cols(), model->correlation.cols()));

@@ -142,6 +142,29 @@ int main(void) {
   co.missing = LODE_MISSING_LISTWISE;
   EXPECT(lode_correlation_compute(from_summary, &co, &cs), LODE_E_INVALID_ARGUMENT, "listwise");
 
+  /* What needs respondents' rows says that a summary keeps none (not that it is "a matrix"). */
+  {
+    lode_model_options fo;
+    lode_bootstrap_options bo;
+    lode_model* m = NULL;
+    lode_scores* sc = NULL;
+    lode_reliability* rel = NULL;
+    lode_bootstrap_result* bs = NULL;
+    OK(lode_correlation_options_init(&co, sizeof co));
+    OK(lode_correlation_compute(from_summary, &co, &cs));
+    OK(lode_model_options_init(&fo, sizeof fo));
+    fo.factors = 1;
+    OK(lode_model_compute(cs, &fo, &m));
+    EXPECT(lode_scores_compute(m, NULL, NULL, &sc), LODE_E_INVALID_ARGUMENT, "fitted to a summary");
+    EXPECT(lode_scores_compute(m, from_summary, NULL, &sc), LODE_E_INVALID_ARGUMENT, "come from a summary");
+    EXPECT(lode_reliability_compute_alpha(from_summary, &rel), LODE_E_INVALID_ARGUMENT, "come from a summary");
+    OK(lode_bootstrap_options_init(&bo, sizeof bo));
+    bo.replicates = 10;
+    EXPECT(lode_bootstrap_compute(cs, &fo, &bo, &bs), LODE_E_INVALID_ARGUMENT, "no respondent's answers");
+    lode_model_free(m);
+    lode_correlation_free(cs);
+  }
+
   lode_data_free(raw);
   lode_data_free(from_summary);
   lode_summary_free(s);
