@@ -1084,7 +1084,7 @@ LODE_API int lode_summary_item_name(const lode_summary* summary, int64_t index, 
                                     size_t* length);
 
 /* ------------------------------------------------------------------------------------------- */
-/* The restricted (confirmatory) factor model by maximum likelihood (ABI 1.4)                    */
+/* The restricted (confirmatory) factor model by maximum likelihood                            */
 /* ------------------------------------------------------------------------------------------- */
 
 typedef struct lode_restricted_fit_options {
@@ -1160,7 +1160,7 @@ LODE_API int lode_restricted_fit_text(const lode_restricted_fit* fit, int key, c
                                       size_t* length);
 
 /* ------------------------------------------------------------------------------------------- */
-/* Split-sample replication (ABI 1.4)                                                            */
+/* Split-sample replication                                                                    */
 /* ------------------------------------------------------------------------------------------- */
 
 typedef struct lode_replication_options {
@@ -1215,7 +1215,7 @@ LODE_API int lode_replication_text(const lode_replication* replication, int key,
                                    size_t* length);
 
 /* ------------------------------------------------------------------------------------------- */
-/* The confirmatory check on held-out respondents (ABI 1.4)                                      */
+/* The confirmatory check on held-out respondents                                              */
 /* ------------------------------------------------------------------------------------------- */
 
 typedef struct lode_holdout_options {

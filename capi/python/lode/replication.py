@@ -1,5 +1,5 @@
 """Does the structure hold up? The restricted (confirmatory) factor model, split-sample replication and
-the confirmatory check on held-out respondents (ABI 1.4), re-exported by ``lode``."""
+the confirmatory check on held-out respondents, re-exported by ``lode``."""
 
 import ctypes
 
