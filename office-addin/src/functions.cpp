@@ -1,7 +1,6 @@
 #include "functions.hpp"
 
-#include "arguments.hpp"
-#include "capi.hpp"
+#include "functions_shared.hpp"
 #include "defaults.hpp"
 
 #include <algorithm>
@@ -13,19 +12,6 @@
 #include <string>
 
 namespace lode::addin {
-
-namespace {
-
-// The cached result of `work` for `key`, computed on a thread of its own and waited for until the
-// formula's deadline (ResultCache::get_or_compute_until): for stages the C ABI cannot interrupt. A
-// recalculation while the work still runs joins it, and once it has finished takes its result.
-template <class T>
-std::shared_ptr<const T> cached_in_time(const Call& call, const std::string& key, const char* what,
-                                        std::function<std::shared_ptr<const T>()> work, std::size_t bytes) {
-  auto value = call.cache.get_or_compute_until<T>(key, std::move(work), bytes, call.deadline.until);
-  if (!value) time_limit_passed(what);
-  return value;
-}
 
 KeyBuilder& add_grid(KeyBuilder& k, const Grid& g) {
   k.add(static_cast<std::uint64_t>(g.rows)).add(static_cast<std::uint64_t>(g.cols));
@@ -53,11 +39,6 @@ DataHandle make_data(const Input& in, std::int64_t n_obs) {
   return data;
 }
 
-struct CorrelationSpec {
-  int kind = LODE_COEFFICIENT_PEARSON;
-  int missing = LODE_MISSING_PAIRWISE;
-  std::int64_t n_obs = 0;  // for a correlation matrix given as data
-};
 
 // The correlation of the input with these options, computed once per distinct input.
 std::shared_ptr<const lode_correlation> correlation(const Call& call, const Input& in, const CorrelationSpec& spec) {
@@ -88,10 +69,10 @@ std::shared_ptr<const lode_correlation> correlation(const Call& call, const Inpu
       items * items * 2 * sizeof(double) + 4096);
 }
 
+namespace {
 Matrix correlation_matrix(const lode_correlation* c, int key, const char* what) {
   return read_matrix(c, key, lode_correlation_matrix, what);
 }
-
 }  // namespace
 
 // ---------------------------------------------------------------------------------------------
@@ -130,7 +111,6 @@ Output fn_eigen(const Call& call) {
 // Factor analyses shared by many cells. The C ABI is reached only in the run_* functions; the
 // cells read their outputs, which the cache keeps per distinct (input values, options).
 // ---------------------------------------------------------------------------------------------
-namespace {
 
 // An option word left out stands for its default (defaults.hpp: the one set of defaults).
 Arg or_default(const Arg& a, const char* word) {
@@ -155,17 +135,6 @@ int rotation_arg(const Arg& a) {
   return method;
 }
 
-constexpr std::int64_t kMaxFactors = 100;
-constexpr std::int64_t kMaxReplicates = 10000;
-constexpr std::int64_t kMaxObservations = 1'000'000'000;
-constexpr std::size_t kNoArg = static_cast<std::size_t>(-1);
-
-struct FitSpec {
-  int factors = 0;   // 0 = the count parallel analysis suggests
-  int method = LODE_EXTRACTION_ML;                // the C ABI's extraction method (method_arg)
-  int rotation = LODE_CRITERION_OBLIMIN;  // the C ABI's rotation method (rotation_arg)
-};
-
 // What every fit-reading cell needs, computed once per distinct (data, options).
 struct FitOutputs {
   int factors = 0;
@@ -187,12 +156,6 @@ std::shared_ptr<const ParallelOutputs> run_parallel(const lode_correlation* corr
                                                     double percentile, std::int64_t seed, const Deadline& deadline);
 std::int64_t run_nfactors(const lode_correlation* corr, int rule, std::int64_t seed, const Deadline& deadline);
 Matrix run_rotate(const Grid& loadings, int rotation, const Arg& parameter);
-
-// The data argument plus n_obs (argument `n_obs_index`; it matters only for a correlation matrix).
-struct Source {
-  Input input;
-  CorrelationSpec spec;
-};
 
 Source read_source(const Call& call, std::size_t n_obs_index) {
   Source s{read_input(call.args[0], "data"), CorrelationSpec{}};
@@ -217,15 +180,6 @@ std::int64_t cached_nfactors(const Call& call, const Source& src, int rule, std:
       k.take(), [&] { return std::make_shared<const std::int64_t>(run_nfactors(corr.get(), rule, seed, call.deadline)); }, 64);
 }
 
-// What a fit-reading cell asks for: the source, the options, and the cache key of the fit.
-struct FitRequest {
-  Source src;
-  FitSpec spec;
-  std::string key;
-};
-
-// Arguments of the fit family: data; [factors]; [method]; [rotation]; then n_obs at `n_obs_index`
-// (kNoArg for functions without it: LODE.SCORES takes raw data only).
 FitRequest read_fit_request(const Call& call, std::size_t n_obs_index) {
   FitRequest req{read_source(call, n_obs_index), FitSpec{}, {}};
   req.spec.factors = static_cast<int>(whole(call.args[1], "factors", 0, 0, kMaxFactors));
@@ -264,11 +218,6 @@ std::shared_ptr<const FitOutputs> converged_fit(const Call& call, const FitReque
 
 std::shared_ptr<const FitOutputs> converged_fit(const Call& call) { return converged_fit(call, read_fit_request(call, 4)); }
 
-template <class T, void (*Free)(T*)>
-std::shared_ptr<const T> shared_handle(T* h) {
-  return std::shared_ptr<const T>(h, [](const T* p) { Free(const_cast<T*>(p)); });
-}
-
 std::shared_ptr<const lode_factorability> factorability(const Call& call, std::size_t n_obs_index) {
   const Source src = read_source(call, n_obs_index);
   auto corr = correlation(call, src.input, src.spec);
@@ -297,16 +246,19 @@ double model_value(const lode_model* m, int key, const char* what) {
   return v;
 }
 
-std::shared_ptr<const FitOutputs> run_fit(const lode_correlation* corr, const FitSpec& spec, const Deadline& deadline) {
-  check_time(deadline, "factor analysis");
-  lode_rotation_options ro;
+ModelSetup::ModelSetup(const FitSpec& spec) {
   check(lode_rotation_options_init(&ro, sizeof ro), "rotation options");
   ro.method = spec.rotation;
-  lode_model_options fo;
   check(lode_model_options_init(&fo, sizeof fo), "fit options");
   fo.factors = spec.factors;
   fo.method = spec.method;
   fo.rotation = &ro;
+}
+
+std::shared_ptr<const FitOutputs> run_fit(const lode_correlation* corr, const FitSpec& spec, const Deadline& deadline) {
+  check_time(deadline, "factor analysis");
+  ModelSetup setup(spec);
+  lode_model_options& fo = setup.fo;
   fo.progress = deadline_progress;  // checked before and after the extraction and at every rotation start
   fo.progress_user = const_cast<Deadline*>(&deadline);
   lode_model* raw = nullptr;
@@ -422,8 +374,6 @@ Matrix run_rotate(const Grid& loadings, int rotation, const Arg& parameter) {
 }
 
 std::int64_t seed_arg(const Arg& a) { return whole(a, "seed", -1, 0, std::int64_t{1} << 52); }
-
-}  // namespace
 
 Output fn_kmo(const Call& call) {
   return Output::number(factorability_value(factorability(call, kNoArg).get(), LODE_FACTORABILITY_KMO, "KMO"));

@@ -26,5 +26,9 @@ Output fn_scores(const Call& call);
 Output fn_alpha(const Call& call);
 Output fn_omega(const Call& call);
 Output fn_congruence(const Call& call);
+// The restricted fit and split-half replication (functions_confirm.cpp)
+Output fn_patternloadings(const Call& call);
+Output fn_patternfit(const Call& call);
+Output fn_halves(const Call& call);
 
 }  // namespace lode::addin

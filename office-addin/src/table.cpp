@@ -25,6 +25,10 @@ constexpr std::string_view kSeedHelp =
     "Seed of the random data (a whole number); left out: Lode's fixed default, so results repeat";
 constexpr std::string_view kFitErrors =
     "#NUM!: matrix not positive definite; Err:523: no convergence";
+constexpr std::string_view kPatternHelp =
+    "Which item loads on which factor, one row per item in the data's order: 0/1 with one column per factor (1: "
+    "the item loads on it; empty counts as 0), or one column of factor numbers 1, 2, ...; every item on a factor, "
+    "every factor with at least two items";
 constexpr std::string_view kDataHelp =
     "Respondents in rows, items in columns (empty and text cells are missing; a first row of names is "
     "used as item names), or a square correlation matrix with ones on the diagonal";
@@ -211,6 +215,51 @@ const std::vector<FunctionSpec> kTable = {
        "Loadings of the same items in the same order, with as many factors, e.g. from another sample or method"}},
      "factors x 3: congruence (0 to 1), matched column of `loadings_b`, sign (1 or -1)",
      "Err:502: shapes differ, a factor with only zero loadings", fn_congruence},
+    // The confirmatory cells: the restricted fit and split-half replication (functions_confirm.cpp)
+    {"patternloadings",
+     "LODE.PATTERNLOADINGS",
+     "Fits a factor model in which each item loads only where a pattern you give allows (maximum likelihood; "
+     "factor variances 1, factor correlations and uniquenesses free) and returns its loadings, items x factors (0 "
+     "where the pattern fixes them), or, by `part`, their standard errors, the uniquenesses or the factor "
+     "correlations.",
+     {{"data", ArgKind::range, kDataHelp},
+      {"pattern", ArgKind::range, kPatternHelp},
+      {"n_obs", ArgKind::value, kNobsHelp},
+      {"part", ArgKind::value,
+       "\"loadings\" (default), \"se\" (standard errors of the loadings from the observed information; empty where "
+       "the pattern fixes a loading), \"uniqueness\" (one column) or \"factorcorr\" (factors x factors)"}},
+     "items x factors (`part`: loadings, se); items x 1 (uniqueness); factors x factors (factorcorr)",
+     "Err:502: a pattern with an item on no factor, a factor with fewer than two items, or not one row per item; "
+     "Err:523: no convergence",
+     fn_patternloadings},
+    {"patternfit",
+     "LODE.PATTERNFIT",
+     "How well the model of LODE.PATTERNLOADINGS fits: two columns, a label and a value per row (chi-square = (N - 1) "
+     "times the minimised discrepancy, df, p, CFI, TLI, RMSEA and its 90% interval, SRMR, BIC, convergence, Heywood "
+     "cases).",
+     {{"data", ArgKind::range, kDataHelp},
+      {"pattern", ArgKind::range, kPatternHelp},
+      {"n_obs", ArgKind::value, kNobsHelp}},
+     "rows x 2: label, value", "none: a failure shows as the row `error` with the reason as text", fn_patternfit},
+    {"halves",
+     "LODE.HALVES",
+     "Does the factor solution replicate? Splits the respondents into random halves again and again, repeats the "
+     "analysis of LODE.LOADINGS in each half and compares the halves' matched factors (Tucker's congruence); one row "
+     "per factor: median congruence, its 5th percentile, share of splits at least 0.85, share at least 0.95.",
+     {{"data", ArgKind::range,
+       "Respondents in rows, items in columns: the answers themselves, not a correlation matrix (empty and text "
+       "cells are missing; a first row of names is used as item names)"},
+      {"factors", ArgKind::value, kFactorsHelp},
+      {"method", ArgKind::value, kMethodHelp},
+      {"rotation", ArgKind::value, kRotationHelp},
+      {"splits", ArgKind::value, "Number of random splits into halves, 2 to 10000 (default 100)"},
+      {"seed", ArgKind::value, kSeedHelp},
+      {"part", ArgKind::value,
+       "\"factors\" (default: the table per factor), \"items\" (one column: per item, the share of splits in which "
+       "it lands on the same factor in both halves) or \"count\" (one row: the share of splits whose halves suggest "
+       "the same number of factors by the empirical Kaiser criterion, and the splits used)"}},
+     "factors x 4 (`part` factors); items x 1 (items); 1 x 2 (count)",
+     "Err:502: a correlation matrix as `data`; #NUM!: a figure no split could give", fn_halves},
 };
 
 bool iequal(std::string_view a, std::string_view b) {
