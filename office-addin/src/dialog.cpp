@@ -297,7 +297,7 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     auto d = b.dialog_props();
     d->setPropertyValue("Title", Any(A("Lode: find the factors behind a set of items")));
     d->setPropertyValue("Width", Any(sal_Int32(392)));
-    d->setPropertyValue("Height", Any(sal_Int32(250)));
+    d->setPropertyValue("Height", Any(sal_Int32(300)));
     d->setPropertyValue("Name", Any(A("LodeAnalysisDialog")));
     d->setPropertyValue("BackgroundColor", Any(sal_Int32(0xF4F7F1)));  // Lode's pale sage
 
@@ -344,9 +344,21 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     b.label("SeedLabel", "Random seed", L, 195, 82);
     b.number("Seed", 20260101, 0, 9007199254740991.0, 0, F, 195, W);
 
-    b.add("com.sun.star.awt.UnoControlButtonModel", "Run", 276, 230, 54, 14,
+    // The checks with a sheet of their own (option_table.cpp): a check box, then its number.
+    b.heading("ChecksHeading", "Does the structure hold up?", L, 210, 220);
+    sal_Int32 y = 224;
+    for (const CheckOption& c : check_options()) {
+      b.add("com.sun.star.awt.UnoControlCheckBoxModel", c.property, L, y, 220, 10,
+            {{"Label", Any(A(c.label))}, {"State", Any(sal_Int16(0))}, {"HelpText", Any(ustr(c.help))}});
+      const std::string field = std::string(c.property) + "Value";
+      b.label((field + "Label").c_str(), c.number_label, L + 12, y + 13, F - L - 14);
+      b.number(field.c_str(), c.on_value, c.lo, c.hi, c.decimals, F, y + 13, W);
+      y += 28;
+    }
+
+    b.add("com.sun.star.awt.UnoControlButtonModel", "Run", 276, 282, 54, 14,
           {{"Label", Any(A("Run"))}, {"PushButtonType", Any(sal_Int16(1))}, {"DefaultButton", Any(true)}});
-    b.add("com.sun.star.awt.UnoControlButtonModel", "Cancel", 332, 230, 54, 14,
+    b.add("com.sun.star.awt.UnoControlButtonModel", "Cancel", 332, 282, 54, 14,
           {{"Label", Any(A("Cancel"))}, {"PushButtonType", Any(sal_Int16(2))}});
 
     Reference<css::awt::XWindowPeer> parent(frame_->getContainerWindow(), UNO_QUERY);
@@ -384,6 +396,10 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     opts.push_back(prop("Factors", Any(sal_Int32(state_of(b.get("FactorsFixed")) ? value_of(b.get("FactorCount")) : 0))));
     opts.push_back(prop("RotationParameter", Any(value_of(b.get("RotationParameter")))));
     opts.push_back(prop("Bootstrap", Any(sal_Int32(state_of(b.get("Bootstrap")) ? value_of(b.get("Replicates")) : 0))));
+    for (const CheckOption& c : check_options()) {  // 0 = off
+      const double v = state_of(b.get(c.property)) ? value_of(b.get((std::string(c.property) + "Value").c_str())) : 0.0;
+      opts.push_back(prop(c.property, c.decimals > 0 ? Any(v) : Any(sal_Int32(v))));
+    }
     opts.push_back(prop("Salient", Any(value_of(b.get("Salient")))));
     opts.push_back(prop("Seed", Any(static_cast<sal_Int64>(value_of(b.get("Seed"))))));
 

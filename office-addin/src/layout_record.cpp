@@ -45,6 +45,16 @@ Sheet layout_record(const Analysis& a) {
       rec("Bootstrap intervals", Cell::txt("not computed: " + a.boot.reason));
     }
   }
+  rec("Random splits into halves", Cell::num(o.halves));
+  if (a.halves_asked() && a.halves.available) {
+    rec("Splits used", Cell::num(a.halves.used));
+    rec("Splits failed", Cell::num(a.halves.failed));
+  }
+  rec("Share held out (confirmatory check)", Cell::num(o.holdout));
+  if (a.holdout_asked() && a.holdout.available) {
+    rec("Respondents held out", Cell::num(a.holdout.n_holdout));
+    rec("Held-out draw", Cell::txt("stream 0 of the random seed " + std::to_string(o.seed)));
+  }
   rec("Strong loading from", Cell::num(o.salient));
   rec("Random seed", Cell::txt(std::to_string(o.seed)));
   return rr;

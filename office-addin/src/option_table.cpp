@@ -50,6 +50,21 @@ const std::vector<WordOption>& word_options() {
   return table;
 }
 
+const std::vector<CheckOption>& check_options() {
+  static const std::vector<CheckOption> table = {
+      {"Holdout", "Hold out respondents for a confirmatory check", "Share held out", "Share held out (confirmatory check)",
+       0.5, 0.1, 0.9, 2,
+       "Before anything else, sets this share of the respondents aside at random (with the random seed); explores "
+       "the rest; then fits the simple structure found there to the respondents set aside. Its own sheet says "
+       "whether the structure fits them."},
+      {"Halves", "Replicate in random halves", "Splits", "Random splits into halves", 100, 2, 10000, 0,
+       "Splits the respondents into two random halves this many times (split i from stream i of the random seed), "
+       "repeats the analysis in each half and compares the halves' factors. Its own sheet says whether the "
+       "structure replicates."},
+  };
+  return table;
+}
+
 const WordOption* find_word_option(std::string_view property) {
   for (const WordOption& w : word_options())
     if (property == w.property) return &w;
@@ -107,6 +122,8 @@ Options options_from(const std::vector<OptionValue>& values) {
     else if (n == "Factors") o.factors = small(0, kMaxReportFactors, "0 (suggest) to 100");
     else if (n == "RotationParameter") o.rotation_parameter = number();
     else if (n == "Bootstrap") o.bootstrap = small(0, kMaxReportBootstrap, "0 (off) or 2 to 100000 resamples");
+    else if (n == "Holdout") o.holdout = number();  // validate() checks the share
+    else if (n == "Halves") o.halves = small(0, kMaxReportHalves, "0 (off) or 2 to 10000 random splits");
     else if (n == "Salient") o.salient = number();
     else if (n == "Seed") o.seed = static_cast<std::uint64_t>(integer(0, std::numeric_limits<std::int64_t>::max(), "0 or more"));
     else if (n == "CancelAfterSheets") o.cancel_after_sheets = small(-1, 1000, "-1 (never) to 1000");

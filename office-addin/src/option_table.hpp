@@ -32,6 +32,21 @@ struct WordOption {
   std::string Options::*field;      // where the word goes
 };
 
+// An extra that a check box switches on, with its number (0 = off): the service's property, the
+// dialog's words, the run record's key, the number the dialog proposes with its range, and the help.
+struct CheckOption {
+  const char* property;     // the service's property and the dialog's check box ("Holdout")
+  const char* label;        // the check box's words
+  const char* number_label; // the words beside its number field
+  const char* record;       // the run record's key
+  double on_value;          // the number the dialog proposes (the C ABI's default)
+  double lo, hi;            // the dialog's range for it
+  short decimals;
+  const char* help;         // the dialog's tooltip
+};
+// The extras with their own sheet (the confirmatory check, replication), in the dialog's order.
+const std::vector<CheckOption>& check_options();
+
 // One named value of the service's options as plain C++ (report_uno.cpp converts UNO's values).
 struct OptionValue {
   enum class Kind { other, text, integer, number, list } kind = Kind::other;

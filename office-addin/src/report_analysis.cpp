@@ -2,7 +2,7 @@
 // add-in's wrapper capi.hpp), leaving one plain Analysis value for the sheet layouts.
 #include "report_analysis.hpp"
 
-#include "capi.hpp"
+#include "report_calls.hpp"
 #include "report_text.hpp"
 
 #include <algorithm>
@@ -10,17 +10,7 @@
 #include <stdexcept>
 
 namespace lode::addin::report {
-namespace {
 
-using ModelHandle = Handle<lode_model, lode_model_free>;
-using FactorabilityHandle = Handle<lode_factorability, lode_factorability_free>;
-using CountHandle = Handle<lode_factor_count, lode_factor_count_free>;
-using BootstrapHandle = Handle<lode_bootstrap_result, lode_bootstrap_free>;
-using ReliabilityHandle = Handle<lode_reliability, lode_reliability_free>;
-using ScoresHandle = Handle<lode_scores, lode_scores_free>;
-
-// The report's reading of a C ABI status: cancelled runs stop, bad input is the person's to fix
-// (std::invalid_argument, shown with its reason), anything else is a failure of the run.
 void report_check(int status, const char* what) {
   if (status == LODE_OK) return;
   if (status == LODE_E_CANCELLED) throw Cancelled{};
@@ -30,6 +20,44 @@ void report_check(int status, const char* what) {
     throw std::invalid_argument(msg);
   throw std::runtime_error(msg + " (" + lode_status_name(status) + ")");
 }
+
+int ProgressBridge::call(void* user, std::int64_t done, std::int64_t total) {
+  auto* self = static_cast<ProgressBridge*>(user);
+  double share = total > 0 ? static_cast<double>(done) / static_cast<double>(total) : 0.0;
+  bool go_on = !*self->progress || (*self->progress)(self->phase, self->from + (self->to - self->from) * share);
+  return go_on ? 0 : 1;
+}
+
+FitSetup::FitSetup(const Options& o, int factors) {
+  lode_model_options_init(&fo, sizeof fo);
+  fo.factors = factors;
+  fo.method = o.extraction == "ml" ? LODE_EXTRACTION_ML : o.extraction == "paf" ? LODE_EXTRACTION_PAF : LODE_EXTRACTION_MINRES;
+  lode_rotation_options_init(&ro, sizeof ro);
+  ro.seed = o.seed;
+  ro.threads = 1;
+  rotation_used = o.rotation;
+  if (o.rotation == "oblimin") {
+    ro.method = LODE_CRITERION_OBLIMIN;
+    ro.gamma = o.rotation_parameter;
+  } else if (o.rotation == "promax") {
+    ro.method = LODE_CRITERION_PROMAX;
+    if (o.rotation_parameter > 0) ro.power = o.rotation_parameter;
+  } else {
+    ro.method = LODE_CRITERION_VARIMAX;
+  }
+  if (o.rotation != "none" && factors >= 2) fo.rotation = &ro;
+  else if (o.rotation != "none") rotation_used = "none (one factor cannot be rotated)";
+}
+
+namespace {
+
+using ModelHandle = Handle<lode_model, lode_model_free>;
+using FactorabilityHandle = Handle<lode_factorability, lode_factorability_free>;
+using CountHandle = Handle<lode_factor_count, lode_factor_count_free>;
+using BootstrapHandle = Handle<lode_bootstrap_result, lode_bootstrap_free>;
+using ReliabilityHandle = Handle<lode_reliability, lode_reliability_free>;
+using ScoresHandle = Handle<lode_scores, lode_scores_free>;
+
 
 // A result the C ABI may decline (an optional part of the report): its value, or the reason.
 struct Declined {
@@ -49,24 +77,7 @@ auto attempt(Read read, std::string& reason) -> decltype(read()) {
   }
 }
 
-// Progress from the C ABI into the run's callback (which may cancel).
-struct ProgressBridge {
-  const Progress* progress;
-  std::string phase;
-  double from, to;
-  static int call(void* user, std::int64_t done, std::int64_t total) {
-    auto* self = static_cast<ProgressBridge*>(user);
-    double share = total > 0 ? static_cast<double>(done) / static_cast<double>(total) : 0.0;
-    bool go_on = !*self->progress || (*self->progress)(self->phase, self->from + (self->to - self->from) * share);
-    return go_on ? 0 : 1;
-  }
-};
 
-// The C ABI's matrix results as plain vectors.
-template <class H, class Getter>
-std::vector<double> vec(const H* h, int key, Getter g, const char* what, StatusCheck on = report_check) {
-  return read_matrix(h, key, g, what, on).values;
-}
 
 Items read_items(const SourceTable& src, const Options& o) {
   Items it;
@@ -208,35 +219,6 @@ CountResult count_factors(const lode_correlation* corr, const Options& o, const 
   return r;
 }
 
-// The run's extraction and rotation options for lode_model_compute (and the bootstrap, which refits the same
-// way). Not copyable: fo.rotation points into the same object.
-struct FitSetup {
-  lode_model_options fo;
-  lode_rotation_options ro;
-  std::string rotation_used;  // which rotation is applied, in the option's word
-  FitSetup(const Options& o, int factors) {
-    lode_model_options_init(&fo, sizeof fo);
-    fo.factors = factors;
-    fo.method = o.extraction == "ml" ? LODE_EXTRACTION_ML : o.extraction == "paf" ? LODE_EXTRACTION_PAF : LODE_EXTRACTION_MINRES;
-    lode_rotation_options_init(&ro, sizeof ro);
-    ro.seed = o.seed;
-    ro.threads = 1;
-    rotation_used = o.rotation;
-    if (o.rotation == "oblimin") {
-      ro.method = LODE_CRITERION_OBLIMIN;
-      ro.gamma = o.rotation_parameter;
-    } else if (o.rotation == "promax") {
-      ro.method = LODE_CRITERION_PROMAX;
-      if (o.rotation_parameter > 0) ro.power = o.rotation_parameter;
-    } else {
-      ro.method = LODE_CRITERION_VARIMAX;
-    }
-    if (o.rotation != "none" && factors >= 2) fo.rotation = &ro;
-    else if (o.rotation != "none") rotation_used = "none (one factor cannot be rotated)";
-  }
-  FitSetup(const FitSetup&) = delete;
-  FitSetup& operator=(const FitSetup&) = delete;
-};
 
 ModelResult read_model(const lode_model* m, int factors, std::string rotation_used) {
   ModelResult r;
@@ -508,9 +490,10 @@ Analysis analyse(const SourceTable& src, const Options& o, const std::string& ti
     if (progress && !progress(phase, share)) throw Cancelled{};
   };
   step("reading the data", 0.0);
-  // Shares of the progress bar: the bootstrap, when asked for, is most of the work.
-  const bool boot = o.bootstrap > 0;
-  const double corr_to = boot ? 0.25 : 0.5, count_to = boot ? 0.45 : 0.9;
+  // Shares of the progress bar: the bootstrap and the replication, when asked for, are most of the work.
+  const bool boot = o.bootstrap > 0, halves = o.halves > 0, heavy = boot || halves;
+  const double corr_to = heavy ? 0.25 : 0.5, count_to = heavy ? 0.45 : 0.9;
+  const double boot_to = halves ? 0.7 : 0.93, halves_from = boot ? 0.7 : 0.5;
 
   Analysis a;
   a.options = o;
@@ -540,8 +523,18 @@ Analysis analyse(const SourceTable& src, const Options& o, const std::string& ti
 
   if (boot) {
     step("bootstrap resamples", 0.5);
-    if (a.model.available) a.boot = bootstrap_intervals(corr.get(), o, a.model.factors, progress, 0.5, 0.93);
+    if (a.model.available) a.boot = bootstrap_intervals(corr.get(), o, a.model.factors, progress, 0.5, boot_to);
     else a.boot.reason = a.model.reason;
+  }
+  if (halves) {
+    step("replication in random halves", halves_from);
+    if (a.model.available) a.halves = replicate_halves(corr.get(), o, a.model.factors, progress, halves_from, 0.93);
+    else a.halves.reason = a.model.reason;
+  }
+  if (o.holdout > 0.0) {
+    step("confirmatory check on held-out respondents", 0.93);
+    if (a.model.available) a.holdout = holdout_check(corr.get(), o, a.model.factors);
+    else a.holdout.reason = a.model.reason;
   }
   step("reliability of the scales", 0.94);
   if (a.model.available) a.reliability = reliability(a.model, model.get(), a.items);

@@ -122,6 +122,32 @@ struct ScoreResult {
   std::string where, moved;  // where in words; why not beside the data (empty when beside or not asked)
 };
 
+// Split-half replication (lode_replication_compute); when it fails, `reason` says why.
+struct ReplicationResult {
+  bool available = false;
+  std::string reason;
+  double splits = 0, used = 0, failed = 0, share_same_count = kNaN, suggested_full = kNaN;
+  std::vector<double> median, p5, fair, equal;  // per factor: congruence between halves, shares >= 0.85 and 0.95
+  std::vector<double> stability;                // per item: share of splits on the same factor in both halves
+  std::vector<std::string> failures, notes;
+};
+
+// The confirmatory check on held-out respondents (lode_holdout_compute and its restricted fit).
+struct HoldoutResult {
+  bool available = false;
+  std::string reason;
+  double n_explore = 0, n_holdout = 0, share = 0, salient = 0;
+  std::vector<double> pattern;                 // items x factors, 0/1: the simple structure taken from the rest
+  std::vector<std::size_t> fitted, left_out;   // indices into the analysed items
+  // The restricted fit on the held-out respondents, over the fitted items
+  std::vector<double> loadings, se, phi, uniquenesses;  // fitted x factors; fitted x factors; k x k; fitted
+  bool converged = false;
+  double iterations = 0, heywood = 0;
+  double chi2 = kNaN, df = kNaN, p = kNaN, cfi = kNaN, tli = kNaN, rmsea = kNaN, rmsea_lo = kNaN, rmsea_hi = kNaN,
+         srmr = kNaN, bic = kNaN;
+  std::vector<std::string> notes;
+};
+
 // Everything one report run computed, with the options and source it came from.
 struct Analysis {
   Options options;
@@ -140,10 +166,14 @@ struct Analysis {
   BootResult boot;    // asked for when options.bootstrap > 0
   ReliabilityResult reliability;
   ScoreResult scores;  // asked for when options.scores != "none"
+  ReplicationResult halves;  // asked for when options.halves > 0
+  HoldoutResult holdout;     // asked for when options.holdout > 0
 
   std::size_t p() const { return items.names.size(); }
   std::size_t k() const { return model.available ? static_cast<std::size_t>(model.factors) : 0; }
   bool bootstrap_asked() const { return options.bootstrap > 0; }
+  bool halves_asked() const { return options.halves > 0; }
+  bool holdout_asked() const { return options.holdout > 0.0; }
 };
 
 // Reads the items, runs the analysis through the C ABI. Throws std::invalid_argument (bad options or

@@ -15,6 +15,16 @@ Sheet layout_record(const Analysis& a);     // layout_record.cpp
 // Only when the scores were computed (a.scores.available) and placed there.
 Sheet layout_scores(const Analysis& a);
 Beside layout_scores_beside(const Analysis& a);
+// Replication in random halves (layout_replication.cpp) and the confirmatory check on held-out
+// respondents (layout_holdout.cpp): each on a sheet of its own when asked for.
+Sheet layout_replication(const Analysis& a);
+Sheet layout_holdout(const Analysis& a);
+// How a factor's median congruence between halves reads (0.85 and 0.95, Lorenzo-Seva & ten Berge 2006).
+std::string replication_words(double median);
+// How the count of CFI, TLI, RMSEA and SRMR meeting the cut-offs of Hu & Bentler (1999) reads.
+std::string holdout_words(std::size_t met, std::size_t defined);
+// The analysed items whose largest absolute loading stays under the strong-loading cut.
+std::vector<std::size_t> salient_nowhere(const Analysis& a);
 
 // A heading row: `text` in the first cell, then cells-1 empty cells in the heading style.
 inline void heading_row(Sheet& sheet, std::string text, std::size_t cells) {

@@ -6,6 +6,7 @@
 #include "report_analysis.hpp"
 #include "report_layout.hpp"
 #include "option_table.hpp"
+#include "report_text.hpp"
 
 #include <cmath>
 #include <cstring>
@@ -30,6 +31,12 @@ void validate(const Options& o) {
   if (o.bootstrap < 0 || o.bootstrap == 1 || o.bootstrap > kMaxReportBootstrap)
     throw std::invalid_argument("option Bootstrap is " + std::to_string(o.bootstrap) +
                                 "; it must be 0 (off) or 2 to 100000 resamples");
+  if (o.holdout != 0.0 && !(o.holdout > 0.0 && o.holdout < 1.0))
+    throw std::invalid_argument("option Holdout is " + fmt_num(o.holdout, 3) +
+                                "; it must be 0 (off) or a share of the respondents between 0 and 1, e.g. 0.5");
+  if (o.halves < 0 || o.halves == 1 || o.halves > kMaxReportHalves)
+    throw std::invalid_argument("option Halves is " + std::to_string(o.halves) +
+                                "; it must be 0 (off) or 2 to 10000 random splits");
   if (!(o.salient > 0.0 && o.salient < 1.0)) throw std::invalid_argument("option Salient must lie between 0 and 1");
   if (!std::isfinite(o.rotation_parameter)) throw std::invalid_argument("option RotationParameter must be a number");
 }
@@ -98,6 +105,8 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   rep.sheets.push_back(layout_loadings(a));
   rep.sheets.push_back(layout_factors(a));
   rep.sheets.push_back(layout_scree(a));
+  if (a.halves_asked()) rep.sheets.push_back(layout_replication(a));
+  if (a.holdout_asked()) rep.sheets.push_back(layout_holdout(a));
   rep.sheets.push_back(layout_record(a));
   if (a.scores.available) {
     if (a.scores.beside) rep.beside = layout_scores_beside(a);

@@ -16,6 +16,7 @@ namespace lode::addin::report {
 // The ranges of the integer options (checked when the named values are read and again by validate).
 inline constexpr int kMaxReportFactors = 100;
 inline constexpr int kMaxReportBootstrap = 100000;
+inline constexpr int kMaxReportHalves = 10000;
 
 // Everything the dialog (or any UNO caller) can choose. Text values are the option words of the
 // README's table ("pearson", "pairwise", ...); validate() checks them against option_table.cpp.
@@ -32,6 +33,8 @@ struct Options {
   std::string scores = defaults::scores;
   std::string scores_place = defaults::scores_place;  // beside: new columns right of the data, when empty
   int bootstrap = 0;                     // resamples; 0 = off
+  double holdout = 0.0;                  // share of respondents held out for the confirmatory check; 0 = off
+  int halves = 0;                        // random splits into halves (replication); 0 = off
   double salient = defaults::salient;    // loadings at least this large (absolute) are emphasised
   std::uint64_t seed = 20260101;  // the library's default seed, so the factor count agrees with the cells and Python
   int cancel_after_sheets = -1;          // tests only: cancel after this many writing steps (the score
@@ -144,6 +147,8 @@ inline constexpr const char* factors = "Lode factors";
 inline constexpr const char* scree = "Lode scree";
 inline constexpr const char* record = "Lode run record";
 inline constexpr const char* scores = "Lode scores";
+inline constexpr const char* replication = "Lode halves";
+inline constexpr const char* holdout = "Lode new respondents";
 }  // namespace names
 
 // Cell style names (created in the workbook by the writer; report_uno.cpp defines their look).

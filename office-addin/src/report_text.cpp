@@ -134,4 +134,10 @@ const char* const kNotLikelihoodRatio =
     "discrepancy evaluated at this solution, not a likelihood-ratio test; the p-value is approximate (it runs a "
     "little small) and the figures describe fit rather than test it. RMSR needs no such caveat.";
 
+const char* const kConfirmCaution =
+    "Caution: a structure that replicates, or fits respondents held out from the same survey, shows that it holds "
+    "in this survey; it is not evidence that the scales are valid for decisions about people. Scores are "
+    "estimates, and an instrument needs validation for the purpose before it is used to select, rate or diagnose "
+    "anyone; local law and professional testing standards govern such use.";
+
 }  // namespace lode::addin::report

@@ -41,6 +41,9 @@ std::string range_address(const std::string& sheet, std::size_t first_col, std::
 // The time now, "YYYY-MM-DD hh:mm:ss UTC".
 std::string utc_now();
 
+// The caution of the replication and hold-out sheets.
+extern const char* const kConfirmCaution;
+
 // The chi-square family of a minimum residual or principal axis solution (stated wherever those figures appear).
 extern const char* const kNotLikelihoodRatio;
 
