@@ -14,6 +14,7 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <set>
@@ -305,6 +306,231 @@ TEST_F(ReportLayout, BuildReportWritesEverySheetInOrder) {
                                              names::record, names::scores}));
   EXPECT_FALSE(rep.beside.has_value());
   EXPECT_EQ(rep.summary, "Lode analysed 7 items of 30 respondents");
+}
+
+// ---------------------------------------------------------------------------------------------
+// Replication in random halves and the confirmatory check on held-out respondents
+// ---------------------------------------------------------------------------------------------
+
+Options confirm_options() {
+  Options o;
+  o.factors = 2;
+  o.halves = 30;
+  o.holdout = 0.5;
+  return o;
+}
+
+// The run's fit options as the report sets them (ML, oblimin with the run's seed), written out here.
+struct ReferenceFit {
+  lode_model_options fo;
+  lode_rotation_options ro;
+  explicit ReferenceFit(const Options& o) {
+    lode_model_options_init(&fo, sizeof fo);
+    fo.factors = o.factors;
+    fo.method = LODE_EXTRACTION_ML;
+    lode_rotation_options_init(&ro, sizeof ro);
+    ro.method = LODE_CRITERION_OBLIMIN;
+    ro.seed = o.seed;
+    fo.rotation = &ro;
+  }
+};
+
+CorrelationHandle attitude_correlation(const Analysis& a, DataHandle& data) {
+  const auto p = static_cast<std::int64_t>(a.p());
+  lode_data* d = nullptr;
+  check(lode_data_from_raw(a.items.values.data(), static_cast<std::int64_t>(a.items.rows), p, p, 1, &d), "data");
+  data.reset(d);
+  lode_correlation* c = nullptr;
+  check(lode_correlation_compute(d, nullptr, &c), "correlations");
+  return CorrelationHandle(c);
+}
+
+class ConfirmSheets : public ::testing::Test {
+ protected:
+  static void SetUpTestSuite() {
+    source_ = new SourceTable(attitude_table());
+    analysis_ = new Analysis(analyse(*source_, confirm_options(), "t", {}));
+  }
+  static void TearDownTestSuite() {
+    delete analysis_;
+    delete source_;
+  }
+  static const Analysis& a() { return *analysis_; }
+  static SourceTable* source_;
+  static Analysis* analysis_;
+};
+SourceTable* ConfirmSheets::source_ = nullptr;
+Analysis* ConfirmSheets::analysis_ = nullptr;
+
+bool sheet_has_text(const Sheet& s, const std::string& text) {
+  for (const auto& row : s.rows)
+    for (const Cell& c : row)
+      if (c.kind == Cell::Kind::text && c.text.find(text) != std::string::npos) return true;
+  return false;
+}
+
+TEST_F(ConfirmSheets, ReplicationSheetMatchesTheCApi) {
+  ASSERT_TRUE(a().model.available) << a().model.reason;
+  ASSERT_TRUE(a().halves.available) << a().halves.reason;
+  DataHandle data;
+  const CorrelationHandle corr = attitude_correlation(a(), data);
+  ReferenceFit fit(a().options);
+  lode_replication_options ro;
+  lode_replication_options_init(&ro, sizeof ro);
+  ro.splits = 30;
+  ro.seed = a().options.seed;
+  lode_replication* raw = nullptr;
+  check(lode_replication_compute(corr.get(), &fit.fo, &ro, &raw), "replication");
+  const Handle<lode_replication, lode_replication_free> rep(raw);
+  const auto mat = [&](int key) { return read_matrix(rep.get(), key, lode_replication_matrix, "replication").values; };
+  const std::vector<double> median = mat(LODE_REPLICATION_CONGRUENCE_MEDIAN), p5 = mat(LODE_REPLICATION_CONGRUENCE_P5),
+                            fair = mat(LODE_REPLICATION_SHARE_FAIR), equal = mat(LODE_REPLICATION_SHARE_EQUAL),
+                            stability = mat(LODE_REPLICATION_ITEM_STABILITY);
+
+  const Sheet s = layout_replication(a());
+  EXPECT_EQ(s.base_name, names::replication);
+  const long hdr = find_row(s, "Factor");
+  ASSERT_GE(hdr, 0);
+  for (std::size_t f = 0; f < 2; ++f) {
+    const long r = hdr + 1 + static_cast<long>(f);
+    EXPECT_EQ(s.rows[static_cast<std::size_t>(r)][0].text, "Factor " + std::to_string(f + 1));
+    EXPECT_NEAR(num(s, r, 1), median[f], kSame);
+    EXPECT_NEAR(num(s, r, 2), p5[f], kSame);
+    EXPECT_NEAR(num(s, r, 3), fair[f], kSame);
+    EXPECT_NEAR(num(s, r, 4), equal[f], kSame);
+    // the reading against 0.85 and 0.95 (Lorenzo-Seva & ten Berge 2006), decided here from the C ABI's median
+    const std::string want = median[f] >= 0.95 ? "replicates: " : median[f] >= 0.85 ? "replicates fairly" : "does not replicate";
+    EXPECT_EQ(s.rows[static_cast<std::size_t>(r)][5].text.rfind(want, 0), 0u) << s.rows[static_cast<std::size_t>(r)][5].text;
+  }
+  EXPECT_TRUE(sheet_has_text(s, "Lorenzo-Seva & ten Berge 2006"));
+  // per item: the share of splits on the same factor, by item name
+  const long items = find_row(s, "Item");
+  ASSERT_GE(items, 0);
+  for (std::size_t i = 0; i < a().p(); ++i) {
+    const auto& row = s.rows[static_cast<std::size_t>(items) + 1 + i];
+    const auto j = static_cast<std::size_t>(std::find(kNames.begin(), kNames.end(), row[0].text) - kNames.begin());
+    ASSERT_LT(j, kNames.size()) << row[0].text;
+    EXPECT_NEAR(row[1].number, stability[j], kSame) << row[0].text;
+  }
+  // items salient nowhere, decided here from the C ABI's full-sample loadings
+  const std::vector<double> L = mat(LODE_REPLICATION_LOADINGS);
+  for (std::size_t j = 0; j < kNames.size(); ++j) {
+    const bool nowhere = std::max(std::fabs(L[j * 2]), std::fabs(L[j * 2 + 1])) < a().options.salient;
+    const long listed = find_row(s, kNames[j], static_cast<std::size_t>(find_row(s, "Items salient nowhere")));
+    EXPECT_EQ(listed >= 0, nowhere) << kNames[j];
+  }
+  EXPECT_TRUE(sheet_has_text(s, "not evidence that the scales are valid for decisions about people"));
+  EXPECT_TRUE(sheet_has_text(s, "local law and professional testing standards"));
+}
+
+TEST_F(ConfirmSheets, HoldoutSheetMatchesTheCApi) {
+  ASSERT_TRUE(a().holdout.available) << a().holdout.reason;
+  DataHandle data;
+  const CorrelationHandle corr = attitude_correlation(a(), data);
+  ReferenceFit fit(a().options);
+  lode_holdout_options ho;
+  lode_holdout_options_init(&ho, sizeof ho);
+  ho.share = 0.5;
+  ho.seed = a().options.seed;
+  ho.salient = a().options.salient;
+  lode_holdout* raw = nullptr;
+  check(lode_holdout_compute(corr.get(), &fit.fo, &ho, &raw), "hold-out check");
+  const Handle<lode_holdout, lode_holdout_free> h(raw);
+  lode_restricted_fit* rf = nullptr;
+  check(lode_restricted_fit_from_holdout(h.get(), &rf), "confirmatory fit");
+  const Handle<lode_restricted_fit, lode_restricted_fit_free> f(rf);
+  const auto value = [&](int key) { return read_value(f.get(), key, lode_restricted_fit_value, "fit"); };
+  const std::vector<double> fitted = read_matrix(h.get(), LODE_HOLDOUT_ITEMS_FITTED, lode_holdout_matrix, "fitted").values;
+  const std::vector<double> left = read_matrix(h.get(), LODE_HOLDOUT_ITEMS_LEFT_OUT, lode_holdout_matrix, "left").values;
+  const std::vector<double> L = read_matrix(f.get(), LODE_RESTRICTED_FIT_LOADINGS, lode_restricted_fit_matrix, "L").values;
+  const std::vector<double> se = read_matrix(f.get(), LODE_RESTRICTED_FIT_LOADINGS_SE, lode_restricted_fit_matrix, "se").values;
+
+  const Sheet s = layout_holdout(a());
+  EXPECT_EQ(s.base_name, names::holdout);
+  // the four indices against the cut-offs of Hu & Bentler (1999): CFI, TLI at least 0.95; RMSEA at most
+  // 0.06; SRMR at most 0.08
+  const struct { const char* name; int key; double cut; bool at_most; } cuts[] = {
+      {"CFI", LODE_RESTRICTED_FIT_CFI, 0.95, false}, {"TLI", LODE_RESTRICTED_FIT_TLI, 0.95, false},
+      {"RMSEA", LODE_RESTRICTED_FIT_RMSEA, 0.06, true}, {"SRMR", LODE_RESTRICTED_FIT_SRMR, 0.08, true}};
+  std::size_t met = 0, defined = 0;
+  for (const auto& c : cuts) {
+    const long r = find_row(s, c.name);
+    ASSERT_GE(r, 0) << c.name;
+    const double v = value(c.key);
+    if (!std::isfinite(v)) continue;
+    ++defined;
+    const bool ok = c.at_most ? v <= c.cut : v >= c.cut;
+    met += ok;
+    EXPECT_NEAR(num(s, r, 1), v, kSame) << c.name;
+    EXPECT_EQ(s.rows[static_cast<std::size_t>(r)][3].text, ok ? "yes" : "no") << c.name;
+  }
+  EXPECT_EQ(s.rows.at(static_cast<std::size_t>(find_row(s, "Reading")))[1].text, holdout_words(met, defined));
+  EXPECT_TRUE(sheet_has_text(s, "Hu & Bentler (1999)"));
+  EXPECT_NEAR(num(s, find_row(s, "Chi-square"), 1), value(LODE_RESTRICTED_FIT_CHI_SQUARE), kSame);
+  EXPECT_EQ(num(s, find_row(s, "Degrees of freedom"), 1), value(LODE_RESTRICTED_FIT_DF));
+  EXPECT_NEAR(num(s, find_row(s, "BIC"), 1), value(LODE_RESTRICTED_FIT_BIC), kSame);
+  // each fitted item: its factor, loading and standard error
+  const long hdr = find_row(s, "Item");
+  ASSERT_GE(hdr, 0);
+  for (std::size_t i = 0; i < fitted.size(); ++i) {
+    const auto& row = s.rows[static_cast<std::size_t>(hdr) + 1 + i];
+    EXPECT_EQ(row[0].text, kNames[static_cast<std::size_t>(fitted[i])]);
+    const auto f0 = static_cast<std::size_t>(row[1].number) - 1;
+    EXPECT_NE(L[i * 2 + f0], 0.0);
+    EXPECT_EQ(L[i * 2 + (1 - f0)], 0.0);  // two factors: the other loading is fixed
+    EXPECT_NEAR(row[2].number, L[i * 2 + f0], kSame);
+    EXPECT_NEAR(row[3].number, se[i * 2 + f0], kSame);
+  }
+  const long gone = find_row(s, "Items left out (salient nowhere)");
+  ASSERT_GE(gone, 0);
+  for (double j : left) EXPECT_GE(find_row(s, kNames[static_cast<std::size_t>(j)], static_cast<std::size_t>(gone)), 0);
+  EXPECT_EQ(fitted.size() + left.size(), kNames.size());
+  EXPECT_TRUE(sheet_has_text(s, "not evidence that the scales are valid for decisions about people"));
+}
+
+TEST_F(ConfirmSheets, BothSheetsComeBeforeTheRunRecord) {
+  const Report rep = build_report(*source_, confirm_options(), "t", {});
+  std::vector<std::string> order;
+  for (const Sheet& s : rep.sheets) order.push_back(s.base_name);
+  EXPECT_EQ(order, (std::vector<std::string>{names::overview, names::loadings, names::factors, names::scree,
+                                             names::replication, names::holdout, names::record}));
+  const Sheet rec = layout_record(a());
+  EXPECT_EQ(num(rec, find_row(rec, "Random splits into halves"), 1), 30.0);
+  EXPECT_EQ(num(rec, find_row(rec, "Share held out (confirmatory check)"), 1), 0.5);
+  EXPECT_EQ(num(rec, find_row(rec, "Respondents held out"), 1), a().holdout.n_holdout);
+}
+
+TEST_F(ConfirmSheets, ATooSmallHoldoutIsRefusedWithTheWorkableShares) {
+  Options o = confirm_options();
+  o.halves = 0;
+  o.holdout = 0.1;  // 3 of 30 respondents for 7 items
+  try {
+    analyse(*source_, o, "t", {});
+    ADD_FAILURE() << "a hold-out of 3 respondents for 7 items was accepted";
+  } catch (const std::invalid_argument& e) {
+    EXPECT_EQ(std::string(e.what()).rfind("option Holdout is 0.10: ", 0), 0u) << e.what();
+  }
+  for (double bad : {-0.2, 1.0, 1.5}) {
+    Options v;
+    v.holdout = bad;
+    EXPECT_THROW(validate(v), std::invalid_argument) << bad;
+  }
+  Options v;
+  v.halves = 1;
+  EXPECT_THROW(validate(v), std::invalid_argument);
+  // the service's named values reach the options (0 = off)
+  std::vector<OptionValue> values(2);
+  values[0].kind = OptionValue::Kind::number;
+  values[0].name = "Holdout";
+  values[0].number = 0.4;
+  values[1].kind = OptionValue::Kind::integer;
+  values[1].name = "Halves";
+  values[1].integer = 50;
+  values[1].number = 50;
+  const Options parsed = options_from(values);
+  EXPECT_EQ(parsed.holdout, 0.4);
+  EXPECT_EQ(parsed.halves, 50);
+  for (const CheckOption& c : check_options()) EXPECT_GT(std::string(c.help).size(), 20u) << c.property;
 }
 
 }  // namespace
