@@ -51,7 +51,12 @@ VALID = {
     "percentile": lambda v: 0 < v < 100,
     "seed": _whole(0, 2 ** 52),
     "parameter": lambda v: None,  # any number is a parameter of some rotation; convergence is the data's
+    "splits": _whole(2, 10000),
+    "part": lambda v: False,
 }
+# Functions that need the sample size of a correlation matrix given as data (the restricted fit's
+# statistics and standard errors): n_obs left out is an error for them.
+NEEDS_N_OBS = {"LODE.SPHERICITY", "LODE.PATTERNLOADINGS", "LODE.PATTERNFIT"}
 
 
 @pytest.fixture(scope="module")
@@ -62,7 +67,8 @@ def inputs(book):
     lam[3:, 1] = [0.8, 0.7, 0.75]
     good = rng.normal(size=(200, 2)) @ lam.T + rng.normal(size=(200, 6)) * 0.55
     corr = np.corrcoef(good, rowvar=False)
-    r = {"good": book.put(good), "corr": book.put(corr), "loadings": book.put(lam + 0.1 * rng.uniform(size=(6, 2)))}
+    r = {"good": book.put(good), "corr": book.put(corr), "loadings": book.put(lam + 0.1 * rng.uniform(size=(6, 2))),
+         "pattern": book.put((lam > 0).astype(float))}  # the simple structure of `good`, for the pattern cells
 
     def nan_block(rows, cols, fill):
         x = np.full((rows, cols), np.nan)
@@ -170,7 +176,8 @@ def _call(name, args):
 def _required(name, spec, inputs, first):
     """The arguments with `first` as the first and good values for the other required ones."""
     fill = inputs["loadings"] if name in LOADING_FUNCTIONS else inputs["good"]
-    return [first] + [fill if not optional else "" for (_, optional) in spec[1:]]
+    return [first] + [(inputs["pattern"] if arg == "pattern" else fill) if not optional else ""
+                      for (arg, optional) in spec[1:]]
 
 
 def test_every_data_argument_with_bad_ranges(office, book, lode_functions, inputs):
@@ -218,7 +225,7 @@ def test_every_optional_argument_with_bad_values(office, book, lode_functions, i
                         args.pop()
                     if value in BLANK:
                         # left out: the default; a correlation matrix without n_obs has no test of sphericity
-                        due = "error" if name == "LODE.SPHERICITY" and source == inputs["corr"] else "value"
+                        due = "error" if name in NEEDS_N_OBS and source == inputs["corr"] else "value"
                     elif value in ERRORS or value not in NUMERIC:
                         due = "error"
                     else:
