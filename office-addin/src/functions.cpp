@@ -425,29 +425,35 @@ Output fn_communality(const Call& call) { return to_output(converged_fit(call)->
 Output fn_factorcorr(const Call& call) { return to_output(converged_fit(call)->phi); }
 Output fn_residuals(const Call& call) { return to_output(converged_fit(call)->residuals); }
 
-Output fn_fit(const Call& call) {
-  std::shared_ptr<const FitOutputs> f;
-  try {
-    f = fit(call);
-  } catch (const CellError& e) {  // LODE.FIT says why in its cells
-    Output out = Output::table(1, 2);
-    out.at(0, 0) = OutCell::of(std::string("error"));
-    out.at(0, 1) = OutCell::of(std::string(e.what()));
-    return out;
-  }
-  std::vector<std::pair<std::string, OutCell>> rows;
-  rows.emplace_back("factors", OutCell::of(static_cast<double>(f->factors)));
-  for (const auto& [label, value] : f->statistics)
-    rows.emplace_back(label, std::isfinite(value) ? OutCell::of(value) : OutCell::of(std::string("not defined")));
-  if (!f->statistics_error.empty()) rows.emplace_back("tests", OutCell::of(f->statistics_error));
-  rows.emplace_back("converged", f->converged ? OutCell::of(1.0) : OutCell::of("no: " + f->convergence_note));
-  rows.emplace_back("Heywood cases", OutCell::of(static_cast<double>(f->heywood)));
+OutCell statistic_cell(double value) {
+  return std::isfinite(value) ? OutCell::of(value) : OutCell::of(std::string("not defined"));
+}
+
+Output label_value_table(const LabelRows& rows) {
   Output out = Output::table(rows.size(), 2);
   for (std::size_t r = 0; r < rows.size(); ++r) {
     out.at(r, 0) = OutCell::of(rows[r].first);
     out.at(r, 1) = rows[r].second;
   }
   return out;
+}
+
+Output error_row(const CellError& e) { return label_value_table({{"error", OutCell::of(std::string(e.what()))}}); }
+
+Output fn_fit(const Call& call) {
+  std::shared_ptr<const FitOutputs> f;
+  try {
+    f = fit(call);
+  } catch (const CellError& e) {  // LODE.FIT says why in its cells
+    return error_row(e);
+  }
+  LabelRows rows;
+  rows.emplace_back("factors", OutCell::of(static_cast<double>(f->factors)));
+  for (const auto& [label, value] : f->statistics) rows.emplace_back(label, statistic_cell(value));
+  if (!f->statistics_error.empty()) rows.emplace_back("tests", OutCell::of(f->statistics_error));
+  rows.emplace_back("converged", f->converged ? OutCell::of(1.0) : OutCell::of("no: " + f->convergence_note));
+  rows.emplace_back("Heywood cases", OutCell::of(static_cast<double>(f->heywood)));
+  return label_value_table(rows);
 }
 
 Output fn_rotate(const Call& call) {

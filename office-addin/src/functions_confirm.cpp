@@ -181,22 +181,13 @@ Output fn_patternfit(const Call& call) {
   try {
     f = pattern_fit(call);
   } catch (const CellError& e) {  // LODE.PATTERNFIT says why in its cells, as LODE.FIT does
-    Output out = Output::table(1, 2);
-    out.at(0, 0) = OutCell::of(std::string("error"));
-    out.at(0, 1) = OutCell::of(std::string(e.what()));
-    return out;
+    return error_row(e);
   }
-  std::vector<std::pair<std::string, OutCell>> rows;
-  for (const auto& [label, value] : f->statistics)
-    rows.emplace_back(label, std::isfinite(value) ? OutCell::of(value) : OutCell::of(std::string("not defined")));
+  LabelRows rows;
+  for (const auto& [label, value] : f->statistics) rows.emplace_back(label, statistic_cell(value));
   rows.emplace_back("converged", f->converged ? OutCell::of(1.0) : OutCell::of("no: " + f->convergence_note));
   rows.emplace_back("Heywood cases", OutCell::of(f->heywood));
-  Output out = Output::table(rows.size(), 2);
-  for (std::size_t r = 0; r < rows.size(); ++r) {
-    out.at(r, 0) = OutCell::of(rows[r].first);
-    out.at(r, 1) = rows[r].second;
-  }
-  return out;
+  return label_value_table(rows);
 }
 
 Output fn_halves(const Call& call) {

@@ -12,6 +12,8 @@
 #include <functional>
 #include <memory>
 #include <string>
+#include <utility>
+#include <vector>
 
 namespace lode::addin {
 
@@ -82,6 +84,13 @@ struct ModelSetup {
   ModelSetup(const ModelSetup&) = delete;
   ModelSetup& operator=(const ModelSetup&) = delete;
 };
+
+// The label/value rows of LODE.FIT and LODE.PATTERNFIT: a statistic that is not defined shows as text,
+// and a failure as the one row `error` with the reason (these cells say why instead of an error value).
+using LabelRows = std::vector<std::pair<std::string, OutCell>>;
+OutCell statistic_cell(double value);
+Output label_value_table(const LabelRows& rows);
+Output error_row(const CellError& e);
 
 // The seed argument: a whole number in [0, 2^52], or -1 (the library's default) when left out.
 std::int64_t seed_arg(const Arg& a);
