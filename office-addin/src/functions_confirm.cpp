@@ -5,6 +5,7 @@
 
 #include "functions_shared.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <string>
 #include <utility>

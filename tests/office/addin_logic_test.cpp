@@ -170,6 +170,46 @@ TEST(AddinArguments, SquareBlocksReadAsCorrelationsAnswersOrAreRefusedWhenAlmost
   }
 }
 
+// The pattern argument of the restricted-fit cells: one column of factor numbers and the same pattern as
+// 0/1 columns (empty cells 0) give the same fit, whose fixed loadings are 0; an item on no factor, a
+// factor with one item, a wrong number of rows and values other than 0/1 in several columns are refused
+// with the reason (invented two-factor answers: items 1-3 and 4-6).
+TEST(AddinPattern, FactorNumbersAndZeroOneColumnsAgreeAndBadPatternsSayWhy) {
+  ResultCache cache;
+  std::vector<Arg> args(4);
+  args[0] = two_factor_answers(200);
+  args[1] = block(6, 1, {1, 1, 1, 2, 2, 2});
+  const Output by_number = fn_patternloadings(Call{args, cache});
+  args[1] = block(6, 2, {1, kMissing, 1, 0, 1, 0, 0, 1, kMissing, 1, 0, 1});
+  const Output zero_one = fn_patternloadings(Call{args, cache});
+  ASSERT_EQ(by_number.rows, 6u);
+  ASSERT_EQ(by_number.cols, 2u);
+  for (std::size_t i = 0; i < by_number.cells.size(); ++i) EXPECT_EQ(by_number.cells[i].number, zero_one.cells[i].number);
+  for (std::size_t j = 0; j < 6; ++j) {
+    EXPECT_EQ(by_number.cells[j * 2 + (j < 3 ? 1 : 0)].number, 0.0);  // fixed by the pattern
+    EXPECT_GT(std::fabs(by_number.cells[j * 2 + (j < 3 ? 0 : 1)].number), 0.5);
+  }
+  const Output fit = fn_patternfit(Call{args, cache});
+  EXPECT_EQ(fit.cells[0].text, "chi-square");
+  EXPECT_EQ(fit.cells[1 * 2 + 1].number, 8.0);  // df: 21 moments - (6 loadings + 1 correlation + 6 uniquenesses)
+  const std::pair<std::vector<double>, const char*> bad[] = {
+      {{0, 1, 1, 2, 2, 2}, "on no factor"},
+      {{1, 1, 1, 2, 2, 3}, "at least two items"},
+      {{1, 1, 2, 2}, "one row per item"},
+      {{0.5, 1, 1, 2, 2, 2}, "factor numbers"},
+  };
+  for (const auto& [values, words] : bad) {
+    args[1] = block(values.size(), 1, values);
+    const Output out = fn_patternfit(Call{args, cache});
+    ASSERT_EQ(out.cells.size(), 2u);
+    EXPECT_EQ(out.cells[0].text, "error");
+    EXPECT_NE(out.cells[1].text.find(words), std::string::npos) << out.cells[1].text;
+    EXPECT_THROW(fn_patternloadings(Call{args, cache}), CellError);
+  }
+  args[1] = block(6, 2, {1, 0, 2, 0, 1, 0, 0, 1, 0, 1, 0, 1});
+  EXPECT_THROW(fn_patternloadings(Call{args, cache}), CellError);  // 2 in a 0/1 block
+}
+
 TEST(AddinTimeLimit, AFormulaPastItsDeadlineStartsNoFurtherStage) {
   std::vector<Arg> args(5);
   args[0] = two_factor_answers(200);
