@@ -191,13 +191,19 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
         box = find_accessible(dialog, "Bootstrap intervals", role=CHECK_BOX)
         assert box is not None, "no Bootstrap intervals check box"
         box.getAccessibleContext().doAccessibleAction(0)
+        # and both checks of the structure, with the numbers the dialog proposes (0.5 held out, 100 splits)
+        for label in ["Hold out respondents for a confirmatory check", "Replicate in random halves"]:
+            check = find_accessible(dialog, label, role=CHECK_BOX)
+            assert check is not None, f"no {label!r} check box"
+            check.getAccessibleContext().doAccessibleAction(0)
         time.sleep(1.5)  # let it paint
         names = accessible_names(dialog)
     shot = screenshot("lode-dialog.png")
     for want in ["Range", "First row holds the item names", "Items to analyse (all with numbers are chosen)",
                  "Correlations", "Missing answers", "Number of factors", "Suggest from the data", "Extraction",
                  "Rotation", "Factor scores", "Bootstrap intervals", "Strong loading from", "Random seed", "Run",
-                 "Cancel"]:
+                 "Cancel", "Hold out respondents for a confirmatory check", "Share held out",
+                 "Replicate in random halves", "Splits"]:
         assert want in names, f"control {want!r} not found in the dialog: {names}"
     assert "$Responses.$A$1:$AE$421" in names, "the range is not prefilled from the selection"
     sage = pixels_of(shot, SAGE)
@@ -218,7 +224,8 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
             time.sleep(0.5)
         assert ctrl.getActiveSheet().getName() == "Lode overview", "the report did not finish and show itself"
         names = list(doc.Sheets.ElementNames)
-        for n in ["Lode overview", "Lode loadings", "Lode factors", "Lode scree", "Lode run record"]:
+        for n in ["Lode overview", "Lode loadings", "Lode factors", "Lode scree", "Lode halves",
+                  "Lode new respondents", "Lode run record"]:
             assert n in names
         # what the dialog passed on: the detected header, every numeric column, the defaults shown
         rr = doc.Sheets.getByName("Lode run record")
@@ -229,6 +236,7 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
         assert rec["Factor scores"] == "regression" and rec["Factor scores placed"] == "beside"
         assert rec["Factor scores written to"].endswith("of Responses, beside the data")
         assert rec["Bootstrap resamples"] == "500" and rec["Bootstrap seed"].startswith("20260101 ")
+        assert rec["Random splits into halves"] == "100" and rec["Share held out (confirmatory check)"] == "0.5"
         # the score columns start right of the answers (AE), with their headings
         assert doc.Sheets.getByName("Responses").getCellRangeByName("AF1").String == "Factor 1 score (regression)"
     time.sleep(2)
