@@ -27,6 +27,13 @@ Sheet layout_record(const Analysis& a) {
   rec("Items", Cell::txt(items_text));
   rec("Values hash (FNV-1a 64)", Cell::txt(hash));
   for (const WordOption& w : word_options()) rec(w.record, Cell::txt(o.*(w.field)));
+  if (o.missing == "em") {
+    rec("EM iterations", Cell::num(a.corr.em_iterations));
+    rec("EM met its criterion", Cell::txt(a.corr.em_converged == 1.0 ? "yes" : "no: the estimate may be off"));
+    char change[64];
+    std::snprintf(change, sizeof change, "%.3g (criterion %.3g)", a.corr.em_final_change, a.corr.em_tolerance);
+    rec("EM last change", Cell::txt(change));
+  }
   rec("Number of factors", o.factors > 0 ? Cell::num(o.factors) : Cell::txt("suggest"));
   rec("Rotation parameter", Cell::num(o.rotation_parameter));
   if (o.scores != "none") {

@@ -18,10 +18,13 @@ const std::vector<WordOption>& word_options() {
        "them as ordered categories.",
        &Options::correlation},
       {"Missing", "Missing answers", "Missing answers",
-       {{"pairwise", "Pairwise: all who answered both"}, {"listwise", "Listwise: complete answers only"}},
+       {{"pairwise", "Pairwise: all who answered both"},
+        {"listwise", "Listwise: complete answers only"},
+        {"em", "EM: estimated under missing at random"}},
        defaults::missing,
        "Pairwise: each correlation uses everyone who answered both items. Listwise: only respondents who "
-       "answered every item.",
+       "answered every item. EM: maximum likelihood correlations from everyone with an answer, assuming skipped "
+       "answers depend only on answers given (missing at random; Pearson correlations only).",
        &Options::missing},
       {"Extraction", "Extraction", "Extraction",
        {{"ml", "Maximum likelihood"}, {"minres", "Minimum residual"}, {"paf", "Principal axis"}},

@@ -117,7 +117,7 @@ CorrelationHandle correlate(const lode_data* data, const Options& o, const Progr
   lode_correlation_options copts;
   lode_correlation_options_init(&copts, sizeof copts);
   copts.kind = o.correlation == "spearman" ? LODE_COEFFICIENT_SPEARMAN : o.correlation == "polychoric" ? LODE_COEFFICIENT_POLYCHORIC : LODE_COEFFICIENT_PEARSON;
-  copts.missing = o.missing == "listwise" ? LODE_MISSING_LISTWISE : LODE_MISSING_PAIRWISE;
+  copts.missing = o.missing == "listwise" ? LODE_MISSING_LISTWISE : o.missing == "em" ? LODE_MISSING_EM : LODE_MISSING_PAIRWISE;
   copts.threads = 1;  // the office's other work keeps a core
   ProgressBridge bridge{&progress, "computing correlations", 0.05, to};
   copts.progress = &ProgressBridge::call;
@@ -427,7 +427,7 @@ ReliabilityResult reliability(const ModelResult& model, const lode_model* handle
 
 // Respondents' scores on the model's factors. The missing-answer rule follows the run's missing
 // handling: listwise leaves a respondent with any skipped item unscored (as the correlations left
-// them out); pairwise scores from the answered items when at least half were answered.
+// them out); pairwise and em score from the answered items when at least half were answered.
 ScoreResult factor_scores(const lode_model* model, const lode_data* data, const Options& o) {
   ScoreResult r;
   lode_scores_options so;
@@ -530,6 +530,13 @@ Analysis analyse(const SourceTable& src, const Options& o, const std::string& ti
   const CorrelationHandle corr = correlate(data.get(), o, progress, corr_to);
   step("assessing the correlations", corr_to);
   a.corr = correlation_facts(corr.get());
+  if (o.missing == "em") {
+    const auto em = [&](int key) { return read_value(corr.get(), key, lode_correlation_value, "the em estimate", report_check); };
+    a.corr.em_iterations = em(LODE_CORRELATION_EM_ITERATIONS);
+    a.corr.em_converged = em(LODE_CORRELATION_EM_CONVERGED);
+    a.corr.em_final_change = em(LODE_CORRELATION_EM_FINAL_CHANGE);
+    a.corr.em_tolerance = em(LODE_CORRELATION_EM_TOLERANCE);
+  }
   a.count = count_factors(corr.get(), o, progress, corr_to, count_to);
 
   step("fitting the factor model", count_to + 0.02);

@@ -35,6 +35,8 @@ struct CorrelationFacts {
   std::string smc_problem;
   double rows_total = kNaN, rows_used = kNaN, rows_complete = kNaN, n_obs = kNaN, missing_share = kNaN;
   bool positive_definite = false;
+  // The em rule only: its iterations, whether it met its criterion, the last change and the criterion
+  double em_iterations = kNaN, em_converged = kNaN, em_final_change = kNaN, em_tolerance = kNaN;
   std::vector<std::string> notes;
   // Factorability (KMO, MSA, Bartlett)
   Maybe kmo, bartlett_chi2, bartlett_df, bartlett_p;
