@@ -1,4 +1,5 @@
 #include "functions.hpp"
+#include "functions_shared.hpp"
 
 #include "arguments.hpp"
 #include "capi.hpp"
@@ -14,18 +15,7 @@
 
 namespace lode::addin {
 
-namespace {
 
-// The cached result of `work` for `key`, computed on a thread of its own and waited for until the
-// formula's deadline (ResultCache::get_or_compute_until): for stages the C ABI cannot interrupt. A
-// recalculation while the work still runs joins it, and once it has finished takes its result.
-template <class T>
-std::shared_ptr<const T> cached_in_time(const Call& call, const std::string& key, const char* what,
-                                        std::function<std::shared_ptr<const T>()> work, std::size_t bytes) {
-  auto value = call.cache.get_or_compute_until<T>(key, std::move(work), bytes, call.deadline.until);
-  if (!value) time_limit_passed(what);
-  return value;
-}
 
 KeyBuilder& add_grid(KeyBuilder& k, const Grid& g) {
   k.add(static_cast<std::uint64_t>(g.rows)).add(static_cast<std::uint64_t>(g.cols));
@@ -53,11 +43,6 @@ DataHandle make_data(const Input& in, std::int64_t n_obs) {
   return data;
 }
 
-struct CorrelationSpec {
-  int kind = LODE_COEFFICIENT_PEARSON;
-  int missing = LODE_MISSING_PAIRWISE;
-  std::int64_t n_obs = 0;  // for a correlation matrix given as data
-};
 
 // The correlation of the input with these options, computed once per distinct input.
 std::shared_ptr<const lode_correlation> correlation(const Call& call, const Input& in, const CorrelationSpec& spec) {
@@ -92,7 +77,6 @@ Matrix correlation_matrix(const lode_correlation* c, int key, const char* what) 
   return read_matrix(c, key, lode_correlation_matrix, what);
 }
 
-}  // namespace
 
 // ---------------------------------------------------------------------------------------------
 // The functions
@@ -130,7 +114,6 @@ Output fn_eigen(const Call& call) {
 // Factor analyses shared by many cells. The C ABI is reached only in the run_* functions; the
 // cells read their outputs, which the cache keeps per distinct (input values, options).
 // ---------------------------------------------------------------------------------------------
-namespace {
 
 // An option word left out stands for its default (defaults.hpp: the one set of defaults).
 Arg or_default(const Arg& a, const char* word) {
@@ -155,28 +138,8 @@ int rotation_arg(const Arg& a) {
   return method;
 }
 
-constexpr std::int64_t kMaxFactors = 100;
-constexpr std::int64_t kMaxReplicates = 10000;
-constexpr std::int64_t kMaxObservations = 1'000'000'000;
-constexpr std::size_t kNoArg = static_cast<std::size_t>(-1);
 
-struct FitSpec {
-  int factors = 0;   // 0 = the count parallel analysis suggests
-  int method = LODE_EXTRACTION_ML;                // the C ABI's extraction method (method_arg)
-  int rotation = LODE_CRITERION_OBLIMIN;  // the C ABI's rotation method (rotation_arg)
-};
 
-// What every fit-reading cell needs, computed once per distinct (data, options).
-struct FitOutputs {
-  int factors = 0;
-  bool converged = true;
-  std::string convergence_note;  // why not, shown by LODE.FIT; the other cells show Err:523
-  Matrix pattern, structure, phi, uniquenesses, communalities, residuals;
-  std::vector<std::pair<std::string, double>> statistics;  // LODE.FIT's rows
-  std::string statistics_error;  // when the statistics could not be computed (e.g. n_obs unknown)
-  std::int64_t heywood = 0;      // items with an improper solution
-  std::shared_ptr<const lode_model> model;  // kept for LODE.SCORES (the handle holds the raw data it was fitted to)
-};
 
 struct ParallelOutputs {
   Matrix table;  // items x 3: observed, random mean, random percentile
@@ -188,11 +151,6 @@ std::shared_ptr<const ParallelOutputs> run_parallel(const lode_correlation* corr
 std::int64_t run_nfactors(const lode_correlation* corr, int rule, std::int64_t seed, const Deadline& deadline);
 Matrix run_rotate(const Grid& loadings, int rotation, const Arg& parameter);
 
-// The data argument plus n_obs (argument `n_obs_index`; it matters only for a correlation matrix).
-struct Source {
-  Input input;
-  CorrelationSpec spec;
-};
 
 Source read_source(const Call& call, std::size_t n_obs_index) {
   Source s{read_input(call.args[0], "data"), CorrelationSpec{}};
@@ -217,12 +175,6 @@ std::int64_t cached_nfactors(const Call& call, const Source& src, int rule, std:
       k.take(), [&] { return std::make_shared<const std::int64_t>(run_nfactors(corr.get(), rule, seed, call.deadline)); }, 64);
 }
 
-// What a fit-reading cell asks for: the source, the options, and the cache key of the fit.
-struct FitRequest {
-  Source src;
-  FitSpec spec;
-  std::string key;
-};
 
 // Arguments of the fit family: data; [factors]; [method]; [rotation]; then n_obs at `n_obs_index`
 // (kNoArg for functions without it: LODE.SCORES takes raw data only).
@@ -264,10 +216,6 @@ std::shared_ptr<const FitOutputs> converged_fit(const Call& call, const FitReque
 
 std::shared_ptr<const FitOutputs> converged_fit(const Call& call) { return converged_fit(call, read_fit_request(call, 4)); }
 
-template <class T, void (*Free)(T*)>
-std::shared_ptr<const T> shared_handle(T* h) {
-  return std::shared_ptr<const T>(h, [](const T* p) { Free(const_cast<T*>(p)); });
-}
 
 std::shared_ptr<const lode_factorability> factorability(const Call& call, std::size_t n_obs_index) {
   const Source src = read_source(call, n_obs_index);
@@ -423,7 +371,6 @@ Matrix run_rotate(const Grid& loadings, int rotation, const Arg& parameter) {
 
 std::int64_t seed_arg(const Arg& a) { return whole(a, "seed", -1, 0, std::int64_t{1} << 52); }
 
-}  // namespace
 
 Output fn_kmo(const Call& call) {
   return Output::number(factorability_value(factorability(call, kNoArg).get(), LODE_FACTORABILITY_KMO, "KMO"));

@@ -26,5 +26,11 @@ Output fn_scores(const Call& call);
 Output fn_alpha(const Call& call);
 Output fn_omega(const Call& call);
 Output fn_congruence(const Call& call);
+// functions_structure.cpp: a general factor (Schmid-Leiman) and the comparison across groups
+Output fn_general(const Call& call);
+Output fn_generalomega(const Call& call);
+Output fn_groupmatch(const Call& call);
+Output fn_groupskipped(const Call& call);
+Output fn_groupshifts(const Call& call);
 
 }  // namespace lode::addin

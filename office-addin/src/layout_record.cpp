@@ -52,6 +52,14 @@ Sheet layout_record(const Analysis& a) {
       rec("Bootstrap intervals", Cell::txt("not computed: " + a.boot.reason));
     }
   }
+  rec("General factor (Schmid-Leiman)", Cell::txt(a.general.available ? "computed (oblique, at least 3 factors)"
+                                                                       : "not computed: " + a.general.reason));
+  rec(kGroupColumnOption.record, Cell::txt(o.group_column.empty() ? "none" : o.group_column));
+  if (!o.group_column.empty()) {
+    rec(kMinGroupOption.record, Cell::num(o.min_group));
+    rec("Smallest group compared (with items + 1)", Cell::num(static_cast<double>(a.groups.needed)));
+    if (!a.groups.available) rec("Group comparison", Cell::txt("not made: " + a.groups.reason));
+  }
   rec("Strong loading from", Cell::num(o.salient));
   rec("Random seed", Cell::txt(std::to_string(o.seed)));
   return rr;

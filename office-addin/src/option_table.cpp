@@ -53,6 +53,15 @@ const std::vector<WordOption>& word_options() {
   return table;
 }
 
+const ValueOption kGroupColumnOption{
+    "GroupColumn", "Compare groups by", "Groups compared by",
+    "A column of the range holding each respondent's group (text or numbers): each group large enough is analysed "
+    "like all respondents and its factors compared with theirs on a sheet of its own. The column is never an item."};
+const ValueOption kMinGroupOption{
+    "MinGroup", "Smallest group", "Smallest group compared",
+    "Groups with fewer respondents are listed and left out. 100 is common practice for loadings stable enough to "
+    "compare; never fewer than the items + 1."};
+
 const WordOption* find_word_option(std::string_view property) {
   for (const WordOption& w : word_options())
     if (property == w.property) return &w;
@@ -108,6 +117,8 @@ Options options_from(const std::vector<OptionValue>& values) {
       o.items = v.list;
     } else if (const WordOption* w = find_word_option(n)) o.*(w->field) = text();
     else if (n == "Factors") o.factors = small(0, kMaxReportFactors, "0 (suggest) to 100");
+    else if (n == kGroupColumnOption.property) o.group_column = text();
+    else if (n == kMinGroupOption.property) o.min_group = small(2, kMaxMinGroup, "2 to 1000000 respondents");
     else if (n == "RotationParameter") o.rotation_parameter = number();
     else if (n == "Bootstrap") o.bootstrap = small(0, kMaxReportBootstrap, "0 (off) or 2 to 100000 resamples");
     else if (n == "Salient") o.salient = number();

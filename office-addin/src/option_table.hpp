@@ -32,6 +32,18 @@ struct WordOption {
   std::string Options::*field;      // where the word goes
 };
 
+// The options that are not a choice of words: their property, the dialog's label, the run record's key
+// and the help (option_table.cpp).
+struct ValueOption {
+  const char* property;
+  const char* label;
+  const char* record;
+  const char* help;
+};
+// A column of the range naming each respondent's group ("" or left out: no comparison); the smallest group.
+extern const ValueOption kGroupColumnOption;
+extern const ValueOption kMinGroupOption;
+
 // One named value of the service's options as plain C++ (report_uno.cpp converts UNO's values).
 struct OptionValue {
   enum class Kind { other, text, integer, number, list } kind = Kind::other;

@@ -3,6 +3,7 @@
 #include "report_analysis.hpp"
 
 #include "capi.hpp"
+#include "report_calls.hpp"
 #include "report_text.hpp"
 
 #include <algorithm>
@@ -10,14 +11,6 @@
 #include <stdexcept>
 
 namespace lode::addin::report {
-namespace {
-
-using ModelHandle = Handle<lode_model, lode_model_free>;
-using FactorabilityHandle = Handle<lode_factorability, lode_factorability_free>;
-using CountHandle = Handle<lode_factor_count, lode_factor_count_free>;
-using BootstrapHandle = Handle<lode_bootstrap_result, lode_bootstrap_free>;
-using ReliabilityHandle = Handle<lode_reliability, lode_reliability_free>;
-using ScoresHandle = Handle<lode_scores, lode_scores_free>;
 
 // The report's reading of a C ABI status: cancelled runs stop, bad input is the person's to fix
 // (std::invalid_argument, shown with its reason), anything else is a failure of the run.
@@ -30,6 +23,44 @@ void report_check(int status, const char* what) {
     throw std::invalid_argument(msg);
   throw std::runtime_error(msg + " (" + lode_status_name(status) + ")");
 }
+
+// The items as a C ABI data handle with their names.
+DataHandle make_data(const std::vector<double>& values, std::size_t rows, const std::vector<std::string>& names) {
+  const auto p = static_cast<std::int64_t>(names.size());
+  lode_data* raw = nullptr;
+  report_check(lode_data_from_raw(values.data(), static_cast<std::int64_t>(rows), p, p, 1, &raw), "reading the items");
+  DataHandle data(raw);
+  std::vector<const char*> cn;
+  for (const std::string& n : names) cn.push_back(n.c_str());
+  report_check(lode_data_set_item_names(data.get(), cn.data(), p), "naming the items");
+  return data;
+}
+
+lode_correlation_options correlation_options(const Options& o) {
+  lode_correlation_options copts;
+  lode_correlation_options_init(&copts, sizeof copts);
+  copts.kind = o.correlation == "spearman" ? LODE_COEFFICIENT_SPEARMAN : o.correlation == "polychoric" ? LODE_COEFFICIENT_POLYCHORIC : LODE_COEFFICIENT_PEARSON;
+  copts.missing = o.missing == "listwise" ? LODE_MISSING_LISTWISE : o.missing == "em" ? LODE_MISSING_EM : LODE_MISSING_PAIRWISE;
+  copts.threads = 1;  // the office's other work keeps a core
+  return copts;
+}
+
+int ProgressBridge::call(void* user, std::int64_t done, std::int64_t total) {
+  auto* self = static_cast<ProgressBridge*>(user);
+  double share = total > 0 ? static_cast<double>(done) / static_cast<double>(total) : 0.0;
+  bool go_on = !*self->progress || (*self->progress)(self->phase, self->from + (self->to - self->from) * share);
+  return go_on ? 0 : 1;
+}
+
+namespace {
+
+using ModelHandle = Handle<lode_model, lode_model_free>;
+using FactorabilityHandle = Handle<lode_factorability, lode_factorability_free>;
+using CountHandle = Handle<lode_factor_count, lode_factor_count_free>;
+using BootstrapHandle = Handle<lode_bootstrap_result, lode_bootstrap_free>;
+using ReliabilityHandle = Handle<lode_reliability, lode_reliability_free>;
+using ScoresHandle = Handle<lode_scores, lode_scores_free>;
+
 
 // A result the C ABI may decline (an optional part of the report): its value, or the reason.
 struct Declined {
@@ -49,38 +80,26 @@ auto attempt(Read read, std::string& reason) -> decltype(read()) {
   }
 }
 
-// Progress from the C ABI into the run's callback (which may cancel).
-struct ProgressBridge {
-  const Progress* progress;
-  std::string phase;
-  double from, to;
-  static int call(void* user, std::int64_t done, std::int64_t total) {
-    auto* self = static_cast<ProgressBridge*>(user);
-    double share = total > 0 ? static_cast<double>(done) / static_cast<double>(total) : 0.0;
-    bool go_on = !*self->progress || (*self->progress)(self->phase, self->from + (self->to - self->from) * share);
-    return go_on ? 0 : 1;
-  }
-};
 
-// The C ABI's matrix results as plain vectors.
-template <class H, class Getter>
-std::vector<double> vec(const H* h, int key, Getter g, const char* what, StatusCheck on = report_check) {
-  return read_matrix(h, key, g, what, on).values;
-}
 
 Items read_items(const SourceTable& src, const Options& o) {
   Items it;
   it.header = o.header == -1 ? detect_header(src) : o.header == 1;
   it.columns = describe_columns(src, it.header);
+  if (!o.group_column.empty() &&
+      std::none_of(it.columns.begin(), it.columns.end(), [&](const Column& c) { return c.name == o.group_column; }))
+    throw std::invalid_argument("the grouping column \"" + o.group_column + "\" is not a column of " + src.address);
   if (o.items.empty()) {
-    for (std::size_t c = 0; c < it.columns.size(); ++c)
-      if (it.columns[c].numeric) it.chosen.push_back(c);
+    for (std::size_t c = 0; c < it.columns.size(); ++c)  // a grouping column is never an item
+      if (it.columns[c].numeric && it.columns[c].name != o.group_column) it.chosen.push_back(c);
   } else {
     for (const std::string& want : o.items) {
       auto found = std::find_if(it.columns.begin(), it.columns.end(), [&](const Column& c) { return c.name == want; });
       if (found == it.columns.end()) throw std::invalid_argument("item \"" + want + "\" is not a column of " + src.address);
       const auto c = static_cast<std::size_t>(found - it.columns.begin());
       if (!found->numeric) throw std::invalid_argument("item \"" + want + "\" holds no numbers");
+      if (want == o.group_column)
+        throw std::invalid_argument("\"" + want + "\" is the grouping column; it cannot also be an item");
       if (std::find(it.chosen.begin(), it.chosen.end(), c) == it.chosen.end()) it.chosen.push_back(c);
     }
   }
@@ -101,24 +120,9 @@ Items read_items(const SourceTable& src, const Options& o) {
   return it;
 }
 
-// The items as a C ABI data handle with their names.
-DataHandle make_data(const std::vector<double>& values, std::size_t rows, const std::vector<std::string>& names) {
-  const auto p = static_cast<std::int64_t>(names.size());
-  lode_data* raw = nullptr;
-  report_check(lode_data_from_raw(values.data(), static_cast<std::int64_t>(rows), p, p, 1, &raw), "reading the items");
-  DataHandle data(raw);
-  std::vector<const char*> cn;
-  for (const std::string& n : names) cn.push_back(n.c_str());
-  report_check(lode_data_set_item_names(data.get(), cn.data(), p), "naming the items");
-  return data;
-}
 
 CorrelationHandle correlate(const lode_data* data, const Options& o, const Progress& progress, double to) {
-  lode_correlation_options copts;
-  lode_correlation_options_init(&copts, sizeof copts);
-  copts.kind = o.correlation == "spearman" ? LODE_COEFFICIENT_SPEARMAN : o.correlation == "polychoric" ? LODE_COEFFICIENT_POLYCHORIC : LODE_COEFFICIENT_PEARSON;
-  copts.missing = o.missing == "listwise" ? LODE_MISSING_LISTWISE : o.missing == "em" ? LODE_MISSING_EM : LODE_MISSING_PAIRWISE;
-  copts.threads = 1;  // the office's other work keeps a core
+  lode_correlation_options copts = correlation_options(o);
   ProgressBridge bridge{&progress, "computing correlations", 0.05, to};
   copts.progress = &ProgressBridge::call;
   copts.progress_user = &bridge;
@@ -549,6 +553,12 @@ Analysis analyse(const SourceTable& src, const Options& o, const std::string& ti
     step("bootstrap resamples", 0.5);
     if (a.model.available) a.boot = bootstrap_intervals(corr.get(), o, a.model.factors, progress, 0.5, 0.93);
     else a.boot.reason = a.model.reason;
+  }
+  if (a.model.available) a.general = general_factor(model.get(), a.model);
+  else a.general.reason = a.model.reason;
+  if (!o.group_column.empty()) {
+    step("comparing the groups", boot ? 0.93 : 0.91);
+    a.groups = compare_groups(src, a.items, o, a.model, progress, boot ? 0.93 : 0.91, 0.94);
   }
   step("reliability of the scales", 0.94);
   if (a.model.available) a.reliability = reliability(a.model, model.get(), a.items);
