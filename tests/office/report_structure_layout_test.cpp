@@ -3,8 +3,8 @@
 // factor, and datasets::iris (4 measurements of 150 flowers, 50 of each of 3 species; the species a
 // text column) for the comparison across groups. The sheets' numbers are checked against the C ABI's own
 // results for the same data and options (lode.h called directly here) and against identities of the
-// methods: the Schmid-Leiman loadings reproduce each item's communality (general^2 + group^2 sums to
-// the diagonal of L Phi L', Schmid & Leiman 1957).
+// method: the general and group loadings are the pattern transformed by the second-order loadings as
+// Schmid & Leiman (1957) define it, recomputed here.
 #include "capi.hpp"
 #include "report_analysis.hpp"
 #include "report_layout.hpp"
@@ -14,6 +14,7 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <string>
 
@@ -101,19 +102,32 @@ TEST(ReportGeneralFactor, JudgeRatingsGiveTheSheetOfTheCApisTransformation) {
   EXPECT_NEAR(s.rows.at(static_cast<std::size_t>(find_row(s, "Explained common variance"))).at(1).number,
               read_value(sl.get(), LODE_SCHMID_LEIMAN_ECV, lode_schmid_leiman_value, "ecv"), kSame);
   EXPECT_TRUE(has_text(s, "common practice"));
-  // The loadings table: one row per item, general then 3 group loadings; they reproduce the
-  // communality (3 factors: the second-order model fits the factor correlations exactly).
+  // The second-order loadings gamma (the subscale table), and the loadings table: one row per item,
+  // general then 3 group loadings, which are the transformation of the pattern L written out here:
+  // general = L gamma, group = L diag(sqrt(1 - gamma^2)) (Schmid & Leiman 1957).
+  const long sub = find_row(s, "Factor 1");
+  ASSERT_GE(sub, 0);
+  std::vector<double> gamma;
+  for (std::size_t f = 0; f < 3; ++f) gamma.push_back(s.rows.at(static_cast<std::size_t>(sub) + f).at(1).number);
   const long top = find_row(s, "Item");
   ASSERT_GE(top, 0);
+  const std::vector<double>& L = a.model.loadings;
   for (std::size_t i = 0; i < a.p(); ++i) {
     const auto& row = s.rows.at(static_cast<std::size_t>(top) + 1 + i);
     EXPECT_EQ(row.at(0).text, a.items.names[i]);
     EXPECT_NEAR(row.at(1).number, general.values[i], kSame);
-    double h2 = row.at(1).number * row.at(1).number;
-    for (std::size_t f = 0; f < 3; ++f) h2 += row.at(2 + f).number * row.at(2 + f).number;
-    // about 20 products of numbers below 1 in the second-order fit and the transformation
-    EXPECT_NEAR(h2, a.model.communalities[i], 1e-8) << a.items.names[i];
+    double g = 0.0;
+    for (std::size_t f = 0; f < 3; ++f) {
+      g += L[i * 3 + f] * gamma[f];
+      // one product and a square root of numbers below 1; a second-order loading above 1 (a Heywood case,
+      // which these highly correlated ratings give) leaves its factor no second-order uniqueness
+      EXPECT_NEAR(row.at(2 + f).number, L[i * 3 + f] * std::sqrt(std::max(0.0, 1.0 - gamma[f] * gamma[f])), 1e-14)
+          << a.items.names[i];
+    }
+    EXPECT_NEAR(row.at(1).number, g, 1e-14) << a.items.names[i];  // three products
   }
+  // the C ABI's remarks (here the Heywood case) are on the sheet
+  for (const std::string& n : a.general.notes) EXPECT_TRUE(has_text(s, n)) << n;
 
   // Orthogonal or two factors: no general factor, and the reason says which.
   Options orth = o;
