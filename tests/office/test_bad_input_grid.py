@@ -56,7 +56,8 @@ VALID = {
     "threshold": lambda v: 0 < v < 2,
 }
 # A general factor needs at least 3 factors, and the good data have 2 (3 on six items may not be
-# identified): any number typed may give a value or a refusal; malformed values must give an error.
+# identified): an option left out or any number typed may give a value or a refusal; malformed values
+# must give an error.
 GENERAL_FUNCTIONS = {"LODE.GENERAL", "LODE.GENERALOMEGA"}
 
 
@@ -227,6 +228,8 @@ def test_every_optional_argument_with_bad_values(office, book, lode_functions, i
                     if value in BLANK:
                         # left out: the default; a correlation matrix without n_obs has no test of sphericity
                         due = "error" if name == "LODE.SPHERICITY" and source == inputs["corr"] else "value"
+                        if name in GENERAL_FUNCTIONS:
+                            due = None  # 2 factors: refused (test_structure_cells.py checks values)
                     elif value in ERRORS or value not in NUMERIC:
                         due = "error"
                     else:
