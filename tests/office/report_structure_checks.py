@@ -84,3 +84,34 @@ def test_groups_sheet_matches_python_and_carries_the_caution(office, service):  
     finally:
         with office.watchdog(60):
             doc.close(True)
+
+
+def test_em_rule_for_missing_answers_reaches_the_report(office, service):  # noqa: F811
+    """Missing="em" (the dialog's "EM: estimated under missing at random"): the correlations the report
+    uses and the iterations in its run record are the C library's EM estimate on the same answers
+    (R's datasets::attitude with a fixed pattern of answers deleted)."""
+    names, x = r_dataset("attitude")
+    x = x.copy()
+    for i, j in [(0, 0), (3, 2), (7, 5), (11, 1), (19, 6), (24, 3), (28, 4)]:
+        x[i, j] = np.nan
+    doc = new_book(office, [names] + [[None if np.isnan(v) else float(v) for v in r] for r in x])
+    try:
+        before = sheet_names(doc)
+        with office.watchdog(300):
+            service.run(doc, range_of(doc, "Answers", x.shape[1], x.shape[0] + 1), props(Missing="em", Factors=2))
+        new = [n for n in sheet_names(doc) if n not in before]
+        ref = lode.correlation(x, missing="em")
+        fc = read_sheet(doc.Sheets.getByName([n for n in new if n.startswith("Lode factors")][0]))
+        top = [i for i, r in enumerate(fc) if r[:1] == ["Item correlations used"]][0] + 1
+        p = len(names)
+        m = np.array([fc[top + 1 + i][1:1 + p] for i in range(p)])
+        # the report runs EM on one thread, Python on all: the same sums over 30 rows in another order,
+        # rounding carried through iterations that contract towards one fixed point
+        assert np.max(np.abs(m - ref.matrix)) < 1e-10
+        record = rows_by_label(read_sheet(doc.Sheets.getByName([n for n in new if n.startswith("Lode run record")][0])))
+        assert record["Missing answers"][1] == "em"
+        assert record["EM iterations"][1] == ref.em["iterations"]
+        assert record["EM met its criterion"][1] == ("yes" if ref.em["converged"] else "no: the estimate may be off")
+    finally:
+        with office.watchdog(60):
+            doc.close(True)
