@@ -6,6 +6,7 @@
 // method: the general and group loadings are the pattern transformed by the second-order loadings as
 // Schmid & Leiman (1957) define it, recomputed here.
 #include "capi.hpp"
+#include "option_table.hpp"
 #include "report_analysis.hpp"
 #include "report_layout.hpp"
 #include "report_text.hpp"
@@ -16,6 +17,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <stdexcept>
 #include <string>
 
 namespace lode::addin::report {
@@ -232,6 +234,40 @@ TEST_F(ReportGroups, AllGroupsTooSmallIsStatedWithTheGroupsAndTheRunGoesOn) {
   Options bad = options(20);
   bad.group_column = "site";
   EXPECT_THROW(analyse(source(), bad, "", {}), std::invalid_argument);
+}
+
+}  // namespace
+}  // namespace lode::addin::report
+
+namespace lode::addin::report {
+namespace {
+
+TEST(ReportGroupOptions, ServiceNamesAreParsedCheckedAndRecorded) {
+  OptionValue column;
+  column.kind = OptionValue::Kind::text;
+  column.name = kGroupColumnOption.property;
+  column.text = " site ";
+  OptionValue smallest;
+  smallest.kind = OptionValue::Kind::integer;
+  smallest.name = kMinGroupOption.property;
+  smallest.integer = 50;
+  smallest.number = 50;
+  const Options o = options_from({column, smallest});
+  EXPECT_EQ(o.group_column, "site");  // trimmed, as every option word
+  EXPECT_EQ(o.min_group, 50);
+  EXPECT_EQ(Options{}.min_group, kDefaultMinGroup);
+  EXPECT_EQ(Options{}.group_column, "");
+  smallest.integer = 1;
+  smallest.number = 1;
+  try {
+    options_from({smallest});
+    ADD_FAILURE() << "a smallest group of 1 was accepted";
+  } catch (const std::invalid_argument& e) {
+    EXPECT_NE(std::string(e.what()).find("MinGroup"), std::string::npos) << e.what();
+  }
+  Options bad;
+  bad.min_group = 0;
+  EXPECT_THROW(validate(bad), std::invalid_argument);
 }
 
 }  // namespace
