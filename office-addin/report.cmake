@@ -22,7 +22,8 @@ add_custom_target(lode_report_types DEPENDS ${GEN}/inc/org/lode/calc/XAnalysisRe
 # library, where the add-in's unit tests reach them; report_uno.cpp and dialog.cpp are the UNO side.
 target_sources(lode_addin_logic PRIVATE src/report_model.cpp src/report_analysis.cpp src/report_analysis_confirm.cpp src/report_text.cpp
   src/layout_overview.cpp src/layout_loadings.cpp src/layout_factors.cpp src/layout_scree.cpp src/layout_record.cpp
-  src/layout_scores.cpp src/layout_replication.cpp src/layout_holdout.cpp src/option_table.cpp src/report_run.cpp)
+  src/layout_scores.cpp src/layout_replication.cpp src/layout_holdout.cpp src/option_table.cpp src/report_run.cpp
+  src/report_analysis_structure.cpp src/layout_general.cpp src/layout_groups.cpp)
 target_sources(lode_calc PRIVATE src/report_uno.cpp src/dialog.cpp)
 add_dependencies(lode_calc lode_report_types)
 

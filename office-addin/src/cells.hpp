@@ -23,6 +23,9 @@ struct Grid {
   std::vector<double> values;       // NaN where the cell is empty or holds text
   std::vector<std::string> header;  // item names when the first row held only text (that row is then dropped)
   std::size_t number_cells = 0;     // cells that held a number
+  // The cells that held text (below a header row): (index into values, the text trimmed). Few in
+  // answers; a column of group labels reads its labels from here.
+  std::vector<std::pair<std::size_t, std::string>> texts;
 
   double at(std::size_t r, std::size_t c) const { return values[r * cols + c]; }
   bool empty() const { return rows == 0 || cols == 0; }

@@ -100,8 +100,10 @@ Arg arg_from_range(const Sequence<Sequence<Any>>& range, std::string_view name) 
         g.values[r * cols + c] = v;
         ++g.number_cells;
         if (r == 0) first_row_text_only = false;
-      } else if (r == 0 && !is_blank(a)) {
-        ++first_row_texts;
+      } else if (!is_blank(a)) {
+        if (r == 0) ++first_row_texts;
+        OUString t;
+        if (a >>= t) g.texts.emplace_back(r * cols + c, utf8(t.trim()));
       }
     }
   }
@@ -115,6 +117,8 @@ Arg arg_from_range(const Sequence<Sequence<Any>>& range, std::string_view name) 
     }
     g.values.erase(g.values.begin(), g.values.begin() + static_cast<std::ptrdiff_t>(cols));
     --g.rows;
+    std::erase_if(g.texts, [cols](const auto& t) { return t.first < cols; });
+    for (auto& t : g.texts) t.first -= cols;
   }
   return arg;
 }

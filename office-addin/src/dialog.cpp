@@ -297,7 +297,7 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     auto d = b.dialog_props();
     d->setPropertyValue("Title", Any(A("Lode: find the factors behind a set of items")));
     d->setPropertyValue("Width", Any(sal_Int32(392)));
-    d->setPropertyValue("Height", Any(sal_Int32(300)));
+    d->setPropertyValue("Height", Any(sal_Int32(352)));
     d->setPropertyValue("Name", Any(A("LodeAnalysisDialog")));
     d->setPropertyValue("BackgroundColor", Any(sal_Int32(0xF4F7F1)));  // Lode's pale sage
 
@@ -356,9 +356,22 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
       y += 28;
     }
 
-    b.add("com.sun.star.awt.UnoControlButtonModel", "Run", 276, 282, 54, 14,
+    b.heading("GroupsHeading", "Groups", L, y + 2, 220);
+    std::vector<std::string> group_choices{"No comparison"};
+    group_choices.insert(group_choices.end(), items.begin(), items.end());
+    const sal_Int16 no_group = 0;
+    b.label("GroupColumnLabel", kGroupColumnOption.label, L, y + 16, 82);
+    b.add("com.sun.star.awt.UnoControlListBoxModel", kGroupColumnOption.property, F, y + 16, W, 12,
+          {{"Dropdown", Any(true)}, {"StringItemList", Any(strings(group_choices))},
+           {"SelectedItems", Any(Sequence<sal_Int16>(&no_group, 1))}, {"LineCount", Any(sal_Int16(8))},
+           {"HelpText", Any(A(kGroupColumnOption.help))}});
+    b.label("MinGroupLabel", kMinGroupOption.label, L, y + 31, 82);
+    b.number(kMinGroupOption.property, report::kDefaultMinGroup, 2, report::kMaxMinGroup, 0, F, y + 31, W);
+    b.get(kMinGroupOption.property)->setPropertyValue("HelpText", Any(A(kMinGroupOption.help)));
+
+    b.add("com.sun.star.awt.UnoControlButtonModel", "Run", 276, 334, 54, 14,
           {{"Label", Any(A("Run"))}, {"PushButtonType", Any(sal_Int16(1))}, {"DefaultButton", Any(true)}});
-    b.add("com.sun.star.awt.UnoControlButtonModel", "Cancel", 332, 282, 54, 14,
+    b.add("com.sun.star.awt.UnoControlButtonModel", "Cancel", 332, 334, 54, 14,
           {{"Label", Any(A("Cancel"))}, {"PushButtonType", Any(sal_Int16(2))}});
 
     Reference<css::awt::XWindowPeer> parent(frame_->getContainerWindow(), UNO_QUERY);
@@ -402,6 +415,11 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     }
     opts.push_back(prop("Salient", Any(value_of(b.get("Salient")))));
     opts.push_back(prop("Seed", Any(static_cast<sal_Int64>(value_of(b.get("Seed"))))));
+    // The group column by name, when the list still describes the range (its first entry: no comparison).
+    const sal_Int16 group = selected(b.get(kGroupColumnOption.property));
+    if (same_columns && group > 0 && static_cast<std::size_t>(group) <= items.size())
+      opts.push_back(prop(kGroupColumnOption.property, Any(ustr(items[static_cast<std::size_t>(group - 1)]))));
+    opts.push_back(prop(kMinGroupOption.property, Any(sal_Int32(value_of(b.get(kMinGroupOption.property))))));
 
     Reference<css::task::XStatusIndicator> indicator;
     Reference<css::task::XStatusIndicatorFactory> f(frame_, UNO_QUERY);

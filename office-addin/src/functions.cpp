@@ -1,6 +1,6 @@
 #include "functions.hpp"
-
 #include "functions_shared.hpp"
+
 #include "defaults.hpp"
 
 #include <algorithm>
@@ -135,17 +135,8 @@ int rotation_arg(const Arg& a) {
   return method;
 }
 
-// What every fit-reading cell needs, computed once per distinct (data, options).
-struct FitOutputs {
-  int factors = 0;
-  bool converged = true;
-  std::string convergence_note;  // why not, shown by LODE.FIT; the other cells show Err:523
-  Matrix pattern, structure, phi, uniquenesses, communalities, residuals;
-  std::vector<std::pair<std::string, double>> statistics;  // LODE.FIT's rows
-  std::string statistics_error;  // when the statistics could not be computed (e.g. n_obs unknown)
-  std::int64_t heywood = 0;      // items with an improper solution
-  std::shared_ptr<const lode_model> model;  // kept for LODE.SCORES (the handle holds the raw data it was fitted to)
-};
+
+
 
 struct ParallelOutputs {
   Matrix table;  // items x 3: observed, random mean, random percentile
@@ -180,6 +171,9 @@ std::int64_t cached_nfactors(const Call& call, const Source& src, int rule, std:
       k.take(), [&] { return std::make_shared<const std::int64_t>(run_nfactors(corr.get(), rule, seed, call.deadline)); }, 64);
 }
 
+
+// Arguments of the fit family: data; [factors]; [method]; [rotation]; then n_obs at `n_obs_index`
+// (kNoArg for functions without it: LODE.SCORES takes raw data only).
 FitRequest read_fit_request(const Call& call, std::size_t n_obs_index) {
   FitRequest req{read_source(call, n_obs_index), FitSpec{}, {}};
   req.spec.factors = static_cast<int>(whole(call.args[1], "factors", 0, 0, kMaxFactors));

@@ -30,5 +30,11 @@ Output fn_congruence(const Call& call);
 Output fn_patternloadings(const Call& call);
 Output fn_patternfit(const Call& call);
 Output fn_halves(const Call& call);
+// functions_structure.cpp: a general factor (Schmid-Leiman) and the comparison across groups
+Output fn_general(const Call& call);
+Output fn_generalomega(const Call& call);
+Output fn_groupmatch(const Call& call);
+Output fn_groupskipped(const Call& call);
+Output fn_groupshifts(const Call& call);
 
 }  // namespace lode::addin

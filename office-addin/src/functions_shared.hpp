@@ -1,6 +1,7 @@
-// What the files of compute functions share (functions.cpp, functions_confirm.cpp): reading the data
-// argument into a cached correlation, the fit family's arguments and cache key, the model options of
-// a fit, and the wait for stages the C ABI cannot interrupt. UNO-free; defined in functions.cpp.
+// What the files of compute functions share (functions.cpp defines them; functions_confirm.cpp and
+// functions_structure.cpp use them): reading the data argument into a cached correlation, the fit
+// family's arguments, cache key and cached fit, the C ABI data handle of an argument, the model options
+// of a fit, and the wait for stages the C ABI cannot interrupt. UNO-free.
 #pragma once
 
 #include "arguments.hpp"
@@ -8,6 +9,7 @@
 #include "capi.hpp"
 #include "table.hpp"
 
+#include <cstddef>
 #include <cstdint>
 #include <functional>
 #include <memory>
@@ -64,6 +66,24 @@ struct FitSpec {
   int rotation = LODE_CRITERION_OBLIMIN;  // the C ABI's rotation method (rotation_arg)
 };
 
+// What every fit-reading cell needs, computed once per distinct (data, options).
+struct FitOutputs {
+  int factors = 0;
+  bool converged = true;
+  std::string convergence_note;  // why not, shown by LODE.FIT; the other cells show Err:523
+  Matrix pattern, structure, phi, uniquenesses, communalities, residuals;
+  std::vector<std::pair<std::string, double>> statistics;  // LODE.FIT's rows
+  std::string statistics_error;  // when the statistics could not be computed (e.g. n_obs unknown)
+  std::int64_t heywood = 0;      // items with an improper solution
+  std::shared_ptr<const lode_model> model;  // kept for LODE.SCORES (the handle holds the raw data it was fitted to)
+};
+
+// The input as a C ABI data handle, with its item names.
+DataHandle make_data(const Input& in, std::int64_t n_obs);
+// The extraction and rotation words of a cell (left out: Lode's defaults), as the C ABI's methods.
+int method_arg(const Arg& a);
+int rotation_arg(const Arg& a);
+
 // What a fit-reading cell asks for: the source, the options, and the cache key of the fit.
 struct FitRequest {
   Source src;
@@ -74,6 +94,8 @@ struct FitRequest {
 // Arguments of the fit family: data; [factors]; [method]; [rotation]; then n_obs at `n_obs_index`
 // (kNoArg for functions without it). factors 0 or left out: the suggested count.
 FitRequest read_fit_request(const Call& call, std::size_t n_obs_index);
+// The cached fit of the request; Err:523 when it did not converge.
+std::shared_ptr<const FitOutputs> converged_fit(const Call& call, const FitRequest& req);
 
 // The options of lode_model_compute (and of the calls that refit the same way) for a fit spec; not
 // copyable: fo.rotation points into the same object.

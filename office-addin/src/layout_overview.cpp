@@ -247,8 +247,11 @@ Sheet layout_overview(const Analysis& a) {
   ov.column_widths = {7000, 4500, 4000, 4000, 4000};
   ov.line({Cell::txt("Lode factor analysis report", title)});
   ov.line({Cell::txt("Written " + a.timestamp + ". The sheets of this report:", note)});
-  for (const char* s : {names::overview, names::loadings, names::factors, names::scree, names::record})
+  for (const char* s : {names::overview, names::loadings, names::factors, names::scree})
     ov.line({Cell::txt(s, label)});
+  if (a.general.available) ov.line({Cell::txt(names::general, label)});
+  if (a.groups.asked) ov.line({Cell::txt(names::groups, label)});
+  ov.line({Cell::txt(names::record, label)});
   if (a.scores.sheet) ov.line({Cell::txt(names::scores, label)});
   if (a.scores.beside) ov.line({Cell::txt("Factor scores: " + a.scores.where, note)});
   ov.blank();

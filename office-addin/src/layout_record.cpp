@@ -27,6 +27,13 @@ Sheet layout_record(const Analysis& a) {
   rec("Items", Cell::txt(items_text));
   rec("Values hash (FNV-1a 64)", Cell::txt(hash));
   for (const WordOption& w : word_options()) rec(w.record, Cell::txt(o.*(w.field)));
+  if (o.missing == "em") {
+    rec("EM iterations", Cell::num(a.corr.em_iterations));
+    rec("EM met its criterion", Cell::txt(a.corr.em_converged == 1.0 ? "yes" : "no: the estimate may be off"));
+    char change[64];
+    std::snprintf(change, sizeof change, "%.3g (criterion %.3g)", a.corr.em_final_change, a.corr.em_tolerance);
+    rec("EM last change", Cell::txt(change));
+  }
   rec("Number of factors", o.factors > 0 ? Cell::num(o.factors) : Cell::txt("suggest"));
   rec("Rotation parameter", Cell::num(o.rotation_parameter));
   if (o.scores != "none") {
@@ -54,6 +61,14 @@ Sheet layout_record(const Analysis& a) {
   if (a.holdout_asked() && a.holdout.available) {
     rec("Respondents held out", Cell::num(a.holdout.n_holdout));
     rec("Held-out draw", Cell::txt("stream 0 of the random seed " + std::to_string(o.seed)));
+  }
+  rec("General factor (Schmid-Leiman)", Cell::txt(a.general.available ? "computed (oblique, at least 3 factors)"
+                                                                       : "not computed: " + a.general.reason));
+  rec(kGroupColumnOption.record, Cell::txt(o.group_column.empty() ? "none" : o.group_column));
+  if (!o.group_column.empty()) {
+    rec(kMinGroupOption.record, Cell::num(o.min_group));
+    rec("Smallest group compared (with items + 1)", Cell::num(static_cast<double>(a.groups.needed)));
+    if (!a.groups.available) rec("Group comparison", Cell::txt("not made: " + a.groups.reason));
   }
   rec("Strong loading from", Cell::num(o.salient));
   rec("Random seed", Cell::txt(std::to_string(o.seed)));

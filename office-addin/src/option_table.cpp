@@ -18,10 +18,13 @@ const std::vector<WordOption>& word_options() {
        "them as ordered categories.",
        &Options::correlation},
       {"Missing", "Missing answers", "Missing answers",
-       {{"pairwise", "Pairwise: all who answered both"}, {"listwise", "Listwise: complete answers only"}},
+       {{"pairwise", "Pairwise: all who answered both"},
+        {"listwise", "Listwise: complete answers only"},
+        {"em", "EM: estimated under missing at random"}},
        defaults::missing,
        "Pairwise: each correlation uses everyone who answered both items. Listwise: only respondents who "
-       "answered every item.",
+       "answered every item. EM: maximum likelihood correlations from everyone with an answer, assuming skipped "
+       "answers depend only on answers given (missing at random; Pearson correlations only).",
        &Options::missing},
       {"Extraction", "Extraction", "Extraction",
        {{"ml", "Maximum likelihood"}, {"minres", "Minimum residual"}, {"paf", "Principal axis"}},
@@ -64,6 +67,14 @@ const std::vector<CheckOption>& check_options() {
   };
   return table;
 }
+const ValueOption kGroupColumnOption{
+    "GroupColumn", "Compare groups by", "Groups compared by",
+    "A column of the range holding each respondent's group (text or numbers): each group large enough is analysed "
+    "like all respondents and its factors compared with theirs on a sheet of its own. The column is never an item."};
+const ValueOption kMinGroupOption{
+    "MinGroup", "Smallest group", "Smallest group compared",
+    "Groups with fewer respondents are listed and left out. 100 is common practice for loadings stable enough to "
+    "compare; never fewer than the items + 1."};
 
 const WordOption* find_word_option(std::string_view property) {
   for (const WordOption& w : word_options())
@@ -120,6 +131,8 @@ Options options_from(const std::vector<OptionValue>& values) {
       o.items = v.list;
     } else if (const WordOption* w = find_word_option(n)) o.*(w->field) = text();
     else if (n == "Factors") o.factors = small(0, kMaxReportFactors, "0 (suggest) to 100");
+    else if (n == kGroupColumnOption.property) o.group_column = text();
+    else if (n == kMinGroupOption.property) o.min_group = small(2, kMaxMinGroup, "2 to 1000000 respondents");
     else if (n == "RotationParameter") o.rotation_parameter = number();
     else if (n == "Bootstrap") o.bootstrap = small(0, kMaxReportBootstrap, "0 (off) or 2 to 100000 resamples");
     else if (n == "Holdout") o.holdout = number();  // validate() checks the share

@@ -46,6 +46,17 @@ struct CheckOption {
 };
 // The extras with their own sheet (the confirmatory check, replication), in the dialog's order.
 const std::vector<CheckOption>& check_options();
+// The options that are not a choice of words: their property, the dialog's label, the run record's key
+// and the help (option_table.cpp).
+struct ValueOption {
+  const char* property;
+  const char* label;
+  const char* record;
+  const char* help;
+};
+// A column of the range naming each respondent's group ("" or left out: no comparison); the smallest group.
+extern const ValueOption kGroupColumnOption;
+extern const ValueOption kMinGroupOption;
 
 // One named value of the service's options as plain C++ (report_uno.cpp converts UNO's values).
 struct OptionValue {

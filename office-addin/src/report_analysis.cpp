@@ -2,6 +2,7 @@
 // add-in's wrapper capi.hpp), leaving one plain Analysis value for the sheet layouts.
 #include "report_analysis.hpp"
 
+#include "capi.hpp"
 #include "report_calls.hpp"
 #include "report_text.hpp"
 
@@ -11,6 +12,8 @@
 
 namespace lode::addin::report {
 
+// The report's reading of a C ABI status: cancelled runs stop, bad input is the person's to fix
+// (std::invalid_argument, shown with its reason), anything else is a failure of the run.
 void report_check(int status, const char* what) {
   if (status == LODE_OK) return;
   if (status == LODE_E_CANCELLED) throw Cancelled{};
@@ -19,6 +22,27 @@ void report_check(int status, const char* what) {
       status == LODE_E_NOT_POSITIVE_DEFINITE)
     throw std::invalid_argument(msg);
   throw std::runtime_error(msg + " (" + lode_status_name(status) + ")");
+}
+
+// The items as a C ABI data handle with their names.
+DataHandle make_data(const std::vector<double>& values, std::size_t rows, const std::vector<std::string>& names) {
+  const auto p = static_cast<std::int64_t>(names.size());
+  lode_data* raw = nullptr;
+  report_check(lode_data_from_raw(values.data(), static_cast<std::int64_t>(rows), p, p, 1, &raw), "reading the items");
+  DataHandle data(raw);
+  std::vector<const char*> cn;
+  for (const std::string& n : names) cn.push_back(n.c_str());
+  report_check(lode_data_set_item_names(data.get(), cn.data(), p), "naming the items");
+  return data;
+}
+
+lode_correlation_options correlation_options(const Options& o) {
+  lode_correlation_options copts;
+  lode_correlation_options_init(&copts, sizeof copts);
+  copts.kind = o.correlation == "spearman" ? LODE_COEFFICIENT_SPEARMAN : o.correlation == "polychoric" ? LODE_COEFFICIENT_POLYCHORIC : LODE_COEFFICIENT_PEARSON;
+  copts.missing = o.missing == "listwise" ? LODE_MISSING_LISTWISE : o.missing == "em" ? LODE_MISSING_EM : LODE_MISSING_PAIRWISE;
+  copts.threads = 1;  // the office's other work keeps a core
+  return copts;
 }
 
 int ProgressBridge::call(void* user, std::int64_t done, std::int64_t total) {
@@ -83,15 +107,20 @@ Items read_items(const SourceTable& src, const Options& o) {
   Items it;
   it.header = o.header == -1 ? detect_header(src) : o.header == 1;
   it.columns = describe_columns(src, it.header);
+  if (!o.group_column.empty() &&
+      std::none_of(it.columns.begin(), it.columns.end(), [&](const Column& c) { return c.name == o.group_column; }))
+    throw std::invalid_argument("the grouping column \"" + o.group_column + "\" is not a column of " + src.address);
   if (o.items.empty()) {
-    for (std::size_t c = 0; c < it.columns.size(); ++c)
-      if (it.columns[c].numeric) it.chosen.push_back(c);
+    for (std::size_t c = 0; c < it.columns.size(); ++c)  // a grouping column is never an item
+      if (it.columns[c].numeric && it.columns[c].name != o.group_column) it.chosen.push_back(c);
   } else {
     for (const std::string& want : o.items) {
       auto found = std::find_if(it.columns.begin(), it.columns.end(), [&](const Column& c) { return c.name == want; });
       if (found == it.columns.end()) throw std::invalid_argument("item \"" + want + "\" is not a column of " + src.address);
       const auto c = static_cast<std::size_t>(found - it.columns.begin());
       if (!found->numeric) throw std::invalid_argument("item \"" + want + "\" holds no numbers");
+      if (want == o.group_column)
+        throw std::invalid_argument("\"" + want + "\" is the grouping column; it cannot also be an item");
       if (std::find(it.chosen.begin(), it.chosen.end(), c) == it.chosen.end()) it.chosen.push_back(c);
     }
   }
@@ -112,24 +141,9 @@ Items read_items(const SourceTable& src, const Options& o) {
   return it;
 }
 
-// The items as a C ABI data handle with their names.
-DataHandle make_data(const std::vector<double>& values, std::size_t rows, const std::vector<std::string>& names) {
-  const auto p = static_cast<std::int64_t>(names.size());
-  lode_data* raw = nullptr;
-  report_check(lode_data_from_raw(values.data(), static_cast<std::int64_t>(rows), p, p, 1, &raw), "reading the items");
-  DataHandle data(raw);
-  std::vector<const char*> cn;
-  for (const std::string& n : names) cn.push_back(n.c_str());
-  report_check(lode_data_set_item_names(data.get(), cn.data(), p), "naming the items");
-  return data;
-}
 
 CorrelationHandle correlate(const lode_data* data, const Options& o, const Progress& progress, double to) {
-  lode_correlation_options copts;
-  lode_correlation_options_init(&copts, sizeof copts);
-  copts.kind = o.correlation == "spearman" ? LODE_COEFFICIENT_SPEARMAN : o.correlation == "polychoric" ? LODE_COEFFICIENT_POLYCHORIC : LODE_COEFFICIENT_PEARSON;
-  copts.missing = o.missing == "listwise" ? LODE_MISSING_LISTWISE : LODE_MISSING_PAIRWISE;
-  copts.threads = 1;  // the office's other work keeps a core
+  lode_correlation_options copts = correlation_options(o);
   ProgressBridge bridge{&progress, "computing correlations", 0.05, to};
   copts.progress = &ProgressBridge::call;
   copts.progress_user = &bridge;
@@ -409,7 +423,7 @@ ReliabilityResult reliability(const ModelResult& model, const lode_model* handle
 
 // Respondents' scores on the model's factors. The missing-answer rule follows the run's missing
 // handling: listwise leaves a respondent with any skipped item unscored (as the correlations left
-// them out); pairwise scores from the answered items when at least half were answered.
+// them out); pairwise and em score from the answered items when at least half were answered.
 ScoreResult factor_scores(const lode_model* model, const lode_data* data, const Options& o) {
   ScoreResult r;
   lode_scores_options so;
@@ -513,6 +527,13 @@ Analysis analyse(const SourceTable& src, const Options& o, const std::string& ti
   const CorrelationHandle corr = correlate(data.get(), o, progress, corr_to);
   step("assessing the correlations", corr_to);
   a.corr = correlation_facts(corr.get());
+  if (o.missing == "em") {
+    const auto em = [&](int key) { return read_value(corr.get(), key, lode_correlation_value, "the em estimate", report_check); };
+    a.corr.em_iterations = em(LODE_CORRELATION_EM_ITERATIONS);
+    a.corr.em_converged = em(LODE_CORRELATION_EM_CONVERGED);
+    a.corr.em_final_change = em(LODE_CORRELATION_EM_FINAL_CHANGE);
+    a.corr.em_tolerance = em(LODE_CORRELATION_EM_TOLERANCE);
+  }
   a.count = count_factors(corr.get(), o, progress, corr_to, count_to);
 
   step("fitting the factor model", count_to + 0.02);
@@ -535,6 +556,12 @@ Analysis analyse(const SourceTable& src, const Options& o, const std::string& ti
     step("confirmatory check on held-out respondents", 0.93);
     if (a.model.available) a.holdout = holdout_check(corr.get(), o, a.model.factors);
     else a.holdout.reason = a.model.reason;
+  }
+  if (a.model.available) a.general = general_factor(model.get(), a.model);
+  else a.general.reason = a.model.reason;
+  if (!o.group_column.empty()) {
+    step("comparing the groups", 0.93);
+    a.groups = compare_groups(src, a.items, o, a.model, progress, 0.93, 0.94);
   }
   step("reliability of the scales", 0.94);
   if (a.model.available) a.reliability = reliability(a.model, model.get(), a.items);

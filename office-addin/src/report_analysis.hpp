@@ -35,6 +35,8 @@ struct CorrelationFacts {
   std::string smc_problem;
   double rows_total = kNaN, rows_used = kNaN, rows_complete = kNaN, n_obs = kNaN, missing_share = kNaN;
   bool positive_definite = false;
+  // The em rule only: its iterations, whether it met its criterion, the last change and the criterion
+  double em_iterations = kNaN, em_converged = kNaN, em_final_change = kNaN, em_tolerance = kNaN;
   std::vector<std::string> notes;
   // Factorability (KMO, MSA, Bartlett)
   Maybe kmo, bartlett_chi2, bartlett_df, bartlett_p;
@@ -148,6 +150,43 @@ struct HoldoutResult {
   std::vector<std::string> notes;
 };
 
+// A general factor under the group factors (lode_schmid_leiman_compute): run when the solution is
+// oblique with at least 3 factors; otherwise `reason` says why not.
+struct GeneralResult {
+  bool available = false;
+  std::string reason;
+  std::vector<double> general, group;  // items; items x factors
+  std::vector<double> second_order;    // factors: each factor's loading on the general factor
+  std::vector<double> omega_subscales, subscale_omega_total;  // factors (NaN: no items)
+  std::vector<double> assignment;      // items: each item's subscale (0-based, -1 none)
+  double omega_total = kNaN, omega_hierarchical = kNaN, ecv = kNaN;
+  std::vector<std::string> notes;
+};
+
+// The comparison across groups of respondents (lode_group_comparison_compute), asked for by
+// options.group_column; when it cannot be made, `reason` says why.
+struct GroupsResult {
+  bool asked = false, available = false;
+  std::string reason, column;
+  std::int64_t needed = 0;             // the smallest group analysed: max(min_group, items + 1)
+  double threshold = 0.2;              // a loading differing by more than this is listed
+  bool oblique = false;                // oblique Procrustes
+  std::vector<std::string> labels;     // analysed groups, in order
+  std::vector<double> rows;            // respondents per analysed group
+  std::vector<double> congruence, alpha, omega;  // groups x factors
+  struct Skipped {
+    std::string label;
+    double rows = 0;
+  };
+  std::vector<Skipped> skipped;
+  struct Shift {
+    std::string group;
+    std::size_t item = 0, factor = 0;
+    double group_loading = kNaN, pooled_loading = kNaN;
+  };
+  std::vector<Shift> shifts;
+};
+
 // Everything one report run computed, with the options and source it came from.
 struct Analysis {
   Options options;
@@ -168,6 +207,8 @@ struct Analysis {
   ScoreResult scores;  // asked for when options.scores != "none"
   ReplicationResult halves;  // asked for when options.halves > 0
   HoldoutResult holdout;     // asked for when options.holdout > 0
+  GeneralResult general;
+  GroupsResult groups;
 
   std::size_t p() const { return items.names.size(); }
   std::size_t k() const { return model.available ? static_cast<std::size_t>(model.factors) : 0; }

@@ -1,10 +1,10 @@
-// What the files of the report's analysis share (report_analysis.cpp, report_analysis_confirm.cpp): the
-// report's reading of a C ABI status, progress from the C ABI into the run's callback, matrix results as
-// vectors, and the run's fit options. UNO-free; defined in report_analysis.cpp.
+// The report's shared ways of calling the C ABI (report_analysis.cpp defines them; the analysis files
+// report_analysis*.cpp use them): the report's reading of a C ABI status, progress from the C ABI into
+// the run's callback, matrix results as vectors, the run's fit and correlation options. UNO-free.
 #pragma once
 
 #include "capi.hpp"
-#include "report_model.hpp"
+#include "report_analysis.hpp"
 
 #include <cstdint>
 #include <string>
@@ -12,8 +12,8 @@
 
 namespace lode::addin::report {
 
-// Cancelled runs stop, bad input is the person's to fix (std::invalid_argument, shown with its reason),
-// anything else is a failure of the run.
+// The report's reading of a C ABI status: cancelled runs stop (Cancelled), bad input is the person's to
+// fix (std::invalid_argument, shown with its reason), anything else is a failure of the run.
 void report_check(int status, const char* what);
 
 // Progress from the C ABI into the run's callback (which may cancel), mapped onto [from, to].
@@ -50,5 +50,16 @@ ReplicationResult replicate_halves(const lode_correlation* corr, const Options& 
 // The confirmatory check on held-out respondents (report_analysis_confirm.cpp). A share the data cannot
 // split is a bad option (std::invalid_argument naming the workable shares); other failures are the reason.
 HoldoutResult holdout_check(const lode_correlation* corr, const Options& o, int factors);
+// The items as a C ABI data handle with their names.
+DataHandle make_data(const std::vector<double>& values, std::size_t rows, const std::vector<std::string>& names);
+
+// The run's correlation options (kind, missing rule; one thread, so the office keeps a core).
+lode_correlation_options correlation_options(const Options& o);
+
+// report_analysis_structure.cpp: the general factor of an oblique model with at least 3 factors
+// (otherwise the reason), and the comparison across the groups of options.group_column.
+GeneralResult general_factor(const lode_model* model, const ModelResult& result);
+GroupsResult compare_groups(const SourceTable& src, const Items& items, const Options& o, const ModelResult& model,
+                            const Progress& progress, double from, double to);
 
 }  // namespace lode::addin::report

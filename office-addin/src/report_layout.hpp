@@ -11,6 +11,8 @@ Sheet layout_loadings(const Analysis& a);   // layout_loadings.cpp
 Sheet layout_factors(const Analysis& a);    // layout_factors.cpp
 Sheet layout_scree(const Analysis& a);      // layout_scree.cpp
 Sheet layout_record(const Analysis& a);     // layout_record.cpp
+Sheet layout_general(const Analysis& a);    // layout_general.cpp: when a.general.available
+Sheet layout_groups(const Analysis& a);     // layout_groups.cpp: when a.groups.asked
 // The factor scores (layout_scores.cpp): on a sheet of their own, or as columns beside the data.
 // Only when the scores were computed (a.scores.available) and placed there.
 Sheet layout_scores(const Analysis& a);
@@ -32,6 +34,10 @@ inline void heading_row(Sheet& sheet, std::string text, std::size_t cells) {
   for (std::size_t c = 1; c < cells; ++c) row.push_back(Cell::txt("", styles::heading));
   sheet.line(std::move(row));
 }
+
+// Tucker's congruence in words (layout_groups.cpp; Lorenzo-Seva & ten Berge 2006): "the same factor"
+// (0.95 and above), "fair similarity" (0.85 to 0.95), "differs" (below).
+std::string congruence_words(double c);
 
 // "Random data (95th percentile of 100)": the heading of parallel analysis's column (overview, scree).
 std::string random_data_words(const CountResult& count);

@@ -39,6 +39,8 @@ void validate(const Options& o) {
                                 "; it must be 0 (off) or 2 to 10000 random splits");
   if (!(o.salient > 0.0 && o.salient < 1.0)) throw std::invalid_argument("option Salient must lie between 0 and 1");
   if (!std::isfinite(o.rotation_parameter)) throw std::invalid_argument("option RotationParameter must be a number");
+  if (o.min_group < 2 || o.min_group > kMaxMinGroup)
+    throw std::invalid_argument("option MinGroup is " + std::to_string(o.min_group) + "; it must be 2 to 1000000");
 }
 
 bool detect_header(const SourceTable& t) {
@@ -107,6 +109,8 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
   rep.sheets.push_back(layout_scree(a));
   if (a.halves_asked()) rep.sheets.push_back(layout_replication(a));
   if (a.holdout_asked()) rep.sheets.push_back(layout_holdout(a));
+  if (a.general.available) rep.sheets.push_back(layout_general(a));
+  if (a.groups.asked) rep.sheets.push_back(layout_groups(a));
   rep.sheets.push_back(layout_record(a));
   if (a.scores.available) {
     if (a.scores.beside) rep.beside = layout_scores_beside(a);

@@ -17,6 +17,10 @@ namespace lode::addin::report {
 inline constexpr int kMaxReportFactors = 100;
 inline constexpr int kMaxReportBootstrap = 100000;
 inline constexpr int kMaxReportHalves = 10000;
+// The smallest group compared by default: about 100 respondents per group is common practice for loadings
+// stable enough to compare (README, "Groups"); the C ABI raises it to items + 1 when that is more.
+inline constexpr int kDefaultMinGroup = 100;
+inline constexpr int kMaxMinGroup = 1000000;
 
 // Everything the dialog (or any UNO caller) can choose. Text values are the option words of the
 // README's table ("pearson", "pairwise", ...); validate() checks them against option_table.cpp.
@@ -35,6 +39,8 @@ struct Options {
   int bootstrap = 0;                     // resamples; 0 = off
   double holdout = 0.0;                  // share of respondents held out for the confirmatory check; 0 = off
   int halves = 0;                        // random splits into halves (replication); 0 = off
+  std::string group_column;              // a column of the range naming each respondent's group; "" = no comparison
+  int min_group = kDefaultMinGroup;      // groups with fewer respondents (or no more than the items) are skipped
   double salient = defaults::salient;    // loadings at least this large (absolute) are emphasised
   std::uint64_t seed = 20260101;  // the library's default seed, so the factor count agrees with the cells and Python
   int cancel_after_sheets = -1;          // tests only: cancel after this many writing steps (the score
@@ -149,6 +155,8 @@ inline constexpr const char* record = "Lode run record";
 inline constexpr const char* scores = "Lode scores";
 inline constexpr const char* replication = "Lode halves";
 inline constexpr const char* holdout = "Lode new respondents";
+inline constexpr const char* groups = "Lode groups";
+inline constexpr const char* general = "Lode general factor";
 }  // namespace names
 
 // Cell style names (created in the workbook by the writer; report_uno.cpp defines their look).

@@ -52,8 +52,9 @@ const char* correlation_words(const std::string& kind) {
   return "Pearson (answers taken as numbers)";
 }
 const char* missing_words(const std::string& m) {
-  return m == "listwise" ? "only respondents who answered every item (listwise)"
-                         : "each pair of items uses everyone who answered both (pairwise)";
+  if (m == "listwise") return "only respondents who answered every item (listwise)";
+  if (m == "em") return "estimated from everyone with an answer, assuming missing at random (EM, maximum likelihood)";
+  return "each pair of items uses everyone who answered both (pairwise)";
 }
 const char* score_method_words(const std::string& m) {
   if (m == "bartlett") return "Bartlett (1937)";

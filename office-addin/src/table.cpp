@@ -33,6 +33,43 @@ constexpr std::string_view kDataHelp =
     "Respondents in rows, items in columns (empty and text cells are missing; a first row of names is "
     "used as item names), or a square correlation matrix with ones on the diagonal";
 
+constexpr std::string_view kObliqueHelp =
+    "An oblique rotation: \"oblimin\" (default), \"promax\", \"quartimin\" or \"geomin\"; the orthogonal ones are "
+    "refused (their factors do not correlate, so no general factor lies under them)";
+constexpr std::string_view kGeneralErrors =
+    "Err:502: fewer than 3 factors or an orthogonal rotation; #NUM!: matrix not positive definite; Err:523: no "
+    "convergence";
+constexpr std::string_view kAnswersHelp =
+    "Respondents in rows, items in columns: the answers themselves, not a correlation matrix (empty and text cells "
+    "are missing; a first row of names is used as item names)";
+constexpr std::string_view kGroupsHelp =
+    "One column of group labels (text or numbers), one per respondent in the same rows as `data` (a heading above "
+    "them when `data` has a row of names)";
+constexpr std::string_view kMinGroupHelp =
+    "Smallest group analysed (default 100, common practice for stable loadings; never fewer than items + 1); smaller "
+    "groups are listed by LODE.GROUPSKIPPED";
+constexpr std::string_view kGroupErrors =
+    "Err:502: `groups` not one column, of another length than `data`, or with an empty cell; every group too small; "
+    "Err:523: no convergence";
+
+// The arguments of LODE.GENERAL and LODE.GENERALOMEGA (those of LODE.LOADINGS, an oblique rotation) and of
+// the group comparison's cells (which share one comparison).
+const std::vector<ArgSpec> kGeneralArgs = {{"data", ArgKind::range, kDataHelp},
+                                           {"factors", ArgKind::value, kFactorsHelp},
+                                           {"method", ArgKind::value, kMethodHelp},
+                                           {"rotation", ArgKind::value, kObliqueHelp},
+                                           {"n_obs", ArgKind::value, kNobsHelp}};
+const std::vector<ArgSpec> kGroupArgs = {{"data", ArgKind::range, kAnswersHelp},
+                                         {"groups", ArgKind::range, kGroupsHelp},
+                                         {"factors", ArgKind::value, kFactorsHelp},
+                                         {"method", ArgKind::value, kMethodHelp},
+                                         {"rotation", ArgKind::value, kRotationHelp},
+                                         {"min_group", ArgKind::value, kMinGroupHelp}};
+std::vector<ArgSpec> with_arg(std::vector<ArgSpec> args, ArgSpec extra) {
+  args.push_back(extra);
+  return args;
+}
+
 const std::vector<FunctionSpec> kTable = {
     {"version", "LODE.VERSION", "The version of Lode and of its C library, as text.", {},
      "text, e.g. `Lode 0.1.0 (C ABI 2.0)`", "none", fn_version},
@@ -260,6 +297,46 @@ const std::vector<FunctionSpec> kTable = {
        "the same number of factors by the empirical Kaiser criterion, and the splits used)"}},
      "factors x 4 (`part` factors); items x 1 (items); 1 x 2 (count)",
      "Err:502: a correlation matrix as `data`; #NUM!: a figure no split could give", fn_halves},
+    // --- A general factor and groups (functions_structure.cpp) ---
+    {"general",
+     "LODE.GENERAL",
+     "A general factor under the group factors of an oblique solution with at least 3 factors (Schmid & Leiman "
+     "1957, from a one-factor fit of the factor correlations): per item its loading on the general factor, then on "
+     "each group factor. Same arguments and fit as LODE.LOADINGS.",
+     kGeneralArgs,
+     "items x (1 + factors): general loading, group loadings", kGeneralErrors, fn_general},
+    {"generalomega",
+     "LODE.GENERALOMEGA",
+     "How much a total score measures one thing: omega total, omega hierarchical (the general factor's share of the "
+     "total score's variance) and the general factor's share of the common variance (ECV), then per factor its "
+     "subscale's omega total and omega subscale (McDonald 1999; Zinbarg et al. 2005). A high omega hierarchical says "
+     "a total score mostly measures one thing; a low one says the subscales carry their own information.",
+     kGeneralArgs,
+     "rows x 2: label, value (3 + 2 x factors rows)", kGeneralErrors, fn_generalomega},
+    {"groupmatch",
+     "LODE.GROUPMATCH",
+     "Does the structure hold in every group? The analysis of all respondents, then of each group large enough, "
+     "turned towards the pooled factors (Procrustes); one row per group: label, respondents, Tucker's congruence "
+     "with each pooled factor (0.95 and above: the same factor; 0.85 to 0.94: fair similarity; below: it differs; "
+     "Lorenzo-Seva & ten Berge 2006). A descriptive check, not a formal test of measurement invariance.",
+     kGroupArgs,
+     "groups x (2 + factors): label, respondents, congruence per factor", kGroupErrors, fn_groupmatch},
+    {"groupskipped",
+     "LODE.GROUPSKIPPED",
+     "The groups LODE.GROUPMATCH with the same arguments left out as too small: one row per group, its label and "
+     "its respondents.",
+     kGroupArgs,
+     "skipped x 2: label, respondents; one text cell when none", kGroupErrors, fn_groupskipped},
+    {"groupshifts",
+     "LODE.GROUPSHIFTS",
+     "The loadings of LODE.GROUPMATCH's groups that differ from the pooled loading by more than a threshold: one "
+     "row per such loading with the group, the item, the factor, the group's loading and the pooled loading.",
+     with_arg(kGroupArgs, {"threshold", ArgKind::value,
+                           "A loading is listed when it differs from the pooled one by more than this (default 0.2, "
+                           "common practice)"}),
+     "flagged x 5: group, item, factor, group loading, pooled loading; one text cell when none", kGroupErrors,
+     fn_groupshifts},
+    // --- end of the general factor and groups ---
 };
 
 bool iequal(std::string_view a, std::string_view b) {

@@ -188,6 +188,9 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
         offered = choose(dialog, "Factor scores", "Regression")
         assert offered == ["None", "Regression", "Bartlett", "Correlation-preserving"], offered
         assert choose(dialog, "Put the scores", "Beside the data, if empty")[1] == "On a sheet of their own"
+        # the group comparison offers every column of the range after "No comparison" (kept: no groups)
+        groups = choose(dialog, "Compare groups by", "No comparison")
+        assert groups[0] == "No comparison" and "ROL1" in groups and len(groups) == 32, groups
         box = find_accessible(dialog, "Bootstrap intervals", role=CHECK_BOX)
         assert box is not None, "no Bootstrap intervals check box"
         box.getAccessibleContext().doAccessibleAction(0)
@@ -201,9 +204,9 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
     shot = screenshot("lode-dialog.png")
     for want in ["Range", "First row holds the item names", "Items to analyse (all with numbers are chosen)",
                  "Correlations", "Missing answers", "Number of factors", "Suggest from the data", "Extraction",
-                 "Rotation", "Factor scores", "Bootstrap intervals", "Strong loading from", "Random seed", "Run",
-                 "Cancel", "Hold out respondents for a confirmatory check", "Share held out",
-                 "Replicate in random halves", "Splits"]:
+                 "Rotation", "Factor scores", "Bootstrap intervals", "Strong loading from", "Random seed",
+                 "Hold out respondents for a confirmatory check", "Share held out", "Replicate in random halves", "Splits",
+                 "Compare groups by", "Smallest group", "Run", "Cancel"]:
         assert want in names, f"control {want!r} not found in the dialog: {names}"
     assert "$Responses.$A$1:$AE$421" in names, "the range is not prefilled from the selection"
     sage = pixels_of(shot, SAGE)
@@ -237,6 +240,7 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
         assert rec["Factor scores written to"].endswith("of Responses, beside the data")
         assert rec["Bootstrap resamples"] == "500" and rec["Bootstrap seed"].startswith("20260101 ")
         assert rec["Random splits into halves"] == "100" and rec["Share held out (confirmatory check)"] == "0.5"
+        assert rec["Groups compared by"] == "none"
         # the score columns start right of the answers (AE), with their headings
         assert doc.Sheets.getByName("Responses").getCellRangeByName("AF1").String == "Factor 1 score (regression)"
     time.sleep(2)

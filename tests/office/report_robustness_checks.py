@@ -15,7 +15,7 @@ import pytest
 from report_checks import cell_styles, new_book, props, range_of, sheet_names, snapshot, service  # noqa: F401
 from com.sun.star.lang import IllegalArgumentException
 
-REPORT_SHEET_COUNT = 5  # overview, loadings, factors, scree, run record (report_checks.REPORT_SHEETS)
+REPORT_SHEET_COUNT = 5  # overview, loadings, factors, scree, run record (two factors here: no general factor)
 
 
 @pytest.fixture(scope="module")

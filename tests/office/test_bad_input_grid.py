@@ -53,10 +53,17 @@ VALID = {
     "parameter": lambda v: None,  # any number is a parameter of some rotation; convergence is the data's
     "splits": _whole(2, 10000),
     "part": lambda v: False,
+    # the good data's groups have 100 respondents each: a larger smallest group leaves fewer than 2
+    "min_group": _whole(2, 100),
+    "threshold": lambda v: 0 < v < 2,
 }
 # Functions that need the sample size of a correlation matrix given as data (the restricted fit's
 # statistics and standard errors): n_obs left out is an error for them.
 NEEDS_N_OBS = {"LODE.SPHERICITY", "LODE.PATTERNLOADINGS", "LODE.PATTERNFIT"}
+# A general factor needs at least 3 factors, and the good data have 2 (3 on six items may not be
+# identified): an option left out or any number typed may give a value or a refusal; malformed values
+# must give an error.
+GENERAL_FUNCTIONS = {"LODE.GENERAL", "LODE.GENERALOMEGA"}
 
 
 @pytest.fixture(scope="module")
@@ -68,7 +75,8 @@ def inputs(book):
     good = rng.normal(size=(200, 2)) @ lam.T + rng.normal(size=(200, 6)) * 0.55
     corr = np.corrcoef(good, rowvar=False)
     r = {"good": book.put(good), "corr": book.put(corr), "loadings": book.put(lam + 0.1 * rng.uniform(size=(6, 2))),
-         "pattern": book.put((lam > 0).astype(float))}  # the simple structure of `good`, for the pattern cells
+         "pattern": book.put((lam > 0).astype(float)),  # the simple structure of `good`, for the pattern cells
+         "groups": book.put_rows([["north" if i % 2 else "south"] for i in range(200)])}
 
     def nan_block(rows, cols, fill):
         x = np.full((rows, cols), np.nan)
@@ -176,7 +184,8 @@ def _call(name, args):
 def _required(name, spec, inputs, first):
     """The arguments with `first` as the first and good values for the other required ones."""
     fill = inputs["loadings"] if name in LOADING_FUNCTIONS else inputs["good"]
-    return [first] + [(inputs["pattern"] if arg == "pattern" else fill) if not optional else ""
+    special = {"pattern": inputs["pattern"], "groups": inputs["groups"]}
+    return [first] + [special.get(arg, fill) if not optional else ""
                       for (arg, optional) in spec[1:]]
 
 
@@ -226,10 +235,12 @@ def test_every_optional_argument_with_bad_values(office, book, lode_functions, i
                     if value in BLANK:
                         # left out: the default; a correlation matrix without n_obs has no test of sphericity
                         due = "error" if name in NEEDS_N_OBS and source == inputs["corr"] else "value"
+                        if name in GENERAL_FUNCTIONS:
+                            due = None  # 2 factors: refused (test_structure_cells.py checks values)
                     elif value in ERRORS or value not in NUMERIC:
                         due = "error"
                     else:
-                        ok = VALID[arg](NUMERIC[value])
+                        ok = VALID[arg](NUMERIC[value]) if name not in GENERAL_FUNCTIONS else None
                         due = None if ok is None else "value" if ok else "error"
                         if arg == "n_obs" and source == inputs["corr"] and ok and NUMERIC[value] <= 6:
                             due = "error"  # a correlation matrix of 6 items needs more than 6 observations
