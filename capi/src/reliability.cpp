@@ -105,20 +105,20 @@ Matrix reversed_of(const lode_reliability& r) {
 constexpr HandleNames reliability_handle{"lode_reliability", "lode_reliability", "reliability"};
 
 constexpr MatrixKey<lode_reliability> reliability_matrices[] = {
-    {LODE_ALPHA_IF_DELETED, [](const lode_reliability& r) -> Matrix { return alpha_of(r).alpha_if_deleted; }},
-    {LODE_ALPHA_STANDARDIZED_IF_DELETED,
+    {LODE_RELIABILITY_ALPHA_IF_DELETED, [](const lode_reliability& r) -> Matrix { return alpha_of(r).alpha_if_deleted; }},
+    {LODE_RELIABILITY_ALPHA_STANDARDIZED_IF_DELETED,
      [](const lode_reliability& r) -> Matrix { return alpha_of(r).alpha_standardized_if_deleted; }},
-    {LODE_ALPHA_ITEM_TOTAL, [](const lode_reliability& r) -> Matrix { return alpha_of(r).item_total_correlation; }},
-    {LODE_ALPHA_ITEM_MEANS, [](const lode_reliability& r) -> Matrix { return alpha_of(r).item_means; }},
-    {LODE_ALPHA_ITEM_SDS, [](const lode_reliability& r) -> Matrix { return alpha_of(r).item_sds; }},
-    {LODE_OMEGA, [](const lode_reliability& r) -> Matrix { return per_scale(r, [](const ScaleOmega& s) { return s.omega; }); }},
-    {LODE_OMEGA_ASSIGNMENT, [](const lode_reliability& r) -> Matrix { return vector_of(omega_of(r).assignment); }},
-    {LODE_OMEGA_SUM_LOADINGS,
+    {LODE_RELIABILITY_ALPHA_ITEM_TOTAL, [](const lode_reliability& r) -> Matrix { return alpha_of(r).item_total_correlation; }},
+    {LODE_RELIABILITY_ALPHA_ITEM_MEANS, [](const lode_reliability& r) -> Matrix { return alpha_of(r).item_means; }},
+    {LODE_RELIABILITY_ALPHA_ITEM_SDS, [](const lode_reliability& r) -> Matrix { return alpha_of(r).item_sds; }},
+    {LODE_RELIABILITY_OMEGA, [](const lode_reliability& r) -> Matrix { return per_scale(r, [](const ScaleOmega& s) { return s.omega; }); }},
+    {LODE_RELIABILITY_OMEGA_ASSIGNMENT, [](const lode_reliability& r) -> Matrix { return vector_of(omega_of(r).assignment); }},
+    {LODE_RELIABILITY_OMEGA_SUM_LOADINGS,
      [](const lode_reliability& r) -> Matrix { return per_scale(r, [](const ScaleOmega& s) { return s.sum_loadings; }); }},
-    {LODE_OMEGA_SUM_UNIQUENESSES,
+    {LODE_RELIABILITY_OMEGA_SUM_UNIQUENESSES,
      [](const lode_reliability& r) -> Matrix { return per_scale(r, [](const ScaleOmega& s) { return s.sum_uniquenesses; }); }},
-    {LODE_OMEGA_LOADINGS, [](const lode_reliability& r) -> Matrix { return single_scale_of(r).loadings; }},
-    {LODE_OMEGA_UNIQUENESSES, [](const lode_reliability& r) -> Matrix { return single_scale_of(r).uniquenesses; }},
+    {LODE_RELIABILITY_OMEGA_LOADINGS, [](const lode_reliability& r) -> Matrix { return single_scale_of(r).loadings; }},
+    {LODE_RELIABILITY_OMEGA_UNIQUENESSES, [](const lode_reliability& r) -> Matrix { return single_scale_of(r).uniquenesses; }},
     {LODE_RELIABILITY_OMEGA_FACTOR_SHARE,
      [](const lode_reliability& r) -> Matrix { return per_scale(r, [](const ScaleOmega& s) { return s.factor_share; }); }},
     {LODE_RELIABILITY_OMEGA_SCALE_VARIANCE,
@@ -127,13 +127,13 @@ constexpr MatrixKey<lode_reliability> reliability_matrices[] = {
 };
 
 constexpr ValueKey<lode_reliability> reliability_values[] = {
-    {LODE_ALPHA, [](const lode_reliability& r) { return alpha_of(r).alpha; }},
-    {LODE_ALPHA_STANDARDIZED, [](const lode_reliability& r) { return alpha_of(r).alpha_standardized; }},
-    {LODE_ALPHA_MEAN_INTER_ITEM, [](const lode_reliability& r) { return alpha_of(r).mean_inter_item_correlation; }},
-    {LODE_ALPHA_ROWS_TOTAL, [](const lode_reliability& r) { return number(alpha_of(r).rows_total); }},
-    {LODE_ALPHA_ROWS_USED, [](const lode_reliability& r) { return number(alpha_of(r).rows_used); }},
-    {LODE_ALPHA_ITEMS, [](const lode_reliability& r) { return number(alpha_of(r).items); }},
-    {LODE_OMEGA_CONVERGED,
+    {LODE_RELIABILITY_ALPHA, [](const lode_reliability& r) { return alpha_of(r).alpha; }},
+    {LODE_RELIABILITY_ALPHA_STANDARDIZED, [](const lode_reliability& r) { return alpha_of(r).alpha_standardized; }},
+    {LODE_RELIABILITY_ALPHA_MEAN_INTER_ITEM, [](const lode_reliability& r) { return alpha_of(r).mean_inter_item_correlation; }},
+    {LODE_RELIABILITY_ALPHA_ROWS_TOTAL, [](const lode_reliability& r) { return number(alpha_of(r).rows_total); }},
+    {LODE_RELIABILITY_ALPHA_ROWS_USED, [](const lode_reliability& r) { return number(alpha_of(r).rows_used); }},
+    {LODE_RELIABILITY_ALPHA_ITEMS, [](const lode_reliability& r) { return number(alpha_of(r).items); }},
+    {LODE_RELIABILITY_OMEGA_CONVERGED,
      [](const lode_reliability& r) {
        omega_of(r);
        return flag(!r.single || r.single_scale.convergence.converged);

@@ -144,7 +144,7 @@ RotationOptions lode::capi::read_rotation_options(const lode_rotation_options* o
 
 extern "C" {
 
-LODE_API int lode_rotation_method_from_name(const char* name, int* method) {
+LODE_API int lode_criterion_from_name(const char* name, int* method) {
   return guarded([&] {
     require_pointer(name, "name");
     require_pointer(method, "method");
@@ -152,7 +152,7 @@ LODE_API int lode_rotation_method_from_name(const char* name, int* method) {
   });
 }
 
-LODE_API const char* lode_rotation_method_name(int method) {
+LODE_API const char* lode_criterion_name(int method) {
   return known_criterion(method) ? rotation_name(static_cast<RotationMethod>(method)) : nullptr;
 }
 

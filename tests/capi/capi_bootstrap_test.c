@@ -1,4 +1,4 @@
-/* The C ABI from C: lode_bootstrap_result. */
+/* The C ABI from C: lode_bootstrap. */
 #include "capi_test.h"
 
 #include <math.h>
@@ -30,7 +30,7 @@ void test_bootstrap(void) {
   lode_data *d = NULL, *dm = NULL;
   lode_correlation *c = NULL, *cm = NULL;
   lode_model* m = NULL;
-  lode_bootstrap_result *b = NULL, *b2 = NULL;
+  lode_bootstrap *b = NULL, *b2 = NULL;
   lode_bootstrap_options bo;
   lode_model_options fo;
   lode_rotation_options ro;

@@ -23,15 +23,15 @@ void test_rotation(void) {
     a_cm[6 + i] = a[i * 2 + 1];
   }
 
-  OK(lode_rotation_method_from_name("Oblimin", &m));
+  OK(lode_criterion_from_name("Oblimin", &m));
   CHECK(m == LODE_CRITERION_OBLIMIN);
-  OK(lode_rotation_method_from_name("geomin", &m));
+  OK(lode_criterion_from_name("geomin", &m));
   CHECK(m == LODE_CRITERION_GEOMIN);
-  EXPECT(lode_rotation_method_from_name("spin", &m), LODE_E_INVALID_ARGUMENT, "varimax");
-  EXPECT(lode_rotation_method_from_name(NULL, &m), LODE_E_INVALID_ARGUMENT, "'name' is NULL");
-  EXPECT(lode_rotation_method_from_name("varimax", NULL), LODE_E_INVALID_ARGUMENT, "'method' is NULL");
-  CHECK(strcmp(lode_rotation_method_name(LODE_CRITERION_PROMAX), "promax") == 0);
-  CHECK(lode_rotation_method_name(99) == NULL && lode_rotation_method_name(-1) == NULL);
+  EXPECT(lode_criterion_from_name("spin", &m), LODE_E_INVALID_ARGUMENT, "varimax");
+  EXPECT(lode_criterion_from_name(NULL, &m), LODE_E_INVALID_ARGUMENT, "'name' is NULL");
+  EXPECT(lode_criterion_from_name("varimax", NULL), LODE_E_INVALID_ARGUMENT, "'method' is NULL");
+  CHECK(strcmp(lode_criterion_name(LODE_CRITERION_PROMAX), "promax") == 0);
+  CHECK(lode_criterion_name(99) == NULL && lode_criterion_name(-1) == NULL);
 
   EXPECT(lode_rotation_options_init(NULL, sizeof o), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
   OK(lode_rotation_options_init(&o, sizeof o));

@@ -149,7 +149,7 @@ int main(void) {
     lode_model* m = NULL;
     lode_scores* sc = NULL;
     lode_reliability* rel = NULL;
-    lode_bootstrap_result* bs = NULL;
+    lode_bootstrap* bs = NULL;
     OK(lode_correlation_options_init(&co, sizeof co));
     OK(lode_correlation_compute(from_summary, &co, &cs));
     OK(lode_model_options_init(&fo, sizeof fo));

@@ -84,11 +84,11 @@ void plain_calls(Bytes& in) {
   for (size_t k = 0; k < length; ++k) word[k] = static_cast<char>(in.byte());
   word[length] = '\0';
   int method = -1;
-  if (lode_rotation_method_from_name(word, &method) == LODE_OK && lode_rotation_method_name(method) == nullptr)
+  if (lode_criterion_from_name(word, &method) == LODE_OK && lode_criterion_name(method) == nullptr)
     __builtin_trap();  // a name that was found has a name to give back
-  lode_rotation_method_from_name(nullptr, &method);
-  lode_rotation_method_from_name(word, nullptr);
-  for (int m = -1; m < 16; ++m) lode_rotation_method_name(m);
+  lode_criterion_from_name(nullptr, &method);
+  lode_criterion_from_name(word, nullptr);
+  for (int m = -1; m < 16; ++m) lode_criterion_name(m);
 }
 
 // Reads every result of a correlation with several buffer sizes.
@@ -157,7 +157,7 @@ void bootstrap(const lode_correlation* c, const lode_model_options& fit, Bytes& 
   int cancel_after = (plan & 64) ? static_cast<int>(in.byte() % 3) : -1;
   o.progress = fuzz_progress;
   o.progress_user = &cancel_after;
-  lode_bootstrap_result* b = nullptr;
+  lode_bootstrap* b = nullptr;
   if (lode_bootstrap_compute(c, &fit, &o, &b) != LODE_OK) return;
   double buf[1024], v;
   for (int key = 900; key < 916; ++key) {
@@ -381,7 +381,7 @@ void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
   lode_reliability* rel = nullptr;
   if (lode_reliability_compute_omega(m, nullptr, 0, &rel) == LODE_OK) {
     for (int key = 740; key < 746; ++key) lode_reliability_matrix(rel, key, buf, 256, nullptr, nullptr);
-    lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v);
+    lode_reliability_value(rel, LODE_RELIABILITY_OMEGA_CONVERGED, &v);
     lode_reliability_text(rel, LODE_RELIABILITY_NOTES, text, sizeof text, nullptr);
     lode_reliability_free(rel);
   }
@@ -466,7 +466,7 @@ void reliability(const lode_data* d, const lode_correlation* c) {
   fo.max_iterations = 200;
   if (lode_reliability_compute_scale_omega(c, &fo, &rel) == LODE_OK) {
     for (int key = 740; key < 746; ++key) lode_reliability_matrix(rel, key, buf, 64, nullptr, nullptr);
-    lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v);
+    lode_reliability_value(rel, LODE_RELIABILITY_OMEGA_CONVERGED, &v);
     lode_reliability_text(rel, LODE_RELIABILITY_NOTES, text, sizeof text, nullptr);
     lode_reliability_free(rel);
   }

@@ -409,7 +409,7 @@ def map_test(X=None, *, corr=None, cov=None, n_obs=None, **kwargs):
 
 def _rotation_method(name):
     method = ctypes.c_int()
-    check(lib.lode_rotation_method_from_name(str(name).encode(), ctypes.byref(method)))
+    check(lib.lode_criterion_from_name(str(name).encode(), ctypes.byref(method)))
     return method.value
 
 
@@ -556,7 +556,7 @@ class Model(_native.Handle):
         self.objective = num(_abi.LODE_MODEL_OBJECTIVE)
         self.oblique = bool(num(_abi.LODE_MODEL_OBLIQUE))
         self.method = _METHOD_NAMES.get(int(num(_abi.LODE_MODEL_METHOD)), "unknown")
-        self.rotation = lib.lode_rotation_method_name(int(num(_abi.LODE_MODEL_ROTATION_METHOD))).decode()
+        self.rotation = lib.lode_criterion_name(int(num(_abi.LODE_MODEL_ROTATION_METHOD))).decode()
         self.suggested_factors = int(num(_abi.LODE_MODEL_SUGGESTED_FACTORS))
         self.convergence = {"converged": self.converged, "iterations": self.iterations,
                             "final_change": num(_abi.LODE_MODEL_FINAL_CHANGE),

@@ -141,8 +141,8 @@ for _kind in ("rotation", "model"):
     _getters[f"lode_{_kind}_text"] = (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t])
     _getters[f"lode_{_kind}_free"] = (None, [c_void_p])
 _getters.update({
-    "lode_rotation_method_from_name": (c_int, [c_char_p, ctypes.POINTER(c_int)]),
-    "lode_rotation_method_name": (c_char_p, [c_int]),
+    "lode_criterion_from_name": (c_int, [c_char_p, ctypes.POINTER(c_int)]),
+    "lode_criterion_name": (c_char_p, [c_int]),
     "lode_rotation_options_init": (c_int, [ctypes.POINTER(_abi.lode_rotation_options), c_size_t]),
     "lode_rotation_compute": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64,
                                       ctypes.POINTER(_abi.lode_rotation_options), P_void_p]),

@@ -85,17 +85,17 @@ class Alpha(_native.Handle):
         m, v, t = lib.lode_reliability_matrix, lib.lode_reliability_value, lib.lode_reliability_text
         col = lambda key: _native.get_matrix(m, pointer, key)[:, 0]  # noqa: E731
         num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
-        self.alpha = num(_abi.LODE_ALPHA)
-        self.alpha_standardized = num(_abi.LODE_ALPHA_STANDARDIZED)
-        self.mean_inter_item_correlation = num(_abi.LODE_ALPHA_MEAN_INTER_ITEM)
-        self.rows_total = int(num(_abi.LODE_ALPHA_ROWS_TOTAL))
-        self.rows_used = int(num(_abi.LODE_ALPHA_ROWS_USED))
-        self.items = int(num(_abi.LODE_ALPHA_ITEMS))
-        self.alpha_if_deleted = col(_abi.LODE_ALPHA_IF_DELETED)
-        self.alpha_standardized_if_deleted = col(_abi.LODE_ALPHA_STANDARDIZED_IF_DELETED)
-        self.item_total_correlation = col(_abi.LODE_ALPHA_ITEM_TOTAL)
-        self.item_means = col(_abi.LODE_ALPHA_ITEM_MEANS)
-        self.item_sds = col(_abi.LODE_ALPHA_ITEM_SDS)
+        self.alpha = num(_abi.LODE_RELIABILITY_ALPHA)
+        self.alpha_standardized = num(_abi.LODE_RELIABILITY_ALPHA_STANDARDIZED)
+        self.mean_inter_item_correlation = num(_abi.LODE_RELIABILITY_ALPHA_MEAN_INTER_ITEM)
+        self.rows_total = int(num(_abi.LODE_RELIABILITY_ALPHA_ROWS_TOTAL))
+        self.rows_used = int(num(_abi.LODE_RELIABILITY_ALPHA_ROWS_USED))
+        self.items = int(num(_abi.LODE_RELIABILITY_ALPHA_ITEMS))
+        self.alpha_if_deleted = col(_abi.LODE_RELIABILITY_ALPHA_IF_DELETED)
+        self.alpha_standardized_if_deleted = col(_abi.LODE_RELIABILITY_ALPHA_STANDARDIZED_IF_DELETED)
+        self.item_total_correlation = col(_abi.LODE_RELIABILITY_ALPHA_ITEM_TOTAL)
+        self.item_means = col(_abi.LODE_RELIABILITY_ALPHA_ITEM_MEANS)
+        self.item_sds = col(_abi.LODE_RELIABILITY_ALPHA_ITEM_SDS)
         self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_RELIABILITY_NOTES))
 
     def __repr__(self):
@@ -128,16 +128,16 @@ class Omega(_native.Handle):
         super().__init__(pointer)
         m, t = lib.lode_reliability_matrix, lib.lode_reliability_text
         col = lambda key: _native.get_matrix(m, pointer, key)[:, 0]  # noqa: E731
-        self.omega = col(_abi.LODE_OMEGA)
-        self.assignment = col(_abi.LODE_OMEGA_ASSIGNMENT).astype(np.int64)
-        self.sum_loadings = col(_abi.LODE_OMEGA_SUM_LOADINGS)
-        self.sum_uniquenesses = col(_abi.LODE_OMEGA_SUM_UNIQUENESSES)
+        self.omega = col(_abi.LODE_RELIABILITY_OMEGA)
+        self.assignment = col(_abi.LODE_RELIABILITY_OMEGA_ASSIGNMENT).astype(np.int64)
+        self.sum_loadings = col(_abi.LODE_RELIABILITY_OMEGA_SUM_LOADINGS)
+        self.sum_uniquenesses = col(_abi.LODE_RELIABILITY_OMEGA_SUM_UNIQUENESSES)
         self.factor_share = col(_abi.LODE_RELIABILITY_OMEGA_FACTOR_SHARE)
         self.scale_variance = col(_abi.LODE_RELIABILITY_OMEGA_SCALE_VARIANCE)
-        self.loadings = col(_abi.LODE_OMEGA_LOADINGS) if single else None
-        self.uniquenesses = col(_abi.LODE_OMEGA_UNIQUENESSES) if single else None
+        self.loadings = col(_abi.LODE_RELIABILITY_OMEGA_LOADINGS) if single else None
+        self.uniquenesses = col(_abi.LODE_RELIABILITY_OMEGA_UNIQUENESSES) if single else None
         self.converged = bool(_native.get_value(lib.lode_reliability_value, pointer,
-                              _abi.LODE_OMEGA_CONVERGED)) if single else None
+                              _abi.LODE_RELIABILITY_OMEGA_CONVERGED)) if single else None
         self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_RELIABILITY_NOTES))
 
     def __repr__(self):
