@@ -53,24 +53,6 @@ Vector per_scale(const lode_reliability& r, Field field) {
   return v;
 }
 
-// The item-to-factor assignment of lode_reliability_compute_omega, checked (empty: by largest loading).
-std::vector<Index> assignment_of(const lode_model& model, const int64_t* assignment, int64_t count) {
-  const Index items = model.rotation.pattern.rows(), factors = model.rotation.pattern.cols();
-  if (assignment == nullptr && count != 0)
-    fail(LODE_E_INVALID_ARGUMENT, fmt::format("argument 'assignment' is NULL but count is {}", count));
-  std::vector<Index> out;
-  if (assignment == nullptr) return out;
-  if (count != items) fail(LODE_E_INVALID_ARGUMENT, fmt::format("{} assignments were given for {} items", count, items));
-  for (int64_t j = 0; j < count; ++j) {
-    if (assignment[j] < -1 || assignment[j] >= factors)
-      fail(LODE_E_INVALID_ARGUMENT,
-           fmt::format("{} is assigned to factor {}; factors are 0 to {} (or -1 for none)",
-                       item_label(model.item_names, static_cast<Index>(j)), assignment[j], factors - 1));
-    out.push_back(static_cast<Index>(assignment[j]));
-  }
-  return out;
-}
-
 // lode_reliability_options: field, default. Keying as scored; no assignment (largest loading) and no
 // item reverse-keyed unless the caller says so.
 #define LODE_RELIABILITY_OPTIONS_FIELDS(F) \

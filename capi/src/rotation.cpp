@@ -118,8 +118,7 @@ RotationOptions lode::capi::read_rotation_options(const lode_rotation_options* o
                                                   const std::vector<std::string>& names) {
   const lode_rotation_options o = merged_rotation_options(opts);
   RotationOptions r;
-  if (!known_criterion(o.method)) fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown rotation method {}", o.method));
-  r.method = static_cast<RotationMethod>(o.method);
+  r.method = rotation_method_of(o.method);
   r.normalize = o.normalize != 0;
   r.gamma = finite_option(o.gamma, "gamma");
   r.kappa = finite_option(o.kappa, "kappa");
