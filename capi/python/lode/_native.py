@@ -254,6 +254,23 @@ def get_text(fn, handle, key):
     return buf.value.decode("utf-8", "replace")
 
 
+def attach_progress(opts, progress):
+    """Sets ``opts.progress`` to a C callback wrapping ``progress`` (None: left unset) and returns the
+    callback, which the caller keeps alive until the C call returns."""
+    callback = make_progress(progress)
+    if callback is not None:
+        opts.progress = callback
+    return callback
+
+
+def readers(prefix, pointer):
+    """The three getters of one handle (`prefix` e.g. "lode_model") as functions of a key: its
+    matrices (numpy arrays), its numbers and its texts."""
+    return (lambda key: get_matrix(getattr(lib, prefix + "_matrix"), pointer, key),
+            lambda key: get_value(getattr(lib, prefix + "_value"), pointer, key),
+            lambda key: get_text(getattr(lib, prefix + "_text"), pointer, key))
+
+
 def make_progress(callback):
     """Wraps a Python callable (done, total) -> truthy-to-continue as a C progress callback that
     returns nonzero to cancel. Exceptions in the callable cancel the computation."""
