@@ -41,9 +41,8 @@ BootstrapOptions read_bootstrap_options(const lode_bootstrap_options* opts, cons
   const lode_bootstrap_options o = merged_bootstrap_options(opts);
   if (o.replicates < 2 || o.replicates > 1000000)
     fail(LODE_E_INVALID_ARGUMENT, fmt::format("replicates must be between 2 and 1000000; it is {}", o.replicates));
-  if (!(o.level > 0.0 && o.level < 1.0))
-    fail(LODE_E_INVALID_ARGUMENT, fmt::format("level must lie strictly between 0 and 1; it is {}", o.level));
-  if (o.threads < 0) fail(LODE_E_INVALID_ARGUMENT, fmt::format("threads must be 0 (all cores) or more; it is {}", o.threads));
+  require_open_unit(o.level, "level");
+  require_threads(o.threads);
   if (o.replicate_random_starts < -1 || o.replicate_random_starts > 100000)
     fail(LODE_E_INVALID_ARGUMENT,
          fmt::format("replicate_random_starts must be -1 (as the rotation options say) or 0 to 100000; it is {}",

@@ -50,7 +50,7 @@ GroupComparisonOptions read_group_comparison_options(const lode_group_comparison
   go.correlation.threads = o.threads;
   go.min_group = static_cast<Index>(o.min_group);
   go.difference_threshold = o.difference_threshold;
-  if (o.threads < 0) fail(LODE_E_INVALID_ARGUMENT, fmt::format("threads must be 0 (all cores) or more; it is {}", o.threads));
+  require_threads(o.threads);
   go.threads = o.threads;
   go.progress = progress_of(o.progress, o.progress_user);
   return go;

@@ -33,8 +33,7 @@ LODE_OPTIONS_FUNCTIONS(lode_holdout_options, LODE_HOLDOUT_OPTIONS_FIELDS, Holdou
 
 HoldoutOptions read_holdout_options(const lode_holdout_options* opts, const lode_correlation& corr) {
   const lode_holdout_options o = merged_holdout_options(opts);
-  if (!(o.salient > 0.0 && o.salient < 1.0))
-    fail(LODE_E_INVALID_ARGUMENT, fmt::format("salient must lie strictly between 0 and 1; it is {}", o.salient));
+  require_open_unit(o.salient, "salient");
   HoldoutOptions ho;
   ho.share = o.share;
   ho.seed = o.seed;

@@ -233,8 +233,7 @@ FitSetup lode::capi::read_fit_options(const lode_model_options* opts, const lode
   const lode_model_options o = merged_model_options(opts);
   FitSetup setup;
   setup.extraction = extraction_options_of(o, corr);
-  if (!(o.interval_level > 0.0 && o.interval_level < 1.0))
-    fail(LODE_E_INVALID_ARGUMENT, fmt::format("interval_level must lie strictly between 0 and 1; it is {}", o.interval_level));
+  require_open_unit(o.interval_level, "interval_level");
   setup.interval_level = o.interval_level;
   if (o.factors < 0) fail(LODE_E_INVALID_ARGUMENT, fmt::format("factors must be 0 (suggested) or more; it is {}", o.factors));
   setup.factors = o.factors;

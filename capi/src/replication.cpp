@@ -35,7 +35,7 @@ ReplicationOptions read_replication_options(const lode_replication_options* opts
   const lode_replication_options o = merged_replication_options(opts);
   if (o.splits < 2 || o.splits > 100000)
     fail(LODE_E_INVALID_ARGUMENT, fmt::format("splits must be between 2 and 100000; it is {}", o.splits));
-  if (o.threads < 0) fail(LODE_E_INVALID_ARGUMENT, fmt::format("threads must be 0 (all cores) or more; it is {}", o.threads));
+  require_threads(o.threads);
   ReplicationOptions ro;
   ro.splits = static_cast<Index>(o.splits);
   ro.seed = o.seed;

@@ -82,12 +82,10 @@ RestrictedFitOptions lode::capi::read_restricted_options(const lode_restricted_f
   const lode_restricted_fit_options o = merged_restricted_options(opts);
   if (o.max_iterations < 1 || o.max_iterations > 1000000)
     fail(LODE_E_INVALID_ARGUMENT, fmt::format("max_iterations must be between 1 and 1000000; it is {}", o.max_iterations));
-  if (!(o.tolerance > 0.0 && o.tolerance < 1.0))
-    fail(LODE_E_INVALID_ARGUMENT, fmt::format("tolerance must lie strictly between 0 and 1; it is {}", o.tolerance));
+  require_open_unit(o.tolerance, "tolerance");
   if (!(o.min_uniqueness >= 0.0 && o.min_uniqueness < 1.0))
     fail(LODE_E_INVALID_ARGUMENT, fmt::format("min_uniqueness must lie in [0, 1); it is {}", o.min_uniqueness));
-  if (!(o.interval_level > 0.0 && o.interval_level < 1.0))
-    fail(LODE_E_INVALID_ARGUMENT, fmt::format("interval_level must lie strictly between 0 and 1; it is {}", o.interval_level));
+  require_open_unit(o.interval_level, "interval_level");
   RestrictedFitOptions r;
   r.max_iterations = o.max_iterations;
   r.tolerance = o.tolerance;

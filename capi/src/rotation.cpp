@@ -135,7 +135,7 @@ RotationOptions lode::capi::read_rotation_options(const lode_rotation_options* o
   if (!(o.tolerance > 0.0) || !std::isfinite(o.tolerance))
     fail(LODE_E_INVALID_ARGUMENT, fmt::format("tolerance must be positive; it is {}", o.tolerance));
   r.tolerance = o.tolerance;
-  if (o.threads < 0) fail(LODE_E_INVALID_ARGUMENT, fmt::format("threads must be 0 (all cores) or more; it is {}", o.threads));
+  require_threads(o.threads);
   r.threads = o.threads;
   r.item_names = names;
   return r;
