@@ -161,38 +161,8 @@ def keyed_sheet(doc, names, n, truth):
     return scales
 
 
-def build(office, doc, available):
-    responses = doc.Sheets.getByName("Responses")
-    cur = responses.createCursor()
-    cur.gotoStartOfUsedArea(False)
-    cur.gotoEndOfUsedArea(True)
-    a = cur.RangeAddress
-    names = [responses.getCellByPosition(c, 0).getString() for c in range(1, a.EndColumn + 1)]
-    p, n = len(names), a.EndRow
-    last = col_name(a.EndColumn)
-    data = f"$Responses.$B$1:${last}${n + 1}"
-
-    doc.Sheets.insertNewByName(SHEET, 0)
-    sheet = doc.Sheets.getByName(SHEET)
-    w = Writer(office, doc, sheet, available)
-    f3 = number_format(doc, "0.000")
-    f2 = number_format(doc, "0.00")
-
-    w.text(0, "The volunteer survey, analysed live with Lode's cell functions", bold=True, size=15)
-    w.row += 1
-    w.line(f"Every number on this sheet is a formula over the answers on the Responses sheet ({data}: "
-           f"the item codes in the first row, then one row per volunteer).")
-    w.line("Correct an answer there and the results below follow. The formulas need the Lode extension "
-           "(./lode install); the data are invented (see About).")
-    w.line("Settings used throughout: Pearson correlations, each pair of items on the volunteers who "
-           "answered both; minimum residual extraction, oblimin rotation.", italic=True)
-    w.row += 1
-    w.text(0, "Lode version")
-    if w.uses("LODE.VERSION"):
-        w.formula(1, "=LODE.VERSION()")
-    w.row += 1
-
-    # 1. Factorability
+def factorability_section(w, sheet, data, p, f3):
+    """1. Do the items share enough to look for factors? KMO, Bartlett's test, each item's MSA."""
     w.heading("1. Do the items share enough to look for factors?")
     w.line("KMO compares the items' correlations with their partial correlations, from 0 to 1; Kaiser (1974) "
            "calls .90 and above marvelous, .80s meritorious, .70s middling, .60s mediocre, .50s miserable, "
@@ -221,7 +191,9 @@ def build(office, doc, available):
         w.array(1, f"=LODE.MSA({data})", p, 1, f3)
         w.row += p
 
-    # 2. Factor count
+
+def factor_count_section(w, sheet, data, p, f3):
+    """2. How many factors? Parallel analysis; returns the cell of the suggested count (None without it)."""
     w.heading("2. How many factors?")
     w.line("Parallel analysis (Horn 1965): keep the factors whose eigenvalue beats the same position's "
            f"eigenvalue in random data of the same size (95th percentile, 500 random sets, seed {SEED}).",
@@ -233,7 +205,7 @@ def build(office, doc, available):
         k_cell = address(1, w.row)
         w.row += 1
     w.row += 1
-    if "LODE.PARALLEL" in available:
+    if "LODE.PARALLEL" in w.available:
         w.line("Position", "Observed eigenvalue", "Random data: mean", "Random data: 95th percentile", bold=True)
         for i in range(p):
             sheet.getCellByPosition(0, w.row + i).setValue(i + 1)
@@ -247,10 +219,12 @@ def build(office, doc, available):
                 sheet.getCellByPosition(0, w.row + i).setValue(i + 1)
             w.array(1, f"=LODE.EIGEN({data})", p, 1, f3)
             w.row += p
+    return k_cell
 
-    # 3. Loadings
+
+def loadings_section(w, sheet, data, p, f2, factors_arg):
+    """3. Which items belong to which factor? Returns the number of factor columns written (0 without)."""
     w.heading("3. Which items belong to which factor?")
-    factors_arg = k_cell or ""
     k = 0
     w.line("Loadings (the pattern matrix): how strongly each factor drives each answer. Common practice "
            "counts |loading| of .40 or more as salient; an item salient on two factors, or on none, deserves a look.",
@@ -280,19 +254,11 @@ def build(office, doc, available):
             w.row, saved = top, w.row
             w.array(extra + 1, f'=LODE.COMMUNALITY({data};{factors_arg};"minres";"oblimin")', p, 1, f2)
             w.row = saved
+    return k
 
-    # 4. Fit
-    w.heading("4. How well do the factors reproduce the correlations?")
-    w.line("RMSEA: below .05 close fit, up to .08 reasonable (Browne & Cudeck 1993); TLI of .95 or more is "
-           "good (Hu & Bentler 1999); RMSR, the typical leftover correlation, small next to the correlations.",
-           italic=True)
-    w.line("The chi-square test assumes normally distributed answers; five-point answers are not, so read it "
-           "loosely.", italic=True)
-    if w.uses("LODE.FIT"):
-        rows, _ = w.array(0, f'=LODE.FIT({data};{factors_arg};"minres";"oblimin")', 20, 2)
-        w.row += rows
 
-    # 5. Reliability
+def reliability_section(w, doc, names, n, f2):
+    """5. How consistent is each scale? Alpha and omega of each designed scale, reverse-keyed items reversed."""
     truth = json.load(open(os.path.join(HERE, "volunteer-survey-truth.json")))
     w.heading("5. How consistent is each scale?")
     w.line("Alpha and omega estimate how consistently a scale's items measure one thing; common practice "
@@ -328,7 +294,9 @@ def build(office, doc, available):
             w.formula(6, f"=LODE.OMEGA({rng})", f2)
         w.row += 1
 
-    # 6. Scores
+
+def scores_section(office, w, sheet, data, factors_arg, k, f2):
+    """6. Factor scores of the first ten volunteers, with the cautions beside them."""
     w.heading("6. Factor scores: the first ten volunteers")
     w.line("Each volunteer's estimated standing on each factor of the fit in section 3 (regression method, "
            "answers standardised). A volunteer who skipped some statements is scored from the ones answered "
@@ -350,6 +318,57 @@ def build(office, doc, available):
             block.setArrayFormula(scores)
             block.NumberFormat = f2
         w.row += shown
+
+
+def build(office, doc, available):
+    responses = doc.Sheets.getByName("Responses")
+    cur = responses.createCursor()
+    cur.gotoStartOfUsedArea(False)
+    cur.gotoEndOfUsedArea(True)
+    a = cur.RangeAddress
+    names = [responses.getCellByPosition(c, 0).getString() for c in range(1, a.EndColumn + 1)]
+    p, n = len(names), a.EndRow
+    last = col_name(a.EndColumn)
+    data = f"$Responses.$B$1:${last}${n + 1}"
+
+    doc.Sheets.insertNewByName(SHEET, 0)
+    sheet = doc.Sheets.getByName(SHEET)
+    w = Writer(office, doc, sheet, available)
+    f3 = number_format(doc, "0.000")
+    f2 = number_format(doc, "0.00")
+
+    w.text(0, "The volunteer survey, analysed live with Lode's cell functions", bold=True, size=15)
+    w.row += 1
+    w.line(f"Every number on this sheet is a formula over the answers on the Responses sheet ({data}: "
+           f"the item codes in the first row, then one row per volunteer).")
+    w.line("Correct an answer there and the results below follow. The formulas need the Lode extension "
+           "(./lode install); the data are invented (see About).")
+    w.line("Settings used throughout: Pearson correlations, each pair of items on the volunteers who "
+           "answered both; minimum residual extraction, oblimin rotation.", italic=True)
+    w.row += 1
+    w.text(0, "Lode version")
+    if w.uses("LODE.VERSION"):
+        w.formula(1, "=LODE.VERSION()")
+    w.row += 1
+
+    factorability_section(w, sheet, data, p, f3)
+    k_cell = factor_count_section(w, sheet, data, p, f3)
+    factors_arg = k_cell or ""
+    k = loadings_section(w, sheet, data, p, f2, factors_arg)
+
+    # 4. Fit
+    w.heading("4. How well do the factors reproduce the correlations?")
+    w.line("RMSEA: below .05 close fit, up to .08 reasonable (Browne & Cudeck 1993); TLI of .95 or more is "
+           "good (Hu & Bentler 1999); RMSR, the typical leftover correlation, small next to the correlations.",
+           italic=True)
+    w.line("The chi-square test assumes normally distributed answers; five-point answers are not, so read it "
+           "loosely.", italic=True)
+    if w.uses("LODE.FIT"):
+        rows, _ = w.array(0, f'=LODE.FIT({data};{factors_arg};"minres";"oblimin")', 20, 2)
+        w.row += rows
+
+    reliability_section(w, doc, names, n, f2)
+    scores_section(office, w, sheet, data, factors_arg, k, f2)
 
     # 7. The cautions
     w.heading("Before using scores about people")

@@ -7,7 +7,9 @@
 Each name is replaced as a whole identifier only (word boundaries, `_` counting as part of a word), so
 `lode_fit` becomes `lode_model_compute` while `lode_fit_options` follows its own entry, and
 `LODE_ROTATION_PATTERN` (a key) stays while the rotation criteria (`LODE_ROTATION_VARIMAX`, ...) become
-`LODE_CRITERION_*`. Every new name differs from every old one, so a second run changes nothing. Numbers
+`LODE_CRITERION_*`. Every new name differs from every old one, so a second run changes nothing (the
+one name that is both, `lode_bootstrap`, the 1.x function and the 2.0 handle type, is renamed only
+where it is called). Numbers
 (key values, enum integers) and struct layouts are not touched: only names change.
 
 Folders are walked without `.git`, `build*` folders and this script; files that are not UTF-8 text are
@@ -32,7 +34,8 @@ FUNCTIONS = {
     "lode_mcdonald_omega": "lode_reliability_compute_omega",
     "lode_omega_single_scale": "lode_reliability_compute_scale_omega",
     "lode_compare_loadings": "lode_comparison_compute",
-    "lode_bootstrap": "lode_bootstrap_compute",
+    "lode_rotation_method_from_name": "lode_criterion_from_name",
+    "lode_rotation_method_name": "lode_criterion_name",
     "lode_flag_items": "lode_item_flags_compute",
     "lode_item_flag_options_init": "lode_item_flags_options_init",
     "lode_last_error": "lode_error_message",
@@ -48,6 +51,7 @@ TYPES = {
     "lode_score_method": "lode_estimator",
     "lode_score_missing": "lode_gaps",
     "lode_item_flag_kind": "lode_flag",
+    "lode_bootstrap_result": "lode_bootstrap",
 }
 
 CRITERIA = ["NONE", "VARIMAX", "VARIMAX_KAISER", "QUARTIMAX", "EQUAMAX", "CRAWFORD_FERGUSON", "GEOMIN_ORTHOGONAL",
@@ -78,6 +82,13 @@ RENAMES = {**FUNCTIONS, **TYPES, **ENUM_VALUES}
 
 # Every key of the factor count handle: LODE_COUNT_<X> -> LODE_FACTOR_COUNT_<X>.
 COUNT_KEY = re.compile(r"\bLODE_COUNT_([A-Z0-9_]+)\b")
+# Every key of the reliability handle: LODE_ALPHA[_<X>] -> LODE_RELIABILITY_ALPHA[_<X>], likewise OMEGA.
+RELIABILITY_KEY = re.compile(r"\bLODE_(ALPHA|OMEGA)((?:_[A-Z0-9_]+)?)\b")
+# The 1.x function lode_bootstrap is now lode_bootstrap_compute, while its handle type (1.x
+# lode_bootstrap_result) is now lode_bootstrap: the function is renamed only where it is called or
+# declared (followed by "(") or named as a ctypes attribute (.argtypes, .restype, .errcheck), never
+# the type, so a second run leaves both alone.
+BOOTSTRAP_FUNCTION = re.compile(r"\blode_bootstrap\b(?=\s*\(|\.(?:argtypes|restype|errcheck)\b)")
 # Longest names first, so the alternation never stops at a shorter name (the boundaries make this
 # belt and braces).
 NAME = re.compile(r"\b(" + "|".join(sorted(map(re.escape, RENAMES), key=len, reverse=True)) + r")\b")
@@ -86,7 +97,9 @@ SKIP_DIRS = {".git", "__pycache__", "node_modules"}
 
 def rename(text):
     """The text with every ABI 1.x name replaced by its 2.0 name."""
+    text = BOOTSTRAP_FUNCTION.sub("lode_bootstrap_compute", text)
     text = NAME.sub(lambda m: RENAMES[m.group(1)], text)
+    text = RELIABILITY_KEY.sub(r"LODE_RELIABILITY_\1\2", text)
     return COUNT_KEY.sub(r"LODE_FACTOR_COUNT_\1", text)
 
 

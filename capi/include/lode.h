@@ -387,9 +387,9 @@ enum lode_criterion {
 
 /* The method of a name ("varimax", "oblimin", "geomin", "target", ...; case-insensitive, '-', ' '
  * and '_' alike). An unknown name is LODE_E_INVALID_ARGUMENT with the valid names in the message. */
-LODE_API int lode_rotation_method_from_name(const char* name, int* method);
+LODE_API int lode_criterion_from_name(const char* name, int* method);
 /* The canonical name of a method; NULL for an unknown one. */
-LODE_API const char* lode_rotation_method_name(int method);
+LODE_API const char* lode_criterion_name(int method);
 
 typedef struct lode_rotation_options {
   size_t struct_size;
@@ -621,10 +621,10 @@ LODE_API int lode_reliability_compute_alpha(const lode_data* data, lode_reliabil
 
 /* McDonald's (1999) omega for the scale (the sum) of each factor's items S of `model`, both as ratios
  * to the model-implied variance of that sum, 1' Sigma_SS 1 with Sigma = Lambda Phi Lambda' + Psi:
- * omega total, 1' (Lambda Phi Lambda')_SS 1 / 1' Sigma_SS 1 (LODE_OMEGA: every common factor counts,
+ * omega total, 1' (Lambda Phi Lambda')_SS 1 / 1' Sigma_SS 1 (LODE_RELIABILITY_OMEGA: every common factor counts,
  * cross-loadings and factor correlations included), and the factor's share, (sum over S of the
  * loadings on the scale's factor)^2 / 1' Sigma_SS 1 (LODE_RELIABILITY_OMEGA_FACTOR_SHARE). With one
- * factor both are (sum lambda)^2 / ((sum lambda)^2 + sum psi). Earlier builds gave as LODE_OMEGA of a
+ * factor both are (sum lambda)^2 / ((sum lambda)^2 + sum psi). Earlier builds gave as LODE_RELIABILITY_OMEGA of a
  * several-factor model (sum lambda)^2 / ((sum lambda)^2 + sum psi), which is neither (a bug).
  * `assignment` gives each item's factor (0-based; -1 = in no scale), `count` the number of items;
  * NULL with count 0 assigns each item to the factor of its largest absolute loading (stated in the
@@ -635,7 +635,7 @@ LODE_API int lode_reliability_compute_omega(const lode_model* model, const int64
 /* McDonald's (1999) omega for a single scale from a one-factor fit of `corr` (the correlations of
  * the scale's items alone). Of `opts` only method, max_iterations, tolerance and min_uniqueness are
  * read (NULL = maximum likelihood with the defaults); non-convergence and Heywood cases are stated in
- * the notes and LODE_OMEGA_CONVERGED, not hidden. */
+ * the notes and LODE_RELIABILITY_OMEGA_CONVERGED, not hidden. */
 LODE_API int lode_reliability_compute_scale_omega(const lode_correlation* corr, const lode_model_options* opts,
                                      lode_reliability** out);
 
@@ -669,30 +669,33 @@ LODE_API void lode_reliability_free(lode_reliability* reliability);
 
 enum lode_reliability_key {
   /* alpha (lode_reliability_compute_alpha) - matrices, items x 1 */
-  LODE_ALPHA_IF_DELETED = 700,
-  LODE_ALPHA_STANDARDIZED_IF_DELETED = 701,
-  LODE_ALPHA_ITEM_TOTAL = 702,          /* corrected item-total correlations */
-  LODE_ALPHA_ITEM_MEANS = 703,
-  LODE_ALPHA_ITEM_SDS = 704,
+  LODE_RELIABILITY_ALPHA_IF_DELETED = 700,
+  LODE_RELIABILITY_ALPHA_STANDARDIZED_IF_DELETED = 701,
+  LODE_RELIABILITY_ALPHA_ITEM_TOTAL = 702,      /* corrected item-total correlations */
+  LODE_RELIABILITY_ALPHA_ITEM_MEANS = 703,
+  LODE_RELIABILITY_ALPHA_ITEM_SDS = 704,
   /* alpha - numbers */
-  LODE_ALPHA = 720,                     /* raw alpha */
-  LODE_ALPHA_STANDARDIZED = 721,
-  LODE_ALPHA_MEAN_INTER_ITEM = 722,     /* mean inter-item correlation */
-  LODE_ALPHA_ROWS_TOTAL = 723,
-  LODE_ALPHA_ROWS_USED = 724,
-  LODE_ALPHA_ITEMS = 725,
+  LODE_RELIABILITY_ALPHA = 720,                 /* raw alpha */
+  LODE_RELIABILITY_ALPHA_STANDARDIZED = 721,
+  LODE_RELIABILITY_ALPHA_MEAN_INTER_ITEM = 722, /* mean inter-item correlation */
+  LODE_RELIABILITY_ALPHA_ROWS_TOTAL = 723,
+  LODE_RELIABILITY_ALPHA_ROWS_USED = 724,
+  LODE_RELIABILITY_ALPHA_ITEMS = 725,
   /* omega (lode_reliability_compute_omega) - matrices */
-  LODE_OMEGA = 740,                     /* factors x 1: omega total of each factor's scale (NaN: no items) */
-  LODE_OMEGA_ASSIGNMENT = 741,          /* items x 1: the factor of each item (0-based, -1 = none) */
-  LODE_OMEGA_SUM_LOADINGS = 742,        /* factors x 1 */
-  LODE_OMEGA_SUM_UNIQUENESSES = 743,    /* factors x 1 */
-  LODE_OMEGA_LOADINGS = 744,            /* single scale only: items x 1, the one-factor loadings */
-  LODE_OMEGA_UNIQUENESSES = 745,        /* single scale only: items x 1 */
-  LODE_RELIABILITY_OMEGA_FACTOR_SHARE = 746,   /* factors x 1: the factor's share of its scale's variance */
-  LODE_RELIABILITY_OMEGA_SCALE_VARIANCE = 747, /* factors x 1: 1' Sigma_SS 1, the model-implied variance of the sum */
-  LODE_RELIABILITY_REVERSED = 748,      /* items x 1: 1 where the item was reverse-scored in its scale, else 0 */
+  LODE_RELIABILITY_OMEGA = 740,                 /* factors x 1: omega total of each factor's scale
+                                                   (NaN: no items) */
+  LODE_RELIABILITY_OMEGA_ASSIGNMENT = 741,      /* items x 1: the factor of each item (0-based, -1 = none) */
+  LODE_RELIABILITY_OMEGA_SUM_LOADINGS = 742,    /* factors x 1 */
+  LODE_RELIABILITY_OMEGA_SUM_UNIQUENESSES = 743, /* factors x 1 */
+  LODE_RELIABILITY_OMEGA_LOADINGS = 744,        /* single scale only: items x 1, the one-factor loadings */
+  LODE_RELIABILITY_OMEGA_UNIQUENESSES = 745,    /* single scale only: items x 1 */
+  LODE_RELIABILITY_OMEGA_FACTOR_SHARE = 746,    /* factors x 1: the factor's share of its scale's variance */
+  LODE_RELIABILITY_OMEGA_SCALE_VARIANCE = 747,  /* factors x 1: 1' Sigma_SS 1, the model-implied variance
+                                                   of the sum */
+  LODE_RELIABILITY_REVERSED = 748,              /* items x 1: 1 where the item was reverse-scored in its
+                                                   scale, else 0 */
   /* omega - numbers */
-  LODE_OMEGA_CONVERGED = 760,           /* single scale: the one-factor fit converged (1 or 0); model: 1 */
+  LODE_RELIABILITY_OMEGA_CONVERGED = 760,       /* single scale: the one-factor fit converged (1 or 0); model: 1 */
   /* text, both kinds */
   LODE_RELIABILITY_NOTES = 750
 };
@@ -940,7 +943,7 @@ typedef struct lode_bootstrap_options {
 
 LODE_API int lode_bootstrap_options_init(lode_bootstrap_options* opts, size_t struct_size);
 
-typedef struct lode_bootstrap_result lode_bootstrap_result;
+typedef struct lode_bootstrap lode_bootstrap;
 
 /* Percentile bootstrap (Efron & Tibshirani 1993) of the factor solution that lode_model_compute(corr, fit) gives:
  * the respondents behind `corr` (raw data; a correlation handle made from a matrix is refused) are
@@ -952,9 +955,9 @@ typedef struct lode_bootstrap_result lode_bootstrap_result;
  * Replicates that fail or do not converge are counted, named by reason and excluded. A full-sample fit
  * that does not converge is LODE_E_NOT_CONVERGED; fewer than 2 usable replicates LODE_E_INSUFFICIENT_DATA. */
 LODE_API int lode_bootstrap_compute(const lode_correlation* corr, const lode_model_options* fit,
-                            const lode_bootstrap_options* opts, lode_bootstrap_result** out);
+                                    const lode_bootstrap_options* opts, lode_bootstrap** out);
 
-LODE_API void lode_bootstrap_free(lode_bootstrap_result* result);
+LODE_API void lode_bootstrap_free(lode_bootstrap* bootstrap);
 
 enum lode_bootstrap_key {
   /* matrices: lode_bootstrap_matrix. Estimates are the full-sample solution's; lower and upper the
@@ -992,10 +995,10 @@ enum lode_bootstrap_key {
   LODE_BOOTSTRAP_NOTES = 952
 };
 
-LODE_API int lode_bootstrap_matrix(const lode_bootstrap_result* result, int key, double* out, size_t capacity,
+LODE_API int lode_bootstrap_matrix(const lode_bootstrap* bootstrap, int key, double* out, size_t capacity,
                                    int64_t* rows, int64_t* cols);
-LODE_API int lode_bootstrap_value(const lode_bootstrap_result* result, int key, double* value);
-LODE_API int lode_bootstrap_text(const lode_bootstrap_result* result, int key, char* out, size_t capacity,
+LODE_API int lode_bootstrap_value(const lode_bootstrap* bootstrap, int key, double* value);
+LODE_API int lode_bootstrap_text(const lode_bootstrap* bootstrap, int key, char* out, size_t capacity,
                                  size_t* length);
 
 /* ------------------------------------------------------------------------------------------- */

@@ -39,15 +39,20 @@ def strip_comments(text):
     return re.sub(r"//[^\n]*", "", text)
 
 
+def _entries(body, separator):
+    """The non-empty entries of a declaration body split at `separator`, white space folded."""
+    for entry in body.split(separator):
+        entry = " ".join(entry.split())
+        if entry:
+            yield entry
+
+
 def enums(text):
     """[(enum type, [(name, value), ...]), ...] in header order."""
     out = []
     for m in re.finditer(r"\benum\s+(lode_\w+)\s*\{(.*?)\}\s*;", text, flags=re.S):
         values = []
-        for entry in m.group(2).split(","):
-            entry = " ".join(entry.split())
-            if not entry:
-                continue
+        for entry in _entries(m.group(2), ","):
             e = re.fullmatch(r"(LODE_\w+)\s*=\s*(-?\d+)", entry)
             if not e:
                 raise SystemExit(f"gen_abi: enum {m.group(1)}: cannot read '{entry}' (give every value a number)")
@@ -64,10 +69,7 @@ def structs(text):
         if m.group(3) != name:
             raise SystemExit(f"gen_abi: struct {name} is typedef'd as {m.group(3)}")
         fields = []
-        for decl in body.split(";"):
-            decl = " ".join(decl.split())
-            if not decl:
-                continue
+        for decl in _entries(body, ";"):
             d = re.fullmatch(r"((?:const\s+)?\w+\s*\**)\s*(\w+(?:\s*,\s*\w+)*)", decl)
             if not d:
                 raise SystemExit(f"gen_abi: struct {name}: cannot read the field '{decl}'")

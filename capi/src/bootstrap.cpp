@@ -1,4 +1,4 @@
-// Bootstrap intervals through the C ABI: lode_bootstrap_options and the lode_bootstrap_result handle.
+// Bootstrap intervals through the C ABI: lode_bootstrap_options and the lode_bootstrap handle.
 #include "boundary.hpp"
 #include "handles.hpp"
 #include "keys.hpp"
@@ -14,7 +14,7 @@
 using namespace lode;
 using namespace lode::capi;
 
-struct lode_bootstrap_result {
+struct lode_bootstrap {
   BootstrapResult result;
   Index items = 0, factors = 0;
   bool oblique = false;
@@ -41,9 +41,8 @@ BootstrapOptions read_bootstrap_options(const lode_bootstrap_options* opts, cons
   const lode_bootstrap_options o = merged_bootstrap_options(opts);
   if (o.replicates < 2 || o.replicates > 1000000)
     fail(LODE_E_INVALID_ARGUMENT, fmt::format("replicates must be between 2 and 1000000; it is {}", o.replicates));
-  if (!(o.level > 0.0 && o.level < 1.0))
-    fail(LODE_E_INVALID_ARGUMENT, fmt::format("level must lie strictly between 0 and 1; it is {}", o.level));
-  if (o.threads < 0) fail(LODE_E_INVALID_ARGUMENT, fmt::format("threads must be 0 (all cores) or more; it is {}", o.threads));
+  require_open_unit(o.level, "level");
+  require_threads(o.threads);
   if (o.replicate_random_starts < -1 || o.replicate_random_starts > 100000)
     fail(LODE_E_INVALID_ARGUMENT,
          fmt::format("replicate_random_starts must be -1 (as the rotation options say) or 0 to 100000; it is {}",
@@ -74,16 +73,16 @@ Matrix stack_rows(const std::vector<M>& reps, Index width) {
   return out;
 }
 
-const BootstrapResult& kept(const lode_bootstrap_result& b) {
+const BootstrapResult& kept(const lode_bootstrap& b) {
   if (!b.kept)
     fail(LODE_E_INVALID_ARGUMENT,
          "this key needs the replicates, which were not kept: set keep_replicates in lode_bootstrap_options");
   return b.result;
 }
 
-using Boot = lode_bootstrap_result;
+using Boot = lode_bootstrap;
 
-constexpr HandleNames bootstrap_handle{"lode_bootstrap_result", "lode_bootstrap", "result"};
+constexpr HandleNames bootstrap_handle{"lode_bootstrap", "lode_bootstrap", "result"};
 
 constexpr MatrixKey<Boot> bootstrap_matrices[] = {
     {LODE_BOOTSTRAP_LOADINGS, [](const Boot& b) -> Matrix { return b.result.loadings; }},
@@ -131,7 +130,7 @@ extern "C" {
 LODE_OPTIONS_INIT(lode_bootstrap_options, bootstrap_defaults)
 
 LODE_API int lode_bootstrap_compute(const lode_correlation* corr, const lode_model_options* fit,
-                                    const lode_bootstrap_options* opts, lode_bootstrap_result** out) {
+                                    const lode_bootstrap_options* opts, lode_bootstrap** out) {
   return compute_handle(corr, "corr", out, [&] {
     // Every option is read and checked before any long work.
     FitSetup setup = read_fit_options(fit, corr);
@@ -148,7 +147,7 @@ LODE_API int lode_bootstrap_compute(const lode_correlation* corr, const lode_mod
     if (setup.rotation) ro = *setup.rotation;
     ro.item_names = corr->options.item_names;
 
-    auto b = std::make_unique<lode_bootstrap_result>();
+    auto b = std::make_unique<lode_bootstrap>();
     b->result = bootstrap_factor_solution(data.values, setup.factors, eo, ro, bo);
     b->items = b->result.loadings.rows();
     b->factors = b->result.loadings.cols();
@@ -158,8 +157,8 @@ LODE_API int lode_bootstrap_compute(const lode_correlation* corr, const lode_mod
   });
 }
 
-LODE_API void lode_bootstrap_free(lode_bootstrap_result* result) { delete result; }
+LODE_API void lode_bootstrap_free(lode_bootstrap* result) { delete result; }
 
-LODE_KEY_GETTERS(lode_bootstrap_result, lode_bootstrap, bootstrap_handle, bootstrap_matrices, bootstrap_values, bootstrap_texts)
+LODE_KEY_GETTERS(lode_bootstrap, lode_bootstrap, bootstrap_handle, bootstrap_matrices, bootstrap_values, bootstrap_texts)
 
 }  // extern "C"

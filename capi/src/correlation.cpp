@@ -69,7 +69,7 @@ CorrelationOptions lode::capi::read_correlation_options(const lode_correlation_o
     fail(LODE_E_INVALID_ARGUMENT,
          fmt::format("min_pair_observations must be at least 2; it is {}", o.min_pair_observations));
   co.min_pair_observations = static_cast<Index>(o.min_pair_observations);
-  if (o.threads < 0) fail(LODE_E_INVALID_ARGUMENT, fmt::format("threads must be 0 (all cores) or more; it is {}", o.threads));
+  require_threads(o.threads);
   co.threads = o.threads;
   if (o.max_categories < 2 || o.max_categories > 100)
     fail(LODE_E_INVALID_ARGUMENT, fmt::format("max_categories must be between 2 and 100; it is {}", o.max_categories));

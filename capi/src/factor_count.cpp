@@ -99,7 +99,7 @@ FactorCountOptions read_factor_count_options(const lode_factor_count_options* op
   p.percentile = o.percentile;
   p.source = core_value(source_codes, o.source, "random data source");
   p.seed = o.seed;
-  if (o.threads < 0) fail(LODE_E_INVALID_ARGUMENT, fmt::format("threads must be 0 (all cores) or more; it is {}", o.threads));
+  require_threads(o.threads);
   p.threads = o.threads;
   p.progress = progress_of(o.progress, o.progress_user);
   return f;

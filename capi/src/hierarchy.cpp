@@ -81,13 +81,7 @@ LODE_API int lode_schmid_leiman_compute(const lode_model* model, const lode_schm
   return compute_handle(model, "model", out, [&] {
     SchmidLeimanOptions so = read_schmid_leiman_options(opts);
     so.item_names = model->item_names;
-    const Index items = model->rotation.pattern.rows();
-    if (assignment == nullptr && count != 0)
-      fail(LODE_E_INVALID_ARGUMENT, fmt::format("argument 'assignment' is NULL but count is {}", count));
-    if (assignment != nullptr) {
-      if (count != items) fail(LODE_E_INVALID_ARGUMENT, fmt::format("{} assignments were given for {} items", count, items));
-      for (int64_t j = 0; j < count; ++j) so.assignment.push_back(static_cast<Index>(assignment[j]));
-    }
+    so.assignment = assignment_of(*model, assignment, count);
     auto r = std::make_unique<lode_schmid_leiman>();
     r->result = schmid_leiman(model->rotation.pattern, model->rotation.factor_correlations, so);
     return r;

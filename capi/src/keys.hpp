@@ -30,7 +30,7 @@ struct TextKey {
   std::string (*read)(const Handle&);
 };
 
-// How a handle kind is named in messages: its C type ("lode_bootstrap_result"), the prefix of its
+// How a handle kind is named in messages: its C type ("lode_bootstrap"), the prefix of its
 // functions ("lode_bootstrap") and the name of the handle argument of its getters ("result").
 struct HandleNames {
   const char* type;

@@ -233,8 +233,7 @@ FitSetup lode::capi::read_fit_options(const lode_model_options* opts, const lode
   const lode_model_options o = merged_model_options(opts);
   FitSetup setup;
   setup.extraction = extraction_options_of(o, corr);
-  if (!(o.interval_level > 0.0 && o.interval_level < 1.0))
-    fail(LODE_E_INVALID_ARGUMENT, fmt::format("interval_level must lie strictly between 0 and 1; it is {}", o.interval_level));
+  require_open_unit(o.interval_level, "interval_level");
   setup.interval_level = o.interval_level;
   if (o.factors < 0) fail(LODE_E_INVALID_ARGUMENT, fmt::format("factors must be 0 (suggested) or more; it is {}", o.factors));
   setup.factors = o.factors;
@@ -243,6 +242,23 @@ FitSetup lode::capi::read_fit_options(const lode_model_options* opts, const lode
   setup.progress = o.progress;
   setup.progress_user = o.progress_user;
   return setup;
+}
+
+std::vector<Index> lode::capi::assignment_of(const lode_model& model, const int64_t* assignment, int64_t count) {
+  const Index items = model.rotation.pattern.rows(), factors = model.rotation.pattern.cols();
+  if (assignment == nullptr && count != 0)
+    fail(LODE_E_INVALID_ARGUMENT, fmt::format("argument 'assignment' is NULL but count is {}", count));
+  std::vector<Index> out;
+  if (assignment == nullptr) return out;
+  if (count != items) fail(LODE_E_INVALID_ARGUMENT, fmt::format("{} assignments were given for {} items", count, items));
+  for (int64_t j = 0; j < count; ++j) {
+    if (assignment[j] < -1 || assignment[j] >= factors)
+      fail(LODE_E_INVALID_ARGUMENT,
+           fmt::format("{} is assigned to factor {}; factors are 0 to {} (or -1 for none)",
+                       item_label(model.item_names, static_cast<Index>(j)), assignment[j], factors - 1));
+    out.push_back(static_cast<Index>(assignment[j]));
+  }
+  return out;
 }
 
 ExtractionOptions lode::capi::read_extraction_options(const lode_model_options* opts, const lode_correlation* corr) {

@@ -43,6 +43,10 @@ RotationMethod rotation_method_of(int method);
 // and checked, with the defaults of lode_model_options_init for the rest.
 ExtractionOptions read_extraction_options(const lode_model_options* opts, const lode_correlation* corr);
 
+// An item-to-factor assignment for `model` (count entries, one per item: a 0-based factor or -1 for
+// none), checked; NULL with count 0 = none given (empty: each item on its factor of largest loading).
+std::vector<Index> assignment_of(const lode_model& model, const int64_t* assignment, int64_t count);
+
 }  // namespace lode::capi
 
 struct lode_model {

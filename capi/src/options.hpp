@@ -37,6 +37,18 @@ int c_code(const Code<E> (&table)[N], E value) {
   return -1;
 }
 
+// An option that must lie strictly between 0 and 1 (a level, a share, a cut, a tolerance), checked by
+// name.
+inline void require_open_unit(double value, const char* name) {
+  if (!(value > 0.0 && value < 1.0))
+    fail(LODE_E_INVALID_ARGUMENT, fmt::format("{} must lie strictly between 0 and 1; it is {}", name, value));
+}
+
+// A thread count: 0 (all cores) or more.
+inline void require_threads(int threads) {
+  if (threads < 0) fail(LODE_E_INVALID_ARGUMENT, fmt::format("threads must be 0 (all cores) or more; it is {}", threads));
+}
+
 }  // namespace lode::capi
 
 #define LODE_OPTION_DEFAULT(field, value) d.field = value;

@@ -53,24 +53,6 @@ Vector per_scale(const lode_reliability& r, Field field) {
   return v;
 }
 
-// The item-to-factor assignment of lode_reliability_compute_omega, checked (empty: by largest loading).
-std::vector<Index> assignment_of(const lode_model& model, const int64_t* assignment, int64_t count) {
-  const Index items = model.rotation.pattern.rows(), factors = model.rotation.pattern.cols();
-  if (assignment == nullptr && count != 0)
-    fail(LODE_E_INVALID_ARGUMENT, fmt::format("argument 'assignment' is NULL but count is {}", count));
-  std::vector<Index> out;
-  if (assignment == nullptr) return out;
-  if (count != items) fail(LODE_E_INVALID_ARGUMENT, fmt::format("{} assignments were given for {} items", count, items));
-  for (int64_t j = 0; j < count; ++j) {
-    if (assignment[j] < -1 || assignment[j] >= factors)
-      fail(LODE_E_INVALID_ARGUMENT,
-           fmt::format("{} is assigned to factor {}; factors are 0 to {} (or -1 for none)",
-                       item_label(model.item_names, static_cast<Index>(j)), assignment[j], factors - 1));
-    out.push_back(static_cast<Index>(assignment[j]));
-  }
-  return out;
-}
-
 // lode_reliability_options: field, default. Keying as scored; no assignment (largest loading) and no
 // item reverse-keyed unless the caller says so.
 #define LODE_RELIABILITY_OPTIONS_FIELDS(F) \
@@ -105,20 +87,20 @@ Matrix reversed_of(const lode_reliability& r) {
 constexpr HandleNames reliability_handle{"lode_reliability", "lode_reliability", "reliability"};
 
 constexpr MatrixKey<lode_reliability> reliability_matrices[] = {
-    {LODE_ALPHA_IF_DELETED, [](const lode_reliability& r) -> Matrix { return alpha_of(r).alpha_if_deleted; }},
-    {LODE_ALPHA_STANDARDIZED_IF_DELETED,
+    {LODE_RELIABILITY_ALPHA_IF_DELETED, [](const lode_reliability& r) -> Matrix { return alpha_of(r).alpha_if_deleted; }},
+    {LODE_RELIABILITY_ALPHA_STANDARDIZED_IF_DELETED,
      [](const lode_reliability& r) -> Matrix { return alpha_of(r).alpha_standardized_if_deleted; }},
-    {LODE_ALPHA_ITEM_TOTAL, [](const lode_reliability& r) -> Matrix { return alpha_of(r).item_total_correlation; }},
-    {LODE_ALPHA_ITEM_MEANS, [](const lode_reliability& r) -> Matrix { return alpha_of(r).item_means; }},
-    {LODE_ALPHA_ITEM_SDS, [](const lode_reliability& r) -> Matrix { return alpha_of(r).item_sds; }},
-    {LODE_OMEGA, [](const lode_reliability& r) -> Matrix { return per_scale(r, [](const ScaleOmega& s) { return s.omega; }); }},
-    {LODE_OMEGA_ASSIGNMENT, [](const lode_reliability& r) -> Matrix { return vector_of(omega_of(r).assignment); }},
-    {LODE_OMEGA_SUM_LOADINGS,
+    {LODE_RELIABILITY_ALPHA_ITEM_TOTAL, [](const lode_reliability& r) -> Matrix { return alpha_of(r).item_total_correlation; }},
+    {LODE_RELIABILITY_ALPHA_ITEM_MEANS, [](const lode_reliability& r) -> Matrix { return alpha_of(r).item_means; }},
+    {LODE_RELIABILITY_ALPHA_ITEM_SDS, [](const lode_reliability& r) -> Matrix { return alpha_of(r).item_sds; }},
+    {LODE_RELIABILITY_OMEGA, [](const lode_reliability& r) -> Matrix { return per_scale(r, [](const ScaleOmega& s) { return s.omega; }); }},
+    {LODE_RELIABILITY_OMEGA_ASSIGNMENT, [](const lode_reliability& r) -> Matrix { return vector_of(omega_of(r).assignment); }},
+    {LODE_RELIABILITY_OMEGA_SUM_LOADINGS,
      [](const lode_reliability& r) -> Matrix { return per_scale(r, [](const ScaleOmega& s) { return s.sum_loadings; }); }},
-    {LODE_OMEGA_SUM_UNIQUENESSES,
+    {LODE_RELIABILITY_OMEGA_SUM_UNIQUENESSES,
      [](const lode_reliability& r) -> Matrix { return per_scale(r, [](const ScaleOmega& s) { return s.sum_uniquenesses; }); }},
-    {LODE_OMEGA_LOADINGS, [](const lode_reliability& r) -> Matrix { return single_scale_of(r).loadings; }},
-    {LODE_OMEGA_UNIQUENESSES, [](const lode_reliability& r) -> Matrix { return single_scale_of(r).uniquenesses; }},
+    {LODE_RELIABILITY_OMEGA_LOADINGS, [](const lode_reliability& r) -> Matrix { return single_scale_of(r).loadings; }},
+    {LODE_RELIABILITY_OMEGA_UNIQUENESSES, [](const lode_reliability& r) -> Matrix { return single_scale_of(r).uniquenesses; }},
     {LODE_RELIABILITY_OMEGA_FACTOR_SHARE,
      [](const lode_reliability& r) -> Matrix { return per_scale(r, [](const ScaleOmega& s) { return s.factor_share; }); }},
     {LODE_RELIABILITY_OMEGA_SCALE_VARIANCE,
@@ -127,13 +109,13 @@ constexpr MatrixKey<lode_reliability> reliability_matrices[] = {
 };
 
 constexpr ValueKey<lode_reliability> reliability_values[] = {
-    {LODE_ALPHA, [](const lode_reliability& r) { return alpha_of(r).alpha; }},
-    {LODE_ALPHA_STANDARDIZED, [](const lode_reliability& r) { return alpha_of(r).alpha_standardized; }},
-    {LODE_ALPHA_MEAN_INTER_ITEM, [](const lode_reliability& r) { return alpha_of(r).mean_inter_item_correlation; }},
-    {LODE_ALPHA_ROWS_TOTAL, [](const lode_reliability& r) { return number(alpha_of(r).rows_total); }},
-    {LODE_ALPHA_ROWS_USED, [](const lode_reliability& r) { return number(alpha_of(r).rows_used); }},
-    {LODE_ALPHA_ITEMS, [](const lode_reliability& r) { return number(alpha_of(r).items); }},
-    {LODE_OMEGA_CONVERGED,
+    {LODE_RELIABILITY_ALPHA, [](const lode_reliability& r) { return alpha_of(r).alpha; }},
+    {LODE_RELIABILITY_ALPHA_STANDARDIZED, [](const lode_reliability& r) { return alpha_of(r).alpha_standardized; }},
+    {LODE_RELIABILITY_ALPHA_MEAN_INTER_ITEM, [](const lode_reliability& r) { return alpha_of(r).mean_inter_item_correlation; }},
+    {LODE_RELIABILITY_ALPHA_ROWS_TOTAL, [](const lode_reliability& r) { return number(alpha_of(r).rows_total); }},
+    {LODE_RELIABILITY_ALPHA_ROWS_USED, [](const lode_reliability& r) { return number(alpha_of(r).rows_used); }},
+    {LODE_RELIABILITY_ALPHA_ITEMS, [](const lode_reliability& r) { return number(alpha_of(r).items); }},
+    {LODE_RELIABILITY_OMEGA_CONVERGED,
      [](const lode_reliability& r) {
        omega_of(r);
        return flag(!r.single || r.single_scale.convergence.converged);

@@ -118,8 +118,7 @@ RotationOptions lode::capi::read_rotation_options(const lode_rotation_options* o
                                                   const std::vector<std::string>& names) {
   const lode_rotation_options o = merged_rotation_options(opts);
   RotationOptions r;
-  if (!known_criterion(o.method)) fail(LODE_E_INVALID_ARGUMENT, fmt::format("unknown rotation method {}", o.method));
-  r.method = static_cast<RotationMethod>(o.method);
+  r.method = rotation_method_of(o.method);
   r.normalize = o.normalize != 0;
   r.gamma = finite_option(o.gamma, "gamma");
   r.kappa = finite_option(o.kappa, "kappa");
@@ -136,7 +135,7 @@ RotationOptions lode::capi::read_rotation_options(const lode_rotation_options* o
   if (!(o.tolerance > 0.0) || !std::isfinite(o.tolerance))
     fail(LODE_E_INVALID_ARGUMENT, fmt::format("tolerance must be positive; it is {}", o.tolerance));
   r.tolerance = o.tolerance;
-  if (o.threads < 0) fail(LODE_E_INVALID_ARGUMENT, fmt::format("threads must be 0 (all cores) or more; it is {}", o.threads));
+  require_threads(o.threads);
   r.threads = o.threads;
   r.item_names = names;
   return r;
@@ -144,7 +143,7 @@ RotationOptions lode::capi::read_rotation_options(const lode_rotation_options* o
 
 extern "C" {
 
-LODE_API int lode_rotation_method_from_name(const char* name, int* method) {
+LODE_API int lode_criterion_from_name(const char* name, int* method) {
   return guarded([&] {
     require_pointer(name, "name");
     require_pointer(method, "method");
@@ -152,7 +151,7 @@ LODE_API int lode_rotation_method_from_name(const char* name, int* method) {
   });
 }
 
-LODE_API const char* lode_rotation_method_name(int method) {
+LODE_API const char* lode_criterion_name(int method) {
   return known_criterion(method) ? rotation_name(static_cast<RotationMethod>(method)) : nullptr;
 }
 

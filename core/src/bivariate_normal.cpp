@@ -19,29 +19,31 @@ template <int N>
 struct GaussLegendreHalf {
   std::array<double, N / 2> x{};
   std::array<double, N / 2> w{};
+  // P_N(z) into p0 and P_{N-1}(z) into p1, by Bonnet's three-term recurrence.
+  static void legendre(double z, double& p0, double& p1) {
+    p0 = 1.0;
+    p1 = 0.0;
+    for (int j = 1; j <= N; ++j) {
+      const double p2 = p1;
+      p1 = p0;
+      p0 = ((2.0 * j - 1.0) * z * p1 - (j - 1.0) * p2) / j;
+    }
+  }
   GaussLegendreHalf() {
     for (int i = 0; i < N / 2; ++i) {
       double z = std::cos(kPi * (i + 0.75) / (N + 0.5));
       double dp = 0.0;
       for (int it = 0; it < 100; ++it) {
-        double p0 = 1.0, p1 = 0.0;
-        for (int j = 1; j <= N; ++j) {
-          const double p2 = p1;
-          p1 = p0;
-          p0 = ((2.0 * j - 1.0) * z * p1 - (j - 1.0) * p2) / j;
-        }
+        double p0, p1;
+        legendre(z, p0, p1);
         dp = N * (z * p0 - p1) / (z * z - 1.0);
         const double step = p0 / dp;
         z -= step;
         if (std::abs(step) < 1e-16) break;
       }
       // Recompute the derivative at the converged node for the weight.
-      double p0 = 1.0, p1 = 0.0;
-      for (int j = 1; j <= N; ++j) {
-        const double p2 = p1;
-        p1 = p0;
-        p0 = ((2.0 * j - 1.0) * z * p1 - (j - 1.0) * p2) / j;
-      }
+      double p0, p1;
+      legendre(z, p0, p1);
       dp = N * (z * p0 - p1) / (z * z - 1.0);
       x[static_cast<std::size_t>(i)] = z;
       w[static_cast<std::size_t>(i)] = 2.0 / ((1.0 - z * z) * dp * dp);

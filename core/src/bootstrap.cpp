@@ -30,8 +30,12 @@ Matrix phi_or_identity(const Matrix& phi, Index k) { return phi.size() == 0 ? Ma
 
 }  // namespace
 
-BootstrapResult bootstrap_solution(const Matrix& data, const FactorSolution& full, const SolutionFitter& fit,
-                                   const BootstrapOptions& options) {
+namespace {
+
+// The bootstrap's inputs, checked: the options, the fitting procedure and the full-sample solution
+// against the data's shape.
+void check_bootstrap_inputs(const Matrix& data, const FactorSolution& full, const SolutionFitter& fit,
+                            const BootstrapOptions& options) {
   const Index n = data.rows(), p = data.cols();
   const Index k = full.loadings.cols();
   const Index b = options.replicates;
@@ -54,6 +58,16 @@ BootstrapResult bootstrap_solution(const Matrix& data, const FactorSolution& ful
   if (!full.loadings.allFinite() || !full.uniquenesses.allFinite())
     throw Error(ErrorCode::invalid_argument, "the full-sample solution contains a missing or infinite value");
   if (n < 3) throw Error(ErrorCode::insufficient_data, fmt::format("the data have {} rows; the bootstrap needs at least 3", n));
+}
+
+}  // namespace
+
+BootstrapResult bootstrap_solution(const Matrix& data, const FactorSolution& full, const SolutionFitter& fit,
+                                   const BootstrapOptions& options) {
+  const Index n = data.rows(), p = data.cols();
+  const Index k = full.loadings.cols();
+  const Index b = options.replicates;
+  check_bootstrap_inputs(data, full, fit, options);
 
   CorrelationOptions corr = options.correlation;
   corr.threads = 1;               // the replicates are the parallel units

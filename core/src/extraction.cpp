@@ -7,6 +7,7 @@
 // Newton methods for optimization problems with simple constraints"; BFGS update, Nocedal & Wright
 // 2006, ch. 6).
 #include "lode/extraction.hpp"
+#include "positive_definite.hpp"
 
 #include "lode/correlation.hpp"
 #include "symmetric_eigen.hpp"
@@ -19,6 +20,9 @@
 #include <numeric>
 
 namespace lode {
+
+using detail::cholesky_or_fail;
+using detail::smallest_eigenvalue_text;
 
 namespace {
 
@@ -250,11 +254,6 @@ double least_squares_objective(const Matrix& r, const Matrix& l, const Vector& u
   return 0.5 * resid.squaredNorm();
 }
 
-std::string smallest_eigenvalue_text(const Matrix& r) {
-  const Vector ev = eigenvalues_descending(r);
-  return fmt::format("{:.3g}", ev(ev.size() - 1));
-}
-
 void check_options(const ExtractionOptions& o, Index p) {
   if (o.max_iterations < 1)
     throw Error(ErrorCode::invalid_argument,
@@ -327,6 +326,39 @@ Matrix implied_correlation(const Matrix& loadings, const Vector& uniquenesses) {
   s.diagonal() += uniquenesses;
   return s;
 }
+
+namespace {
+
+// Every item whose uniqueness is held at the lower bound (bounded methods) or whose communality reaches
+// 1, listed in out.heywood with a note (common practice: improper estimates).
+void flag_heywood_cases(ExtractionResult& out, const ExtractionOptions& options) {
+  const Vector& u = out.uniquenesses;
+  const Index p = u.size();
+  const bool bounded =
+      options.method == ExtractionMethod::minimum_residual || options.method == ExtractionMethod::maximum_likelihood;
+  for (Index i = 0; i < p; ++i) {
+    const bool at_bound = bounded && u(i) <= options.min_uniqueness * (1.0 + 1e-6);
+    const bool over = out.communalities(i) >= 1.0 - 1e-12;
+    if (!at_bound && !over) continue;
+    HeywoodItem hw;
+    hw.item = i;
+    hw.label = item_label(options.item_names, i);
+    hw.communality = out.communalities(i);
+    hw.uniqueness = u(i);
+    hw.at_bound = at_bound;
+    out.heywood.push_back(hw);
+    out.notes.push_back(
+        at_bound ? fmt::format("Heywood case: {} has its uniqueness held at the lower bound {} (communality {:.4f}); "
+                               "its estimates are improper, which often means too many factors or too few items per "
+                               "factor",
+                               hw.label, options.min_uniqueness, hw.communality)
+                 : fmt::format("Heywood case: {} has communality {:.4f}, at or above 1 (uniqueness {:.4f}); its "
+                               "estimates are improper, which often means too many factors or too few items per factor",
+                               hw.label, hw.communality, hw.uniqueness));
+  }
+}
+
+}  // namespace
 
 ExtractionResult extract_factors(const Matrix& r_in, int factors, const ExtractionOptions& options) {
   CorrelationOptions co;
@@ -462,28 +494,7 @@ ExtractionResult extract_factors(const Matrix& r_in, int factors, const Extracti
   out.factor_variance = l.colwise().squaredNorm().transpose();
   if (options.method != ExtractionMethod::maximum_likelihood) out.objective = least_squares_objective(r, l, u);
 
-  const bool bounded =
-      options.method == ExtractionMethod::minimum_residual || options.method == ExtractionMethod::maximum_likelihood;
-  for (Index i = 0; i < p; ++i) {
-    const bool at_bound = bounded && u(i) <= options.min_uniqueness * (1.0 + 1e-6);
-    const bool over = out.communalities(i) >= 1.0 - 1e-12;
-    if (!at_bound && !over) continue;
-    HeywoodItem hw;
-    hw.item = i;
-    hw.label = item_label(options.item_names, i);
-    hw.communality = out.communalities(i);
-    hw.uniqueness = u(i);
-    hw.at_bound = at_bound;
-    out.heywood.push_back(hw);
-    out.notes.push_back(
-        at_bound ? fmt::format("Heywood case: {} has its uniqueness held at the lower bound {} (communality {:.4f}); "
-                               "its estimates are improper, which often means too many factors or too few items per "
-                               "factor",
-                               hw.label, options.min_uniqueness, hw.communality)
-                 : fmt::format("Heywood case: {} has communality {:.4f}, at or above 1 (uniqueness {:.4f}); its "
-                               "estimates are improper, which often means too many factors or too few items per factor",
-                               hw.label, hw.communality, hw.uniqueness));
-  }
+  flag_heywood_cases(out, options);
   if (!out.convergence.converged)
     out.notes.push_back(fmt::format("{} did not converge in {} iterations (criterion {:.3g}, tolerance {:.3g}); treat "
                                     "the results with caution",

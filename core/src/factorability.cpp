@@ -2,6 +2,7 @@
 // jiffy"; Kaiser & Rice 1974), Kaiser's (1974, "An index of factorial simplicity") verbal labels,
 // Bartlett's (1950, "Tests of significance in factor analysis") test of sphericity.
 #include "lode/factorability.hpp"
+#include "positive_definite.hpp"
 
 #include "lode/correlation.hpp"
 #include "lode/distributions.hpp"
@@ -13,17 +14,15 @@
 
 namespace lode {
 
+using detail::cholesky_or_fail;
+using detail::smallest_eigenvalue_text;
+
 namespace {
 
 Matrix checked_matrix(const Matrix& r, const std::vector<std::string>& item_names = {}) {
   CorrelationOptions o;
   o.item_names = item_names;
   return correlation_from_matrix(r, 0, o).matrix;
-}
-
-std::string smallest_eigenvalue_text(const Matrix& r) {
-  const Vector ev = eigenvalues_descending(r);
-  return fmt::format("{:.3g}", ev(ev.size() - 1));
 }
 
 }  // namespace
@@ -39,12 +38,9 @@ const char* kmo_label(double value) noexcept {
 }
 
 double log_determinant(const Matrix& r) {
-  Eigen::LLT<Matrix> llt(r);
-  if (llt.info() != Eigen::Success)
-    throw Error(ErrorCode::not_positive_definite,
-                fmt::format("the matrix is not positive definite (smallest eigenvalue {}), so its log-determinant "
-                            "is undefined",
-                            smallest_eigenvalue_text(r)));
+  const Eigen::LLT<Matrix> llt = cholesky_or_fail(
+      r, "the matrix is not positive definite (smallest eigenvalue {}), so its log-determinant "
+         "is undefined");
   const Matrix& l = llt.matrixLLT();
   double sum = 0.0;
   for (Index i = 0; i < r.rows(); ++i) sum += std::log(l(i, i));
@@ -54,13 +50,10 @@ double log_determinant(const Matrix& r) {
 KmoResult kaiser_meyer_olkin(const Matrix& r_in) {
   const Matrix r = checked_matrix(r_in);
   const Index p = r.rows();
-  Eigen::LLT<Matrix> llt(r);
-  if (llt.info() != Eigen::Success)
-    throw Error(ErrorCode::not_positive_definite,
-                fmt::format("the Kaiser-Meyer-Olkin measure needs the inverse of the correlation matrix, but the "
-                            "matrix is not positive definite (smallest eigenvalue {}); some items may be exact "
-                            "combinations of others, or the matrix needs smoothing",
-                            smallest_eigenvalue_text(r)));
+  const Eigen::LLT<Matrix> llt = cholesky_or_fail(
+      r, "the Kaiser-Meyer-Olkin measure needs the inverse of the correlation matrix, but the "
+         "matrix is not positive definite (smallest eigenvalue {}); some items may be exact "
+         "combinations of others, or the matrix needs smoothing");
   const Matrix q = llt.solve(Matrix::Identity(p, p));
   KmoResult out;
   out.per_item.resize(p);
@@ -94,12 +87,9 @@ BartlettTest bartlett_sphericity(const Matrix& r_in, Index n_obs) {
                 fmt::format("Bartlett's test of sphericity needs more than {:.2f} observations for {} items; the "
                             "matrix rests on {}",
                             1.0 + (2.0 * static_cast<double>(p) + 5.0) / 6.0, p, n_obs));
-  Eigen::LLT<Matrix> llt(r);
-  if (llt.info() != Eigen::Success)
-    throw Error(ErrorCode::not_positive_definite,
-                fmt::format("Bartlett's test of sphericity needs log|R|, but the correlation matrix is not positive "
-                            "definite (smallest eigenvalue {}); smooth it first",
-                            smallest_eigenvalue_text(r)));
+  const Eigen::LLT<Matrix> llt = cholesky_or_fail(
+      r, "Bartlett's test of sphericity needs log|R|, but the correlation matrix is not positive "
+         "definite (smallest eigenvalue {}); smooth it first");
   BartlettTest out;
   out.n_obs = n_obs;
   out.df = 0.5 * static_cast<double>(p) * static_cast<double>(p - 1);

@@ -3,6 +3,7 @@
 // Cudeck (1993) by inverting the noncentral chi-square, the Tucker-Lewis (1973) index against the
 // zero-factor model, and BIC in the chi-square form chi2 - df ln n (Raftery 1995).
 #include "lode/fit.hpp"
+#include "positive_definite.hpp"
 
 #include "lode/correlation.hpp"
 #include "lode/distributions.hpp"
@@ -16,6 +17,9 @@
 #include <limits>
 
 namespace lode {
+
+using detail::cholesky_or_fail;
+using detail::smallest_eigenvalue_text;
 
 namespace {
 
@@ -33,11 +37,6 @@ void check_shapes(const Matrix& r, const Matrix& loadings, const Vector& uniquen
     throw Error(ErrorCode::invalid_argument, "the solution has no factors (the loadings have no columns)");
   if (!loadings.allFinite() || !uniquenesses.allFinite())
     throw Error(ErrorCode::invalid_argument, "the loadings or uniquenesses hold a missing or infinite value");
-}
-
-std::string smallest_eigenvalue_text(const Matrix& m) {
-  const Vector ev = eigenvalues_descending(m);
-  return fmt::format("{:.3g}", ev(ev.size() - 1));
 }
 
 }  // namespace
@@ -63,12 +62,9 @@ ResidualFit residual_fit(const Matrix& r, const Matrix& loadings, const Vector& 
 double ml_discrepancy(const Matrix& r, const Matrix& implied) {
   if (r.rows() != implied.rows() || r.cols() != implied.cols() || r.rows() != r.cols())
     throw Error(ErrorCode::invalid_argument, "the ML discrepancy needs two square matrices of the same size");
-  Eigen::LLT<Matrix> ls(implied);
-  if (ls.info() != Eigen::Success)
-    throw Error(ErrorCode::not_positive_definite,
-                fmt::format("the model-implied correlation matrix is not positive definite (smallest eigenvalue {}); "
-                            "the likelihood-based fit is undefined (are some uniquenesses zero or negative?)",
-                            smallest_eigenvalue_text(implied)));
+  const Eigen::LLT<Matrix> ls = cholesky_or_fail(
+      implied, "the model-implied correlation matrix is not positive definite (smallest eigenvalue {}); "
+               "the likelihood-based fit is undefined (are some uniquenesses zero or negative?)");
   double log_det_s = 0.0;
   for (Index i = 0; i < implied.rows(); ++i) log_det_s += 2.0 * std::log(ls.matrixLLT()(i, i));
   const double trace = ls.solve(r).trace();

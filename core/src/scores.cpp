@@ -167,35 +167,13 @@ Vector factor_determinacy(const Matrix& r, const Matrix& loadings, const Matrix&
   return (s.transpose() * ris).diagonal().cwiseMax(0.0).cwiseMin(1.0).cwiseSqrt();
 }
 
-FactorScores factor_scores(const Matrix& data, const Matrix& r, const Matrix& loadings, const Matrix& phi_in,
-                           const Vector& uniquenesses, const ScoreOptions& options) {
+namespace {
+
+// The means and standard deviations (n - 1) the scores standardise with: the caller's (those behind
+// R) or the data's own, over each item's answered values; checked.
+void standardise(FactorScores& out, const Matrix& data, const ScoreOptions& options) {
   const auto& names = options.item_names;
-  const Index p = loadings.rows(), k = loadings.cols(), n = data.rows();
-  const Matrix w = factor_score_weights(r, loadings, phi_in, uniquenesses, options.method, names);
-  const Matrix phi = phi_or_identity(phi_in, k);
-  if (data.cols() != p)
-    throw Error(ErrorCode::invalid_argument,
-                fmt::format("the data have {} columns, but the solution has {} items", data.cols(), p));
-  if (n == 0) throw Error(ErrorCode::insufficient_data, "the data to score have no rows");
-  if (!(options.min_answered_share >= 0.0 && options.min_answered_share <= 1.0))
-    throw Error(ErrorCode::invalid_argument,
-                fmt::format("the minimum share of answered items must lie in [0, 1], not {}", options.min_answered_share));
-  if (!(options.low_determinacy >= 0.0 && options.low_determinacy <= 1.0))
-    throw Error(ErrorCode::invalid_argument,
-                fmt::format("the determinacy threshold must lie in [0, 1], not {}", options.low_determinacy));
-  for (Index i = 0; i < n; ++i)
-    for (Index j = 0; j < p; ++j)
-      if (std::isinf(data(i, j)))
-        throw Error(ErrorCode::invalid_argument,
-                    fmt::format("{} has an infinite value in row {}", item_label(names, j), i + 1));
-
-  FactorScores out;
-  out.method = options.method;
-  out.missing = options.missing;
-  out.weights = w;
-  out.rows_total = n;
-
-  // Standardisation: the caller's (those behind R) or the data's own.
+  const Index p = data.cols(), n = data.rows();
   if (options.means.size() != 0 || options.sds.size() != 0) {
     if (options.means.size() != p || options.sds.size() != p)
       throw Error(ErrorCode::invalid_argument,
@@ -232,6 +210,39 @@ FactorScores factor_scores(const Matrix& data, const Matrix& r, const Matrix& lo
                   fmt::format("{} cannot be standardised (mean {}, standard deviation {}); a constant item cannot be "
                               "scored",
                               item_label(names, j), out.means(j), out.sds(j)));
+}
+
+}  // namespace
+
+FactorScores factor_scores(const Matrix& data, const Matrix& r, const Matrix& loadings, const Matrix& phi_in,
+                           const Vector& uniquenesses, const ScoreOptions& options) {
+  const auto& names = options.item_names;
+  const Index p = loadings.rows(), k = loadings.cols(), n = data.rows();
+  const Matrix w = factor_score_weights(r, loadings, phi_in, uniquenesses, options.method, names);
+  const Matrix phi = phi_or_identity(phi_in, k);
+  if (data.cols() != p)
+    throw Error(ErrorCode::invalid_argument,
+                fmt::format("the data have {} columns, but the solution has {} items", data.cols(), p));
+  if (n == 0) throw Error(ErrorCode::insufficient_data, "the data to score have no rows");
+  if (!(options.min_answered_share >= 0.0 && options.min_answered_share <= 1.0))
+    throw Error(ErrorCode::invalid_argument,
+                fmt::format("the minimum share of answered items must lie in [0, 1], not {}", options.min_answered_share));
+  if (!(options.low_determinacy >= 0.0 && options.low_determinacy <= 1.0))
+    throw Error(ErrorCode::invalid_argument,
+                fmt::format("the determinacy threshold must lie in [0, 1], not {}", options.low_determinacy));
+  for (Index i = 0; i < n; ++i)
+    for (Index j = 0; j < p; ++j)
+      if (std::isinf(data(i, j)))
+        throw Error(ErrorCode::invalid_argument,
+                    fmt::format("{} has an infinite value in row {}", item_label(names, j), i + 1));
+
+  FactorScores out;
+  out.method = options.method;
+  out.missing = options.missing;
+  out.weights = w;
+  out.rows_total = n;
+
+  standardise(out, data, options);
 
   // Quality of the complete-row scores.
   const Matrix s = loadings * phi;

@@ -125,13 +125,13 @@ int method_arg(const Arg& a) {
   static constexpr int kMethods[] = {LODE_EXTRACTION_ML, LODE_EXTRACTION_PAF, LODE_EXTRACTION_MINRES};
   return kMethods[choice(or_default(a, defaults::extraction), "method", {"ml", "paf", "minres"})];
 }
-// The rotation a cell asks for, as the C ABI's method (lode_rotation_method_from_name).
+// The rotation a cell asks for, as the C ABI's method (lode_criterion_from_name).
 int rotation_arg(const Arg& a) {
   static constexpr std::initializer_list<const char*> kWords = {"oblimin", "none",    "varimax",   "quartimax",
                                                                 "equamax", "promax", "quartimin", "geomin"};
   const Arg word = or_default(a, defaults::rotation);
   int method = LODE_CRITERION_NONE;
-  check(lode_rotation_method_from_name(kWords.begin()[choice(word, "rotation", kWords)], &method), "rotation");
+  check(lode_criterion_from_name(kWords.begin()[choice(word, "rotation", kWords)], &method), "rotation");
   return method;
 }
 
@@ -506,10 +506,10 @@ std::shared_ptr<const AlphaOutputs> run_alpha(const Input& in) {
     return v;
   };
   auto out = std::make_shared<AlphaOutputs>();
-  out->alpha = value(LODE_ALPHA);
-  out->standardized = value(LODE_ALPHA_STANDARDIZED);
-  out->mean_inter_item = value(LODE_ALPHA_MEAN_INTER_ITEM);
-  out->rows_used = value(LODE_ALPHA_ROWS_USED);
+  out->alpha = value(LODE_RELIABILITY_ALPHA);
+  out->standardized = value(LODE_RELIABILITY_ALPHA_STANDARDIZED);
+  out->mean_inter_item = value(LODE_RELIABILITY_ALPHA_MEAN_INTER_ITEM);
+  out->rows_used = value(LODE_RELIABILITY_ALPHA_ROWS_USED);
   return out;
 }
 
@@ -523,11 +523,11 @@ std::shared_ptr<const OmegaOutputs> run_omega(const lode_correlation* corr) {
   check(lode_reliability_compute_scale_omega(corr, nullptr, &raw), "McDonald's omega");  // NULL: maximum likelihood, defaults
   auto r = shared_handle<lode_reliability, lode_reliability_free>(raw);
   auto out = std::make_shared<OmegaOutputs>();
-  const Matrix omega = read_matrix(r.get(), LODE_OMEGA, lode_reliability_matrix, "McDonald's omega");
+  const Matrix omega = read_matrix(r.get(), LODE_RELIABILITY_OMEGA, lode_reliability_matrix, "McDonald's omega");
   if (omega.values.size() != 1) throw CellError(Failure::internal, "McDonald's omega: expected one scale");
   out->omega = omega.values[0];
   double converged = 0.0;
-  check(lode_reliability_value(r.get(), LODE_OMEGA_CONVERGED, &converged), "McDonald's omega");
+  check(lode_reliability_value(r.get(), LODE_RELIABILITY_OMEGA_CONVERGED, &converged), "McDonald's omega");
   out->converged = converged == 1.0;
   return out;
 }

@@ -78,7 +78,7 @@ namespace {
 using ModelHandle = Handle<lode_model, lode_model_free>;
 using FactorabilityHandle = Handle<lode_factorability, lode_factorability_free>;
 using CountHandle = Handle<lode_factor_count, lode_factor_count_free>;
-using BootstrapHandle = Handle<lode_bootstrap_result, lode_bootstrap_free>;
+using BootstrapHandle = Handle<lode_bootstrap, lode_bootstrap_free>;
 using ReliabilityHandle = Handle<lode_reliability, lode_reliability_free>;
 using ScoresHandle = Handle<lode_scores, lode_scores_free>;
 
@@ -303,7 +303,7 @@ BootResult bootstrap_intervals(const lode_correlation* corr, const Options& o, i
   ProgressBridge bridge{&progress, "bootstrap resamples", from, to};
   bo.progress = &ProgressBridge::call;
   bo.progress_user = &bridge;
-  lode_bootstrap_result* raw = nullptr;
+  lode_bootstrap* raw = nullptr;
   const int st = lode_bootstrap_compute(corr, &setup.fo, &bo, &raw);
   if (st == LODE_E_CANCELLED) throw Cancelled{};
   if (st != LODE_OK) {
@@ -364,16 +364,16 @@ void scale_alpha(ScaleReliability& sr, const Items& items) {
   const auto num = [&](int key) { return read_value(al.get(), key, lode_reliability_value, what, report_check); };
   const auto mat = [&](int key) { return vec(al.get(), key, lode_reliability_matrix, what); };
   sr.have_alpha = true;
-  sr.alpha = num(LODE_ALPHA);
-  sr.alpha_std = num(LODE_ALPHA_STANDARDIZED);
-  sr.mean_r = num(LODE_ALPHA_MEAN_INTER_ITEM);
-  sr.rows_used = num(LODE_ALPHA_ROWS_USED);
-  sr.rows_total = num(LODE_ALPHA_ROWS_TOTAL);
-  sr.item_total = mat(LODE_ALPHA_ITEM_TOTAL);
-  sr.alpha_if_deleted = mat(LODE_ALPHA_IF_DELETED);
-  sr.alpha_std_if_deleted = mat(LODE_ALPHA_STANDARDIZED_IF_DELETED);
-  sr.means = mat(LODE_ALPHA_ITEM_MEANS);
-  sr.sds = mat(LODE_ALPHA_ITEM_SDS);
+  sr.alpha = num(LODE_RELIABILITY_ALPHA);
+  sr.alpha_std = num(LODE_RELIABILITY_ALPHA_STANDARDIZED);
+  sr.mean_r = num(LODE_RELIABILITY_ALPHA_MEAN_INTER_ITEM);
+  sr.rows_used = num(LODE_RELIABILITY_ALPHA_ROWS_USED);
+  sr.rows_total = num(LODE_RELIABILITY_ALPHA_ROWS_TOTAL);
+  sr.item_total = mat(LODE_RELIABILITY_ALPHA_ITEM_TOTAL);
+  sr.alpha_if_deleted = mat(LODE_RELIABILITY_ALPHA_IF_DELETED);
+  sr.alpha_std_if_deleted = mat(LODE_RELIABILITY_ALPHA_STANDARDIZED_IF_DELETED);
+  sr.means = mat(LODE_RELIABILITY_ALPHA_ITEM_MEANS);
+  sr.sds = mat(LODE_RELIABILITY_ALPHA_ITEM_SDS);
   sr.notes = lines_of(read_text(al.get(), LODE_RELIABILITY_NOTES, lode_reliability_text, what, report_check));
 }
 
@@ -394,8 +394,8 @@ ReliabilityResult reliability(const ModelResult& model, const lode_model* handle
   ReliabilityHandle om(raw);
   const char* what = "reading the reliability";
   const auto mat = [&](int key) { return vec(om.get(), key, lode_reliability_matrix, what); };
-  const std::vector<double> assignment = mat(LODE_OMEGA_ASSIGNMENT), reversed = mat(LODE_RELIABILITY_REVERSED);
-  const std::vector<double> omega = mat(LODE_OMEGA), share = mat(LODE_RELIABILITY_OMEGA_FACTOR_SHARE);
+  const std::vector<double> assignment = mat(LODE_RELIABILITY_OMEGA_ASSIGNMENT), reversed = mat(LODE_RELIABILITY_REVERSED);
+  const std::vector<double> omega = mat(LODE_RELIABILITY_OMEGA), share = mat(LODE_RELIABILITY_OMEGA_FACTOR_SHARE);
   out.omega_notes = lines_of(read_text(om.get(), LODE_RELIABILITY_NOTES, lode_reliability_text, what, report_check));
   for (std::size_t j = 0; j < p; ++j)
     if (reversed[j] > 0.5) out.reversed_names.push_back(items.names[j]);

@@ -69,6 +69,48 @@ def random_orthogonal(rng, k):
     return q * np.sign(np.diag(r))
 
 
+# ML + oblimin (quartimin, gamma = 0) from the unrotated start and 20 random orthogonal starts,
+# statsmodels' gradient projection with its default stopping rule (projected-gradient norm 1e-5,
+# at most 501 iterations; Lode stops at 1e-8), without Kaiser normalisation.
+def oblimin_starts(loadings, starts=21, seed=7):
+    from statsmodels.multivariate.factor_rotation import rotate_factors
+
+    rng = np.random.default_rng(seed)
+    for s in range(starts):
+        t = np.eye(loadings.shape[1]) if s == 0 else random_orthogonal(rng, loadings.shape[1])
+        rotate_factors(loadings, "oblimin", 0.0, "oblique", T=t)
+
+
+# Groups: statsmodels ML on the pooled correlations + oblimin, then per group ML extraction and a
+# least-squares oblique Procrustes towards the pooled pattern, and Tucker's congruence.
+def compare_groups(x, g, k=5):
+    from statsmodels.multivariate.factor import Factor
+    from statsmodels.multivariate.factor_rotation import rotate_factors
+
+    pooled = Factor(corr=np.corrcoef(x, rowvar=False), n_factor=k, method="ml", nobs=len(x)).fit(maxiter=1000)
+    target = rotate_factors(pooled.loadings, "oblimin", 0.0, "oblique")[0]
+    out = []
+    for code in np.unique(g):
+        xs = x[g == code]
+        a = Factor(corr=np.corrcoef(xs, rowvar=False), n_factor=k, method="ml", nobs=len(xs)).fit(
+            maxiter=1000).loadings
+        u = np.linalg.lstsq(a, target, rcond=None)[0]
+        u = u * np.sqrt(np.diag(np.linalg.inv(u.T @ u)))
+        p = a @ u
+        out.append((p * target).sum(0) / np.sqrt((p * p).sum(0) * (target * target).sum(0)))
+    return out
+
+
+# Parallel analysis written plainly: 1000 normal data sets of n x p, their correlation matrices'
+# eigenvalues.
+def parallel_analysis(n=2000, p=60, replicates=1000, seed=11):
+    rng = np.random.default_rng(seed)
+    ev = np.empty((replicates, p))
+    for i in range(replicates):
+        ev[i] = np.linalg.eigvalsh(np.corrcoef(rng.standard_normal((n, p)), rowvar=False))[::-1]
+    return np.quantile(ev, 0.95, axis=0)
+
+
 def main():
     folder, out = sys.argv[1], sys.argv[2]
     only = sys.argv[3] if len(sys.argv) > 3 else ""
@@ -112,7 +154,6 @@ def main():
             del df
 
     from statsmodels.multivariate.factor import Factor
-    from statsmodels.multivariate.factor_rotation import rotate_factors
     from sklearn.decomposition import FactorAnalysis
 
     for p, k in ((30, 3), (60, 6), (100, 10), (200, 15)):
@@ -126,15 +167,6 @@ def main():
         record(f"ml_p{p}_k{k}", "sklearn FactorAnalysis (from the raw data)",
                lambda x=x, k=k: FactorAnalysis(n_components=k, tol=1e-8, max_iter=10000).fit(x), budget_s=8)
 
-    # ML + oblimin (quartimin, gamma = 0) from the unrotated start and 20 random orthogonal starts,
-    # statsmodels' gradient projection with its default stopping rule (projected-gradient norm 1e-5,
-    # at most 501 iterations; Lode stops at 1e-8), without Kaiser normalisation.
-    def oblimin_starts(loadings, starts=21, seed=7):
-        rng = np.random.default_rng(seed)
-        for s in range(starts):
-            t = np.eye(loadings.shape[1]) if s == 0 else random_orthogonal(rng, loadings.shape[1])
-            rotate_factors(loadings, "oblimin", 0.0, "oblique", T=t)
-
     r = read(folder, "fa_p100_k10_R")
     record("ml_oblimin20_p100_k10", "statsmodels Factor ml + rotate_factors oblimin, 21 starts",
            lambda: oblimin_starts(Factor(corr=r, n_factor=10, method="ml", nobs=2000).fit(maxiter=1000).loadings),
@@ -142,36 +174,11 @@ def main():
     L = read(folder, "rot_p100_k10_L")
     record("oblimin20_p100_k10", "statsmodels rotate_factors oblimin, 21 starts", lambda: oblimin_starts(L), budget_s=20)
 
-    # Groups: statsmodels ML on the pooled correlations + oblimin, then per group ML extraction and a
-    # least-squares oblique Procrustes towards the pooled pattern, and Tucker's congruence.
-    def compare_groups(x, g, k=5):
-        pooled = Factor(corr=np.corrcoef(x, rowvar=False), n_factor=k, method="ml", nobs=len(x)).fit(maxiter=1000)
-        target = rotate_factors(pooled.loadings, "oblimin", 0.0, "oblique")[0]
-        out = []
-        for code in np.unique(g):
-            xs = x[g == code]
-            a = Factor(corr=np.corrcoef(xs, rowvar=False), n_factor=k, method="ml", nobs=len(xs)).fit(
-                maxiter=1000).loadings
-            u = np.linalg.lstsq(a, target, rcond=None)[0]
-            u = u * np.sqrt(np.diag(np.linalg.inv(u.T @ u)))
-            p = a @ u
-            out.append((p * target).sum(0) / np.sqrt((p * p).sum(0) * (target * target).sum(0)))
-        return out
-
     if wanted("groups_10x1000_p30_k5"):
         gx = read(folder, "groups_10x1000_p30_X")
         gg = read(folder, "groups_10x1000_p30_G")[:, 0]
         record("groups_10x1000_p30_k5", "statsmodels Factor ml per group + numpy oblique Procrustes",
                lambda: compare_groups(gx, gg), budget_s=20)
-
-    # Parallel analysis written plainly: 1000 normal data sets of n x p, their correlation matrices'
-    # eigenvalues.
-    def parallel_analysis(n=2000, p=60, replicates=1000, seed=11):
-        rng = np.random.default_rng(seed)
-        ev = np.empty((replicates, p))
-        for i in range(replicates):
-            ev[i] = np.linalg.eigvalsh(np.corrcoef(rng.standard_normal((n, p)), rowvar=False))[::-1]
-        return np.quantile(ev, 0.95, axis=0)
 
     record("pa_p60_n2000_r1000", "numpy loop: standard_normal, corrcoef, eigvalsh", parallel_analysis,
            budget_s=20)

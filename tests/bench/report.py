@@ -393,32 +393,8 @@ def lode_cases(results_dir):
         return {l.strip().split("/")[1] for l in f if l.count("/") >= 1}
 
 
-def write_report(results_dir, out_path, elapsed_s=None, filter_regex=None):
-    lode_doc = load(os.path.join(results_dir, "lode.json"))
-    py = load(os.path.join(results_dir, "python.json"))
-    r = load(os.path.join(results_dir, "r.json"))
-    memory = load(os.path.join(results_dir, "memory.json"))
-    machine = load(os.path.join(results_dir, "machine.json")) or {}
-    machine_end = load(os.path.join(results_dir, "machine-end.json")) or {}
-    lode = lode_medians(lode_doc)
-    errors = lode_errors(lode_doc)
-    available = lode_cases(results_dir)
-    alts = alternatives(py, r)
-    context = (lode_doc or {}).get("context", {})
-    md = []
-    w = md.append
-
-    w("# Lode benchmarks: results")
-    w("")
-    w("Written by `./lode bench` (tests/bench/report.py); rerun it to replace this file. Times are medians "
-      "of wall-clock time; \"Lode is N x faster\" is the alternative's median divided by Lode's. "
-      "Lode's CPU time is the process's, summed over all its threads (the work done, whatever else runs "
-      "on the machine): on a shared, loaded machine wall-clock times are inflated, since the processes "
-      "wait for a core, while the CPU time is not. Lode and the alternatives read the same seeded input "
-      "files (tests/bench/make_inputs.py).")
-    w("")
-
-    # Machine
+def machine_section(w, machine, machine_end, context, py, r, elapsed_s, filter_regex):
+    """The machine the run used, and a warning when it was shared."""
     w("## Machine")
     w("")
     w("| | |")
@@ -468,17 +444,9 @@ def write_report(results_dir, out_path, elapsed_s=None, filter_regex=None):
           "targets are judged on these loaded wall-clock times as they are.")
         w("")
 
-    # Targets
-    w("## Targets")
-    w("")
-    w("| target | measured | verdict |")
-    w("| --- | --- | --- |")
-    for t in TARGETS:
-        measured, verdict = evaluate_target(t, lode, alts, memory)
-        w(f"| {t[0]} | {measured} | {verdict} |")
-    w("")
 
-    # Side by side
+def side_by_side_section(w, md, lode, alts):
+    """Lode and the alternatives case by case; returns the (section, label, case) without a Lode number."""
     w("## Side by side")
     w("")
     missing = []
@@ -518,10 +486,11 @@ def write_report(results_dir, out_path, elapsed_s=None, filter_regex=None):
     if notes:
         w("")
 
-    # Engines (tests/bench/engines.py)
-    md.extend(engines_report.section(load(os.path.join(results_dir, "engines.json"))))
+    return missing
 
-    # Cost growth
+
+def growth_section(w, lode):
+    """Lode's time along one variable, the others fixed."""
     w("## Cost growth")
     w("")
     w("Lode's median time along one variable, the others fixed; \"growth exponent\" is "
@@ -540,7 +509,9 @@ def write_report(results_dir, out_path, elapsed_s=None, filter_regex=None):
             w(f"| {x:,} | {fmt_time(s)} | {exp} |")
         w("")
 
-    # Memory
+
+def memory_section(w, memory):
+    """The peak resident set of the large analysis."""
     w("## Peak memory")
     w("")
     if memory:
@@ -560,7 +531,9 @@ def write_report(results_dir, out_path, elapsed_s=None, filter_regex=None):
         w("Not measured yet.")
     w("")
 
-    # Ceiling
+
+def ceiling_section(w, lode, alts):
+    """Lode's correlation rate against the best matrix-multiply rate measured."""
     w("## The practical ceiling: matrix-multiply rate")
     w("")
     rates = []
@@ -592,6 +565,54 @@ def write_report(results_dir, out_path, elapsed_s=None, filter_regex=None):
     else:
         w("Not measured yet.")
         w("")
+
+
+def write_report(results_dir, out_path, elapsed_s=None, filter_regex=None):
+    lode_doc = load(os.path.join(results_dir, "lode.json"))
+    py = load(os.path.join(results_dir, "python.json"))
+    r = load(os.path.join(results_dir, "r.json"))
+    memory = load(os.path.join(results_dir, "memory.json"))
+    machine = load(os.path.join(results_dir, "machine.json")) or {}
+    machine_end = load(os.path.join(results_dir, "machine-end.json")) or {}
+    lode = lode_medians(lode_doc)
+    errors = lode_errors(lode_doc)
+    available = lode_cases(results_dir)
+    alts = alternatives(py, r)
+    context = (lode_doc or {}).get("context", {})
+    md = []
+    w = md.append
+
+    w("# Lode benchmarks: results")
+    w("")
+    w("Written by `./lode bench` (tests/bench/report.py); rerun it to replace this file. Times are medians "
+      "of wall-clock time; \"Lode is N x faster\" is the alternative's median divided by Lode's. "
+      "Lode's CPU time is the process's, summed over all its threads (the work done, whatever else runs "
+      "on the machine): on a shared, loaded machine wall-clock times are inflated, since the processes "
+      "wait for a core, while the CPU time is not. Lode and the alternatives read the same seeded input "
+      "files (tests/bench/make_inputs.py).")
+    w("")
+
+    machine_section(w, machine, machine_end, context, py, r, elapsed_s, filter_regex)
+
+    # Targets
+    w("## Targets")
+    w("")
+    w("| target | measured | verdict |")
+    w("| --- | --- | --- |")
+    for t in TARGETS:
+        measured, verdict = evaluate_target(t, lode, alts, memory)
+        w(f"| {t[0]} | {measured} | {verdict} |")
+    w("")
+
+    # Side by side
+    missing = side_by_side_section(w, md, lode, alts)
+
+    # Engines (tests/bench/engines.py)
+    md.extend(engines_report.section(load(os.path.join(results_dir, "engines.json"))))
+
+    growth_section(w, lode)
+    memory_section(w, memory)
+    ceiling_section(w, lode, alts)
 
     # Not measured
     w("## Not measured yet")

@@ -6,70 +6,11 @@
 #include <stdlib.h>
 #include <string.h>
 
-void test_correlation(void) {
-  double x[N_ROWS * N_ITEMS], xt[N_ROWS * N_ITEMS], out[N_ITEMS * N_ITEMS], out2[N_ITEMS * N_ITEMS];
-  double ev[N_ITEMS], smc[N_ITEMS], counts[N_ITEMS * N_ITEMS], v;
+/* The numbers and texts of a pairwise Pearson result over make_data with two answers missing. */
+static void check_correlation_values(const lode_correlation* c) {
+  double v;
   char text[4];
   size_t len = 99;
-  int64_t rows = 0, cols = 0;
-  int i, j;
-  lode_data *d = NULL, *dt = NULL;
-  lode_correlation *c = NULL, *c2 = NULL;
-  lode_correlation_options o;
-  make_data(x);
-  x[3 * N_ITEMS + 1] = nan_value();
-  x[10 * N_ITEMS + 4] = nan_value();
-  for (i = 0; i < N_ROWS; ++i)
-    for (j = 0; j < N_ITEMS; ++j) xt[j * N_ROWS + i] = x[i * N_ITEMS + j]; /* column-major copy */
-
-  /* options: init errors */
-  EXPECT(lode_correlation_options_init(NULL, sizeof o), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
-  EXPECT(lode_correlation_options_init(&o, 2), LODE_E_INVALID_ARGUMENT, "too small");
-  OK(lode_correlation_options_init(&o, sizeof o));
-  CHECK(o.struct_size == sizeof o && o.kind == LODE_COEFFICIENT_PEARSON && o.missing == LODE_MISSING_PAIRWISE && o.smooth == 0);
-  CHECK(o.min_eigenvalue == 1e-6 && o.min_pair_observations == 3);
-
-  OK(lode_data_from_raw(x, N_ROWS, N_ITEMS, N_ITEMS, 1, &d));
-  OK(lode_data_from_raw(xt, N_ROWS, N_ITEMS, 1, N_ROWS, &dt));
-  EXPECT(lode_correlation_compute(NULL, &o, &c), LODE_E_INVALID_ARGUMENT, "'data' is NULL");
-  EXPECT(lode_correlation_compute(d, &o, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
-
-  /* row-major and column-major input give the same matrix */
-  OK(lode_correlation_compute(d, &o, &c));
-  OK(lode_correlation_compute(dt, &o, &c2));
-  OK(lode_correlation_matrix(c, LODE_CORRELATION_MATRIX, out, N_ITEMS * N_ITEMS, &rows, &cols));
-  OK(lode_correlation_matrix(c2, LODE_CORRELATION_MATRIX, out2, N_ITEMS * N_ITEMS, NULL, NULL));
-  CHECK(rows == N_ITEMS && cols == N_ITEMS);
-  CHECK(max_abs_diff(out, out2, N_ITEMS * N_ITEMS) == 0.0);
-  for (i = 0; i < N_ITEMS; ++i) CHECK(out[i * N_ITEMS + i] == 1.0);
-  lode_correlation_free(c2);
-  c2 = NULL;
-
-  /* size query, too-small buffer, NULL out with capacity */
-  rows = cols = 0;
-  OK(lode_correlation_matrix(c, LODE_CORRELATION_MATRIX, NULL, 0, &rows, &cols));
-  CHECK(rows == N_ITEMS && cols == N_ITEMS);
-  EXPECT(lode_correlation_matrix(c, LODE_CORRELATION_MATRIX, out, 35, &rows, &cols), LODE_E_BUFFER_TOO_SMALL,
-         "6 x 6 (36 numbers) but the buffer holds 35");
-  EXPECT(lode_correlation_matrix(c, LODE_CORRELATION_MATRIX, NULL, 36, &rows, &cols), LODE_E_INVALID_ARGUMENT,
-         "'out' is NULL");
-  EXPECT(lode_correlation_matrix(NULL, LODE_CORRELATION_MATRIX, out, 36, &rows, &cols), LODE_E_INVALID_ARGUMENT,
-         "'corr' is NULL");
-  EXPECT(lode_correlation_matrix(c, LODE_CORRELATION_N_OBS, out, 36, &rows, &cols), LODE_E_INVALID_ARGUMENT,
-         "key 121 is not a key");
-
-  /* eigenvalues: sum to the number of items; SMCs in [0, 1); pair counts */
-  OK(lode_correlation_matrix(c, LODE_CORRELATION_EIGENVALUES, ev, N_ITEMS, &rows, &cols));
-  CHECK(rows == N_ITEMS && cols == 1);
-  v = 0.0;
-  for (i = 0; i < N_ITEMS; ++i) v += ev[i];
-  CHECK(fabs(v - N_ITEMS) < 1e-12);
-  for (i = 1; i < N_ITEMS; ++i) CHECK(ev[i] <= ev[i - 1]);
-  OK(lode_correlation_matrix(c, LODE_CORRELATION_SMC, smc, N_ITEMS, NULL, NULL));
-  for (i = 0; i < N_ITEMS; ++i) CHECK(smc[i] >= 0.0 && smc[i] < 1.0);
-  OK(lode_correlation_matrix(c, LODE_CORRELATION_REDUCED_EIGENVALUES, ev, N_ITEMS, NULL, NULL));
-  OK(lode_correlation_matrix(c, LODE_CORRELATION_PAIR_COUNTS, counts, N_ITEMS * N_ITEMS, NULL, NULL));
-  CHECK(counts[0] == N_ROWS - 0 && counts[1 * N_ITEMS + 1] == N_ROWS - 1 && counts[1 * N_ITEMS + 4] == N_ROWS - 2);
 
   /* numbers */
   OK(lode_correlation_value(c, LODE_CORRELATION_ITEMS, &v));
@@ -112,21 +53,15 @@ void test_correlation(void) {
   EXPECT(lode_correlation_text(c, LODE_CORRELATION_NOTES, NULL, 4, &len), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
   EXPECT(lode_correlation_text(c, LODE_CORRELATION_ITEMS, text, 4, &len), LODE_E_INVALID_ARGUMENT, "key 120");
   EXPECT(lode_correlation_text(NULL, LODE_CORRELATION_NOTES, text, 4, &len), LODE_E_INVALID_ARGUMENT, "'corr' is NULL");
-  lode_correlation_free(c);
-  c = NULL;
+}
 
-  /* listwise and Spearman */
-  o.missing = LODE_MISSING_LISTWISE;
-  o.kind = LODE_COEFFICIENT_SPEARMAN;
-  OK(lode_correlation_compute(d, &o, &c));
-  OK(lode_correlation_value(c, LODE_CORRELATION_N_OBS, &v));
-  CHECK(v == N_ROWS - 2);
-  OK(lode_correlation_value(c, LODE_CORRELATION_KIND, &v));
-  CHECK(v == LODE_COEFFICIENT_SPEARMAN);
-  OK(lode_correlation_value(c, LODE_CORRELATION_MISSING, &v));
-  CHECK(v == LODE_MISSING_LISTWISE);
-  lode_correlation_free(c);
-  c = NULL;
+/* Bad option values, older and newer option structs, and content errors from the core for the data
+ * behind `d` (make_data's answers `x`). */
+static void check_correlation_options(const lode_data* d, const double* x) {
+  double v;
+  int i;
+  lode_correlation* c = NULL;
+  lode_correlation_options o;
 
   /* bad option values */
   OK(lode_correlation_options_init(&o, sizeof o));
@@ -212,6 +147,90 @@ void test_correlation(void) {
     lode_data_free(dy);
   }
   CHECK(c == NULL);
+
+}
+
+void test_correlation(void) {
+  double x[N_ROWS * N_ITEMS], xt[N_ROWS * N_ITEMS], out[N_ITEMS * N_ITEMS], out2[N_ITEMS * N_ITEMS];
+  double ev[N_ITEMS], smc[N_ITEMS], counts[N_ITEMS * N_ITEMS], v;
+  int64_t rows = 0, cols = 0;
+  int i, j;
+  lode_data *d = NULL, *dt = NULL;
+  lode_correlation *c = NULL, *c2 = NULL;
+  lode_correlation_options o;
+  make_data(x);
+  x[3 * N_ITEMS + 1] = nan_value();
+  x[10 * N_ITEMS + 4] = nan_value();
+  for (i = 0; i < N_ROWS; ++i)
+    for (j = 0; j < N_ITEMS; ++j) xt[j * N_ROWS + i] = x[i * N_ITEMS + j]; /* column-major copy */
+
+  /* options: init errors */
+  EXPECT(lode_correlation_options_init(NULL, sizeof o), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
+  EXPECT(lode_correlation_options_init(&o, 2), LODE_E_INVALID_ARGUMENT, "too small");
+  OK(lode_correlation_options_init(&o, sizeof o));
+  CHECK(o.struct_size == sizeof o && o.kind == LODE_COEFFICIENT_PEARSON && o.missing == LODE_MISSING_PAIRWISE && o.smooth == 0);
+  CHECK(o.min_eigenvalue == 1e-6 && o.min_pair_observations == 3);
+
+  OK(lode_data_from_raw(x, N_ROWS, N_ITEMS, N_ITEMS, 1, &d));
+  OK(lode_data_from_raw(xt, N_ROWS, N_ITEMS, 1, N_ROWS, &dt));
+  EXPECT(lode_correlation_compute(NULL, &o, &c), LODE_E_INVALID_ARGUMENT, "'data' is NULL");
+  EXPECT(lode_correlation_compute(d, &o, NULL), LODE_E_INVALID_ARGUMENT, "'out' is NULL");
+
+  /* row-major and column-major input give the same matrix */
+  OK(lode_correlation_compute(d, &o, &c));
+  OK(lode_correlation_compute(dt, &o, &c2));
+  OK(lode_correlation_matrix(c, LODE_CORRELATION_MATRIX, out, N_ITEMS * N_ITEMS, &rows, &cols));
+  OK(lode_correlation_matrix(c2, LODE_CORRELATION_MATRIX, out2, N_ITEMS * N_ITEMS, NULL, NULL));
+  CHECK(rows == N_ITEMS && cols == N_ITEMS);
+  CHECK(max_abs_diff(out, out2, N_ITEMS * N_ITEMS) == 0.0);
+  for (i = 0; i < N_ITEMS; ++i) CHECK(out[i * N_ITEMS + i] == 1.0);
+  lode_correlation_free(c2);
+  c2 = NULL;
+
+  /* size query, too-small buffer, NULL out with capacity */
+  rows = cols = 0;
+  OK(lode_correlation_matrix(c, LODE_CORRELATION_MATRIX, NULL, 0, &rows, &cols));
+  CHECK(rows == N_ITEMS && cols == N_ITEMS);
+  EXPECT(lode_correlation_matrix(c, LODE_CORRELATION_MATRIX, out, 35, &rows, &cols), LODE_E_BUFFER_TOO_SMALL,
+         "6 x 6 (36 numbers) but the buffer holds 35");
+  EXPECT(lode_correlation_matrix(c, LODE_CORRELATION_MATRIX, NULL, 36, &rows, &cols), LODE_E_INVALID_ARGUMENT,
+         "'out' is NULL");
+  EXPECT(lode_correlation_matrix(NULL, LODE_CORRELATION_MATRIX, out, 36, &rows, &cols), LODE_E_INVALID_ARGUMENT,
+         "'corr' is NULL");
+  EXPECT(lode_correlation_matrix(c, LODE_CORRELATION_N_OBS, out, 36, &rows, &cols), LODE_E_INVALID_ARGUMENT,
+         "key 121 is not a key");
+
+  /* eigenvalues: sum to the number of items; SMCs in [0, 1); pair counts */
+  OK(lode_correlation_matrix(c, LODE_CORRELATION_EIGENVALUES, ev, N_ITEMS, &rows, &cols));
+  CHECK(rows == N_ITEMS && cols == 1);
+  v = 0.0;
+  for (i = 0; i < N_ITEMS; ++i) v += ev[i];
+  CHECK(fabs(v - N_ITEMS) < 1e-12);
+  for (i = 1; i < N_ITEMS; ++i) CHECK(ev[i] <= ev[i - 1]);
+  OK(lode_correlation_matrix(c, LODE_CORRELATION_SMC, smc, N_ITEMS, NULL, NULL));
+  for (i = 0; i < N_ITEMS; ++i) CHECK(smc[i] >= 0.0 && smc[i] < 1.0);
+  OK(lode_correlation_matrix(c, LODE_CORRELATION_REDUCED_EIGENVALUES, ev, N_ITEMS, NULL, NULL));
+  OK(lode_correlation_matrix(c, LODE_CORRELATION_PAIR_COUNTS, counts, N_ITEMS * N_ITEMS, NULL, NULL));
+  CHECK(counts[0] == N_ROWS - 0 && counts[1 * N_ITEMS + 1] == N_ROWS - 1 && counts[1 * N_ITEMS + 4] == N_ROWS - 2);
+
+  check_correlation_values(c);
+  lode_correlation_free(c);
+  c = NULL;
+
+  /* listwise and Spearman */
+  o.missing = LODE_MISSING_LISTWISE;
+  o.kind = LODE_COEFFICIENT_SPEARMAN;
+  OK(lode_correlation_compute(d, &o, &c));
+  OK(lode_correlation_value(c, LODE_CORRELATION_N_OBS, &v));
+  CHECK(v == N_ROWS - 2);
+  OK(lode_correlation_value(c, LODE_CORRELATION_KIND, &v));
+  CHECK(v == LODE_COEFFICIENT_SPEARMAN);
+  OK(lode_correlation_value(c, LODE_CORRELATION_MISSING, &v));
+  CHECK(v == LODE_MISSING_LISTWISE);
+  lode_correlation_free(c);
+  c = NULL;
+
+  check_correlation_options(d, x);
 
   /* the result outlives its data handle */
   OK(lode_correlation_compute(d, NULL, &c));

@@ -6,6 +6,25 @@
 #include <stdlib.h>
 #include <string.h>
 
+/* Every matrix and number key of a model answers. */
+static void check_every_model_key(const lode_model* m) {
+  double v;
+  static const int mkeys[] = {LODE_MODEL_STRUCTURE, LODE_MODEL_ROTATION_MATRIX, LODE_MODEL_UNROTATED_LOADINGS,
+                              LODE_MODEL_SS_LOADINGS, LODE_MODEL_SS_STRUCTURE};
+  static const int vkeys[] = {LODE_MODEL_FACTORS, LODE_MODEL_ITEMS, LODE_MODEL_N_OBS, LODE_MODEL_CONVERGED,
+                              LODE_MODEL_ITERATIONS, LODE_MODEL_HEYWOOD_COUNT, LODE_MODEL_OBJECTIVE,
+                              LODE_MODEL_RMSR, LODE_MODEL_MAX_ABS_RESIDUAL, LODE_MODEL_P_VALUE,
+                              LODE_MODEL_RMSEA_LOWER, LODE_MODEL_RMSEA_UPPER, LODE_MODEL_TLI, LODE_MODEL_BIC,
+                              LODE_MODEL_NULL_CHI_SQUARE, LODE_MODEL_NULL_DF, LODE_MODEL_ROTATION_CRITERION,
+                              LODE_MODEL_ROTATION_CONVERGED, LODE_MODEL_OBLIQUE, LODE_MODEL_METHOD,
+                              LODE_MODEL_ROTATION_METHOD, LODE_MODEL_SUGGESTED_FACTORS, LODE_MODEL_FINAL_CHANGE,
+                              LODE_MODEL_TOLERANCE, LODE_MODEL_MAX_ITERATIONS};
+  size_t k;
+  double big[36];
+  for (k = 0; k < sizeof mkeys / sizeof mkeys[0]; ++k) OK(lode_model_matrix(m, mkeys[k], big, 36, NULL, NULL));
+  for (k = 0; k < sizeof vkeys / sizeof vkeys[0]; ++k) OK(lode_model_value(m, vkeys[k], &v));
+}
+
 void test_fit(void) {
   lode_correlation* c = population_correlation(250);
   lode_correlation* c0 = population_correlation(0);
@@ -50,22 +69,7 @@ void test_fit(void) {
   for (i = 0; i < 6; ++i) CHECK(col[i] == 0.0);
   OK(lode_model_matrix(m, LODE_MODEL_FACTOR_CORRELATIONS, phi, 4, NULL, NULL));
   CHECK(fabs(phi[1]) < 1e-12);
-  {
-    static const int mkeys[] = {LODE_MODEL_STRUCTURE, LODE_MODEL_ROTATION_MATRIX, LODE_MODEL_UNROTATED_LOADINGS,
-                                LODE_MODEL_SS_LOADINGS, LODE_MODEL_SS_STRUCTURE};
-    static const int vkeys[] = {LODE_MODEL_FACTORS, LODE_MODEL_ITEMS, LODE_MODEL_N_OBS, LODE_MODEL_CONVERGED,
-                                LODE_MODEL_ITERATIONS, LODE_MODEL_HEYWOOD_COUNT, LODE_MODEL_OBJECTIVE,
-                                LODE_MODEL_RMSR, LODE_MODEL_MAX_ABS_RESIDUAL, LODE_MODEL_P_VALUE,
-                                LODE_MODEL_RMSEA_LOWER, LODE_MODEL_RMSEA_UPPER, LODE_MODEL_TLI, LODE_MODEL_BIC,
-                                LODE_MODEL_NULL_CHI_SQUARE, LODE_MODEL_NULL_DF, LODE_MODEL_ROTATION_CRITERION,
-                                LODE_MODEL_ROTATION_CONVERGED, LODE_MODEL_OBLIQUE, LODE_MODEL_METHOD,
-                                LODE_MODEL_ROTATION_METHOD, LODE_MODEL_SUGGESTED_FACTORS, LODE_MODEL_FINAL_CHANGE,
-                                LODE_MODEL_TOLERANCE, LODE_MODEL_MAX_ITERATIONS};
-    size_t k;
-    double big[36];
-    for (k = 0; k < sizeof mkeys / sizeof mkeys[0]; ++k) OK(lode_model_matrix(m, mkeys[k], big, 36, NULL, NULL));
-    for (k = 0; k < sizeof vkeys / sizeof vkeys[0]; ++k) OK(lode_model_value(m, vkeys[k], &v));
-  }
+  check_every_model_key(m);
   OK(lode_model_value(m, LODE_MODEL_CONVERGED, &v));
   CHECK(v == 1.0);
   OK(lode_model_value(m, LODE_MODEL_N_OBS, &v));

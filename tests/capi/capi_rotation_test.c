@@ -6,13 +6,57 @@
 #include <stdlib.h>
 #include <string.h>
 
+/* The criteria by name, and their canonical names. */
+static void check_criterion_names(void) {
+  int m = -1;
+  OK(lode_criterion_from_name("Oblimin", &m));
+  CHECK(m == LODE_CRITERION_OBLIMIN);
+  OK(lode_criterion_from_name("geomin", &m));
+  CHECK(m == LODE_CRITERION_GEOMIN);
+  EXPECT(lode_criterion_from_name("spin", &m), LODE_E_INVALID_ARGUMENT, "varimax");
+  EXPECT(lode_criterion_from_name(NULL, &m), LODE_E_INVALID_ARGUMENT, "'name' is NULL");
+  EXPECT(lode_criterion_from_name("varimax", NULL), LODE_E_INVALID_ARGUMENT, "'method' is NULL");
+  CHECK(strcmp(lode_criterion_name(LODE_CRITERION_PROMAX), "promax") == 0);
+  CHECK(lode_criterion_name(99) == NULL && lode_criterion_name(-1) == NULL);
+}
+
+/* Target rotation of `a` (the simple structure turned): a partial target (NaN = unspecified). */
+static void check_target_rotation(const double* a) {
+  const double* simple = simple_loadings;
+  double out[12];
+  int i;
+  lode_rotation* r = NULL;
+  lode_rotation_options o;
+  double target[12];
+  for (i = 0; i < 12; ++i) target[i] = simple[i] > 0 ? nan_value() : 0.0;
+  OK(lode_rotation_options_init(&o, sizeof o));
+  o.method = LODE_CRITERION_TARGET_ORTHOGONAL;
+  o.target = target;
+  o.target_rows = 6;
+  o.target_cols = 2;
+  o.target_row_stride = 2;
+  o.target_col_stride = 1;
+  OK(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r));
+  OK(lode_rotation_matrix(r, LODE_ROTATION_PATTERN, out, 12, NULL, NULL));
+  CHECK(max_abs_diff(out, simple, 12) < 1e-6);
+  lode_rotation_free(r);
+  r = NULL;
+  o.target_rows = 3;
+  EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "target");
+  o.target_rows = 6;
+  target[3] = inf_value();
+  EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "infinite");
+  o.target = NULL;
+  EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "'target' is NULL");
+}
+
 void test_rotation(void) {
   /* unrotated two-factor loadings: the simple structure of population_matrix turned by 30 degrees */
   const double s = 0.5, co = 0.86602540378443865;
   const double* simple = simple_loadings;
   double a[12], a_cm[12], out[12], out2[12], phi[4], t[4], v;
   char name[32];
-  int i, m = -1;
+  int i;
   int64_t rows, cols;
   lode_rotation *r = NULL, *r2 = NULL;
   lode_rotation_options o;
@@ -23,15 +67,7 @@ void test_rotation(void) {
     a_cm[6 + i] = a[i * 2 + 1];
   }
 
-  OK(lode_rotation_method_from_name("Oblimin", &m));
-  CHECK(m == LODE_CRITERION_OBLIMIN);
-  OK(lode_rotation_method_from_name("geomin", &m));
-  CHECK(m == LODE_CRITERION_GEOMIN);
-  EXPECT(lode_rotation_method_from_name("spin", &m), LODE_E_INVALID_ARGUMENT, "varimax");
-  EXPECT(lode_rotation_method_from_name(NULL, &m), LODE_E_INVALID_ARGUMENT, "'name' is NULL");
-  EXPECT(lode_rotation_method_from_name("varimax", NULL), LODE_E_INVALID_ARGUMENT, "'method' is NULL");
-  CHECK(strcmp(lode_rotation_method_name(LODE_CRITERION_PROMAX), "promax") == 0);
-  CHECK(lode_rotation_method_name(99) == NULL && lode_rotation_method_name(-1) == NULL);
+  check_criterion_names();
 
   EXPECT(lode_rotation_options_init(NULL, sizeof o), LODE_E_INVALID_ARGUMENT, "'opts' is NULL");
   OK(lode_rotation_options_init(&o, sizeof o));
@@ -111,30 +147,7 @@ void test_rotation(void) {
   lode_rotation_free(r);
   r = NULL;
 
-  /* target rotation: a partial target (NaN = unspecified) */
-  {
-    double target[12];
-    for (i = 0; i < 12; ++i) target[i] = simple[i] > 0 ? nan_value() : 0.0;
-    OK(lode_rotation_options_init(&o, sizeof o));
-    o.method = LODE_CRITERION_TARGET_ORTHOGONAL;
-    o.target = target;
-    o.target_rows = 6;
-    o.target_cols = 2;
-    o.target_row_stride = 2;
-    o.target_col_stride = 1;
-    OK(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r));
-    OK(lode_rotation_matrix(r, LODE_ROTATION_PATTERN, out, 12, NULL, NULL));
-    CHECK(max_abs_diff(out, simple, 12) < 1e-6);
-    lode_rotation_free(r);
-    r = NULL;
-    o.target_rows = 3;
-    EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "target");
-    o.target_rows = 6;
-    target[3] = inf_value();
-    EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "infinite");
-    o.target = NULL;
-    EXPECT(lode_rotation_compute(a, 6, 2, 2, 1, &o, &r), LODE_E_INVALID_ARGUMENT, "'target' is NULL");
-  }
+  check_target_rotation(a);
 
   /* bad input and options */
   OK(lode_rotation_options_init(&o, sizeof o));

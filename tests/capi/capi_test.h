@@ -3,28 +3,12 @@
 #ifndef LODE_CAPI_TEST_H
 #define LODE_CAPI_TEST_H
 
+#include "capi_check.h"
 #include "lode.h"
 
 #include <stddef.h>
 #include <stdint.h>
 #include <stdio.h>
-
-extern int failures;
-extern int checks;
-
-#define CHECK(cond)                                                            \
-  do {                                                                         \
-    ++checks;                                                                  \
-    if (!(cond)) {                                                             \
-      ++failures;                                                              \
-      fprintf(stderr, "%s:%d: check failed: %s\n", __FILE__, __LINE__, #cond); \
-    }                                                                          \
-  } while (0)
-
-/* A call must return `expected`; on a failure status the last error must contain `fragment`. */
-void expect_status(int got, int expected, const char* fragment, const char* call, const char* file, int line);
-#define EXPECT(call, status, fragment) expect_status((call), (status), (fragment), #call, __FILE__, __LINE__)
-#define OK(call) expect_status((call), LODE_OK, NULL, #call, __FILE__, __LINE__)
 
 /* The three getters of a handle (lode_<handle>_value, _matrix, _text) refuse a NULL handle, each asked
  * for a key it has; the message must contain `fragment`. */
@@ -35,9 +19,6 @@ void expect_status(int got, int expected, const char* fragment, const char* call
     EXPECT(prefix##_matrix(NULL, matrix_key, buf, capacity, NULL, NULL), LODE_E_INVALID_ARGUMENT, fragment);   \
     EXPECT(prefix##_text(NULL, text_key, text, text_capacity, NULL), LODE_E_INVALID_ARGUMENT, fragment);       \
   } while (0)
-
-double nan_value(void);
-double inf_value(void);
 
 /* Two-construct survey-like data, row-major, 5-point items (deterministic, no randomness needed). */
 #define N_ROWS 60
@@ -103,5 +84,6 @@ void test_reliability(void);
 void test_comparison(void);
 void test_item_flags(void);
 void test_bootstrap(void);
+void test_schmid_leiman(void);
 
 #endif

@@ -80,7 +80,7 @@ int main() {
       lode_bootstrap_options_init(&bo, sizeof bo);
       bo.replicates = 30;
       bo.threads = 1 + t;
-      lode_bootstrap_result* b = nullptr;
+      lode_bootstrap* b = nullptr;
       status[t] = lode_bootstrap_compute(c, &fo, &bo, &b);
       if (b) lode_bootstrap_matrix(b, LODE_BOOTSTRAP_LOADINGS_UPPER, upper[t].data(), upper[t].size(), nullptr, nullptr);
       lode_bootstrap_free(b);

@@ -3,30 +3,13 @@
  * and cancel, and every error path (NULL pointers, patterns that do not identify the model, bad options,
  * a matrix where respondents are needed, shares too small, unknown keys, buffers too small). Numerical
  * agreement with outside references is checked by the core and Python suites. */
+#include "capi_check.h"
 #include "lode.h"
 
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-
-static int failures = 0;
-
-#define CHECK(cond)                                                            \
-  do {                                                                         \
-    if (!(cond)) {                                                             \
-      ++failures;                                                              \
-      fprintf(stderr, "%s:%d: check failed: %s\n", __FILE__, __LINE__, #cond); \
-    }                                                                          \
-  } while (0)
-static void expect(int got, int status, const char* fragment, const char* call, int line) {
-  if (got != status || (fragment != NULL && strstr(lode_error_message(), fragment) == NULL)) {
-    ++failures;
-    fprintf(stderr, "line %d: %s gave %d (%s)\n", line, call, got, lode_error_message());
-  }
-}
-#define EXPECT(call, status, fragment) expect((call), (status), (fragment), #call, __LINE__)
-#define OK(call) EXPECT(call, LODE_OK, NULL)
 
 #define ITEMS 6
 #define ROWS 400
@@ -340,6 +323,5 @@ static void test_replication_and_holdout(void) {
 int main(void) {
   test_restricted_fit();
   test_replication_and_holdout();
-  if (failures) fprintf(stderr, "%d checks failed\n", failures);
-  return failures ? 1 : 0;
+  return check_report("replication_test");
 }

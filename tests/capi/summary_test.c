@@ -3,30 +3,13 @@
  * pointers, bad options, mismatched merges, truncated and damaged bytes, unknown keys, buffers too
  * small, a listwise request of a pairwise summary). Numerical agreement with outside references is
  * checked by the core and Python suites (pandas, scipy); here the identities of the interface. */
+#include "capi_check.h"
 #include "lode.h"
 
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-
-static int failures = 0;
-
-#define CHECK(cond)                                                            \
-  do {                                                                         \
-    if (!(cond)) {                                                             \
-      ++failures;                                                              \
-      fprintf(stderr, "%s:%d: check failed: %s\n", __FILE__, __LINE__, #cond); \
-    }                                                                          \
-  } while (0)
-static void expect(int got, int status, const char* fragment, const char* call, int line) {
-  if (got != status || (fragment != NULL && strstr(lode_error_message(), fragment) == NULL)) {
-    ++failures;
-    fprintf(stderr, "line %d: %s gave %d (%s)\n", line, call, got, lode_error_message());
-  }
-}
-#define EXPECT(call, status, fragment) expect((call), (status), (fragment), #call, __LINE__)
-#define OK(call) EXPECT(call, LODE_OK, NULL)
 
 #define ROWS 80
 #define ITEMS 4
@@ -149,7 +132,7 @@ int main(void) {
     lode_model* m = NULL;
     lode_scores* sc = NULL;
     lode_reliability* rel = NULL;
-    lode_bootstrap_result* bs = NULL;
+    lode_bootstrap* bs = NULL;
     OK(lode_correlation_options_init(&co, sizeof co));
     OK(lode_correlation_compute(from_summary, &co, &cs));
     OK(lode_model_options_init(&fo, sizeof fo));
@@ -172,6 +155,5 @@ int main(void) {
   lode_summary_free(back);
   lode_summary_free(other);
   lode_summary_free(NULL);
-  if (failures) fprintf(stderr, "%d check(s) failed\n", failures);
-  return failures ? 1 : 0;
+  return check_report("summary_test");
 }

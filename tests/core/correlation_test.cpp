@@ -11,6 +11,7 @@
 #include <cmath>
 
 using namespace lode;
+using lode::testing::error_message;
 using lode::testing::run_python;
 using lode::testing::run_r;
 
@@ -112,36 +113,28 @@ emit('rev', np.sort(np.linalg.eigvalsh(Rr))[::-1])
 
 TEST(CorrelationErrors, MessagesNameTheProblem) {
   Matrix x = survey_like(50, 4, 1, 0.0);
-  auto message_of = [](auto&& f) {
-    try {
-      f();
-    } catch (const Error& e) {
-      return std::string(e.what());
-    }
-    return std::string("no error");
-  };
   Matrix two = x.leftCols(2);
-  EXPECT_NE(message_of([&] { correlation(two); }).find("at least 3 items"), std::string::npos);
+  EXPECT_NE(error_message([&] { correlation(two); }).find("at least 3 items"), std::string::npos);
   Matrix constant = x;
   constant.col(2).setConstant(4.0);
   CorrelationOptions named;
   named.item_names = {"q1", "q2", "q3", "q4"};
-  EXPECT_NE(message_of([&] { correlation(constant, named); }).find("'q3' is constant"), std::string::npos);
+  EXPECT_NE(error_message([&] { correlation(constant, named); }).find("'q3' is constant"), std::string::npos);
   Matrix inf = x;
   inf(7, 1) = INFINITY;
-  EXPECT_NE(message_of([&] { correlation(inf); }).find("column 2 holds an infinite value in row 8"), std::string::npos);
+  EXPECT_NE(error_message([&] { correlation(inf); }).find("column 2 holds an infinite value in row 8"), std::string::npos);
   Matrix sparse = x;
   for (Index i = 0; i < 48; ++i) sparse(i, 3) = std::nan("");
-  EXPECT_NE(message_of([&] { correlation(sparse); }).find("answered in only 2 of 50 rows"), std::string::npos);
+  EXPECT_NE(error_message([&] { correlation(sparse); }).find("answered in only 2 of 50 rows"), std::string::npos);
   Matrix holes = x;
   for (Index i = 0; i < 49; ++i) holes(i, i % 4) = std::nan("");
   CorrelationOptions listwise;
   listwise.missing = MissingPolicy::listwise;
-  EXPECT_NE(message_of([&] { correlation(holes, listwise); }).find("only 1 of 50 rows survive listwise deletion"),
+  EXPECT_NE(error_message([&] { correlation(holes, listwise); }).find("only 1 of 50 rows survive listwise deletion"),
             std::string::npos);
   Matrix asym = Matrix::Identity(3, 3);
   asym(0, 1) = 0.5;
-  EXPECT_NE(message_of([&] { correlation_from_matrix(asym, 10); }).find("not symmetric"), std::string::npos);
+  EXPECT_NE(error_message([&] { correlation_from_matrix(asym, 10); }).find("not symmetric"), std::string::npos);
 }
 
 TEST(Correlation, LargeDataAcrossChunksMatchesRAndIgnoresThreadCount) {
@@ -258,37 +251,29 @@ TEST(CorrelationErrors, CompleteDataChecksAcrossChunksWordAsTheInputChecks) {
   // The checks folded into the summing pass must fail as validate_data does, on problems placed in
   // later chunks (rows beyond 8192).
   const Matrix x = survey_like(20000, 5, 51, 0.0);
-  auto message_of = [](auto&& f) {
-    try {
-      f();
-    } catch (const Error& e) {
-      return std::string(e.what());
-    }
-    return std::string("no error");
-  };
   CorrelationOptions named;
   named.item_names = {"a", "b", "c", "d", "e"};
   Matrix inf = x;
   inf(17000, 3) = -INFINITY;
   inf(9000, 3) = INFINITY;
   inf(12000, 4) = INFINITY;
-  const std::string inf_message = message_of([&] { correlation(inf, named); });
+  const std::string inf_message = error_message([&] { correlation(inf, named); });
   EXPECT_NE(inf_message.find("'d' holds an infinite value in row 9001"), std::string::npos) << inf_message;
-  EXPECT_EQ(inf_message, message_of([&] { validate_data(inf, named); }));
+  EXPECT_EQ(inf_message, error_message([&] { validate_data(inf, named); }));
   Matrix constant = x;
   constant.col(1).setConstant(2.0);
   constant.col(2).setConstant(3.0);
   constant(19999, 2) = 4.0;  // not constant: differs in the last chunk only
-  const std::string constant_message = message_of([&] { correlation(constant, named); });
+  const std::string constant_message = error_message([&] { correlation(constant, named); });
   EXPECT_NE(constant_message.find("'b' is constant (every answer is 2)"), std::string::npos) << constant_message;
-  EXPECT_EQ(constant_message, message_of([&] { validate_data(constant, named); }));
+  EXPECT_EQ(constant_message, error_message([&] { validate_data(constant, named); }));
   constant.col(1) = x.col(1);
-  EXPECT_EQ(message_of([&] { correlation(constant, named); }), "no error");
+  EXPECT_EQ(error_message([&] { correlation(constant, named); }), "(no error)");
   CorrelationOptions demanding;
   demanding.min_pair_observations = 30000;
-  const std::string few = message_of([&] { correlation(x, demanding); });
+  const std::string few = error_message([&] { correlation(x, demanding); });
   EXPECT_NE(few.find("answered in only 20000 of 20000 rows"), std::string::npos) << few;
-  EXPECT_EQ(few, message_of([&] { validate_data(x, demanding); }));
+  EXPECT_EQ(few, error_message([&] { validate_data(x, demanding); }));
   Matrix huge = x;  // finite values whose sums overflow: rescaled, the same correlations as at ordinary scale
   huge.col(0).array() *= 1e306;
   EXPECT_LT((correlation(huge).matrix - correlation(x).matrix).cwiseAbs().maxCoeff(), 1e-13);

@@ -1,5 +1,6 @@
 // Distribution functions, checked live against scipy.special and scipy.stats.
 #include "lode/distributions.hpp"
+#include "support/errors.hpp"
 #include "support/external.hpp"
 
 #include <gtest/gtest.h>
@@ -7,6 +8,7 @@
 #include <cmath>
 
 using namespace lode;
+using lode::testing::error_message;
 using lode::testing::run_python;
 
 namespace {
@@ -152,18 +154,10 @@ TEST(Distributions, RejectsArgumentsOutsideTheirDomain) {
         }
       },
       Error);
-  auto message = [](auto&& f) {
-    try {
-      f();
-    } catch (const Error& e) {
-      return std::string(e.what());
-    }
-    return std::string("no error");
-  };
-  EXPECT_EQ(message([] { return gamma_p(-1.0, 1.0); }), "the incomplete gamma function needs a > 0; got -1");
-  EXPECT_EQ(message([] { return noncentral_chi_square_cdf(1.0, 2.0, -0.5); }),
+  EXPECT_EQ(error_message([] { return gamma_p(-1.0, 1.0); }), "the incomplete gamma function needs a > 0; got -1");
+  EXPECT_EQ(error_message([] { return noncentral_chi_square_cdf(1.0, 2.0, -0.5); }),
             "the noncentrality parameter must be finite and non-negative; got -0.5");
-  EXPECT_EQ(message([] { return log_gamma(0.0); }), "log_gamma needs a positive finite argument; got 0");
+  EXPECT_EQ(error_message([] { return log_gamma(0.0); }), "log_gamma needs a positive finite argument; got 0");
 }
 
 TEST(Distributions, QuantileType7MatchesNumpyPercentile) {

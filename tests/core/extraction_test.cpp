@@ -4,6 +4,7 @@
 #include "lode/correlation.hpp"
 #include "lode/fit.hpp"
 #include "lode/random.hpp"
+#include "support/errors.hpp"
 #include "support/external.hpp"
 
 #include <gtest/gtest.h>
@@ -12,10 +13,7 @@
 #include <string>
 
 using namespace lode;
-using lode::testing::max_abs_diff_up_to_column_sign;
-using lode::testing::run_python;
-using lode::testing::run_r;
-using lode::testing::scalar;
+using namespace lode::testing;  // the live references (external.hpp) and error_message
 
 namespace {
 
@@ -265,17 +263,9 @@ TEST(ExtractionProperties, TwoConstructsNeedTwoFactors) {
 
 TEST(ExtractionErrors, EachNamesTheProblem) {
   const Matrix r = two_factor_population();
-  auto msg = [](auto&& f) {
-    try {
-      f();
-    } catch (const Error& e) {
-      return std::string(e.what());
-    }
-    return std::string("no error");
-  };
-  EXPECT_EQ(msg([&] { extract_factors(r, 0); }), "the number of factors must be at least 1; got 0");
-  EXPECT_EQ(msg([&] { extract_factors(r, 8); }), "8 factors from 8 items: there must be fewer factors than items");
-  EXPECT_EQ(msg([&] { extract_factors(r.topLeftCorner(5, 5), 3); }),
+  EXPECT_EQ(error_message([&] { extract_factors(r, 0); }), "the number of factors must be at least 1; got 0");
+  EXPECT_EQ(error_message([&] { extract_factors(r, 8); }), "8 factors from 8 items: there must be fewer factors than items");
+  EXPECT_EQ(error_message([&] { extract_factors(r.topLeftCorner(5, 5), 3); }),
             "maximum likelihood with 3 factors for 5 items has negative degrees of freedom (-2); 5 items can identify "
             "at most 2 factors");
   try {
@@ -289,13 +279,13 @@ TEST(ExtractionErrors, EachNamesTheProblem) {
   Matrix npd(4, 4);  // pairwise-deletion style matrix, smallest eigenvalue below zero
   npd << 1, 0.9, 0.9, 0.1, 0.9, 1, 0.9, 0.9, 0.9, 0.9, 1, 0.9, 0.1, 0.9, 0.9, 1;
   ASSERT_FALSE(is_positive_definite(npd));
-  const std::string ml_npd = msg([&] { extract_factors(npd, 1); });
+  const std::string ml_npd = error_message([&] { extract_factors(npd, 1); });
   EXPECT_EQ(ml_npd.rfind("maximum likelihood needs a positive-definite correlation matrix, but this one's smallest "
                          "eigenvalue is -",
                          0),
             0u);
   EXPECT_NE(ml_npd.find("smooth it to the nearest correlation matrix first"), std::string::npos);
-  EXPECT_NE(msg([&] { extract_factors(npd, 1, with(ExtractionMethod::principal_axis)); })
+  EXPECT_NE(error_message([&] { extract_factors(npd, 1, with(ExtractionMethod::principal_axis)); })
                 .find("principal axis factoring starts from squared multiple correlations"),
             std::string::npos);
   // Minimum residual still works on such a matrix, and says how it started.
@@ -303,27 +293,27 @@ TEST(ExtractionErrors, EachNamesTheProblem) {
   EXPECT_NE(mr.notes.front().find("not positive definite"), std::string::npos);
   ExtractionOptions o;
   o.n_obs = 8;
-  EXPECT_EQ(msg([&] { extract_factors(r, 2, o); }),
+  EXPECT_EQ(error_message([&] { extract_factors(r, 2, o); }),
             "too few observations: a correlation matrix of 8 items from 8 observations is singular; at least 9 "
             "observations are needed, and many more for stable factors");
   o.n_obs = -3;
-  EXPECT_EQ(msg([&] { extract_factors(r, 2, o); }), "the number of observations is negative (-3)");
+  EXPECT_EQ(error_message([&] { extract_factors(r, 2, o); }), "the number of observations is negative (-3)");
   o = {};
   o.max_iterations = 0;
-  EXPECT_EQ(msg([&] { extract_factors(r, 2, o); }), "the iteration cap must be at least 1; got 0");
+  EXPECT_EQ(error_message([&] { extract_factors(r, 2, o); }), "the iteration cap must be at least 1; got 0");
   o = {};
   o.tolerance = -1;
-  EXPECT_EQ(msg([&] { extract_factors(r, 2, o); }), "the convergence tolerance must be positive; got -1");
+  EXPECT_EQ(error_message([&] { extract_factors(r, 2, o); }), "the convergence tolerance must be positive; got -1");
   o = {};
   o.min_uniqueness = 0;
-  EXPECT_EQ(msg([&] { extract_factors(r, 2, o); }),
+  EXPECT_EQ(error_message([&] { extract_factors(r, 2, o); }),
             "the lower bound for uniquenesses must lie strictly between 0 and 1; got 0");
   o = {};
   o.item_names = {"a", "b"};
-  EXPECT_EQ(msg([&] { extract_factors(r, 2, o); }), "2 item names were given for 8 items");
+  EXPECT_EQ(error_message([&] { extract_factors(r, 2, o); }), "2 item names were given for 8 items");
   Matrix bad = r;
   bad(0, 0) = 2.0;
-  EXPECT_EQ(msg([&] { extract_factors(bad, 2); }), "the diagonal of a correlation matrix must be 1; column 1 has 2");
+  EXPECT_EQ(error_message([&] { extract_factors(bad, 2); }), "the diagonal of a correlation matrix must be 1; column 1 has 2");
   // Non-convergence is reported, not hidden.
   o = {};
   o.max_iterations = 2;
@@ -334,11 +324,11 @@ TEST(ExtractionErrors, EachNamesTheProblem) {
   // Starting uniquenesses of the wrong length, or not finite.
   o = {};
   o.start_uniquenesses = Vector::Constant(3, 0.5);
-  EXPECT_EQ(msg([&] { extract_factors(r, 2, o); }), "3 starting uniquenesses were given for 8 items");
+  EXPECT_EQ(error_message([&] { extract_factors(r, 2, o); }), "3 starting uniquenesses were given for 8 items");
   o.start_uniquenesses = Vector::Constant(8, 0.5);
   o.start_uniquenesses(2) = std::nan("");
   o.item_names = {"a", "b", "c", "d", "e", "f", "g", "h"};
-  EXPECT_EQ(msg([&] { extract_factors(r, 2, o); }), "the starting uniqueness of item 'c' is not a finite number (nan)");
+  EXPECT_EQ(error_message([&] { extract_factors(r, 2, o); }), "the starting uniqueness of item 'c' is not a finite number (nan)");
 }
 
 TEST(ExtractionProperties, AnyStartReachesTheSameOptimumAsFactanal) {

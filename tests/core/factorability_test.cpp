@@ -2,6 +2,7 @@
 // recomputed independently with numpy/scipy inside the test on matrices R's datasets package ships.
 #include "lode/factorability.hpp"
 #include "lode/correlation.hpp"
+#include "support/errors.hpp"
 #include "support/external.hpp"
 
 #include <gtest/gtest.h>
@@ -10,23 +11,7 @@
 #include <string>
 
 using namespace lode;
-using lode::testing::run_python;
-using lode::testing::run_r;
-using lode::testing::scalar;
-
-namespace {
-
-template <class F>
-std::string message_of(F&& f) {
-  try {
-    f();
-  } catch (const Error& e) {
-    return e.what();
-  }
-  return "no error";
-}
-
-}  // namespace
+using namespace lode::testing;  // the live references (external.hpp) and error_message
 
 TEST(Factorability, KmoBartlettAndDeterminantMatchNumpyFormulas) {
   // Data: datasets::Harman74.cor (Harman 1976, 24 psychological tests, n = 145), read live from R.
@@ -99,21 +84,21 @@ TEST(Factorability, IdentityAndEquicorrelationHaveClosedForms) {
 TEST(Factorability, ErrorsNameTheProblem) {
   Matrix singular(3, 3);
   singular << 1, 1, 0.5, 1, 1, 0.5, 0.5, 0.5, 1;  // items 1 and 2 identical
-  EXPECT_EQ(message_of([&] { kaiser_meyer_olkin(singular); }).rfind(
+  EXPECT_EQ(error_message([&] { kaiser_meyer_olkin(singular); }).rfind(
                 "the Kaiser-Meyer-Olkin measure needs the inverse of the correlation matrix, but the matrix is not "
                 "positive definite (smallest eigenvalue",
                 0),
             0u);
   Matrix eq = Matrix::Constant(4, 4, 0.3);
   eq.diagonal().setOnes();
-  EXPECT_EQ(message_of([&] { bartlett_sphericity(eq, 0); }),
+  EXPECT_EQ(error_message([&] { bartlett_sphericity(eq, 0); }),
             "Bartlett's test of sphericity needs the number of observations behind the correlation matrix, which is "
             "not known (n_obs = 0)");
-  EXPECT_EQ(message_of([&] { bartlett_sphericity(eq, 3); }),
+  EXPECT_EQ(error_message([&] { bartlett_sphericity(eq, 3); }),
             "Bartlett's test of sphericity needs more than 3.17 observations for 4 items; the matrix rests on 3");
-  EXPECT_NE(message_of([&] { bartlett_sphericity(singular, 100); }).find("not positive definite"), std::string::npos);
-  EXPECT_NE(message_of([&] { log_determinant(singular); }).find("log-determinant is undefined"), std::string::npos);
-  EXPECT_EQ(message_of([&] { assess_factorability(eq, -1); }), "the number of observations is negative (-1)");
+  EXPECT_NE(error_message([&] { bartlett_sphericity(singular, 100); }).find("not positive definite"), std::string::npos);
+  EXPECT_NE(error_message([&] { log_determinant(singular); }).find("log-determinant is undefined"), std::string::npos);
+  EXPECT_EQ(error_message([&] { assess_factorability(eq, -1); }), "the number of observations is negative (-1)");
   // An incomplete report instead of an error when only parts are impossible.
   const FactorabilityResult part = assess_factorability(singular, 0);
   EXPECT_FALSE(part.kmo);

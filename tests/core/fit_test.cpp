@@ -3,6 +3,7 @@
 #include "lode/fit.hpp"
 #include "lode/distributions.hpp"
 #include "lode/extraction.hpp"
+#include "support/errors.hpp"
 #include "support/external.hpp"
 
 #include <gtest/gtest.h>
@@ -11,23 +12,7 @@
 #include <string>
 
 using namespace lode;
-using lode::testing::run_python;
-using lode::testing::run_r;
-using lode::testing::scalar;
-
-namespace {
-
-template <class F>
-std::string message_of(F&& f) {
-  try {
-    f();
-  } catch (const Error& e) {
-    return e.what();
-  }
-  return "no error";
-}
-
-}  // namespace
+using namespace lode::testing;  // the live references (external.hpp) and error_message
 
 TEST(Fit, StatisticsMatchNumpyScipyFormulasForEveryMethod) {
   // Data: datasets::Harman74.cor (24 tests, n = 145), read live from R.
@@ -113,7 +98,7 @@ TEST(Fit, ErrorsNameTheProblem) {
   lambda << 0.8, 0.7, 0.6, 0.5, 0.4;
   const Vector psi = Vector::Ones(5) - lambda.rowwise().squaredNorm();
   const Matrix r = implied_correlation(lambda, psi);
-  EXPECT_EQ(message_of([&] { assess_fit(r, lambda, psi, 0); }),
+  EXPECT_EQ(error_message([&] { assess_fit(r, lambda, psi, 0); }),
             "the chi-square test, RMSEA, Tucker-Lewis index and BIC need the number of observations behind the "
             "correlation matrix, which is not known (n_obs = 0); the residual correlations and their root mean square "
             "need none");
@@ -121,24 +106,24 @@ TEST(Fit, ErrorsNameTheProblem) {
   EXPECT_LT(residual_fit(r, lambda, psi).rmsr, 1e-15);
   Matrix three(5, 3);
   three.setConstant(0.3);
-  EXPECT_EQ(message_of([&] { assess_fit(r, three, psi, 100); }),
+  EXPECT_EQ(error_message([&] { assess_fit(r, three, psi, 100); }),
             "3 factors for 5 items leave negative degrees of freedom (-2); 5 items can identify at most 2 factors");
-  EXPECT_EQ(message_of([&] { assess_fit(r, lambda, psi, 4); }),
+  EXPECT_EQ(error_message([&] { assess_fit(r, lambda, psi, 4); }),
             "too few observations for the chi-square test: 5 items and 1 factors need more than 4.17 observations; "
             "the matrix rests on 4");
-  EXPECT_EQ(message_of([&] { assess_fit(r, lambda, psi.head(4), 100); }),
+  EXPECT_EQ(error_message([&] { assess_fit(r, lambda, psi.head(4), 100); }),
             "the solution does not match the matrix: 5 items, 5 rows of loadings, 4 uniquenesses");
   FitOptions bad_level;
   bad_level.interval_level = 1.5;
-  EXPECT_EQ(message_of([&] { assess_fit(r, lambda, psi, 100, bad_level); }),
+  EXPECT_EQ(error_message([&] { assess_fit(r, lambda, psi, 100, bad_level); }),
             "the level of the RMSEA interval must lie strictly between 0 and 1; got 1.5");
   Vector zero_psi = psi;
   zero_psi(0) = -0.64;  // implied matrix with a negative variance share
-  EXPECT_NE(message_of([&] { assess_fit(r, lambda, zero_psi, 100); }).find("model-implied correlation matrix is not positive definite"),
+  EXPECT_NE(error_message([&] { assess_fit(r, lambda, zero_psi, 100); }).find("model-implied correlation matrix is not positive definite"),
             std::string::npos);
   Matrix npd(4, 4);
   npd << 1, 0.9, 0.9, 0.1, 0.9, 1, 0.9, 0.9, 0.9, 0.9, 1, 0.9, 0.1, 0.9, 0.9, 1;
-  EXPECT_NE(message_of([&] { assess_fit(npd, Matrix::Constant(4, 1, 0.5), Vector::Constant(4, 0.75), 100); })
+  EXPECT_NE(error_message([&] { assess_fit(npd, Matrix::Constant(4, 1, 0.5), Vector::Constant(4, 0.75), 100); })
                 .find("need a positive-definite correlation matrix, but this one's smallest eigenvalue is -"),
             std::string::npos);
 }

@@ -5,6 +5,7 @@
 #include "lode/correlation.hpp"
 #include "lode/polychoric.hpp"
 #include "lode/random.hpp"
+#include "support/errors.hpp"
 #include "support/external.hpp"
 
 #include <fmt/format.h>
@@ -18,9 +19,7 @@
 #include <vector>
 
 using namespace lode;
-using lode::testing::run_python;
-using lode::testing::run_r;
-using lode::testing::scalar;
+using namespace lode::testing;  // the live references (external.hpp) and error_message
 
 namespace {
 
@@ -73,15 +72,6 @@ Matrix contingency(const Matrix& pair) {
   Matrix t = Matrix::Zero(r, c);
   for (Index i = 0; i < pair.rows(); ++i) t(static_cast<Index>(pair(i, 0)) - 1, static_cast<Index>(pair(i, 1)) - 1) += 1;
   return t;
-}
-
-std::string message_of(const std::function<void()>& f) {
-  try {
-    f();
-  } catch (const Error& e) {
-    return e.what();
-  }
-  return "no error";
 }
 
 }  // namespace
@@ -384,7 +374,7 @@ TEST(Polychoric, ThreadsDoNotChangeTheResultAndProgressCanCancel) {
     called = true;
     return done == total;
   };
-  EXPECT_NE(message_of([&] { polychoric_correlation(big, o); }).find("cancelled"), std::string::npos);
+  EXPECT_NE(error_message([&] { polychoric_correlation(big, o); }).find("cancelled"), std::string::npos);
   EXPECT_TRUE(called);
 }
 
@@ -470,40 +460,40 @@ TEST(PolychoricErrors, MessagesNameTheProblem) {
   o.item_names = {"q1", "q2", "q3", "q4"};
   Matrix frac = x;
   frac(6, 1) = 2.5;
-  EXPECT_NE(message_of([&] { correlation(frac, o); }).find("item 'q2' holds the value 2.5 in row 7; polychoric"),
+  EXPECT_NE(error_message([&] { correlation(frac, o); }).find("item 'q2' holds the value 2.5 in row 7; polychoric"),
             std::string::npos);
   Matrix wide = x;
   for (Index i = 0; i < 200; ++i) wide(i, 2) = static_cast<double>(i % 14);
-  EXPECT_NE(message_of([&] { correlation(wide, o); }).find("item 'q3' has 14 distinct values (from 0 to 13)"),
+  EXPECT_NE(error_message([&] { correlation(wide, o); }).find("item 'q3' has 14 distinct values (from 0 to 13)"),
             std::string::npos);
-  EXPECT_NE(message_of([&] { correlation(wide, o); }).find("at most 10 categories"), std::string::npos);
+  EXPECT_NE(error_message([&] { correlation(wide, o); }).find("at most 10 categories"), std::string::npos);
   CorrelationOptions more = o;
   more.polychoric.max_categories = 14;
-  EXPECT_EQ(message_of([&] { correlation(wide, more); }), "no error");
+  EXPECT_EQ(error_message([&] { correlation(wide, more); }), "(no error)");
   // q4 answered as 1 wherever q1 is answered, and 1 or 2 elsewhere (pairwise deletion).
   Matrix split = x;
   for (Index i = 0; i < 200; ++i) {
     if (i < 100) split(i, 3) = 1.0;
     else split(i, 3) = 1.0 + static_cast<double>(i % 2), split(i, 0) = std::nan("");
   }
-  EXPECT_NE(message_of([&] { correlation(split, o); })
+  EXPECT_NE(error_message([&] { correlation(split, o); })
                 .find("in the rows where item 'q1' and item 'q4' are both answered, item 'q4' has a single category"),
             std::string::npos);
   Matrix single = x;
   single.col(1).setConstant(3.0);
-  EXPECT_NE(message_of([&] { correlation(single, o); }).find("item 'q2' is constant"), std::string::npos);
+  EXPECT_NE(error_message([&] { correlation(single, o); }).find("item 'q2' is constant"), std::string::npos);
   CorrelationOptions bad = o;
   bad.polychoric.max_categories = 1;
-  EXPECT_NE(message_of([&] { correlation(x, bad); }).find("max_categories must be between 2 and 100 (it is 1)"), std::string::npos);
+  EXPECT_NE(error_message([&] { correlation(x, bad); }).find("max_categories must be between 2 and 100 (it is 1)"), std::string::npos);
   bad = o;
   bad.polychoric.max_abs_correlation = 1.0;
-  EXPECT_NE(message_of([&] { correlation(x, bad); }).find("max_abs_correlation must lie strictly between 0 and 1"),
+  EXPECT_NE(error_message([&] { correlation(x, bad); }).find("max_abs_correlation must lie strictly between 0 and 1"),
             std::string::npos);
   Matrix one_row(1, 3);
   one_row << 5, 0, 3;
-  EXPECT_NE(message_of([&] { polychoric_from_table(one_row); }).find("1 non-empty row(s) and 2 non-empty column(s)"),
+  EXPECT_NE(error_message([&] { polychoric_from_table(one_row); }).find("1 non-empty row(s) and 2 non-empty column(s)"),
             std::string::npos);
   Matrix negative(2, 2);
   negative << 3, -1, 2, 4;
-  EXPECT_NE(message_of([&] { polychoric_from_table(negative); }).find("holds -1 at row 1, column 2"), std::string::npos);
+  EXPECT_NE(error_message([&] { polychoric_from_table(negative); }).find("holds -1 at row 1, column 2"), std::string::npos);
 }

@@ -13,10 +13,7 @@
 #include <cmath>
 
 using namespace lode;
-using lode::testing::error_message;
-using lode::testing::run_python;
-using lode::testing::run_r;
-using lode::testing::scalar;
+using namespace lode::testing;  // the live references (external.hpp) and error_message
 
 namespace {
 

@@ -84,11 +84,11 @@ void plain_calls(Bytes& in) {
   for (size_t k = 0; k < length; ++k) word[k] = static_cast<char>(in.byte());
   word[length] = '\0';
   int method = -1;
-  if (lode_rotation_method_from_name(word, &method) == LODE_OK && lode_rotation_method_name(method) == nullptr)
+  if (lode_criterion_from_name(word, &method) == LODE_OK && lode_criterion_name(method) == nullptr)
     __builtin_trap();  // a name that was found has a name to give back
-  lode_rotation_method_from_name(nullptr, &method);
-  lode_rotation_method_from_name(word, nullptr);
-  for (int m = -1; m < 16; ++m) lode_rotation_method_name(m);
+  lode_criterion_from_name(nullptr, &method);
+  lode_criterion_from_name(word, nullptr);
+  for (int m = -1; m < 16; ++m) lode_criterion_name(m);
 }
 
 // Reads every result of a correlation with several buffer sizes.
@@ -157,7 +157,7 @@ void bootstrap(const lode_correlation* c, const lode_model_options& fit, Bytes& 
   int cancel_after = (plan & 64) ? static_cast<int>(in.byte() % 3) : -1;
   o.progress = fuzz_progress;
   o.progress_user = &cancel_after;
-  lode_bootstrap_result* b = nullptr;
+  lode_bootstrap* b = nullptr;
   if (lode_bootstrap_compute(c, &fit, &o, &b) != LODE_OK) return;
   double buf[1024], v;
   for (int key = 900; key < 916; ++key) {
@@ -261,9 +261,50 @@ void replication(const lode_correlation* c, const lode_model_options& fit, Bytes
   lode_holdout_free(h);
 }
 
-// Factorability, a small factor count, a fit with the chosen method and rotation, and a rotation of
-// the fitted loadings, each read back in full.
-void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
+// Omega per factor, omega with fuzzed reverse keying, and the Schmid-Leiman transformation of the
+// model, each read back in full.
+void reliability_of(lode_model* m, Bytes& in) {
+  double buf[256], v;
+  char text[2048];
+  lode_reliability* rel = nullptr;
+  if (lode_reliability_compute_omega(m, nullptr, 0, &rel) == LODE_OK) {
+    for (int key = 740; key < 746; ++key) lode_reliability_matrix(rel, key, buf, 256, nullptr, nullptr);
+    lode_reliability_value(rel, LODE_RELIABILITY_OMEGA_CONVERGED, &v);
+    lode_reliability_text(rel, LODE_RELIABILITY_NOTES, text, sizeof text, nullptr);
+    lode_reliability_free(rel);
+  }
+  {
+    // Omega with reverse-keyed items: fuzzed keying (valid and not) and per-item reverse flags.
+    lode_reliability_options ro;
+    lode_reliability_options_init(&ro, sizeof ro);
+    ro.keying = in.byte() % 3;
+    int64_t rows = 0, cols = 0;
+    lode_model_matrix(m, LODE_MODEL_LOADINGS, nullptr, 0, &rows, &cols);
+    std::vector<int32_t> reverse(static_cast<std::size_t>(std::max<int64_t>(rows, 0)));
+    for (auto& r : reverse) r = in.byte() & 1;
+    if (!reverse.empty() && (in.byte() & 1)) {
+      ro.reverse = reverse.data();
+      ro.reverse_count = static_cast<int64_t>(reverse.size()) - (in.byte() & 1);
+    }
+    if (lode_reliability_compute_keyed_omega(m, &ro, &rel) == LODE_OK) {
+      lode_reliability_matrix(rel, LODE_RELIABILITY_REVERSED, buf, 256, nullptr, nullptr);
+      lode_reliability_free(rel);
+    }
+  }
+  lode_schmid_leiman_options slo;
+  lode_schmid_leiman_options_init(&slo, sizeof slo);
+  slo.second_order = in.byte() % 4;
+  lode_schmid_leiman* sl = nullptr;
+  if (lode_schmid_leiman_compute(m, &slo, nullptr, 0, &sl) == LODE_OK) {
+    for (int key = 1400; key < 1408; ++key) lode_schmid_leiman_matrix(sl, key, buf, 256, nullptr, nullptr);
+    for (int key = 1420; key < 1426; ++key) lode_schmid_leiman_value(sl, key, &v);
+    lode_schmid_leiman_text(sl, LODE_SCHMID_LEIMAN_NOTES, text, sizeof text, nullptr);
+    lode_schmid_leiman_free(sl);
+  }
+}
+
+// Factorability of the correlations, read back in full.
+void factorability(const lode_correlation* c) {
   lode_factorability* f = nullptr;
   if (lode_factorability_compute(c, &f) == LODE_OK) {
     double v;
@@ -277,6 +318,12 @@ void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
     lode_factorability_text(f, LODE_FACTORABILITY_NOTES, text, sizeof text, nullptr);
     lode_factorability_free(f);
   }
+}
+
+// Factorability, a small factor count, a fit with the chosen method and rotation, and a rotation of
+// the fitted loadings, each read back in full.
+void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
+  factorability(c);
   const uint8_t plan = in.byte();
   lode_factor_count_options co;
   lode_factor_count_options_init(&co, sizeof co);
@@ -378,41 +425,7 @@ void analyse(const lode_correlation* c, const lode_data* d, Bytes& in) {
     }
     lode_data_free(first);
   }
-  lode_reliability* rel = nullptr;
-  if (lode_reliability_compute_omega(m, nullptr, 0, &rel) == LODE_OK) {
-    for (int key = 740; key < 746; ++key) lode_reliability_matrix(rel, key, buf, 256, nullptr, nullptr);
-    lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v);
-    lode_reliability_text(rel, LODE_RELIABILITY_NOTES, text, sizeof text, nullptr);
-    lode_reliability_free(rel);
-  }
-  {
-    // Omega with reverse-keyed items: fuzzed keying (valid and not) and per-item reverse flags.
-    lode_reliability_options ro;
-    lode_reliability_options_init(&ro, sizeof ro);
-    ro.keying = in.byte() % 3;
-    int64_t rows = 0, cols = 0;
-    lode_model_matrix(m, LODE_MODEL_LOADINGS, nullptr, 0, &rows, &cols);
-    std::vector<int32_t> reverse(static_cast<std::size_t>(std::max<int64_t>(rows, 0)));
-    for (auto& r : reverse) r = in.byte() & 1;
-    if (!reverse.empty() && (in.byte() & 1)) {
-      ro.reverse = reverse.data();
-      ro.reverse_count = static_cast<int64_t>(reverse.size()) - (in.byte() & 1);
-    }
-    if (lode_reliability_compute_keyed_omega(m, &ro, &rel) == LODE_OK) {
-      lode_reliability_matrix(rel, LODE_RELIABILITY_REVERSED, buf, 256, nullptr, nullptr);
-      lode_reliability_free(rel);
-    }
-  }
-  lode_schmid_leiman_options slo;
-  lode_schmid_leiman_options_init(&slo, sizeof slo);
-  slo.second_order = in.byte() % 4;
-  lode_schmid_leiman* sl = nullptr;
-  if (lode_schmid_leiman_compute(m, &slo, nullptr, 0, &sl) == LODE_OK) {
-    for (int key = 1400; key < 1408; ++key) lode_schmid_leiman_matrix(sl, key, buf, 256, nullptr, nullptr);
-    for (int key = 1420; key < 1426; ++key) lode_schmid_leiman_value(sl, key, &v);
-    lode_schmid_leiman_text(sl, LODE_SCHMID_LEIMAN_NOTES, text, sizeof text, nullptr);
-    lode_schmid_leiman_free(sl);
-  }
+  reliability_of(m, in);
   double rotated[256];
   if (lode_model_matrix(m, LODE_MODEL_UNROTATED_LOADINGS, buf, 256, &rows, &cols) == LODE_OK &&
       lode_model_matrix(m, LODE_MODEL_LOADINGS, rotated, 256, nullptr, nullptr) == LODE_OK) {
@@ -466,7 +479,7 @@ void reliability(const lode_data* d, const lode_correlation* c) {
   fo.max_iterations = 200;
   if (lode_reliability_compute_scale_omega(c, &fo, &rel) == LODE_OK) {
     for (int key = 740; key < 746; ++key) lode_reliability_matrix(rel, key, buf, 64, nullptr, nullptr);
-    lode_reliability_value(rel, LODE_OMEGA_CONVERGED, &v);
+    lode_reliability_value(rel, LODE_RELIABILITY_OMEGA_CONVERGED, &v);
     lode_reliability_text(rel, LODE_RELIABILITY_NOTES, text, sizeof text, nullptr);
     lode_reliability_free(rel);
   }

@@ -222,7 +222,7 @@ TEST_F(ReportLayout, FactorsSheetMatchesCorrelationsResidualsAndKeyedOmega) {
   lode_reliability* r = nullptr;
   check(lode_reliability_compute_keyed_omega(ref.model.get(), &ro, &r), "omega");
   const Handle<lode_reliability, lode_reliability_free> om(r);
-  const Matrix omega = read_matrix(om.get(), LODE_OMEGA, lode_reliability_matrix, "omega");
+  const Matrix omega = read_matrix(om.get(), LODE_RELIABILITY_OMEGA, lode_reliability_matrix, "omega");
   const Matrix share = read_matrix(om.get(), LODE_RELIABILITY_OMEGA_FACTOR_SHARE, lode_reliability_matrix, "share");
   const long scales = find_row(s, "Scale");
   ASSERT_GE(scales, 0);

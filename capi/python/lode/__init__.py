@@ -194,9 +194,7 @@ def _correlate(data, method, missing, smooth, min_eigenvalue=1e-6, min_pair_obse
                         max_categories=max_categories, zero_cells=_choice(zero_cells, _ZERO_CELLS, "zero-cell policy"),
                         zero_cell_add=zero_cell_add, em_tolerance=em_tolerance,
                         em_max_iterations=em_max_iterations)
-    callback = _native.make_progress(progress)
-    if callback is not None:
-        o.progress = callback
+    callback = _native.attach_progress(o, progress)
     ptr = ctypes.c_void_p()
     check(lib.lode_correlation_compute(data.pointer, ctypes.byref(o), ctypes.byref(ptr)))
     del callback
@@ -243,19 +241,19 @@ class Factorability(_native.Handle):
 
     def __init__(self, pointer):
         super().__init__(pointer)
-        m, v, t = lib.lode_factorability_matrix, lib.lode_factorability_value, lib.lode_factorability_text
-        self.kmo = _optional(lambda: _native.get_value(v, pointer, _abi.LODE_FACTORABILITY_KMO))
-        self.kmo_label = _optional(lambda: _native.get_text(t, pointer, _abi.LODE_FACTORABILITY_KMO_LABEL))
-        self.msa = _optional(lambda: _native.get_matrix(m, pointer, _abi.LODE_FACTORABILITY_MSA)[:, 0])
-        self.smc = _optional(lambda: _native.get_matrix(m, pointer, _abi.LODE_FACTORABILITY_SMC)[:, 0])
-        chi = _optional(lambda: _native.get_value(v, pointer, _abi.LODE_FACTORABILITY_BARTLETT_CHI_SQUARE))
+        mat, num, txt = _native.readers("lode_factorability", pointer)
+        self.kmo = _optional(lambda: num(_abi.LODE_FACTORABILITY_KMO))
+        self.kmo_label = _optional(lambda: txt(_abi.LODE_FACTORABILITY_KMO_LABEL))
+        self.msa = _optional(lambda: mat(_abi.LODE_FACTORABILITY_MSA)[:, 0])
+        self.smc = _optional(lambda: mat(_abi.LODE_FACTORABILITY_SMC)[:, 0])
+        chi = _optional(lambda: num(_abi.LODE_FACTORABILITY_BARTLETT_CHI_SQUARE))
         self.bartlett = None if chi is None else {
-            "chi_square": chi, "df": _native.get_value(v, pointer, _abi.LODE_FACTORABILITY_BARTLETT_DF),
-            "p_value": _native.get_value(v, pointer, _abi.LODE_FACTORABILITY_BARTLETT_P_VALUE),
-            "n_obs": int(_native.get_value(v, pointer, _abi.LODE_FACTORABILITY_BARTLETT_N_OBS))}
-        self.determinant = _native.get_value(v, pointer, _abi.LODE_FACTORABILITY_DETERMINANT)
-        self.log_determinant = _native.get_value(v, pointer, _abi.LODE_FACTORABILITY_LOG_DETERMINANT)
-        self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_FACTORABILITY_NOTES))
+            "chi_square": chi, "df": num(_abi.LODE_FACTORABILITY_BARTLETT_DF),
+            "p_value": num(_abi.LODE_FACTORABILITY_BARTLETT_P_VALUE),
+            "n_obs": int(num(_abi.LODE_FACTORABILITY_BARTLETT_N_OBS))}
+        self.determinant = num(_abi.LODE_FACTORABILITY_DETERMINANT)
+        self.log_determinant = num(_abi.LODE_FACTORABILITY_LOG_DETERMINANT)
+        self.notes = _lines(txt(_abi.LODE_FACTORABILITY_NOTES))
 
     def __repr__(self):
         return f"<lode.Factorability kmo={self.kmo}>"
@@ -316,14 +314,13 @@ class FactorCount(_native.Handle):
 
     def __init__(self, pointer):
         super().__init__(pointer)
-        m, v, t = lib.lode_factor_count_matrix, lib.lode_factor_count_value, lib.lode_factor_count_text
-        col = lambda key: _native.get_matrix(m, pointer, key)[:, 0]  # noqa: E731
-        num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
+        mat, num, txt = _native.readers("lode_factor_count", pointer)
+        col = lambda key: mat(key)[:, 0]  # noqa: E731
         self.suggested = int(num(_abi.LODE_FACTOR_COUNT_SUGGESTED))
-        self.reason = _native.get_text(t, pointer, _abi.LODE_FACTOR_COUNT_REASON)
-        self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_FACTOR_COUNT_NOTES))
+        self.reason = txt(_abi.LODE_FACTOR_COUNT_REASON)
+        self.notes = _lines(txt(_abi.LODE_FACTOR_COUNT_NOTES))
         self.table = []
-        for line in _lines(_native.get_text(t, pointer, _abi.LODE_FACTOR_COUNT_TABLE)):
+        for line in _lines(txt(_abi.LODE_FACTOR_COUNT_TABLE)):
             rule, count, primary, basis = line.split("\t", 3)
             self.table.append({"rule": rule, "factors": int(count), "primary": primary == "1", "basis": basis})
         self.by_rule = {row["rule"]: row["factors"] for row in self.table}
@@ -361,9 +358,7 @@ def _count_options(replicates, seed, percentile, threshold, source, threads, pro
     o.threshold = _choice(threshold, _THRESHOLDS, "threshold")
     o.source = _choice(source, _SOURCES, "random data source")
     _checks.put(o, "threads", threads)
-    callback = _native.make_progress(progress)
-    if callback is not None:
-        o.progress = callback
+    callback = _native.attach_progress(o, progress)
     return o, callback
 
 
@@ -409,7 +404,7 @@ def map_test(X=None, *, corr=None, cov=None, n_obs=None, **kwargs):
 
 def _rotation_method(name):
     method = ctypes.c_int()
-    check(lib.lode_rotation_method_from_name(str(name).encode(), ctypes.byref(method)))
+    check(lib.lode_criterion_from_name(str(name).encode(), ctypes.byref(method)))
     return method.value
 
 
@@ -456,9 +451,7 @@ class Rotation(_native.Handle):
 
     def __init__(self, pointer):
         super().__init__(pointer)
-        m, v, t = lib.lode_rotation_matrix, lib.lode_rotation_value, lib.lode_rotation_text
-        mat = lambda key: _native.get_matrix(m, pointer, key)  # noqa: E731
-        num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
+        mat, num, txt = _native.readers("lode_rotation", pointer)
         self.loadings = mat(_abi.LODE_ROTATION_PATTERN)
         self.structure = mat(_abi.LODE_ROTATION_STRUCTURE)
         self.factor_correlations = mat(_abi.LODE_ROTATION_FACTOR_CORRELATIONS)
@@ -469,7 +462,7 @@ class Rotation(_native.Handle):
         self.converged = bool(num(_abi.LODE_ROTATION_CONVERGED))
         self.iterations = int(num(_abi.LODE_ROTATION_ITERATIONS))
         self.oblique = bool(num(_abi.LODE_ROTATION_OBLIQUE))
-        self.method = _native.get_text(t, pointer, _abi.LODE_ROTATION_METHOD_NAME)
+        self.method = txt(_abi.LODE_ROTATION_METHOD_NAME)
         self.convergence = {"converged": self.converged, "iterations": self.iterations,
                             "final_change": num(_abi.LODE_ROTATION_FINAL_CHANGE),
                             "tolerance": num(_abi.LODE_ROTATION_TOLERANCE),
@@ -535,9 +528,7 @@ class Model(_native.Handle):
 
     def __init__(self, pointer):
         super().__init__(pointer)
-        m, v, t = lib.lode_model_matrix, lib.lode_model_value, lib.lode_model_text
-        mat = lambda key: _native.get_matrix(m, pointer, key)  # noqa: E731
-        num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
+        mat, num, txt = _native.readers("lode_model", pointer)
         self.loadings = mat(_abi.LODE_MODEL_LOADINGS)
         self.structure = mat(_abi.LODE_MODEL_STRUCTURE)
         self.factor_correlations = mat(_abi.LODE_MODEL_FACTOR_CORRELATIONS)
@@ -556,14 +547,14 @@ class Model(_native.Handle):
         self.objective = num(_abi.LODE_MODEL_OBJECTIVE)
         self.oblique = bool(num(_abi.LODE_MODEL_OBLIQUE))
         self.method = _METHOD_NAMES.get(int(num(_abi.LODE_MODEL_METHOD)), "unknown")
-        self.rotation = lib.lode_rotation_method_name(int(num(_abi.LODE_MODEL_ROTATION_METHOD))).decode()
+        self.rotation = lib.lode_criterion_name(int(num(_abi.LODE_MODEL_ROTATION_METHOD))).decode()
         self.suggested_factors = int(num(_abi.LODE_MODEL_SUGGESTED_FACTORS))
         self.convergence = {"converged": self.converged, "iterations": self.iterations,
                             "final_change": num(_abi.LODE_MODEL_FINAL_CHANGE),
                             "tolerance": num(_abi.LODE_MODEL_TOLERANCE),
                             "max_iterations": int(num(_abi.LODE_MODEL_MAX_ITERATIONS))}
         self.rotation_starts = int(num(_abi.LODE_MODEL_ROTATION_STARTS))
-        self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_MODEL_NOTES))
+        self.notes = _lines(txt(_abi.LODE_MODEL_NOTES))
         self.statistics_unavailable = None
         try:
             chi = num(_abi.LODE_MODEL_CHI_SQUARE)

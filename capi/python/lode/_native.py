@@ -141,8 +141,8 @@ for _kind in ("rotation", "model"):
     _getters[f"lode_{_kind}_text"] = (c_int, [c_void_p, c_int, c_char_p, c_size_t, P_size_t])
     _getters[f"lode_{_kind}_free"] = (None, [c_void_p])
 _getters.update({
-    "lode_rotation_method_from_name": (c_int, [c_char_p, ctypes.POINTER(c_int)]),
-    "lode_rotation_method_name": (c_char_p, [c_int]),
+    "lode_criterion_from_name": (c_int, [c_char_p, ctypes.POINTER(c_int)]),
+    "lode_criterion_name": (c_char_p, [c_int]),
     "lode_rotation_options_init": (c_int, [ctypes.POINTER(_abi.lode_rotation_options), c_size_t]),
     "lode_rotation_compute": (c_int, [P_double, c_int64, c_int64, c_int64, c_int64,
                                       ctypes.POINTER(_abi.lode_rotation_options), P_void_p]),
@@ -252,6 +252,23 @@ def get_text(fn, handle, key):
     buf = ctypes.create_string_buffer(n.value + 1)
     check(fn(handle, key, buf, n.value + 1, None))
     return buf.value.decode("utf-8", "replace")
+
+
+def attach_progress(opts, progress):
+    """Sets ``opts.progress`` to a C callback wrapping ``progress`` (None: left unset) and returns the
+    callback, which the caller keeps alive until the C call returns."""
+    callback = make_progress(progress)
+    if callback is not None:
+        opts.progress = callback
+    return callback
+
+
+def readers(prefix, pointer):
+    """The three getters of one handle (`prefix` e.g. "lode_model") as functions of a key: its
+    matrices (numpy arrays), its numbers and its texts."""
+    return (lambda key: get_matrix(getattr(lib, prefix + "_matrix"), pointer, key),
+            lambda key: get_value(getattr(lib, prefix + "_value"), pointer, key),
+            lambda key: get_text(getattr(lib, prefix + "_text"), pointer, key))
 
 
 def make_progress(callback):

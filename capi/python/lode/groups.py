@@ -2,7 +2,7 @@
 
 import ctypes
 import re
-from ctypes import c_double, c_int, c_int64, c_size_t, c_void_p
+from ctypes import c_int, c_int64, c_size_t, c_void_p
 
 import numpy as np
 
@@ -43,8 +43,7 @@ class GroupComparison(_native.Handle):
         super().__init__(pointer)
         _lines_of = (lambda text: _lines(text)) if numeric else (  # noqa: E731
             lambda text: _lines(re.sub(r"\bgroup (-?\d+)", lambda m: f"group '{labels[int(m.group(1))]}'", text)))
-        m, v, t = lib.lode_group_comparison_matrix, lib.lode_group_comparison_value, lib.lode_group_comparison_text
-        mat = lambda key: _native.get_matrix(m, pointer, key)  # noqa: E731
+        mat, num, txt = _native.readers("lode_group_comparison", pointer)
         label = lambda code: labels[int(code)]  # noqa: E731
         self.groups = [label(c) for c in mat(_abi.LODE_GROUP_COMPARISON_CODES)[:, 0]]
         self.rows = mat(_abi.LODE_GROUP_COMPARISON_ROWS)[:, 0].astype(np.int64)
@@ -57,15 +56,15 @@ class GroupComparison(_native.Handle):
         items = self.pooled_pattern.shape[0]
         stacked = mat(_abi.LODE_GROUP_COMPARISON_PATTERNS)
         self.patterns = [stacked[g * items:(g + 1) * items] for g in range(len(self.groups))]
-        self.oblique = bool(_native.get_value(v, pointer, _abi.LODE_GROUP_COMPARISON_OBLIQUE))
-        self.pooled_n_obs = int(_native.get_value(v, pointer, _abi.LODE_GROUP_COMPARISON_POOLED_N_OBS))
-        reasons = _lines_of(_native.get_text(t, pointer, _abi.LODE_GROUP_COMPARISON_SKIPPED_REASONS))
+        self.oblique = bool(num(_abi.LODE_GROUP_COMPARISON_OBLIQUE))
+        self.pooled_n_obs = int(num(_abi.LODE_GROUP_COMPARISON_POOLED_N_OBS))
+        reasons = _lines_of(txt(_abi.LODE_GROUP_COMPARISON_SKIPPED_REASONS))
         self.skipped = [(label(c), int(n), r) for (c, n), r in zip(mat(_abi.LODE_GROUP_COMPARISON_SKIPPED), reasons)]
-        texts = _lines_of(_native.get_text(t, pointer, _abi.LODE_GROUP_COMPARISON_DIFFERENCE_TEXTS))
+        texts = _lines_of(txt(_abi.LODE_GROUP_COMPARISON_DIFFERENCE_TEXTS))
         self.item_differences = [
             {"group": label(d[0]), "item": int(d[1]), "factor": int(d[2]), "group_loading": d[3],
              "pooled_loading": d[4], "text": text} for d, text in zip(mat(_abi.LODE_GROUP_COMPARISON_DIFFERENCES), texts)]
-        self.notes = _lines_of(_native.get_text(t, pointer, _abi.LODE_GROUP_COMPARISON_NOTES))
+        self.notes = _lines_of(txt(_abi.LODE_GROUP_COMPARISON_NOTES))
 
     def __repr__(self):
         return f"<lode.GroupComparison {len(self.groups)} groups, {len(self.skipped)} skipped>"
@@ -103,9 +102,7 @@ def compare_groups(X, groups, *, factors=None, method="ml", rotation="oblimin", 
                         rotation=_rotation_method(rotation), min_group=_checks.whole(min_group, "min_group"),
                         difference_threshold=threshold, threads=threads)
     o.correlation = ctypes.pointer(co)
-    callback = _native.make_progress(progress)
-    if callback is not None:
-        o.progress = callback
+    callback = _native.attach_progress(o, progress)
     if codes.size != _native.as_strided_matrix(X, "X")[1]:
         raise ArgumentError(f"{codes.size} group labels were given for {_native.as_strided_matrix(X, 'X')[1]} rows; "
                             "give one per row")

@@ -1,7 +1,7 @@
 """The Schmid-Leiman transformation and omega hierarchical, re-exported by ``lode``."""
 
 import ctypes
-from ctypes import c_double, c_int, c_int64, c_size_t, c_void_p
+from ctypes import c_int, c_int64, c_size_t, c_void_p
 
 import numpy as np
 
@@ -40,20 +40,20 @@ class SchmidLeiman(_native.Handle):
 
     def __init__(self, pointer):
         super().__init__(pointer)
-        m, v = lib.lode_schmid_leiman_matrix, lib.lode_schmid_leiman_value
-        col = lambda key: _native.get_matrix(m, pointer, key)[:, 0]  # noqa: E731
+        mat, num, txt = _native.readers("lode_schmid_leiman", pointer)
+        col = lambda key: mat(key)[:, 0]  # noqa: E731
         self.general = col(_abi.LODE_SCHMID_LEIMAN_GENERAL)
-        self.group = _native.get_matrix(m, pointer, _abi.LODE_SCHMID_LEIMAN_GROUP)
+        self.group = mat(_abi.LODE_SCHMID_LEIMAN_GROUP)
         self.uniquenesses = col(_abi.LODE_SCHMID_LEIMAN_UNIQUENESSES)
         self.second_order_loadings = col(_abi.LODE_SCHMID_LEIMAN_SECOND_ORDER_LOADINGS)
         self.omega_subscales = col(_abi.LODE_SCHMID_LEIMAN_OMEGA_SUBSCALES)
         self.subscale_omega_total = col(_abi.LODE_SCHMID_LEIMAN_SUBSCALE_OMEGA_TOTAL)
         self.assignment = col(_abi.LODE_SCHMID_LEIMAN_ASSIGNMENT).astype(np.int64)
-        self.omega_total = _native.get_value(v, pointer, _abi.LODE_SCHMID_LEIMAN_OMEGA_TOTAL)
-        self.omega_hierarchical = _native.get_value(v, pointer, _abi.LODE_SCHMID_LEIMAN_OMEGA_HIERARCHICAL)
-        self.ecv = _native.get_value(v, pointer, _abi.LODE_SCHMID_LEIMAN_ECV)
-        self.second_order_max_residual = _native.get_value(v, pointer, _abi.LODE_SCHMID_LEIMAN_SECOND_ORDER_MAX_RESIDUAL)
-        self.second_order_converged = bool(_native.get_value(v, pointer, _abi.LODE_SCHMID_LEIMAN_SECOND_ORDER_CONVERGED))
+        self.omega_total = num(_abi.LODE_SCHMID_LEIMAN_OMEGA_TOTAL)
+        self.omega_hierarchical = num(_abi.LODE_SCHMID_LEIMAN_OMEGA_HIERARCHICAL)
+        self.ecv = num(_abi.LODE_SCHMID_LEIMAN_ECV)
+        self.second_order_max_residual = num(_abi.LODE_SCHMID_LEIMAN_SECOND_ORDER_MAX_RESIDUAL)
+        self.second_order_converged = bool(num(_abi.LODE_SCHMID_LEIMAN_SECOND_ORDER_CONVERGED))
         self.notes = _lines(_native.get_text(lib.lode_schmid_leiman_text, pointer, _abi.LODE_SCHMID_LEIMAN_NOTES))
 
     def __repr__(self):

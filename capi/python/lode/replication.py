@@ -32,9 +32,7 @@ class RestrictedFit(_native.Handle):
 
     def __init__(self, pointer):
         super().__init__(pointer)
-        m, v, t = lib.lode_restricted_fit_matrix, lib.lode_restricted_fit_value, lib.lode_restricted_fit_text
-        mat = lambda key: _native.get_matrix(m, pointer, key)  # noqa: E731
-        num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
+        mat, num, txt = _native.readers("lode_restricted_fit", pointer)
         self.loadings, self.standard_errors = mat(_abi.LODE_RESTRICTED_FIT_LOADINGS), mat(_abi.LODE_RESTRICTED_FIT_LOADINGS_SE)
         self.factor_correlations, self.factor_correlation_errors = mat(_abi.LODE_RESTRICTED_FIT_FACTOR_CORRELATIONS), mat(_abi.LODE_RESTRICTED_FIT_FACTOR_CORRELATIONS_SE)
         self.uniquenesses, self.uniqueness_errors = mat(_abi.LODE_RESTRICTED_FIT_UNIQUENESSES)[:, 0], mat(_abi.LODE_RESTRICTED_FIT_UNIQUENESSES_SE)[:, 0]
@@ -51,7 +49,7 @@ class RestrictedFit(_native.Handle):
                            "srmr": num(_abi.LODE_RESTRICTED_FIT_SRMR), "bic": num(_abi.LODE_RESTRICTED_FIT_BIC), "discrepancy": num(_abi.LODE_RESTRICTED_FIT_DISCREPANCY),
                            "null_chi_square": num(_abi.LODE_RESTRICTED_FIT_NULL_CHI_SQUARE), "null_df": num(_abi.LODE_RESTRICTED_FIT_NULL_DF)}
         self.proper_correlations = bool(num(_abi.LODE_RESTRICTED_FIT_PROPER_CORRELATIONS))
-        self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_RESTRICTED_FIT_NOTES))
+        self.notes = _lines(txt(_abi.LODE_RESTRICTED_FIT_NOTES))
 
     def __repr__(self):
         s = self.statistics
@@ -100,9 +98,7 @@ class Replication(_native.Handle):
 
     def __init__(self, pointer):
         super().__init__(pointer)
-        m, v, t = lib.lode_replication_matrix, lib.lode_replication_value, lib.lode_replication_text
-        mat = lambda key: _native.get_matrix(m, pointer, key)  # noqa: E731
-        num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
+        mat, num, txt = _native.readers("lode_replication", pointer)
         self.congruence_median, self.congruence_p5, self.share_fair, self.share_equal, self.item_stability = (
             mat(k)[:, 0] for k in (_abi.LODE_REPLICATION_CONGRUENCE_MEDIAN, _abi.LODE_REPLICATION_CONGRUENCE_P5, _abi.LODE_REPLICATION_SHARE_FAIR, _abi.LODE_REPLICATION_SHARE_EQUAL, _abi.LODE_REPLICATION_ITEM_STABILITY))
         self.congruence, self.loadings = mat(_abi.LODE_REPLICATION_CONGRUENCE), mat(_abi.LODE_REPLICATION_LOADINGS)
@@ -110,8 +106,8 @@ class Replication(_native.Handle):
         self.factors = int(num(_abi.LODE_REPLICATION_FACTORS))
         self.suggested_full = int(num(_abi.LODE_REPLICATION_SUGGESTED_FULL))
         self.share_same_count, self.share_full_count = num(_abi.LODE_REPLICATION_SHARE_SAME_COUNT), num(_abi.LODE_REPLICATION_SHARE_FULL_COUNT)
-        self.failures = _lines(_native.get_text(t, pointer, _abi.LODE_REPLICATION_FAILURES))
-        self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_REPLICATION_NOTES))
+        self.failures = _lines(txt(_abi.LODE_REPLICATION_FAILURES))
+        self.notes = _lines(txt(_abi.LODE_REPLICATION_NOTES))
         self.caution = _CAUTION
 
     def __repr__(self):
@@ -149,9 +145,7 @@ def replicate(X=None, *, splits=100, seed=None, factors=None, method="ml", rotat
     r = _native.options("lode_replication_options", splits=splits, threads=threads)
     if seed is not None:
         _checks.put(r, "seed", seed)
-    callback = _native.make_progress(progress)
-    if callback is not None:
-        r.progress = callback
+    callback = _native.attach_progress(r, progress)
     ptr = ctypes.c_void_p()
     check(lib.lode_replication_compute(c.pointer, ctypes.byref(o), ctypes.byref(r), ctypes.byref(ptr)))
     del keep, callback
@@ -172,15 +166,13 @@ class HoldoutCheck(_native.Handle):
 
     def __init__(self, pointer):
         super().__init__(pointer)
-        m, v, t = lib.lode_holdout_matrix, lib.lode_holdout_value, lib.lode_holdout_text
-        mat = lambda key: _native.get_matrix(m, pointer, key)  # noqa: E731
-        num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
+        mat, num, txt = _native.readers("lode_holdout", pointer)
         self.exploratory_loadings, self.exploratory_factor_correlations, self.pattern = mat(_abi.LODE_HOLDOUT_EXPLORATORY_LOADINGS), mat(_abi.LODE_HOLDOUT_EXPLORATORY_FACTOR_CORRELATIONS), mat(_abi.LODE_HOLDOUT_PATTERN)
         self.items_fitted, self.items_left_out, self.holdout_rows = (
             mat(k)[:, 0].astype(np.int64) for k in (_abi.LODE_HOLDOUT_ITEMS_FITTED, _abi.LODE_HOLDOUT_ITEMS_LEFT_OUT, _abi.LODE_HOLDOUT_ROWS))
         self.n_explore, self.n_holdout = int(num(_abi.LODE_HOLDOUT_N_EXPLORE)), int(num(_abi.LODE_HOLDOUT_N_HOLDOUT))
         self.share, self.salient = num(_abi.LODE_HOLDOUT_SHARE), num(_abi.LODE_HOLDOUT_SALIENT)
-        self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_HOLDOUT_NOTES))
+        self.notes = _lines(txt(_abi.LODE_HOLDOUT_NOTES))
         self.caution = _CAUTION
         ptr = ctypes.c_void_p()
         check(lib.lode_restricted_fit_from_holdout(pointer, ctypes.byref(ptr)))

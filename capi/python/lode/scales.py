@@ -32,8 +32,7 @@ class Scores(_native.Handle):
 
     def __init__(self, pointer):
         super().__init__(pointer)
-        m, v, t = lib.lode_scores_matrix, lib.lode_scores_value, lib.lode_scores_text
-        mat = lambda key: _native.get_matrix(m, pointer, key)  # noqa: E731
+        mat, num, txt = _native.readers("lode_scores", pointer)
         self.values = mat(_abi.LODE_SCORES_VALUES)
         self.weights = mat(_abi.LODE_SCORES_WEIGHTS)
         self.determinacy = mat(_abi.LODE_SCORES_DETERMINACY)[:, 0]
@@ -41,10 +40,10 @@ class Scores(_native.Handle):
         self.score_correlations = mat(_abi.LODE_SCORES_CORRELATIONS)
         self.low_determinacy = mat(_abi.LODE_SCORES_LOW_DETERMINACY)[:, 0] != 0
         self.rows_total, self.rows_complete, self.rows_partial, self.rows_missing = (
-            int(_native.get_value(v, pointer, k)) for k in (_abi.LODE_SCORES_ROWS_TOTAL,
+            int(num(k)) for k in (_abi.LODE_SCORES_ROWS_TOTAL,
                 _abi.LODE_SCORES_ROWS_COMPLETE, _abi.LODE_SCORES_ROWS_PARTIAL, _abi.LODE_SCORES_ROWS_MISSING))
-        self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_SCORES_NOTES))
-        self.cautions = _native.get_text(t, pointer, _abi.LODE_SCORES_CAUTIONS)
+        self.notes = _lines(txt(_abi.LODE_SCORES_NOTES))
+        self.cautions = txt(_abi.LODE_SCORES_CAUTIONS)
 
     def __array__(self, dtype=None, copy=None):
         return self.values if dtype is None else self.values.astype(dtype)
@@ -82,21 +81,20 @@ class Alpha(_native.Handle):
 
     def __init__(self, pointer):
         super().__init__(pointer)
-        m, v, t = lib.lode_reliability_matrix, lib.lode_reliability_value, lib.lode_reliability_text
-        col = lambda key: _native.get_matrix(m, pointer, key)[:, 0]  # noqa: E731
-        num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
-        self.alpha = num(_abi.LODE_ALPHA)
-        self.alpha_standardized = num(_abi.LODE_ALPHA_STANDARDIZED)
-        self.mean_inter_item_correlation = num(_abi.LODE_ALPHA_MEAN_INTER_ITEM)
-        self.rows_total = int(num(_abi.LODE_ALPHA_ROWS_TOTAL))
-        self.rows_used = int(num(_abi.LODE_ALPHA_ROWS_USED))
-        self.items = int(num(_abi.LODE_ALPHA_ITEMS))
-        self.alpha_if_deleted = col(_abi.LODE_ALPHA_IF_DELETED)
-        self.alpha_standardized_if_deleted = col(_abi.LODE_ALPHA_STANDARDIZED_IF_DELETED)
-        self.item_total_correlation = col(_abi.LODE_ALPHA_ITEM_TOTAL)
-        self.item_means = col(_abi.LODE_ALPHA_ITEM_MEANS)
-        self.item_sds = col(_abi.LODE_ALPHA_ITEM_SDS)
-        self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_RELIABILITY_NOTES))
+        mat, num, txt = _native.readers("lode_reliability", pointer)
+        col = lambda key: mat(key)[:, 0]  # noqa: E731
+        self.alpha = num(_abi.LODE_RELIABILITY_ALPHA)
+        self.alpha_standardized = num(_abi.LODE_RELIABILITY_ALPHA_STANDARDIZED)
+        self.mean_inter_item_correlation = num(_abi.LODE_RELIABILITY_ALPHA_MEAN_INTER_ITEM)
+        self.rows_total = int(num(_abi.LODE_RELIABILITY_ALPHA_ROWS_TOTAL))
+        self.rows_used = int(num(_abi.LODE_RELIABILITY_ALPHA_ROWS_USED))
+        self.items = int(num(_abi.LODE_RELIABILITY_ALPHA_ITEMS))
+        self.alpha_if_deleted = col(_abi.LODE_RELIABILITY_ALPHA_IF_DELETED)
+        self.alpha_standardized_if_deleted = col(_abi.LODE_RELIABILITY_ALPHA_STANDARDIZED_IF_DELETED)
+        self.item_total_correlation = col(_abi.LODE_RELIABILITY_ALPHA_ITEM_TOTAL)
+        self.item_means = col(_abi.LODE_RELIABILITY_ALPHA_ITEM_MEANS)
+        self.item_sds = col(_abi.LODE_RELIABILITY_ALPHA_ITEM_SDS)
+        self.notes = _lines(txt(_abi.LODE_RELIABILITY_NOTES))
 
     def __repr__(self):
         return f"<lode.Alpha {self.alpha:.3f}>"
@@ -126,19 +124,18 @@ class Omega(_native.Handle):
 
     def __init__(self, pointer, single=False):
         super().__init__(pointer)
-        m, t = lib.lode_reliability_matrix, lib.lode_reliability_text
-        col = lambda key: _native.get_matrix(m, pointer, key)[:, 0]  # noqa: E731
-        self.omega = col(_abi.LODE_OMEGA)
-        self.assignment = col(_abi.LODE_OMEGA_ASSIGNMENT).astype(np.int64)
-        self.sum_loadings = col(_abi.LODE_OMEGA_SUM_LOADINGS)
-        self.sum_uniquenesses = col(_abi.LODE_OMEGA_SUM_UNIQUENESSES)
+        mat, num, txt = _native.readers("lode_reliability", pointer)
+        col = lambda key: mat(key)[:, 0]  # noqa: E731
+        self.omega = col(_abi.LODE_RELIABILITY_OMEGA)
+        self.assignment = col(_abi.LODE_RELIABILITY_OMEGA_ASSIGNMENT).astype(np.int64)
+        self.sum_loadings = col(_abi.LODE_RELIABILITY_OMEGA_SUM_LOADINGS)
+        self.sum_uniquenesses = col(_abi.LODE_RELIABILITY_OMEGA_SUM_UNIQUENESSES)
         self.factor_share = col(_abi.LODE_RELIABILITY_OMEGA_FACTOR_SHARE)
         self.scale_variance = col(_abi.LODE_RELIABILITY_OMEGA_SCALE_VARIANCE)
-        self.loadings = col(_abi.LODE_OMEGA_LOADINGS) if single else None
-        self.uniquenesses = col(_abi.LODE_OMEGA_UNIQUENESSES) if single else None
-        self.converged = bool(_native.get_value(lib.lode_reliability_value, pointer,
-                              _abi.LODE_OMEGA_CONVERGED)) if single else None
-        self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_RELIABILITY_NOTES))
+        self.loadings = col(_abi.LODE_RELIABILITY_OMEGA_LOADINGS) if single else None
+        self.uniquenesses = col(_abi.LODE_RELIABILITY_OMEGA_UNIQUENESSES) if single else None
+        self.converged = bool(num(_abi.LODE_RELIABILITY_OMEGA_CONVERGED)) if single else None
+        self.notes = _lines(txt(_abi.LODE_RELIABILITY_NOTES))
 
     def __repr__(self):
         return f"<lode.Omega {np.round(self.omega, 3)}>"

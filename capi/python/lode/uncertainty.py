@@ -31,12 +31,11 @@ class ItemFlags(_native.Handle):
 
     def __init__(self, pointer):
         super().__init__(pointer)
-        m, v, t = lib.lode_item_flags_matrix, lib.lode_item_flags_value, lib.lode_item_flags_text
-        num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
-        self.codes = _native.get_matrix(m, pointer, _abi.LODE_ITEM_FLAGS_CODES)[:, 0].astype(np.int64)
-        rows = _native.get_matrix(m, pointer, _abi.LODE_ITEM_FLAGS_TABLE)
-        self.communalities = _native.get_matrix(m, pointer, _abi.LODE_ITEM_FLAGS_COMMUNALITIES)[:, 0]
-        notes = _lines(_native.get_text(t, pointer, _abi.LODE_ITEM_FLAGS_NOTES))
+        mat, num, txt = _native.readers("lode_item_flags", pointer)
+        self.codes = mat(_abi.LODE_ITEM_FLAGS_CODES)[:, 0].astype(np.int64)
+        rows = mat(_abi.LODE_ITEM_FLAGS_TABLE)
+        self.communalities = mat(_abi.LODE_ITEM_FLAGS_COMMUNALITIES)[:, 0]
+        notes = _lines(txt(_abi.LODE_ITEM_FLAGS_NOTES))
         self.table = []
         for row, note in zip(rows, notes):
             factors = [int(f) for f in row[2:4] if f >= 0]
@@ -100,9 +99,7 @@ class Bootstrap(_native.Handle):
 
     def __init__(self, pointer, kept):
         super().__init__(pointer)
-        m, v, t = lib.lode_bootstrap_matrix, lib.lode_bootstrap_value, lib.lode_bootstrap_text
-        mat = lambda key: _native.get_matrix(m, pointer, key)  # noqa: E731
-        num = lambda key: _native.get_value(v, pointer, key)  # noqa: E731
+        mat, num, txt = _native.readers("lode_bootstrap", pointer)
         def with_interval(name):  # the estimate, the interval's bounds and the standard error
             return [mat(getattr(_abi, f"LODE_BOOTSTRAP_{name}{part}")) for part in ("", "_LOWER", "_UPPER", "_SE")]
 
@@ -119,9 +116,9 @@ class Bootstrap(_native.Handle):
         self.level = num(_abi.LODE_BOOTSTRAP_LEVEL)
         items, factors = int(num(_abi.LODE_BOOTSTRAP_ITEMS)), int(num(_abi.LODE_BOOTSTRAP_FACTORS))
         self.oblique = bool(num(_abi.LODE_BOOTSTRAP_OBLIQUE))
-        self.alignment = _native.get_text(t, pointer, _abi.LODE_BOOTSTRAP_ALIGNMENT)
-        self.failures = _lines(_native.get_text(t, pointer, _abi.LODE_BOOTSTRAP_FAILURES))
-        self.notes = _lines(_native.get_text(t, pointer, _abi.LODE_BOOTSTRAP_NOTES))
+        self.alignment = txt(_abi.LODE_BOOTSTRAP_ALIGNMENT)
+        self.failures = _lines(txt(_abi.LODE_BOOTSTRAP_FAILURES))
+        self.notes = _lines(txt(_abi.LODE_BOOTSTRAP_NOTES))
         self.replicate_loadings = self.replicate_uniquenesses = self.replicate_factor_correlations = None
         if kept:
             used = self.replicates_used
@@ -169,9 +166,7 @@ def bootstrap(X=None, *, factors=None, method="ml", rotation="oblimin", replicat
                         keep_replicates=1 if keep_replicates else 0)
     if seed is not None:
         _checks.put(b, "seed", seed)
-    callback = _native.make_progress(progress)
-    if callback is not None:
-        b.progress = callback
+    callback = _native.attach_progress(b, progress)
     ptr = ctypes.c_void_p()
     check(lib.lode_bootstrap_compute(c.pointer, ctypes.byref(o), ctypes.byref(b), ctypes.byref(ptr)))
     del keep, callback
