@@ -249,6 +249,8 @@ Sheet layout_overview(const Analysis& a) {
   ov.line({Cell::txt("Written " + a.timestamp + ". The sheets of this report:", note)});
   for (const char* s : {names::overview, names::loadings, names::factors, names::scree})
     ov.line({Cell::txt(s, label)});
+  if (a.halves_asked()) ov.line({Cell::txt(names::replication, label)});
+  if (a.holdout_asked()) ov.line({Cell::txt(names::holdout, label)});
   if (a.general.available) ov.line({Cell::txt(names::general, label)});
   if (a.groups.asked) ov.line({Cell::txt(names::groups, label)});
   ov.line({Cell::txt(names::record, label)});

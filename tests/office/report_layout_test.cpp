@@ -494,6 +494,9 @@ TEST_F(ConfirmSheets, BothSheetsComeBeforeTheRunRecord) {
   for (const Sheet& s : rep.sheets) order.push_back(s.base_name);
   EXPECT_EQ(order, (std::vector<std::string>{names::overview, names::loadings, names::factors, names::scree,
                                              names::replication, names::holdout, names::record}));
+  const Sheet ov = layout_overview(a());  // the overview lists both sheets
+  EXPECT_GE(find_row(ov, names::replication), 0);
+  EXPECT_GE(find_row(ov, names::holdout), 0);
   const Sheet rec = layout_record(a());
   EXPECT_EQ(num(rec, find_row(rec, "Random splits into halves"), 1), 30.0);
   EXPECT_EQ(num(rec, find_row(rec, "Share held out (confirmatory check)"), 1), 0.5);
