@@ -321,12 +321,11 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     b.heading("AnalysisHeading", "The analysis", L, 4, 220);
     b.dropdown(*find_word_option("Correlation"), L, F, 18, W);
     b.dropdown(*find_word_option("Missing"), L, F, 33, W);
-    b.label("FactorsLabel", "Number of factors", L, 48, 82);
-    b.add("com.sun.star.awt.UnoControlRadioButtonModel", "FactorsSuggest", F, 48, W, 10,
-          {{"Label", Any(A("Suggest from the data"))}, {"State", Any(sal_Int16(1))}});
-    b.add("com.sun.star.awt.UnoControlRadioButtonModel", "FactorsFixed", F, 60, 40, 10,
-          {{"Label", Any(A("Fixed:"))}, {"State", Any(sal_Int16(0))}});
-    b.number("FactorCount", 3, 1, 100, 0, F + 42, 59, W - 42);
+    // The factor count: one field, 0 letting the evidence decide (parallel analysis), so a number
+    // typed there is always the one used.
+    b.label("FactorsLabel", "Factors to keep", L, 48, 82);
+    b.number("FactorCount", 0, 0, 100, 0, F, 48, 30);
+    b.label("FactorsHint", "0: as the evidence suggests", F + 34, 49, W - 34);
     b.dropdown(*find_word_option("Extraction"), L, F, 74, W);
     b.dropdown(*find_word_option("Rotation"), L, F, 89, W);
     b.label("RotationParameterLabel", "Rotation setting (0: usual)", L, 104, 82);
@@ -381,7 +380,7 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     if (!chosen_items.empty())
       opts.push_back(prop("Items", Any(Sequence<OUString>(chosen_items.data(), static_cast<sal_Int32>(chosen_items.size())))));
     for (const WordOption& w : word_options()) opts.push_back(prop(w.property, Any(A(chosen(w, b.get(w.property))))));
-    opts.push_back(prop("Factors", Any(sal_Int32(state_of(b.get("FactorsFixed")) ? value_of(b.get("FactorCount")) : 0))));
+    opts.push_back(prop("Factors", Any(sal_Int32(value_of(b.get("FactorCount"))))));
     opts.push_back(prop("RotationParameter", Any(value_of(b.get("RotationParameter")))));
     opts.push_back(prop("Bootstrap", Any(sal_Int32(state_of(b.get("Bootstrap")) ? value_of(b.get("Replicates")) : 0))));
     opts.push_back(prop("Salient", Any(value_of(b.get("Salient")))));

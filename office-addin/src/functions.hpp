@@ -13,7 +13,7 @@ Output fn_kmo(const Call& call);
 Output fn_msa(const Call& call);
 Output fn_sphericity(const Call& call);
 Output fn_parallel(const Call& call);
-Output fn_nfactors(const Call& call);
+Output fn_factorcount(const Call& call);
 Output fn_loadings(const Call& call);
 Output fn_structure(const Call& call);
 Output fn_uniqueness(const Call& call);

@@ -28,27 +28,41 @@ void data_used(Sheet& ov, const Analysis& a) {
              Cell::txt("read as missing answers", note)});
 }
 
+// The verdict on factoring these items, in one line, from the figures below it.
+std::string factorability_verdict(const CorrelationFacts& c) {
+  const bool kmo_ok = c.kmo.reason.empty() && c.kmo.value >= 0.50;
+  const bool related = c.bartlett_p.reason.empty() && c.bartlett_p.value < 0.05;
+  if (!c.kmo.reason.empty() && !c.bartlett_p.reason.empty()) return "not judged: the figures below could not be computed";
+  if (kmo_ok && related)
+    return std::string("yes: the items share enough to be factored") +
+           (c.positive_definite ? "" : ", though the correlation matrix is not positive definite (see the notes)");
+  if (!kmo_ok && c.kmo.reason.empty()) return "doubtful: the items share too little (sampling adequacy under 0.50)";
+  if (c.bartlett_p.reason.empty() && !related) return "doubtful: the items may be unrelated (Bartlett's p is 0.05 or more)";
+  return "partly judged: see the figures below";
+}
+
 void factorability(Sheet& ov, const Analysis& a) {
   const CorrelationFacts& c = a.corr;
   heading_row(ov, "Can these items be factored?", 2);
-  ov.line({Cell::txt("Correlation matrix positive definite", label), Cell::txt(c.positive_definite ? "yes" : "no")});
+  ov.line({Cell::txt("Verdict", label), Cell::txt(factorability_verdict(c))});
   if (c.kmo.reason.empty())
     ov.line({Cell::txt("KMO sampling adequacy", label), Cell::num(c.kmo.value, number),
-             Cell::txt(c.kmo_label + " (Kaiser 1974); under 0.50 the items share too little to factor", note)});
+             Cell::txt(c.kmo_label + " (Kaiser 1974); under 0.50 the items share too little to factor (Kaiser 1974)", note)});
   else
     ov.line({Cell::txt("KMO sampling adequacy", label), Cell::txt("not available: " + c.kmo.reason, note)});
   if (c.bartlett_chi2.reason.empty()) {
     const double p = c.bartlett_p.value;
-    ov.line({Cell::txt("Bartlett's test: chi-square", label), Cell::num(c.bartlett_chi2.value, number)});
-    ov.line({Cell::txt("Bartlett's test: degrees of freedom", label), Cell::num(c.bartlett_df.value)});
-    ov.line({Cell::txt("Bartlett's test: p-value", label), Cell::num(p),
-             Cell::txt(p < 0.001  ? "p < 0.001: the items are correlated, not unrelated (p < 0.05; common practice)"
-                       : p < 0.05 ? "the items are correlated, not unrelated (p < 0.05; common practice)"
-                                  : "the items may be unrelated: p is 0.05 or more (common practice)",
+    ov.line({Cell::txt("Are the items unrelated? Bartlett's p", label), p_cell(p),
+             Cell::txt(p < 0.05 ? "no: they are correlated (p under 0.05; common practice); Bartlett (1950)"
+                                : "perhaps: p is 0.05 or more (common practice); Bartlett (1950)",
                        note)});
+    ov.line({Cell::txt("Bartlett's chi-square, degrees of freedom", label), Cell::num(c.bartlett_chi2.value, number),
+             Cell::num(c.bartlett_df.value)});
   } else {
-    ov.line({Cell::txt("Bartlett's test of sphericity", label), Cell::txt("not available: " + c.bartlett_chi2.reason, note)});
+    ov.line({Cell::txt("Are the items unrelated? Bartlett's p", label),
+             Cell::txt("not available: " + c.bartlett_chi2.reason, note)});
   }
+  ov.line({Cell::txt("Correlation matrix positive definite", label), Cell::txt(c.positive_definite ? "yes" : "no")});
   for (const std::string& n : c.factorability_notes) ov.line({Cell::txt("Note on factorability", flag), Cell::txt(n, note)});
 }
 
@@ -151,9 +165,11 @@ void items_to_look_at(Sheet& ov, const Analysis& a) {
       if (model.heywood[j] > 0.5)
         why = "an improper solution for this item (communality at or above 1): the model cannot be trusted for it";
       else if (strong == 0)
-        why = "no loading reaches " + fmt_num(cut, 2) + ": it does not clearly belong to any factor";
+        why = "no loading reaches " + fmt_num(cut, 2) + " (the strong-loading cut; common practice): it does not clearly "
+              "belong to any factor";
       else if (strong > 1)
-        why = "loads on " + std::to_string(strong) + " factors at " + fmt_num(cut, 2) + " or more: it measures more than one thing";
+        why = "loads on " + std::to_string(strong) + " factors at " + fmt_num(cut, 2) +
+              " or more (the strong-loading cut; common practice): it measures more than one thing";
       if (why.empty()) continue;
       any_flag = true;
       ov.line({Cell::txt(names[j], flag), Cell::num(model.communalities[j], number), Cell::txt(why, note)});
@@ -163,8 +179,8 @@ void items_to_look_at(Sheet& ov, const Analysis& a) {
     if (msa[j] < 0.50) {  // Kaiser (1974): a sampling adequacy under 0.50 is unacceptable
       any_flag = true;
       ov.line({Cell::txt(names[j], flag), Cell::num(msa[j], number),
-               Cell::txt("its sampling adequacy (MSA) is under 0.50: the other items say little about it; "
-                         "consider leaving it out",
+               Cell::txt("its sampling adequacy (MSA) is under 0.50 (unacceptable; Kaiser 1974): the other items say "
+                         "little about it; consider leaving it out",
                          note)});
     }
   const std::vector<double>& smc = a.corr.smc;
@@ -173,7 +189,7 @@ void items_to_look_at(Sheet& ov, const Analysis& a) {
       if (smc[j] < 0.20) {  // common practice: an item sharing under a fifth of its variance with the rest
         any_flag = true;
         ov.line({Cell::txt(names[j], flag), Cell::num(smc[j], number),
-                 Cell::txt("shares little with the other items (squared multiple correlation under 0.20); "
+                 Cell::txt("shares little with the other items (squared multiple correlation under 0.20; common practice); "
                            "check its wording and whether it belongs to this questionnaire",
                            note)});
       }

@@ -432,7 +432,7 @@ ScoreResult factor_scores(const lode_model* model, const lode_data* data, const 
   ScoreResult r;
   lode_scores_options so;
   lode_scores_options_init(&so, sizeof so);
-  so.method = o.scores == "bartlett" ? LODE_ESTIMATOR_BARTLETT : o.scores == "tenberge" ? LODE_ESTIMATOR_CORRELATION_PRESERVING : LODE_ESTIMATOR_REGRESSION;
+  so.method = o.scores == "bartlett" ? LODE_ESTIMATOR_BARTLETT : o.scores == "correlation_preserving" ? LODE_ESTIMATOR_CORRELATION_PRESERVING : LODE_ESTIMATOR_REGRESSION;
   if (o.missing == "listwise") {
     so.missing = LODE_GAPS_LEAVE_MISSING;
     r.rule = "a respondent who skipped any item gets no scores (blank cells), as the listwise correlations left "
@@ -440,7 +440,8 @@ ScoreResult factor_scores(const lode_model* model, const lode_data* data, const 
   } else {
     so.missing = LODE_GAPS_FROM_ANSWERED;
     r.rule = "a respondent who skipped items is scored from the items answered, when at least " +
-             fmt_num(100.0 * so.min_answered_share, 0) + "% of them were answered; otherwise no scores (blank cells)";
+             fmt_num(100.0 * so.min_answered_share, 0) +
+             "% of them were answered (a rule of common practice); otherwise no scores (blank cells)";
   }
   lode_scores* raw = nullptr;
   if (lode_scores_compute(model, data, &so, &raw) != LODE_OK) {

@@ -23,6 +23,13 @@ inline void heading_row(Sheet& sheet, std::string text, std::size_t cells) {
   sheet.line(std::move(row));
 }
 
+// A p-value as a reader wants it: "< 0.001" below 0.001, else a number shown with three decimals
+// (never a bare 0 or fifteen digits).
+inline Cell p_cell(double p) {
+  if (!(p >= 0.001)) return Cell::txt(p < 0.001 ? "< 0.001" : "");
+  return Cell::num(p, styles::number);
+}
+
 // "Random data (95th percentile of 100)": the heading of parallel analysis's column (overview, scree).
 std::string random_data_words(const CountResult& count);
 

@@ -57,13 +57,31 @@ const char* missing_words(const std::string& m) {
 }
 const char* score_method_words(const std::string& m) {
   if (m == "bartlett") return "Bartlett (1937)";
-  if (m == "tenberge") return "correlation-preserving (ten Berge, Krijnen, Wansbeek and Shapiro 1999)";
+  if (m == "correlation_preserving") return "correlation-preserving (ten Berge, Krijnen, Wansbeek and Shapiro 1999)";
   return "regression (Thurstone 1935)";
 }
 const char* score_method_short(const std::string& m) {
   if (m == "bartlett") return "Bartlett";
-  if (m == "tenberge") return "correlation-preserving";
+  if (m == "correlation_preserving") return "correlation-preserving";
   return "regression";
+}
+
+const char* extraction_words(const std::string& m) {
+  if (m == "paf") return "principal axis factoring";
+  if (m == "minres") return "least squares on the residual correlations (minimum residual)";
+  return "maximum likelihood";
+}
+
+std::string rotation_words(const std::string& rotation, double parameter, const std::string& used) {
+  if (used != rotation) return used;  // not applied, with the reason
+  if (rotation == "oblimin")
+    return "direct oblimin with gamma " + fmt_num(parameter, 2) + " (Jennrich and Sampson 1966; gamma 0 is common practice)";
+  if (rotation == "promax")
+    return "promax with power " + fmt_num(parameter > 0 ? parameter : 4.0, 0) +
+           " (Hendrickson and White 1964, who used 4)";
+  if (rotation == "varimax") return "varimax (Kaiser 1958)";
+  if (rotation == "none") return "none: the loadings as extracted";
+  return used;
 }
 
 std::string reliability_words(double v) {

@@ -22,6 +22,10 @@ const char* correlation_words(const std::string& kind);
 const char* missing_words(const std::string& missing);
 const char* score_method_words(const std::string& method);
 const char* score_method_short(const std::string& method);
+// The extraction and the rotation in a reader's words with their sources (never the option codes);
+// `used` is the rotation applied (model.rotation_used), which may say why none was.
+const char* extraction_words(const std::string& method);
+std::string rotation_words(const std::string& rotation, double parameter, const std::string& used);
 
 // Common-practice reading of alpha or omega (often traced to Nunnally 1978; README, "Reading the results").
 std::string reliability_words(double v);

@@ -195,7 +195,7 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
         names = accessible_names(dialog)
     shot = screenshot("lode-dialog.png")
     for want in ["Range", "First row holds the item names", "Items to analyse (all with numbers are chosen)",
-                 "Correlations", "Missing answers", "Number of factors", "Suggest from the data", "Extraction",
+                 "Correlations", "Missing answers", "Factors to keep", "0: as the evidence suggests", "Extraction",
                  "Rotation", "Factor scores", "Bootstrap intervals", "Strong loading from", "Random seed", "Run",
                  "Cancel"]:
         assert want in names, f"control {want!r} not found in the dialog: {names}"

@@ -178,26 +178,47 @@ TEST_F(ReportLayout, LoadingsAreGroupedAndMatchTheModel) {
   const Sheet s = layout_loadings(a());
   const Reference ref = reference(a());
   const long hdr = find_row(s, "Item");
-  ASSERT_GE(hdr, 0);
+  ASSERT_GE(hdr, 1);
   const auto& h = s.rows[static_cast<std::size_t>(hdr)];
-  ASSERT_EQ(h.size(), 1u + 2 + 2 + 4);  // item, 2 factors, communality, uniqueness, 2 intervals of 2 ends
-  EXPECT_EQ(h[1].text, "Factor 1");
-  EXPECT_EQ(h[3].text, "Communality");
-  EXPECT_EQ(h[5].text, "Factor 1 95% from");
+  // item, where it belongs, communality, uniqueness, 2 factors, 2 intervals of 2 ends
+  ASSERT_EQ(h.size(), 1u + 3 + 2 + 4);
+  EXPECT_EQ(h[1].text, "Belongs to");
+  EXPECT_EQ(h[2].text, "Explained by the factors (communality)");
+  EXPECT_EQ(h[4].text, "Factor 1");
+  EXPECT_EQ(h[6].text, "Factor 1 95% from");
+  // the band above the factors: each factor's squared loadings over the number of items
+  const auto& band = s.rows[static_cast<std::size_t>(hdr) - 1];
+  EXPECT_EQ(band[0].text, "Share of all the items' variance");
+  for (std::size_t f = 0; f < 2; ++f) {
+    double ss = 0.0;
+    for (std::size_t j = 0; j < 7; ++j) {
+      const double l = ref.L.at(static_cast<std::int64_t>(j), static_cast<std::int64_t>(f));
+      ss += l * l;
+    }
+    EXPECT_NEAR(band[4 + f].number, ss / 7.0, 1e-12);  // 7 products of numbers under 1: rounding only
+  }
   const std::vector<std::size_t> order = loading_order(ref.L.values, 7, 2);
   for (std::size_t r = 0; r < 7; ++r) {
     const auto& row = s.rows[static_cast<std::size_t>(hdr) + 1 + r];
     const std::size_t j = order[r];
     EXPECT_EQ(row[0].text, kNames[j]);
+    std::string belongs;
     for (std::size_t f = 0; f < 2; ++f) {
-      EXPECT_NEAR(row[1 + f].number, ref.L.at(static_cast<std::int64_t>(j), static_cast<std::int64_t>(f)), kSame);
-      EXPECT_EQ(row[1 + f].style, std::fabs(row[1 + f].number) >= a().options.salient ? styles::salient : styles::faint);
+      const double l = ref.L.at(static_cast<std::int64_t>(j), static_cast<std::int64_t>(f));
+      EXPECT_NEAR(row[4 + f].number, l, kSame);
+      EXPECT_EQ(row[4 + f].style, std::fabs(row[4 + f].number) >= a().options.salient ? styles::salient : styles::faint);
+      if (std::fabs(l) >= a().options.salient) belongs += (belongs.empty() ? "" : " and ") + std::to_string(f + 1);
     }
-    EXPECT_NEAR(row[3].number, ref.communalities.values[j], kSame);
-    EXPECT_NEAR(row[4].number, ref.uniquenesses.values[j], kSame);
-    EXPECT_LE(row[5].number, row[6].number);  // an interval's ends in order
+    EXPECT_EQ(row[1].text, belongs.empty() ? "none clearly"
+                                           : (belongs.size() > 1 ? "factors " : "factor ") + belongs);
+    EXPECT_NEAR(row[2].number, ref.communalities.values[j], kSame);
+    EXPECT_NEAR(row[3].number, ref.uniquenesses.values[j], kSame);
+    EXPECT_LE(row[6].number, row[7].number);  // an interval's ends in order
   }
-  EXPECT_EQ(s.rows[static_cast<std::size_t>(hdr) + 8][0].text, "Sum of squared loadings");
+  for (const auto& row : s.rows)  // no row of sums of squares below the items
+    if (!row.empty()) {
+      EXPECT_EQ(row[0].text.find("Sum of squared"), std::string::npos);
+    }
   const long smc = find_row(s, "Item", static_cast<std::size_t>(hdr) + 1);
   ASSERT_GE(smc, 0);
   for (std::size_t j = 0; j < 7; ++j) EXPECT_EQ(num(s, smc + 1 + static_cast<long>(j), 1), ref.smc.values[j]);
@@ -227,13 +248,14 @@ TEST_F(ReportLayout, FactorsSheetMatchesCorrelationsResidualsAndKeyedOmega) {
   ASSERT_GE(scales, 0);
   for (std::size_t f = 0; f < 2; ++f) {
     EXPECT_EQ(s.rows[static_cast<std::size_t>(scales) + 1 + f][0].text, "Factor " + std::to_string(f + 1));
-    EXPECT_NEAR(num(s, scales + 1 + static_cast<long>(f), 4), omega.values[f], kSame);
-    EXPECT_NEAR(num(s, scales + 1 + static_cast<long>(f), 5), share.values[f], kSame);
+    EXPECT_NEAR(num(s, scales + 1 + static_cast<long>(f), 2), omega.values[f], kSame);
+    EXPECT_NEAR(num(s, scales + 1 + static_cast<long>(f), 3), share.values[f], kSame);
+    EXPECT_EQ(s.rows[static_cast<std::size_t>(scales) + 1 + f][1].text, reliability_words(omega.values[f]));
   }
   // the reverse-scored item is marked in its scale's item table
   bool marked = false;
   for (const auto& row : s.rows)
-    if (row.size() > 2 && row[0].text == "complaints" && row[2].kind == Cell::Kind::text) marked = row[2].text == "yes";
+    if (row.size() > 2 && row[0].text == "complaints" && row[1].kind == Cell::Kind::text) marked = row[1].text == "yes";
   EXPECT_TRUE(marked);
   const long used = find_row(s, "Item correlations used");
   ASSERT_GE(used, 0);
