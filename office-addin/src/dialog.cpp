@@ -3,6 +3,8 @@
 // (UnoControlDialogModel), prefilled from the selection, and on Run hands the range and the options to
 // the AnalysisReport service, which works on a thread of its own with progress in the status bar.
 #include "report_uno.hpp"
+#include "message_box.hpp"
+#include "report_run.hpp"
 #include "uno_text.hpp"
 #include "option_table.hpp"
 #include "report_text.hpp"
@@ -203,10 +205,11 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     try {
       if (url.Path == "stop") shared_report(ctx_)->cancel();
       else if (url.Path == "analyse") analyse();
-    } catch (const css::uno::RuntimeException&) {
-      throw;
     } catch (const css::uno::Exception& e) {
-      throw css::uno::RuntimeException("Lode: " + e.Message);
+      // nothing leaves the dispatch: the person reads what went wrong in a message box
+      show_message(ctx_, frame_, true, "Lode", "Lode could not run the analysis: " + utf8(e.Message));
+    } catch (const std::exception& e) {
+      show_message(ctx_, frame_, true, "Lode", std::string("Lode could not run the analysis: ") + e.what());
     }
   }
   void SAL_CALL addStatusListener(const Reference<css::frame::XStatusListener>&, const css::util::URL&) override {}
@@ -271,6 +274,10 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     Reference<css::sheet::XSpreadsheetDocument> doc(controller->getModel(), UNO_QUERY);
     if (!doc.is()) return;
     Reference<org::lode::calc::XAnalysisReport> report = shared_report(ctx_);
+    if (report->isRunning()) {  // Run during a run: say so instead of ignoring it
+      show_message(ctx_, frame_, false, "Lode", already_running_message());
+      return;
+    }
 
     css::table::CellRangeAddress range{};
     if (!selection_range(controller, range)) {
@@ -360,8 +367,8 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     }
     css::table::CellRangeAddress chosen_range = range;
     if (!parse_range(doc, text, range.Sheet, chosen_range)) {
-      throw css::lang::IllegalArgumentException(ustr("Lode: cannot read the range \"" + text + "\""),
-                                                static_cast<cppu::OWeakObject*>(this), 0);
+      show_message(ctx_, frame_, true, "Lode", unreadable_range_message(text));
+      return;
     }
     const sal_Int16 header_state = state_of(b.get("HeaderRow"));
     Sequence<OUString> names_now = report->describeColumns(doc, chosen_range, header_state);
@@ -389,8 +396,9 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     Reference<css::task::XStatusIndicator> indicator;
     Reference<css::task::XStatusIndicatorFactory> f(frame_, UNO_QUERY);
     if (f.is()) indicator = f->createStatusIndicator();
-    report->start(doc, chosen_range, Sequence<css::beans::PropertyValue>(opts.data(), static_cast<sal_Int32>(opts.size())),
-                  indicator);
+    if (!report->start(doc, chosen_range, Sequence<css::beans::PropertyValue>(opts.data(), static_cast<sal_Int32>(opts.size())),
+                       indicator))
+      show_message(ctx_, frame_, false, "Lode", already_running_message());
   }
 
   Reference<css::uno::XComponentContext> ctx_;

@@ -27,4 +27,11 @@ Output fn_alpha(const Call& call);
 Output fn_omega(const Call& call);
 Output fn_congruence(const Call& call);
 
+// LODE.REASON (reason.cpp): the message of the named function with the same arguments, as text.
+Output fn_reason(const Call& call);
+// What a failure shows in the cell ("Err:502", "#NUM!", ...) and the reason text LODE.REASON gives:
+// "Err:502: 'method' must be one of ...".
+std::string failure_words(Failure failure);
+std::string reason_text(Failure failure, const std::string& message);
+
 }  // namespace lode::addin

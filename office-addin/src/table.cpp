@@ -224,6 +224,19 @@ const std::vector<FunctionSpec> kTable = {
        "Loadings of the same items in the same order, with as many factors, e.g. from another sample or method"}},
      "factors x 3: congruence (0 to 1), matched column of `loadings_b`, sign (1 or -1)",
      "Err:502: shapes differ, a factor with only zero loadings", fn_congruence},
+    {"reason",
+     "LODE.REASON",
+     "Why a Lode formula fails: give the function's name and then the same arguments as the failing formula; "
+     "returns its message as text (or says it computes).",
+     {{"function", ArgKind::value, "The name of the Lode function, as text: \"LODE.LOADINGS\" or \"LOADINGS\""},
+      {"argument1", ArgKind::value, "The failing formula's first argument (e.g. its data range)"},
+      {"argument2", ArgKind::value, "Its second argument, if it has one"},
+      {"argument3", ArgKind::value, "Its third argument, if it has one"},
+      {"argument4", ArgKind::value, "Its fourth argument, if it has one"},
+      {"argument5", ArgKind::value, "Its fifth argument, if it has one"},
+      {"argument6", ArgKind::value, "Its sixth argument, if it has one"}},
+     "text: the cell's error and the reason, e.g. `Err:502: 'method' must be one of \"ml\", \"paf\", \"minres\"`",
+     "none: every failure, its own included, is the text it returns", fn_reason},
 };
 
 bool iequal(std::string_view a, std::string_view b) {

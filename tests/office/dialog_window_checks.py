@@ -146,29 +146,21 @@ def choose(dialog, dropdown, entry):
     return entries
 
 
-def find_dialog(office, timeout=60):
+def find_dialog(office, timeout=60, title=TITLE):
     tk = office.smgr.createInstanceWithContext("com.sun.star.awt.Toolkit", office.ctx)
     deadline = time.monotonic() + timeout
     while time.monotonic() < deadline:
         for i in range(tk.getTopWindowCount()):
             w = tk.getTopWindow(i)
-            if hasattr(w, "getTitle") and w.getTitle() == TITLE:
+            if hasattr(w, "getTitle") and w.getTitle() == title:
                 return w
         time.sleep(0.3)
     return None
 
 
-def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
-    path = os.path.join(windowed.dir, "survey.ods")
-    shutil.copy(os.path.join(SHEETS, "volunteer-survey.ods"), path)
-    os.chmod(path, 0o666)
-    with windowed.watchdog(120):
-        doc = windowed.desktop.loadComponentFromURL(uno.systemPathToFileUrl(path), "_blank", 0, ())
-        ctrl = doc.getCurrentController()
-        sheet = doc.Sheets.getByName("Responses")
-        ctrl.setActiveSheet(sheet)
-        ctrl.select(sheet.getCellRangeByName("C5"))  # one cell: the dialog takes the block around it
-    frame = ctrl.getFrame()
+def open_dialog(windowed, frame):
+    """Sends the menu entry's URL to `frame` on a thread of its own (the dialog is modal) and finds the
+    dialog; returns the thread, the exceptions the dispatch raised (it must raise none) and the dialog."""
     helper = windowed.smgr.createInstanceWithContext("com.sun.star.frame.DispatchHelper", windowed.ctx)
     errors = []
 
@@ -182,11 +174,39 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
     t.start()
     with windowed.watchdog(120):
         dialog = find_dialog(windowed)
-        assert dialog is not None, f"the dialog did not appear ({errors})"
+    assert dialog is not None, f"the dialog did not appear ({errors})"
+    return t, errors, dialog
+
+
+def press_run(windowed, dialog, t, errors):
+    """Presses Run through its accessible action (as a screen reader would); the dispatch then returns
+    (the run goes on in the background) without an exception."""
+    with windowed.watchdog(60):
+        run = find_accessible(dialog, "Run")
+        assert run is not None, "no Run button"
+        run.getAccessibleContext().doAccessibleAction(0)
+        t.join(30)
+    assert not t.is_alive() and not errors, errors
+
+
+def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
+    path = os.path.join(windowed.dir, "survey.ods")
+    shutil.copy(os.path.join(SHEETS, "volunteer-survey.ods"), path)
+    os.chmod(path, 0o666)
+    with windowed.watchdog(120):
+        doc = windowed.desktop.loadComponentFromURL(uno.systemPathToFileUrl(path), "_blank", 0, ())
+        ctrl = doc.getCurrentController()
+        sheet = doc.Sheets.getByName("Responses")
+        ctrl.setActiveSheet(sheet)
+        ctrl.select(sheet.getCellRangeByName("C5"))  # one cell: the dialog takes the block around it
+    t, errors, dialog = open_dialog(windowed, ctrl.getFrame())
+    with windowed.watchdog(120):
         # Ask for factor scores (regression, beside the data) and bootstrap intervals (500 resamples,
         # the field's default): the options this run must pass on.
         offered = choose(dialog, "Factor scores", "Regression")
         assert offered == ["None", "Regression", "Bartlett", "Correlation-preserving"], offered
+        assert choose(dialog, "Extraction", "Maximum likelihood (fit tests)") == [
+            "Maximum likelihood (fit tests)", "Principal axis", "Least squares residuals"]
         assert choose(dialog, "Put the scores", "Beside the data, if empty")[1] == "On a sheet of their own"
         box = find_accessible(dialog, "Bootstrap intervals", role=CHECK_BOX)
         assert box is not None, "no Bootstrap intervals check box"
@@ -204,12 +224,7 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
     assert sage > 20000, f"only {sage} pixels of the dialog's background colour on screen"
     # Press Run (through its accessible action, as a screen reader would): the handler starts the
     # report in the background with the frame's status indicator and shows the overview when done.
-    with windowed.watchdog(60):
-        run = find_accessible(dialog, "Run")
-        assert run is not None, "no Run button"
-        run.getAccessibleContext().doAccessibleAction(0)
-        t.join(30)
-    assert not t.is_alive() and not errors, errors
+    press_run(windowed, dialog, t, errors)
     deadline = time.monotonic() + 240
     with windowed.watchdog(300):
         while time.monotonic() < deadline:
@@ -264,4 +279,33 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
         said = svc.run(doc, a, ())
     assert "Lode overview 2" in said
     with windowed.watchdog(60):
+        doc.close(True)
+
+
+def test_a_failing_run_says_why_in_a_message_box(windowed):
+    """Two columns of numbers beside a code column: the dialog opens, Run starts the report, the run
+    stops (a factor analysis needs at least 3 items) and a message box says so in plain words, naming
+    what to change; nothing is written."""
+    with windowed.watchdog(120):
+        doc = windowed.desktop.loadComponentFromURL("private:factory/scalc", "_blank", 0, ())
+        sheet = doc.Sheets.getByIndex(0)
+        rows = [["code", "q1", "q2"]] + [[f"R{i}", float(i % 5 + 1), float((i * 3) % 5 + 1)] for i in range(20)]
+        sheet.getCellRangeByPosition(0, 0, 2, len(rows) - 1).setDataArray(tuple(tuple(r) for r in rows))
+        ctrl = doc.getCurrentController()
+        ctrl.select(sheet.getCellRangeByName("B3"))
+        sheets_before = list(doc.Sheets.ElementNames)
+    t, errors, dialog = open_dialog(windowed, ctrl.getFrame())
+    press_run(windowed, dialog, t, errors)
+    with windowed.watchdog(120):
+        box = find_dialog(windowed, timeout=90, title="Lode: the analysis stopped")
+        assert box is not None, "no message box for the failed run"
+        words = " ".join(n for n in accessible_names(box) if n)
+        assert "The analysis stopped: only 2 columns with numbers in" in words, words
+        assert "needs at least 3 items" in words and "the workbook is as it was" in words, words
+        time.sleep(1)
+        screenshot("lode-dialog-failed-run.png")
+        ok = find_accessible(box, "OK")
+        assert ok is not None, f"no OK button in {accessible_names(box)}"
+        ok.getAccessibleContext().doAccessibleAction(0)
+        assert list(doc.Sheets.ElementNames) == sheets_before  # nothing written
         doc.close(True)

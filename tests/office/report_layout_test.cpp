@@ -408,6 +408,19 @@ TEST(ReportRun, CancelStopsOnlyARunInProgressAndNamesAreUnique) {
   EXPECT_EQ(stopped_outcome(std::make_exception_ptr(std::invalid_argument("option X"))), "stopped: option X");
   EXPECT_EQ(stopped_outcome(std::make_exception_ptr(Cancelled{})),
             "stopped: the analysis was cancelled; the workbook is as it was");
+  // what a dialog run shows in a message box: the reason and what to do; nothing for a cancel or a success
+  const std::string failed = failed_run_message(stopped_outcome(std::make_exception_ptr(std::invalid_argument(
+      "only 2 columns with numbers in $Answers.$A$1:$B$9; a factor analysis needs at least 3 items"))));
+  EXPECT_EQ(failed.rfind("The analysis stopped: only 2 columns with numbers in $Answers.$A$1:$B$9; a factor analysis "
+                         "needs at least 3 items.",
+                         0),
+            0u)
+      << failed;
+  EXPECT_NE(failed.find("the workbook is as it was"), std::string::npos);
+  EXPECT_EQ(failed_run_message(stopped_outcome(std::make_exception_ptr(Cancelled{}))), "");
+  EXPECT_EQ(failed_run_message("Lode analysed 7 items of 30 respondents; the report is on the sheets X."), "");
+  EXPECT_NE(already_running_message().find("Stop the running analysis"), std::string::npos);
+  EXPECT_NE(unreadable_range_message("Shet1.A1:B").find("\"Shet1.A1:B\""), std::string::npos);
   const std::vector<std::string> names = unique_sheet_names(
       {"Lode overview", "Lode loadings", "Lode overview"}, [](const std::string& n) { return n == "Lode overview"; });
   EXPECT_EQ(names, (std::vector<std::string>{"Lode overview 2", "Lode loadings", "Lode overview 3"}));
