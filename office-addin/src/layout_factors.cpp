@@ -13,15 +13,16 @@ using namespace styles;
 
 std::string factor_word(std::size_t f) { return "Factor " + std::to_string(f + 1); }
 
-// A square table with the item names as row and column headings.
-void item_matrix(Sheet& fc, const std::vector<std::string>& names, const std::vector<double>& m, bool flag_large) {
+// A square table with the item names as row and column headings, items in `order`.
+void item_matrix(Sheet& fc, const std::vector<std::string>& names, const std::vector<double>& m,
+                 const std::vector<std::size_t>& order, bool flag_large) {
   const std::size_t p = names.size();
   std::vector<Cell> hdr{Cell::txt("", heading)};
-  for (const std::string& n : names) hdr.push_back(Cell::txt(n, heading));
+  for (std::size_t j : order) hdr.push_back(Cell::txt(names[j], heading));
   fc.line(std::move(hdr));
-  for (std::size_t i = 0; i < p; ++i) {
+  for (std::size_t i : order) {
     std::vector<Cell> row{Cell::txt(names[i], label)};
-    for (std::size_t j = 0; j < p; ++j) {
+    for (std::size_t j : order) {
       const double v = m[i * p + j];
       row.push_back(Cell::num(v, flag_large && i != j && std::fabs(v) > 0.10 ? flag : number));
     }
@@ -176,13 +177,16 @@ Sheet layout_factors(const Analysis& a) {
     else fc.line({Cell::txt("The factors are kept uncorrelated (orthogonal rotation): no factor correlations.", note)});
     fc.blank();
     fc.line({Cell::txt("Residual correlations (observed minus model); above 0.10 in size is flagged (common practice)", heading)});
-    item_matrix(fc, a.items.names, model.residuals, true);
+    fc.line({Cell::txt("Items in the order of the loadings sheet.", note)});
+    item_matrix(fc, a.items.names, model.residuals, loading_order(model.loadings, a.p(), a.k()), true);
   }
   fc.blank();
   reliability_section(fc, a);
   fc.blank();
   fc.line({Cell::txt("Item correlations used", heading)});
-  item_matrix(fc, a.items.names, a.corr.matrix, false);
+  std::vector<std::size_t> source_order(a.p());
+  for (std::size_t j = 0; j < a.p(); ++j) source_order[j] = j;
+  item_matrix(fc, a.items.names, a.corr.matrix, source_order, false);
   return fc;
 }
 

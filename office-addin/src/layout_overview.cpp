@@ -70,19 +70,36 @@ void how_many(Sheet& ov, const Analysis& a) {
   const CountResult& count = a.count;
   const std::vector<double>& eig = a.corr.eigenvalues;
   const int fixed = a.options.factors;
-  heading_row(ov, "How many factors", 4);
-  ov.line({Cell::txt("Factor", label), Cell::txt("Eigenvalue", label), Cell::txt("Share of variance", label),
-           Cell::txt(random_data_words(count), label)});
+  heading_row(ov, "How many factors", 5);
   double total = 0.0;
   std::size_t above_one = 0;  // eigenvalues above 1: common practice (Kaiser 1960), known to over-count
   for (double e : eig) {
     total += e;
     if (e > 1.0) ++above_one;
   }
-  for (std::size_t k = 0; k < eig.size(); ++k)
-    ov.line({Cell::num(static_cast<double>(k + 1)), Cell::num(eig[k], number), Cell::num(eig[k] / total, number),
-             count.available && k < count.random_pc.size() ? Cell::num(count.random_pc[k], number)
-                                                            : Cell::txt(k == 0 ? count.reason : "", note)});
+  // The decision compares the reduced-matrix eigenvalues with random data's: those come first; the
+  // eigenvalues of the correlations themselves (what each component's share of variance reads) follow.
+  const bool reduced = count.available && count.observed_factor.size() >= eig.size() && count.random_factor.size() >= eig.size();
+  if (reduced) {
+    ov.line({Cell::txt("The count compares the first two columns: a factor counts while its reduced-matrix eigenvalue "
+                       "(squared multiple correlations on the diagonal) exceeds random data's at the same position "
+                       "(Horn 1965; O'Connor 2000).",
+                       note)});
+    ov.line({Cell::txt("Factor", label), Cell::txt("Reduced-matrix eigenvalue", label),
+             Cell::txt(random_data_words(count), label), Cell::txt("Eigenvalue", label),
+             Cell::txt("Share of variance", label)});
+  } else {
+    ov.line({Cell::txt("Factor", label), Cell::txt("Eigenvalue", label), Cell::txt("Share of variance", label),
+             Cell::txt(random_data_words(count), label)});
+  }
+  for (std::size_t k = 0; k < eig.size(); ++k) {
+    const Cell factor = Cell::num(static_cast<double>(k + 1)), e = Cell::num(eig[k], number),
+               share = Cell::num(eig[k] / total, number);
+    if (reduced)
+      ov.line({factor, Cell::num(count.observed_factor[k], number), Cell::num(count.random_factor[k], number), e, share});
+    else
+      ov.line({factor, e, share, Cell::txt(k == 0 ? count.reason : "", note)});
+  }
   if (count.available) {
     ov.line({Cell::txt("Rule", label), Cell::txt("Factors", label), Cell::txt("Basis", label)});
     for (const CountResult::Rule& r : count.rules)
@@ -106,7 +123,7 @@ void how_many(Sheet& ov, const Analysis& a) {
 void fit_statistics(Sheet& ov, const ModelResult& model) {
   ov.line({Cell::txt("Chi-square", label), Cell::num(model.chi2, number), Cell::txt("degrees of freedom", note),
            Cell::num(model.df)});
-  ov.line({Cell::txt("p-value", label), Cell::num(model.p),
+  ov.line({Cell::txt("p-value", label), p_cell(model.p),
            Cell::txt("with a few hundred respondents even small misfit gives a small p; read RMSEA and TLI too "
                      "(common practice)",
                      note)});
@@ -134,7 +151,9 @@ void model_fit(Sheet& ov, const Analysis& a) {
     return;
   }
   ov.line({Cell::txt("Factors in the model", label), Cell::num(static_cast<double>(a.k())),
-           Cell::txt(a.options.extraction + ", rotation " + model.rotation_used, note)});
+           Cell::txt(std::string(extraction_words(a.options.extraction)) + "; rotation " +
+                         rotation_words(a.options.rotation, a.options.rotation_parameter, model.rotation_used),
+                     note)});
   ov.line({Cell::txt("Root mean square residual (RMSR)", label), Cell::num(model.rmsr, number),
            Cell::txt(model.rmsr <= 0.05   ? "small: the model reproduces the correlations well (0.05 or less; common practice)"
                      : model.rmsr <= 0.08 ? "acceptable (0.08 or less; common practice)"

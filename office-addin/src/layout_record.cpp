@@ -26,7 +26,8 @@ Sheet layout_record(const Analysis& a) {
   rec("First row holds item names", Cell::txt(a.items.header ? "yes" : "no"));
   rec("Items", Cell::txt(items_text));
   rec("Values hash (FNV-1a 64)", Cell::txt(hash));
-  for (const WordOption& w : word_options()) rec(w.record, Cell::txt(o.*(w.field)));
+  // options in the dialog's words (never the option codes); each label names one word of its option
+  for (const WordOption& w : word_options()) rec(w.record, Cell::txt(w.words[word_index(w, o.*(w.field))].label));
   rec("Number of factors", o.factors > 0 ? Cell::num(o.factors) : Cell::txt("suggest"));
   rec("Rotation parameter", Cell::num(o.rotation_parameter));
   if (o.scores != "none") {

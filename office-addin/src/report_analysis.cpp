@@ -189,6 +189,8 @@ CountResult count_factors(const lode_correlation* corr, const Options& o, const 
   const auto value = [&](int key) { return read_value(count.get(), key, lode_factor_count_value, "the factor count", report_check); };
   const auto text = [&](int key) { return read_text(count.get(), key, lode_factor_count_text, "the factor count", report_check); };
   r.random_pc = vec(count.get(), LODE_FACTOR_COUNT_RANDOM_PC_PERCENTILE, lode_factor_count_matrix, "parallel analysis");
+  r.observed_factor = vec(count.get(), LODE_FACTOR_COUNT_OBSERVED_FACTOR, lode_factor_count_matrix, "parallel analysis");
+  r.random_factor = vec(count.get(), LODE_FACTOR_COUNT_RANDOM_FACTOR_PERCENTILE, lode_factor_count_matrix, "parallel analysis");
   r.suggested = static_cast<int>(value(LODE_FACTOR_COUNT_SUGGESTED));
   r.percentile = value(LODE_FACTOR_COUNT_PERCENTILE);
   r.replicates = static_cast<int>(value(LODE_FACTOR_COUNT_REPLICATES));

@@ -98,6 +98,31 @@ std::string fmt_whole(double d) {
   return buf;
 }
 
+std::string with_decimal_separator(const std::string& text, char separator) {
+  std::string out = text;
+  const auto digit = [&](std::size_t i) { return i < text.size() && std::isdigit(static_cast<unsigned char>(text[i])); };
+  for (std::size_t i = 1; i + 1 < text.size(); ++i) {
+    if (text[i] != '.' || !digit(i - 1) || !digit(i + 1)) continue;
+    std::size_t b = i - 1;  // the start of the digits before the point
+    while (b > 0 && digit(b - 1)) --b;
+    if (b > 0 && (std::isalpha(static_cast<unsigned char>(text[b - 1])) || text[b - 1] == '_' || text[b - 1] == '.'))
+      continue;  // part of a name or of a version
+    std::size_t e = i + 1;  // past the digits after the point
+    while (digit(e)) ++e;
+    if (e < text.size() && (text[e] == '.' && digit(e + 1))) continue;  // a version such as 0.1.0
+    if (e < text.size() && (std::isalpha(static_cast<unsigned char>(text[e])) || text[e] == '_')) continue;
+    out[i] = separator;
+  }
+  return out;
+}
+
+void localise_decimals(Sheet& sheet, char separator) {
+  for (auto& row : sheet.rows)
+    for (Cell& c : row)
+      if (c.kind == Cell::Kind::text && c.style != styles::label && c.style != styles::heading && c.style != styles::title)
+        c.text = with_decimal_separator(c.text, separator);
+}
+
 std::string trimmed(const std::string& s) {
   const auto first = s.find_first_not_of(" \t\r\n\v\f");
   if (first == std::string::npos) return std::string();

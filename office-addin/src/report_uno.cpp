@@ -437,6 +437,7 @@ class AnalysisReport : public cppu::WeakImplHelper2<org::lode::calc::XAnalysisRe
     try {
       if (indicator.is()) indicator->start("Lode: starting the analysis", 100);
       Options opts = options_from(props);
+      opts.decimal_separator = decimal_separator_of(doc);
       SourceTable src = read_source(doc, source);
       Progress progress = [&](const std::string& phase, double share) {
         say(phase, 0.8 * share);

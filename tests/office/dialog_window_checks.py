@@ -178,6 +178,25 @@ def open_dialog(windowed, frame):
     return t, errors, dialog
 
 
+def window_saying(windowed, text, timeout=60):
+    """The top window whose accessible texts contain `text` (a message box), and all they say."""
+    tk = windowed.smgr.createInstanceWithContext("com.sun.star.awt.Toolkit", windowed.ctx)
+    deadline = time.monotonic() + timeout
+    seen = ""
+    while time.monotonic() < deadline:
+        for i in range(tk.getTopWindowCount()):
+            w = tk.getTopWindow(i)
+            try:
+                words = " ".join(n for n in accessible_names(w) if n)
+            except Exception:
+                continue
+            if text in words:
+                return w, words
+            seen = words[:300]
+        time.sleep(0.5)
+    return None, seen
+
+
 def press_run(windowed, dialog, t, errors):
     """Presses Run through its accessible action (as a screen reader would); the dispatch then returns
     (the run goes on in the background) without an exception."""
@@ -240,8 +259,8 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
         rec = {rr.getCellByPosition(0, r).String: rr.getCellByPosition(1, r).String for r in range(40)}
         assert rec["Source range"] == "$Responses.$A$1:$AE$421" and rec["First row holds item names"] == "yes"
         assert rec["Items"].split(", ")[0] == "ROL1" and len(rec["Items"].split(", ")) == 30
-        assert rec["Correlations"] == "pearson" and rec["Random seed"] == "20260101"
-        assert rec["Factor scores"] == "regression" and rec["Factor scores placed"] == "beside"
+        assert rec["Correlations"] == "Pearson" and rec["Random seed"] == "20260101"
+        assert rec["Factor scores"] == "Regression" and rec["Factor scores placed"] == "Beside the data, if empty"
         assert rec["Factor scores written to"].endswith("of Responses, beside the data")
         assert rec["Bootstrap resamples"] == "500" and rec["Bootstrap seed"].startswith("20260101 ")
         # the score columns start right of the answers (AE), with their headings
@@ -297,9 +316,8 @@ def test_a_failing_run_says_why_in_a_message_box(windowed):
     t, errors, dialog = open_dialog(windowed, ctrl.getFrame())
     press_run(windowed, dialog, t, errors)
     with windowed.watchdog(120):
-        box = find_dialog(windowed, timeout=90, title="Lode: the analysis stopped")
-        assert box is not None, "no message box for the failed run"
-        words = " ".join(n for n in accessible_names(box) if n)
+        box, words = window_saying(windowed, "The analysis stopped", timeout=90)
+        assert box is not None, f"no message box for the failed run; top windows say: {words}"
         assert "The analysis stopped: only 2 columns with numbers in" in words, words
         assert "needs at least 3 items" in words and "the workbook is as it was" in words, words
         time.sleep(1)

@@ -184,18 +184,24 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
     assert abs(find_row(ov, "Share of answers missing")[1] - ref.missing_fraction) < TOL
     assert abs(ref.missing_fraction - np.isnan(x).mean()) < 1e-15  # numpy: the share of NaN cells
     assert find_row(ov, "Correlation matrix positive definite")[1] == ("yes" if ref.positive_definite else "no")
-    start = [i for i, r in enumerate(ov) if r[:2] == ["Factor", "Eigenvalue"]][0] + 1
-    eig = np.array([ov[start + k][1] for k in range(p)])
-    share = np.array([ov[start + k][2] for k in range(p)])
+    start = [i for i, r in enumerate(ov) if r[:2] == ["Factor", "Reduced-matrix eigenvalue"]][0] + 1
+    eig = np.array([ov[start + k][3] for k in range(p)])
+    share = np.array([ov[start + k][4] for k in range(p)])
+    reduced = np.array([ov[start + k][1] for k in range(p)])
+    # numpy: the reduced matrix is R with the squared multiple correlations 1 - 1/diag(R^-1) on its diagonal
+    rr = ref.matrix.copy()
+    np.fill_diagonal(rr, 1 - 1 / np.diag(np.linalg.inv(ref.matrix)))
+    assert np.max(np.abs(reduced - np.sort(np.linalg.eigvalsh(rr))[::-1])) < 1e-10
     assert [ov[start + k][0] for k in range(p)] == list(range(1, p + 1))
     assert np.max(np.abs(eig - ref.eigenvalues)) < TOL
     # numpy.linalg.eigvalsh of the C library's matrix: the eigenvalues themselves
     assert np.max(np.abs(eig - np.sort(np.linalg.eigvalsh(ref.matrix))[::-1])) < 1e-10
     assert np.max(np.abs(share - ref.eigenvalues / ref.eigenvalues.sum())) < TOL
-    random_col = [ov[start + k][3] for k in range(p)]
+    random_col = [ov[start + k][2] for k in range(p)]
     # the C ABI's factor count: parallel analysis with the run's seed
-    cnt = lode.n_factors(x, replicates=500, seed=4242, correlation="pearson", missing="pairwise", item_names=names)
-    assert np.max(np.abs(np.array(random_col) - cnt.parallel["random_pc_percentile"])) < TOL
+    cnt = lode.count_factors(x, replicates=500, seed=4242, correlation="pearson", missing="pairwise", item_names=names)
+    assert np.max(np.abs(np.array(random_col) - cnt.parallel["random_factor_percentile"])) < TOL
+    assert np.max(np.abs(reduced - cnt.parallel["observed_factor"])) < TOL
     decision = find_row(ov, "Decision")
     assert decision[1] == cnt.suggested and decision[2] == cnt.reason
     rules_at = [i for i, r in enumerate(ov) if r[:2] == ["Rule", "Factors"]][0] + 1
@@ -262,10 +268,13 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
 
     sc_sheet = survey.Sheets.getByName("Lode scree")
     sc = read_sheet(sc_sheet)
-    top = [i for i, r in enumerate(sc) if r[:2] == ["Factor", "Observed eigenvalue"]][0]
-    assert np.max(np.abs(np.array([sc[top + 1 + k][1] for k in range(p)]) - ref.eigenvalues)) < TOL
-    lines = 3  # the random-data line beside the observed one
-    assert np.max(np.abs(np.array([sc[top + 1 + k][2] for k in range(p)]) - cnt.parallel["random_pc_percentile"])) < TOL
+    top = [i for i, r in enumerate(sc) if r[:2] == ["Factor", "Reduced-matrix eigenvalue (the count's)"]][0]
+    # both versions, each beside its random-data line: the count's reduced-matrix eigenvalues first
+    assert np.max(np.abs(np.array([sc[top + 1 + k][1] for k in range(p)]) - reduced)) < TOL
+    assert np.max(np.abs(np.array([sc[top + 1 + k][2] for k in range(p)]) - cnt.parallel["random_factor_percentile"])) < TOL
+    assert np.max(np.abs(np.array([sc[top + 1 + k][3] for k in range(p)]) - ref.eigenvalues)) < TOL
+    lines = 5
+    assert np.max(np.abs(np.array([sc[top + 1 + k][4] for k in range(p)]) - cnt.parallel["random_pc_percentile"])) < TOL
     charts = sc_sheet.getCharts()
     assert charts.getCount() == 1
     chart = charts.getByIndex(0)
@@ -273,7 +282,10 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
     assert (rng.StartColumn, rng.StartRow, rng.EndColumn, rng.EndRow) == (0, top, lines - 1, top + p)
     cdoc = chart.getEmbeddedObject()
     assert cdoc.getDiagram().getDiagramType() == "com.sun.star.chart.LineDiagram"
-    assert cdoc.getData().getData()[0][0] == pytest.approx(ref.eigenvalues[0], abs=TOL)
+    # the chart's four lines: reduced-matrix eigenvalues and their random line, then the correlations' own
+    first = cdoc.getData().getData()[0]
+    assert list(first) == pytest.approx([reduced[0], cnt.parallel["random_factor_percentile"][0], ref.eigenvalues[0],
+                                         cnt.parallel["random_pc_percentile"][0]], abs=TOL)
 
     rr = read_sheet(survey.Sheets.getByName("Lode run record"))
     rec = {r[0]: r[1] for r in rr if r and len(r) > 1 and r[1] is not None}
@@ -281,9 +293,11 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
     assert rec["Source range"] == "$Responses.$A$1:$AE$421"
     assert rec["Items"] == ", ".join(names)
     assert rec["Values hash (FNV-1a 64)"] == fnv1a64(x, names)
-    assert rec["Correlations"] == "pearson" and rec["Missing answers"] == "pairwise"
+    # options in the dialog's words, never the option codes
+    assert rec["Correlations"] == "Pearson" and rec["Missing answers"] == "Pairwise: all who answered both"
     assert rec["Random seed"] == "4242" and rec["Strong loading from"] == 0.35
-    assert rec["Number of factors"] == "suggest" and rec["Rotation"] == "oblimin" and rec["Extraction"] == "minres"
+    assert rec["Number of factors"] == "suggest" and rec["Rotation"] == "Oblimin (factors may correlate)" \
+        and rec["Extraction"] == "Least squares residuals"
     assert time.strftime("%Y-%m-%d", time.gmtime()) in rec["Written"]
 
 
@@ -323,8 +337,13 @@ def check_model(doc, ov, ld, x, names, k, salient, seed):
         at = [i for i, r in enumerate(fs) if r[:1] == ["Factor correlations"]][0] + 2
         phi = np.array([fs[at + a][1:1 + k] for a in range(k)])
         assert np.max(np.abs(phi - m.factor_correlations)) < 1e-12
-    at = [i for i, r in enumerate(fs) if isinstance(r[0], str) and r[0].startswith("Residual correlations")][0] + 2
-    res = np.array([fs[at + i][1:1 + p] for i in range(p)])
+    # the residuals in the loadings sheet's item order
+    at = [i for i, r in enumerate(fs) if isinstance(r[0], str) and r[0].startswith("Residual correlations")][0] + 3
+    assert [fs[at + i][0] for i in range(p)] == [names[j] for j in order]
+    res = np.empty((p, p))
+    for a, i in enumerate(order):
+        for b, j in enumerate(order):
+            res[i, j] = fs[at + a][1 + b]
     assert np.max(np.abs(res - m.residuals)) < 1e-12
     # numpy: the residuals are the observed minus the model's correlations (L Phi L' + uniquenesses)
     implied = m.loadings @ m.factor_correlations @ m.loadings.T
@@ -699,8 +718,8 @@ def test_ml_varimax_regression_scores_match_r_factanal(office, service):
         hdr = [i for i, r in enumerate(sc) if r[:1] == ["Row in Answers"]][0]
         got = np.array([r[1:1 + K_FIXED] for r in sc[hdr + 1:hdr + 1 + xc.shape[0]]], dtype=float)
         ld = read_sheet(doc.Sheets.getByName("Lode loadings"))
-        lh = [i for i, r in enumerate(ld) if r[:2] == ["Item", "Factor 1"]][0]
-        lrows = {r[0]: r[1:1 + K_FIXED] for r in ld[lh + 1:lh + 1 + len(names)]}
+        lh = [i for i, r in enumerate(ld) if r[:2] == ["Item", "Belongs to"]][0]
+        lrows = {r[0]: r[4:4 + K_FIXED] for r in ld[lh + 1:lh + 1 + len(names)]}
         L = np.array([lrows[nm] for nm in names], dtype=float)
         # Correlation-preserving scores of an oblique solution on the same complete data: ten Berge,
         # Krijnen, Wansbeek and Shapiro (1999) make them correlate exactly as the factors (numpy).
@@ -932,10 +951,11 @@ def test_same_loadings_on_every_surface(office):
         ld = read_sheet(doc.Sheets.getByName("Lode loadings"))
         rr = read_sheet(doc.Sheets.getByName("Lode run record"))
         rec = {row[0]: row[1] for row in rr if len(row) > 1}
-        assert rec["Extraction"] == "ml" and rec["Rotation"] == "oblimin" and rec["Strong loading from"] == 0.40
-        hdr = [i for i, row in enumerate(ld) if row[:2] == ["Item", "Factor 1"]][0]
-        assert ld[hdr][1:6] == ["Factor 1", "Factor 2", "Factor 3", "Factor 4", "Communality"]
-        report = {row[0]: row[1:5] for row in ld[hdr + 1:hdr + 25]}
+        assert rec["Extraction"] == "Maximum likelihood (fit tests)" and rec["Rotation"] == "Oblimin (factors may correlate)" \
+            and rec["Strong loading from"] == 0.40
+        hdr = [i for i, row in enumerate(ld) if row[:2] == ["Item", "Belongs to"]][0]
+        assert ld[hdr][4:8] == ["Factor 1", "Factor 2", "Factor 3", "Factor 4"]
+        report = {row[0]: row[4:8] for row in ld[hdr + 1:hdr + 25]}
         sheet = doc.Sheets.getByName("Answers")
         with office.watchdog(300):
             array_formula(sheet, 30, 0, 4, 24, "=LODE.LOADINGS($Answers.$A$1:$X$146)")
