@@ -330,9 +330,9 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     b.dropdown(*find_word_option("Missing"), L, F, 33, W);
     // The factor count: one field, 0 letting the evidence decide (parallel analysis), so a number
     // typed there is always the one used.
-    b.label("FactorsLabel", "Factors to keep", L, 48, 82);
-    b.number("FactorCount", 0, 0, 100, 0, F, 48, 30);
-    b.label("FactorsHint", "0: as the evidence suggests", F + 34, 49, W - 34);
+    b.label("FactorsLabel", "Factors to keep", L, 52, 82);
+    b.number("FactorCount", 0, 0, 100, 0, F, 52, 30);
+    b.label("FactorsHint", "0: as the evidence suggests", F + 34, 53, W - 34);
     b.dropdown(*find_word_option("Extraction"), L, F, 74, W);
     b.dropdown(*find_word_option("Rotation"), L, F, 89, W);
     b.label("RotationParameterLabel", "Rotation setting (0: usual)", L, 104, 82);

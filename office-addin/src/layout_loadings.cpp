@@ -76,6 +76,7 @@ Sheet layout_loadings(const Analysis& a) {
   ld.column_widths.assign(4 + k, 3000);
   ld.column_widths[0] = 5000;
   ld.column_widths[1] = 3400;
+  ld.column_widths[2] = ld.column_widths[3] = 4600;  // room for the two headings in words
   if (intervals) ld.column_widths.resize(4 + k + 2 * k, 3700);  // the intervals right of the loadings
   ld.line({Cell::txt("Loadings", title)});
   ld.line({Cell::txt("Strong loadings (at least " + fmt_num(a.options.salient, 2) +

@@ -20,7 +20,8 @@ Sheet layout_scree(const Analysis& a) {
   sc.line({Cell::txt("Scree: eigenvalues of the item correlations", title)});
   sc.line({Cell::txt(count.available ? "Where an observed line falls below its random-data line, the factors are no "
                                         "stronger than chance (parallel analysis, Horn 1965). The count uses the "
-                                        "reduced-matrix lines (O'Connor 2000)."
+                                        "reduced-matrix lines, squared multiple correlations on the diagonal "
+                                        "(O'Connor 2000); the other two are the correlations' own eigenvalues."
                                       : "The random-data line of parallel analysis: " + count.reason,
                     note)});
   sc.blank();
@@ -30,9 +31,8 @@ Sheet layout_scree(const Analysis& a) {
   const bool both = count.available && count.observed_factor.size() >= eig.size() &&
                     count.random_factor.size() >= eig.size() && count.random_pc.size() >= eig.size();
   if (both)
-    sc.line({Cell::txt("Factor", heading), Cell::txt("Reduced-matrix eigenvalue (the count's)", heading),
-             Cell::txt("Random data, reduced matrix", heading), Cell::txt("Eigenvalue of the correlations", heading),
-             Cell::txt("Random data, correlations", heading)});
+    sc.line({Cell::txt("Factor", heading), Cell::txt("Reduced eigenvalue", heading),
+             Cell::txt("Random, reduced", heading), Cell::txt("Eigenvalue", heading), Cell::txt("Random", heading)});
   else
     sc.line({Cell::txt("Factor", heading), Cell::txt("Eigenvalue of the correlations", heading)});
   for (std::size_t k = 0; k < eig.size(); ++k) {
@@ -57,7 +57,7 @@ Sheet layout_scree(const Analysis& a) {
   ch.anchor_row = table_top;
   ch.anchor_col = ch.cols + 1;
   sc.charts.push_back(ch);
-  sc.column_widths = {2500, 5200, 4600, 5200, 4600};
+  sc.column_widths = {1800, 3800, 3300, 2800, 2800};  // the chart fits beside them on a screen
   return sc;
 }
 

@@ -306,7 +306,7 @@ TEST_F(ReportLayout, ScreeTableAndChartCoverTheEigenvalues) {
   ASSERT_TRUE(a().count.available);
   EXPECT_EQ(ch.cols, 5u);  // both versions: the count's reduced-matrix lines and the correlations' lines
   EXPECT_EQ(s.rows[ch.top][0].text, "Factor");
-  EXPECT_EQ(s.rows[ch.top][1].text, "Reduced-matrix eigenvalue (the count's)");
+  EXPECT_EQ(s.rows[ch.top][1].text, "Reduced eigenvalue");
   for (std::size_t j = 0; j < 7; ++j) {
     EXPECT_EQ(s.rows[ch.top + 1 + j][1].number, a().count.observed_factor[j]);
     EXPECT_EQ(s.rows[ch.top + 1 + j][3].number, ref.eig.values[j]);
