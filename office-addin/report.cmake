@@ -24,7 +24,7 @@ target_sources(lode_addin_logic PRIVATE src/report_model.cpp src/report_analysis
   src/layout_overview.cpp src/layout_loadings.cpp src/layout_factors.cpp src/layout_scree.cpp src/layout_record.cpp
   src/layout_scores.cpp src/layout_replication.cpp src/layout_holdout.cpp src/option_table.cpp src/report_run.cpp
   src/report_analysis_structure.cpp src/layout_general.cpp src/layout_groups.cpp)
-target_sources(lode_calc PRIVATE src/report_uno.cpp src/dialog.cpp)
+target_sources(lode_calc PRIVATE src/report_uno.cpp src/dialog.cpp src/message_box.cpp)
 add_dependencies(lode_calc lode_report_types)
 
 list(APPEND LODE_OXT_EXTRA ${GEN}/lode_report.rdb ${PKG}/Addons.xcu ${PKG}/ProtocolHandler.xcu ${PKG}/lode-16.png

@@ -348,7 +348,8 @@ void flag_heywood_cases(ExtractionResult& out, const ExtractionOptions& options)
     hw.at_bound = at_bound;
     out.heywood.push_back(hw);
     out.notes.push_back(
-        at_bound ? fmt::format("Heywood case: {} has its uniqueness held at the lower bound {} (communality {:.4f}); "
+        at_bound ? fmt::format("Heywood case: {} has its uniqueness held at the lower bound {} (a bound of common practice; "
+                               "communality {:.4f}); "
                                "its estimates are improper, which often means too many factors or too few items per "
                                "factor",
                                hw.label, options.min_uniqueness, hw.communality)

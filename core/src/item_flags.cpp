@@ -80,7 +80,8 @@ std::vector<ItemFlag> flag_items(const Matrix& loadings, const Matrix& phi_in, c
                                    item, h2, psi)});
     } else if (psi <= o.heywood_uniqueness + 1e-12) {  // rounding of a value held at the bound
       flags.push_back({i, ItemFlagKind::heywood_case, {}, psi,
-                       fmt::format("{} has uniqueness {:.3f}, at or below {:.3f} (a Heywood case): the item is "
+                       fmt::format("{} has uniqueness {:.3f}, at or below {:.3f} (a Heywood case; the bound is common "
+                                   "practice): the item is "
                                    "treated as measured without error, which is rarely credible.",
                                    item, psi, o.heywood_uniqueness)});
     }

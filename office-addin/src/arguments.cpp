@@ -50,6 +50,11 @@ int choice(const Arg& a, const char* name, std::initializer_list<const char*> ch
   throw CellError(Failure::bad_argument, std::string("'") + name + "' must be one of " + join(choices));
 }
 
+int choice(const Arg& a, const char* name, std::initializer_list<const char*> choices, FormerWord former) {
+  if (a.kind == Arg::Kind::text && lower(a.text) == former.word) return former.index;
+  return choice(a, name, choices);
+}
+
 // A whole number in [lo, hi], or `fallback` when left out.
 std::int64_t whole(const Arg& a, const char* name, std::int64_t fallback, std::int64_t lo, std::int64_t hi) {
   if (a.kind == Arg::Kind::missing) return fallback;

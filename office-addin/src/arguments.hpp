@@ -14,6 +14,14 @@ namespace lode::addin {
 // it, as the C ABI's name lookups do), or the first choice (index 0) when left out.
 int choice(const Arg& a, const char* name, std::initializer_list<const char*> choices);
 
+// The same, also reading a former word (a word a renamed option had, kept so saved workbooks still
+// compute) as the choice at index `former_index`; error messages name only the current words.
+struct FormerWord {
+  const char* word;
+  int index;
+};
+int choice(const Arg& a, const char* name, std::initializer_list<const char*> choices, FormerWord former);
+
 // A whole number in [lo, hi], or `fallback` when left out.
 std::int64_t whole(const Arg& a, const char* name, std::int64_t fallback, std::int64_t lo, std::int64_t hi);
 

@@ -5,6 +5,7 @@
 #include "convert.hpp"
 #include "uno_text.hpp"
 #include "report_uno.hpp"
+#include "functions.hpp"
 #include "table.hpp"
 
 #include <cppuhelper/factory.hxx>
@@ -91,6 +92,7 @@ class CellFunctions : public cppu::WeakImplHelper4<org::lode::calc::XCellFunctio
  private:
   // Runs row `index` of the table. Every failure becomes a documented cell result here.
   Any invoke(std::size_t index, std::initializer_list<UnoArg> uno_args) {
+    const FunctionSpec* spec = index < function_table().size() ? &function_table()[index] : nullptr;
     try {
       const FunctionSpec& f = function_table().at(index);
       std::vector<Arg> args;
@@ -103,6 +105,8 @@ class CellFunctions : public cppu::WeakImplHelper4<org::lode::calc::XCellFunctio
       return to_any(f.compute(Call{args, cache_, Deadline{}}));
     } catch (...) {
       const auto [failure, message] = failure_of(std::current_exception());
+      // LODE.REASON answers in text even when its own arguments cannot be read (e.g. a range too large)
+      if (spec != nullptr && spec->compute == &fn_reason) return Any(ustr(reason_text(failure, message)));
       return failure_to_any(failure, message, static_cast<cppu::OWeakObject&>(*this));
     }
   }

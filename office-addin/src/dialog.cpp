@@ -3,6 +3,8 @@
 // (UnoControlDialogModel), prefilled from the selection, and on Run hands the range and the options to
 // the AnalysisReport service, which works on a thread of its own with progress in the status bar.
 #include "report_uno.hpp"
+#include "message_box.hpp"
+#include "report_run.hpp"
 #include "uno_text.hpp"
 #include "option_table.hpp"
 #include "report_text.hpp"
@@ -203,10 +205,11 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     try {
       if (url.Path == "stop") shared_report(ctx_)->cancel();
       else if (url.Path == "analyse") analyse();
-    } catch (const css::uno::RuntimeException&) {
-      throw;
     } catch (const css::uno::Exception& e) {
-      throw css::uno::RuntimeException("Lode: " + e.Message);
+      // nothing leaves the dispatch: the person reads what went wrong in a message box
+      show_message(ctx_, frame_, true, "Lode", "Lode could not run the analysis: " + utf8(e.Message));
+    } catch (const std::exception& e) {
+      show_message(ctx_, frame_, true, "Lode", std::string("Lode could not run the analysis: ") + e.what());
     }
   }
   void SAL_CALL addStatusListener(const Reference<css::frame::XStatusListener>&, const css::util::URL&) override {}
@@ -271,6 +274,10 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     Reference<css::sheet::XSpreadsheetDocument> doc(controller->getModel(), UNO_QUERY);
     if (!doc.is()) return;
     Reference<org::lode::calc::XAnalysisReport> report = shared_report(ctx_);
+    if (report->isRunning()) {  // Run during a run: say so instead of ignoring it
+      show_message(ctx_, frame_, false, "Lode", already_running_message());
+      return;
+    }
 
     css::table::CellRangeAddress range{};
     if (!selection_range(controller, range)) {
@@ -321,12 +328,11 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     b.heading("AnalysisHeading", "The analysis", L, 4, 220);
     b.dropdown(*find_word_option("Correlation"), L, F, 18, W);
     b.dropdown(*find_word_option("Missing"), L, F, 33, W);
-    b.label("FactorsLabel", "Number of factors", L, 48, 82);
-    b.add("com.sun.star.awt.UnoControlRadioButtonModel", "FactorsSuggest", F, 48, W, 10,
-          {{"Label", Any(A("Suggest from the data"))}, {"State", Any(sal_Int16(1))}});
-    b.add("com.sun.star.awt.UnoControlRadioButtonModel", "FactorsFixed", F, 60, 40, 10,
-          {{"Label", Any(A("Fixed:"))}, {"State", Any(sal_Int16(0))}});
-    b.number("FactorCount", 3, 1, 100, 0, F + 42, 59, W - 42);
+    // The factor count: one field, 0 letting the evidence decide (parallel analysis), so a number
+    // typed there is always the one used.
+    b.label("FactorsLabel", "Factors to keep", L, 52, 82);
+    b.number("FactorCount", 0, 0, 100, 0, F, 52, 30);
+    b.label("FactorsHint", "0: as the evidence suggests", F + 34, 53, W - 34);
     b.dropdown(*find_word_option("Extraction"), L, F, 74, W);
     b.dropdown(*find_word_option("Rotation"), L, F, 89, W);
     b.label("RotationParameterLabel", "Rotation setting (0: usual)", L, 104, 82);
@@ -386,8 +392,8 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     }
     css::table::CellRangeAddress chosen_range = range;
     if (!parse_range(doc, text, range.Sheet, chosen_range)) {
-      throw css::lang::IllegalArgumentException(ustr("Lode: cannot read the range \"" + text + "\""),
-                                                static_cast<cppu::OWeakObject*>(this), 0);
+      show_message(ctx_, frame_, true, "Lode", unreadable_range_message(text));
+      return;
     }
     const sal_Int16 header_state = state_of(b.get("HeaderRow"));
     Sequence<OUString> names_now = report->describeColumns(doc, chosen_range, header_state);
@@ -406,7 +412,7 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     if (!chosen_items.empty())
       opts.push_back(prop("Items", Any(Sequence<OUString>(chosen_items.data(), static_cast<sal_Int32>(chosen_items.size())))));
     for (const WordOption& w : word_options()) opts.push_back(prop(w.property, Any(A(chosen(w, b.get(w.property))))));
-    opts.push_back(prop("Factors", Any(sal_Int32(state_of(b.get("FactorsFixed")) ? value_of(b.get("FactorCount")) : 0))));
+    opts.push_back(prop("Factors", Any(sal_Int32(value_of(b.get("FactorCount"))))));
     opts.push_back(prop("RotationParameter", Any(value_of(b.get("RotationParameter")))));
     opts.push_back(prop("Bootstrap", Any(sal_Int32(state_of(b.get("Bootstrap")) ? value_of(b.get("Replicates")) : 0))));
     for (const CheckOption& c : check_options()) {  // 0 = off
@@ -424,8 +430,9 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     Reference<css::task::XStatusIndicator> indicator;
     Reference<css::task::XStatusIndicatorFactory> f(frame_, UNO_QUERY);
     if (f.is()) indicator = f->createStatusIndicator();
-    report->start(doc, chosen_range, Sequence<css::beans::PropertyValue>(opts.data(), static_cast<sal_Int32>(opts.size())),
-                  indicator);
+    if (!report->start(doc, chosen_range, Sequence<css::beans::PropertyValue>(opts.data(), static_cast<sal_Int32>(opts.size())),
+                       indicator))
+      show_message(ctx_, frame_, false, "Lode", already_running_message());
   }
 
   Reference<css::uno::XComponentContext> ctx_;

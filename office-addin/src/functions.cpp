@@ -406,7 +406,7 @@ Output fn_parallel(const Call& call) {
   return to_output(pa->table);
 }
 
-Output fn_nfactors(const Call& call) {
+Output fn_factorcount(const Call& call) {
   const Source src = read_source(call, kNoArg);
   const int rule = choice(call.args[1], "rule", {"parallel", "map", "kaiser", "ekc"});
   return Output::number(static_cast<double>(cached_nfactors(call, src, rule, seed_arg(call.args[2]))));
@@ -550,7 +550,9 @@ Output fn_scores(const Call& call) {
   if (read_input(call.args[0], "data").is_correlation)
     throw CellError(Failure::bad_argument,
                     "factor scores need the respondents' answers (respondents in rows), not a correlation matrix");
-  const int method = choice(call.args[4], "score_method", {"regression", "bartlett", "tenberge"});
+  // "tenberge": the former word for correlation_preserving (README, "Former names")
+  const int method =
+      choice(call.args[4], "score_method", {"regression", "bartlett", "correlation_preserving"}, {"tenberge", 2});
   const FitRequest req = read_fit_request(call, kNoArg);
   auto f = converged_fit(call, req);
   KeyBuilder k("scores");

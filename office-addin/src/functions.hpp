@@ -13,7 +13,7 @@ Output fn_kmo(const Call& call);
 Output fn_msa(const Call& call);
 Output fn_sphericity(const Call& call);
 Output fn_parallel(const Call& call);
-Output fn_nfactors(const Call& call);
+Output fn_factorcount(const Call& call);
 Output fn_loadings(const Call& call);
 Output fn_structure(const Call& call);
 Output fn_uniqueness(const Call& call);
@@ -36,5 +36,12 @@ Output fn_generalomega(const Call& call);
 Output fn_groupmatch(const Call& call);
 Output fn_groupskipped(const Call& call);
 Output fn_groupshifts(const Call& call);
+
+// LODE.REASON (reason.cpp): the message of the named function with the same arguments, as text.
+Output fn_reason(const Call& call);
+// What a failure shows in the cell ("Err:502", "#NUM!", ...) and the reason text LODE.REASON gives:
+// "Err:502: 'method' must be one of ...".
+std::string failure_words(Failure failure);
+std::string reason_text(Failure failure, const std::string& message);
 
 }  // namespace lode::addin

@@ -13,15 +13,16 @@ using namespace styles;
 
 std::string factor_word(std::size_t f) { return "Factor " + std::to_string(f + 1); }
 
-// A square table with the item names as row and column headings.
-void item_matrix(Sheet& fc, const std::vector<std::string>& names, const std::vector<double>& m, bool flag_large) {
+// A square table with the item names as row and column headings, items in `order`.
+void item_matrix(Sheet& fc, const std::vector<std::string>& names, const std::vector<double>& m,
+                 const std::vector<std::size_t>& order, bool flag_large) {
   const std::size_t p = names.size();
   std::vector<Cell> hdr{Cell::txt("", heading)};
-  for (const std::string& n : names) hdr.push_back(Cell::txt(n, heading));
+  for (std::size_t j : order) hdr.push_back(Cell::txt(names[j], heading));
   fc.line(std::move(hdr));
-  for (std::size_t i = 0; i < p; ++i) {
+  for (std::size_t i : order) {
     std::vector<Cell> row{Cell::txt(names[i], label)};
-    for (std::size_t j = 0; j < p; ++j) {
+    for (std::size_t j : order) {
       const double v = m[i * p + j];
       row.push_back(Cell::num(v, flag_large && i != j && std::fabs(v) > 0.10 ? flag : number));
     }
@@ -58,53 +59,57 @@ void correlations_and_structure(Sheet& fc, const Analysis& a) {
   fc.line({Cell::txt("Structure: correlations of items with factors", heading)});
   hdr[0] = Cell::txt("Item", heading);
   fc.line(hdr);
-  for (std::size_t j = 0; j < a.p(); ++j) {
+  for (std::size_t j : loading_order(model.loadings, a.p(), k)) {  // the loadings sheet's order
     std::vector<Cell> row{Cell::txt(a.items.names[j], label)};
     for (std::size_t f = 0; f < k; ++f) row.push_back(Cell::num(model.structure[j * k + f], number));
     fc.line(std::move(row));
   }
 }
 
+// One row per scale: the reading first, then omega (the model's figures), then alpha and the items'
+// average correlation (the answers' figures), then how many items and respondents.
 void scale_table(Sheet& fc, const ReliabilityResult& rel) {
-  fc.line({Cell::txt("Scale", heading), Cell::txt("Items", heading), Cell::txt("Alpha", heading),
-           Cell::txt("Standardised alpha", heading), Cell::txt("Omega total", heading),
-           Cell::txt("Omega, factor's share", heading), Cell::txt("Mean inter-item correlation", heading),
-           Cell::txt("Respondents used", heading), Cell::txt("Reading (omega total)", heading)});
+  fc.line({Cell::txt("Scale", heading), Cell::txt("Reading (omega total)", heading), Cell::txt("Omega total", heading),
+           Cell::txt("Omega, factor's own share", heading), Cell::txt("Alpha", heading),
+           Cell::txt("Average correlation between its items", heading), Cell::txt("Alpha from the correlations", heading),
+           Cell::txt("Items", heading), Cell::txt("Respondents with every item answered", heading)});
   for (const ScaleReliability& sr : rel.scales) {
-    std::vector<Cell> row{Cell::txt(factor_word(sr.factor), label), Cell::num(static_cast<double>(sr.items.size()))};
-    if (sr.have_alpha) {
-      row.push_back(Cell::num(sr.alpha, number));
-      row.push_back(Cell::num(sr.alpha_std, number));
-    } else {
-      row.push_back(Cell::txt(sr.alpha_reason, note));
-      row.push_back(Cell::txt(""));
-    }
+    std::vector<Cell> row{Cell::txt(factor_word(sr.factor), label), Cell::txt(reliability_words(sr.omega), note)};
     const char* missing = sr.items.empty() ? "no items" : "not available";
     row.push_back(std::isnan(sr.omega) ? Cell::txt(missing, note) : Cell::num(sr.omega, number));
     row.push_back(std::isnan(sr.omega_share) ? Cell::txt(missing, note) : Cell::num(sr.omega_share, number));
     if (sr.have_alpha) {
+      row.push_back(Cell::num(sr.alpha, number));
       row.push_back(Cell::num(sr.mean_r, number));
-      row.push_back(Cell::num(sr.rows_used));
+      row.push_back(Cell::num(sr.alpha_std, number));
     } else {
+      row.push_back(Cell::txt(sr.alpha_reason, note));
       row.push_back(Cell::txt(""));
       row.push_back(Cell::txt(""));
     }
-    row.push_back(Cell::txt(reliability_words(sr.omega), note));
+    row.push_back(Cell::num(static_cast<double>(sr.items.size())));
+    row.push_back(sr.have_alpha ? Cell::num(sr.rows_used) : Cell::txt(""));
     fc.line(std::move(row));
   }
 }
 
+// A scale's items in two groups under a band: how each goes with the rest of its scale (its loading,
+// its correlation with the sum of the others, the alphas without it), then its answers (average,
+// spread).
 void scale_items(Sheet& fc, const Analysis& a, const ScaleReliability& sr) {
   const std::size_t k = a.k();
   fc.blank();
   heading_row(fc, "Items of factor " + std::to_string(sr.factor + 1) + "'s scale", 8);
-  fc.line({Cell::txt("Item", label), Cell::txt("Loading", label), Cell::txt("Reverse-scored", label),
-           Cell::txt("Corrected item-total correlation", label), Cell::txt("Alpha if item deleted", label),
-           Cell::txt("Standardised alpha if item deleted", label), Cell::txt("Mean", label), Cell::txt("SD", label)});
+  fc.line({Cell::txt("", label), Cell::txt("How it goes with the rest of the scale", label), Cell::txt(""), Cell::txt(""),
+           Cell::txt(""), Cell::txt(""), Cell::txt("Its answers", label), Cell::txt("")});
+  fc.line({Cell::txt("Item", label), Cell::txt("Reverse-scored", label), Cell::txt("Loading", label),
+           Cell::txt("Correlation with the sum of the others", label), Cell::txt("Alpha without it", label),
+           Cell::txt("Alpha from the correlations, without it", label), Cell::txt("Average", label),
+           Cell::txt("Spread (SD)", label)});
   for (std::size_t c = 0; c < sr.items.size(); ++c) {
     const std::size_t j = sr.items[c];
-    std::vector<Cell> row{Cell::txt(a.items.names[j], label), Cell::num(a.model.loadings[j * k + sr.factor], number),
-                          Cell::txt(sr.reversed[c] ? "yes" : "no")};
+    std::vector<Cell> row{Cell::txt(a.items.names[j], label), Cell::txt(sr.reversed[c] ? "yes" : "no"),
+                          Cell::num(a.model.loadings[j * k + sr.factor], number)};
     if (sr.have_alpha) {
       // under 0.30: the item hardly goes with the rest of its scale (common practice)
       row.push_back(Cell::num(sr.item_total[c], sr.item_total[c] < 0.30 ? flag : number));
@@ -150,8 +155,8 @@ void reliability_section(Sheet& fc, const Analysis& a) {
   for (const ScaleReliability& sr : rel.scales)
     if (!sr.items.empty()) scale_items(fc, a, sr);
   if (std::any_of(rel.scales.begin(), rel.scales.end(), [](const ScaleReliability& x) { return x.have_alpha; }))
-    fc.line({Cell::txt("Flagged: a corrected item-total correlation under 0.30, or an alpha that would rise without "
-                       "the item (common practice).",
+    fc.line({Cell::txt("Flagged: an item whose correlation with the sum of the others is under 0.30, or without which "
+                       "alpha would rise (common practice).",
                        note)});
   for (const std::string& n : rel.omega_notes) fc.line({Cell::txt("Note on omega", flag), Cell::txt(n, note)});
 }
@@ -172,13 +177,16 @@ Sheet layout_factors(const Analysis& a) {
     else fc.line({Cell::txt("The factors are kept uncorrelated (orthogonal rotation): no factor correlations.", note)});
     fc.blank();
     fc.line({Cell::txt("Residual correlations (observed minus model); above 0.10 in size is flagged (common practice)", heading)});
-    item_matrix(fc, a.items.names, model.residuals, true);
+    fc.line({Cell::txt("Items in the order of the loadings sheet.", note)});
+    item_matrix(fc, a.items.names, model.residuals, loading_order(model.loadings, a.p(), a.k()), true);
   }
   fc.blank();
   reliability_section(fc, a);
   fc.blank();
   fc.line({Cell::txt("Item correlations used", heading)});
-  item_matrix(fc, a.items.names, a.corr.matrix, false);
+  std::vector<std::size_t> source_order(a.p());
+  for (std::size_t j = 0; j < a.p(); ++j) source_order[j] = j;
+  item_matrix(fc, a.items.names, a.corr.matrix, source_order, false);
   return fc;
 }
 

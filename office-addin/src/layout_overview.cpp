@@ -28,27 +28,41 @@ void data_used(Sheet& ov, const Analysis& a) {
              Cell::txt("read as missing answers", note)});
 }
 
+// The verdict on factoring these items, in one line, from the figures below it.
+std::string factorability_verdict(const CorrelationFacts& c) {
+  const bool kmo_ok = c.kmo.reason.empty() && c.kmo.value >= 0.50;
+  const bool related = c.bartlett_p.reason.empty() && c.bartlett_p.value < 0.05;
+  if (!c.kmo.reason.empty() && !c.bartlett_p.reason.empty()) return "not judged: the figures below could not be computed";
+  if (kmo_ok && related)
+    return std::string("yes: the items share enough to be factored") +
+           (c.positive_definite ? "" : ", though the correlation matrix is not positive definite (see the notes)");
+  if (!kmo_ok && c.kmo.reason.empty()) return "doubtful: the items share too little (sampling adequacy under 0.50)";
+  if (c.bartlett_p.reason.empty() && !related) return "doubtful: the items may be unrelated (Bartlett's p is 0.05 or more)";
+  return "partly judged: see the figures below";
+}
+
 void factorability(Sheet& ov, const Analysis& a) {
   const CorrelationFacts& c = a.corr;
   heading_row(ov, "Can these items be factored?", 2);
-  ov.line({Cell::txt("Correlation matrix positive definite", label), Cell::txt(c.positive_definite ? "yes" : "no")});
+  ov.line({Cell::txt("Verdict", label), Cell::txt(factorability_verdict(c))});
   if (c.kmo.reason.empty())
     ov.line({Cell::txt("KMO sampling adequacy", label), Cell::num(c.kmo.value, number),
-             Cell::txt(c.kmo_label + " (Kaiser 1974); under 0.50 the items share too little to factor", note)});
+             Cell::txt(c.kmo_label + " (Kaiser 1974); under 0.50 the items share too little to factor (Kaiser 1974)", note)});
   else
     ov.line({Cell::txt("KMO sampling adequacy", label), Cell::txt("not available: " + c.kmo.reason, note)});
   if (c.bartlett_chi2.reason.empty()) {
     const double p = c.bartlett_p.value;
-    ov.line({Cell::txt("Bartlett's test: chi-square", label), Cell::num(c.bartlett_chi2.value, number)});
-    ov.line({Cell::txt("Bartlett's test: degrees of freedom", label), Cell::num(c.bartlett_df.value)});
-    ov.line({Cell::txt("Bartlett's test: p-value", label), Cell::num(p),
-             Cell::txt(p < 0.001  ? "p < 0.001: the items are correlated, not unrelated (p < 0.05; common practice)"
-                       : p < 0.05 ? "the items are correlated, not unrelated (p < 0.05; common practice)"
-                                  : "the items may be unrelated: p is 0.05 or more (common practice)",
+    ov.line({Cell::txt("Are the items unrelated? Bartlett's p", label), p_cell(p),
+             Cell::txt(p < 0.05 ? "no: they are correlated (p under 0.05; common practice); Bartlett (1950)"
+                                : "perhaps: p is 0.05 or more (common practice); Bartlett (1950)",
                        note)});
+    ov.line({Cell::txt("Bartlett's chi-square, degrees of freedom", label), Cell::num(c.bartlett_chi2.value, number),
+             Cell::num(c.bartlett_df.value)});
   } else {
-    ov.line({Cell::txt("Bartlett's test of sphericity", label), Cell::txt("not available: " + c.bartlett_chi2.reason, note)});
+    ov.line({Cell::txt("Are the items unrelated? Bartlett's p", label),
+             Cell::txt("not available: " + c.bartlett_chi2.reason, note)});
   }
+  ov.line({Cell::txt("Correlation matrix positive definite", label), Cell::txt(c.positive_definite ? "yes" : "no")});
   for (const std::string& n : c.factorability_notes) ov.line({Cell::txt("Note on factorability", flag), Cell::txt(n, note)});
 }
 
@@ -56,19 +70,36 @@ void how_many(Sheet& ov, const Analysis& a) {
   const CountResult& count = a.count;
   const std::vector<double>& eig = a.corr.eigenvalues;
   const int fixed = a.options.factors;
-  heading_row(ov, "How many factors", 4);
-  ov.line({Cell::txt("Factor", label), Cell::txt("Eigenvalue", label), Cell::txt("Share of variance", label),
-           Cell::txt(random_data_words(count), label)});
+  heading_row(ov, "How many factors", 5);
   double total = 0.0;
   std::size_t above_one = 0;  // eigenvalues above 1: common practice (Kaiser 1960), known to over-count
   for (double e : eig) {
     total += e;
     if (e > 1.0) ++above_one;
   }
-  for (std::size_t k = 0; k < eig.size(); ++k)
-    ov.line({Cell::num(static_cast<double>(k + 1)), Cell::num(eig[k], number), Cell::num(eig[k] / total, number),
-             count.available && k < count.random_pc.size() ? Cell::num(count.random_pc[k], number)
-                                                            : Cell::txt(k == 0 ? count.reason : "", note)});
+  // The decision compares the reduced-matrix eigenvalues with random data's: those come first; the
+  // eigenvalues of the correlations themselves (what each component's share of variance reads) follow.
+  const bool reduced = count.available && count.observed_factor.size() >= eig.size() && count.random_factor.size() >= eig.size();
+  if (reduced) {
+    ov.line({Cell::txt("The count compares the first two columns: a factor counts while its reduced-matrix eigenvalue "
+                       "(squared multiple correlations on the diagonal) exceeds random data's at the same position "
+                       "(Horn 1965; O'Connor 2000).",
+                       note)});
+    ov.line({Cell::txt("Factor", label), Cell::txt("Reduced-matrix eigenvalue", label),
+             Cell::txt(random_data_words(count), label), Cell::txt("Eigenvalue", label),
+             Cell::txt("Share of variance", label)});
+  } else {
+    ov.line({Cell::txt("Factor", label), Cell::txt("Eigenvalue", label), Cell::txt("Share of variance", label),
+             Cell::txt(random_data_words(count), label)});
+  }
+  for (std::size_t k = 0; k < eig.size(); ++k) {
+    const Cell factor = Cell::num(static_cast<double>(k + 1)), e = Cell::num(eig[k], number),
+               share = Cell::num(eig[k] / total, number);
+    if (reduced)
+      ov.line({factor, Cell::num(count.observed_factor[k], number), Cell::num(count.random_factor[k], number), e, share});
+    else
+      ov.line({factor, e, share, Cell::txt(k == 0 ? count.reason : "", note)});
+  }
   if (count.available) {
     ov.line({Cell::txt("Rule", label), Cell::txt("Factors", label), Cell::txt("Basis", label)});
     for (const CountResult::Rule& r : count.rules)
@@ -92,7 +123,7 @@ void how_many(Sheet& ov, const Analysis& a) {
 void fit_statistics(Sheet& ov, const ModelResult& model) {
   ov.line({Cell::txt("Chi-square", label), Cell::num(model.chi2, number), Cell::txt("degrees of freedom", note),
            Cell::num(model.df)});
-  ov.line({Cell::txt("p-value", label), Cell::num(model.p),
+  ov.line({Cell::txt("p-value", label), p_cell(model.p),
            Cell::txt("with a few hundred respondents even small misfit gives a small p; read RMSEA and TLI too "
                      "(common practice)",
                      note)});
@@ -120,7 +151,9 @@ void model_fit(Sheet& ov, const Analysis& a) {
     return;
   }
   ov.line({Cell::txt("Factors in the model", label), Cell::num(static_cast<double>(a.k())),
-           Cell::txt(a.options.extraction + ", rotation " + model.rotation_used, note)});
+           Cell::txt(std::string(extraction_words(a.options.extraction)) + "; rotation " +
+                         rotation_words(a.options.rotation, a.options.rotation_parameter, model.rotation_used),
+                     note)});
   ov.line({Cell::txt("Root mean square residual (RMSR)", label), Cell::num(model.rmsr, number),
            Cell::txt(model.rmsr <= 0.05   ? "small: the model reproduces the correlations well (0.05 or less; common practice)"
                      : model.rmsr <= 0.08 ? "acceptable (0.08 or less; common practice)"
@@ -151,9 +184,11 @@ void items_to_look_at(Sheet& ov, const Analysis& a) {
       if (model.heywood[j] > 0.5)
         why = "an improper solution for this item (communality at or above 1): the model cannot be trusted for it";
       else if (strong == 0)
-        why = "no loading reaches " + fmt_num(cut, 2) + ": it does not clearly belong to any factor";
+        why = "no loading reaches " + fmt_num(cut, 2) + " (the strong-loading cut; common practice): it does not clearly "
+              "belong to any factor";
       else if (strong > 1)
-        why = "loads on " + std::to_string(strong) + " factors at " + fmt_num(cut, 2) + " or more: it measures more than one thing";
+        why = "loads on " + std::to_string(strong) + " factors at " + fmt_num(cut, 2) +
+              " or more (the strong-loading cut; common practice): it measures more than one thing";
       if (why.empty()) continue;
       any_flag = true;
       ov.line({Cell::txt(names[j], flag), Cell::num(model.communalities[j], number), Cell::txt(why, note)});
@@ -163,8 +198,8 @@ void items_to_look_at(Sheet& ov, const Analysis& a) {
     if (msa[j] < 0.50) {  // Kaiser (1974): a sampling adequacy under 0.50 is unacceptable
       any_flag = true;
       ov.line({Cell::txt(names[j], flag), Cell::num(msa[j], number),
-               Cell::txt("its sampling adequacy (MSA) is under 0.50: the other items say little about it; "
-                         "consider leaving it out",
+               Cell::txt("its sampling adequacy (MSA) is under 0.50 (unacceptable; Kaiser 1974): the other items say "
+                         "little about it; consider leaving it out",
                          note)});
     }
   const std::vector<double>& smc = a.corr.smc;
@@ -173,7 +208,7 @@ void items_to_look_at(Sheet& ov, const Analysis& a) {
       if (smc[j] < 0.20) {  // common practice: an item sharing under a fifth of its variance with the rest
         any_flag = true;
         ov.line({Cell::txt(names[j], flag), Cell::num(smc[j], number),
-                 Cell::txt("shares little with the other items (squared multiple correlation under 0.20); "
+                 Cell::txt("shares little with the other items (squared multiple correlation under 0.20; common practice); "
                            "check its wording and whether it belongs to this questionnaire",
                            note)});
       }

@@ -26,7 +26,8 @@ Sheet layout_record(const Analysis& a) {
   rec("First row holds item names", Cell::txt(a.items.header ? "yes" : "no"));
   rec("Items", Cell::txt(items_text));
   rec("Values hash (FNV-1a 64)", Cell::txt(hash));
-  for (const WordOption& w : word_options()) rec(w.record, Cell::txt(o.*(w.field)));
+  // options in the dialog's words (never the option codes); each label names one word of its option
+  for (const WordOption& w : word_options()) rec(w.record, Cell::txt(w.words[word_index(w, o.*(w.field))].label));
   if (o.missing == "em") {
     rec("EM iterations", Cell::num(a.corr.em_iterations));
     rec("EM met its criterion", Cell::txt(a.corr.em_converged == 1.0 ? "yes" : "no: the estimate may be off"));

@@ -27,7 +27,7 @@ const std::vector<WordOption>& word_options() {
        "answers depend only on answers given (missing at random; Pearson correlations only).",
        &Options::missing},
       {"Extraction", "Extraction", "Extraction",
-       {{"ml", "Maximum likelihood"}, {"minres", "Minimum residual"}, {"paf", "Principal axis"}},
+       {{"ml", "Maximum likelihood (fit tests)"}, {"paf", "Principal axis"}, {"minres", "Least squares residuals"}},
        defaults::extraction,
        "How the factors are estimated: maximum likelihood also gives tests of fit (chi-square, RMSEA, TLI).",
        &Options::extraction},
@@ -40,7 +40,7 @@ const std::vector<WordOption>& word_options() {
        "How the factors are turned to be read: oblique rotations let them correlate, as survey factors usually do.",
        &Options::rotation},
       {"Scores", "Factor scores", "Factor scores",
-       {{"none", "None"}, {"regression", "Regression"}, {"bartlett", "Bartlett"}, {"tenberge", "Correlation-preserving"}},
+       {{"none", "None"}, {"regression", "Regression"}, {"bartlett", "Bartlett"}, {"correlation_preserving", "Correlation-preserving"}},
        defaults::scores,
        "Respondents' estimated scores on each factor, and how they are estimated.",
        &Options::scores},
@@ -75,6 +75,22 @@ const ValueOption kMinGroupOption{
     "MinGroup", "Smallest group", "Smallest group compared",
     "Groups with fewer respondents are listed and left out. 100 is common practice for loadings stable enough to "
     "compare; never fewer than the items + 1."};
+namespace {
+// Former words of renamed option words, still read so saved scripts and run records keep working
+// (README, "Former names"); the table of words lists only the current ones.
+struct FormerWord {
+  const char* property;
+  const char* word;
+  const char* now;
+};
+constexpr FormerWord kFormerWords[] = {{"Scores", "tenberge", "correlation_preserving"}};
+}  // namespace
+
+std::string current_word(const WordOption& option, const std::string& word) {
+  for (const FormerWord& f : kFormerWords)
+    if (std::string_view(option.property) == f.property && word == f.word) return f.now;
+  return word;
+}
 
 const WordOption* find_word_option(std::string_view property) {
   for (const WordOption& w : word_options())
@@ -129,7 +145,7 @@ Options options_from(const std::vector<OptionValue>& values) {
     else if (n == "Items") {
       if (v.kind != Kind::list) throw std::invalid_argument("option Items must be a list of item names");
       o.items = v.list;
-    } else if (const WordOption* w = find_word_option(n)) o.*(w->field) = text();
+    } else if (const WordOption* w = find_word_option(n)) o.*(w->field) = current_word(*w, text());
     else if (n == "Factors") o.factors = small(0, kMaxReportFactors, "0 (suggest) to 100");
     else if (n == kGroupColumnOption.property) o.group_column = text();
     else if (n == kMinGroupOption.property) o.min_group = small(2, kMaxMinGroup, "2 to 1000000 respondents");

@@ -76,6 +76,8 @@ Options options_from(const std::vector<OptionValue>& values);
 const std::vector<WordOption>& word_options();
 // The option of a property name, or nullptr.
 const WordOption* find_word_option(std::string_view property);
+// The current word for `word` (a former word of a renamed option word maps to its new one).
+std::string current_word(const WordOption& option, const std::string& word);
 // The dialog's labels of the option's words, in order.
 std::vector<std::string> word_labels(const WordOption& option);
 // The index of `word` among the option's words (the default's when absent).

@@ -214,6 +214,8 @@ CountResult count_factors(const lode_correlation* corr, const Options& o, const 
   const auto value = [&](int key) { return read_value(count.get(), key, lode_factor_count_value, "the factor count", report_check); };
   const auto text = [&](int key) { return read_text(count.get(), key, lode_factor_count_text, "the factor count", report_check); };
   r.random_pc = vec(count.get(), LODE_FACTOR_COUNT_RANDOM_PC_PERCENTILE, lode_factor_count_matrix, "parallel analysis");
+  r.observed_factor = vec(count.get(), LODE_FACTOR_COUNT_OBSERVED_FACTOR, lode_factor_count_matrix, "parallel analysis");
+  r.random_factor = vec(count.get(), LODE_FACTOR_COUNT_RANDOM_FACTOR_PERCENTILE, lode_factor_count_matrix, "parallel analysis");
   r.suggested = static_cast<int>(value(LODE_FACTOR_COUNT_SUGGESTED));
   r.percentile = value(LODE_FACTOR_COUNT_PERCENTILE);
   r.replicates = static_cast<int>(value(LODE_FACTOR_COUNT_REPLICATES));
@@ -428,7 +430,7 @@ ScoreResult factor_scores(const lode_model* model, const lode_data* data, const 
   ScoreResult r;
   lode_scores_options so;
   lode_scores_options_init(&so, sizeof so);
-  so.method = o.scores == "bartlett" ? LODE_ESTIMATOR_BARTLETT : o.scores == "tenberge" ? LODE_ESTIMATOR_CORRELATION_PRESERVING : LODE_ESTIMATOR_REGRESSION;
+  so.method = o.scores == "bartlett" ? LODE_ESTIMATOR_BARTLETT : o.scores == "correlation_preserving" ? LODE_ESTIMATOR_CORRELATION_PRESERVING : LODE_ESTIMATOR_REGRESSION;
   if (o.missing == "listwise") {
     so.missing = LODE_GAPS_LEAVE_MISSING;
     r.rule = "a respondent who skipped any item gets no scores (blank cells), as the listwise correlations left "
@@ -436,7 +438,8 @@ ScoreResult factor_scores(const lode_model* model, const lode_data* data, const 
   } else {
     so.missing = LODE_GAPS_FROM_ANSWERED;
     r.rule = "a respondent who skipped items is scored from the items answered, when at least " +
-             fmt_num(100.0 * so.min_answered_share, 0) + "% of them were answered; otherwise no scores (blank cells)";
+             fmt_num(100.0 * so.min_answered_share, 0) +
+             "% of them were answered (a rule of common practice); otherwise no scores (blank cells)";
   }
   lode_scores* raw = nullptr;
   if (lode_scores_compute(model, data, &so, &raw) != LODE_OK) {

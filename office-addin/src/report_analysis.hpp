@@ -50,6 +50,9 @@ struct CountResult {
   bool available = false;
   std::string reason;
   std::vector<double> random_pc;  // percentile of random-data component eigenvalues
+  // The eigenvalues the decision uses: of the reduced matrix (squared multiple correlations on the
+  // diagonal), observed and the random-data percentile.
+  std::vector<double> observed_factor, random_factor;
   double percentile = 95.0;
   int replicates = 0;
   int suggested = 0;

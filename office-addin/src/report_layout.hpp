@@ -38,6 +38,12 @@ inline void heading_row(Sheet& sheet, std::string text, std::size_t cells) {
 // Tucker's congruence in words (layout_groups.cpp; Lorenzo-Seva & ten Berge 2006): "the same factor"
 // (0.95 and above), "fair similarity" (0.85 to 0.95), "differs" (below).
 std::string congruence_words(double c);
+// A p-value as a reader wants it: "< 0.001" below 0.001, else a number shown with three decimals
+// (never a bare 0 or fifteen digits).
+inline Cell p_cell(double p) {
+  if (!(p >= 0.001)) return Cell::txt(p < 0.001 ? "< 0.001" : "");
+  return Cell::num(p, styles::number);
+}
 
 // "Random data (95th percentile of 100)": the heading of parallel analysis's column (overview, scree).
 std::string random_data_words(const CountResult& count);

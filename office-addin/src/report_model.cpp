@@ -116,6 +116,9 @@ Report build_report(const SourceTable& src, const Options& o, const std::string&
     if (a.scores.beside) rep.beside = layout_scores_beside(a);
     else rep.sheets.push_back(layout_scores(a));
   }
+  if (o.decimal_separator != '.')
+    for (Sheet& s : rep.sheets)
+      if (s.base_name != names::record) localise_decimals(s, o.decimal_separator);
   rep.summary = "Lode analysed " + std::to_string(a.p()) + " items of " +
                 std::to_string(static_cast<long long>(a.corr.rows_used)) + " respondents";
   if (a.scores.beside) rep.summary += "; factor scores are in " + a.scores.where;

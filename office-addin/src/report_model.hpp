@@ -43,6 +43,8 @@ struct Options {
   int min_group = kDefaultMinGroup;      // groups with fewer respondents (or no more than the items) are skipped
   double salient = defaults::salient;    // loadings at least this large (absolute) are emphasised
   std::uint64_t seed = 20260101;  // the library's default seed, so the factor count agrees with the cells and Python
+  char decimal_separator = '.';   // the document's (the service sets it from the document's locale): numbers
+                                  // written inside the report's sentences use it, as its cells do
   int cancel_after_sheets = -1;          // tests only: cancel after this many writing steps (the score
                                          // columns beside the data, when written, are the first step;
                                          // then one step per sheet)

@@ -44,6 +44,26 @@ std::string RunControl::last_outcome() const {
   return last_outcome_;
 }
 
+std::string failed_run_message(const std::string& outcome) {
+  const std::string prefix = "stopped: ";
+  if (outcome.rfind(prefix, 0) != 0) return "";
+  if (outcome == stopped_outcome(std::make_exception_ptr(Cancelled{}))) return "";
+  return "The analysis stopped: " + outcome.substr(prefix.size()) +
+         ".\n\nNothing was written; the workbook is as it was. Change what this names (the range, the items "
+         "or an option) and run the analysis again.";
+}
+
+std::string already_running_message() {
+  return "A Lode analysis is still running; its progress is in the status bar. Wait for it to finish, or end "
+         "it with Lode > Stop the running analysis, then start the next one.";
+}
+
+std::string unreadable_range_message(const std::string& range_text) {
+  return "Lode cannot read the range \"" + range_text +
+         "\". Give it as Sheet.A1:H31 or A1:H31 (on the current sheet), or select the answers before opening "
+         "the dialog. Nothing was run.";
+}
+
 std::string stopped_outcome(const std::exception_ptr& failure) {
   try {
     std::rethrow_exception(failure);

@@ -38,6 +38,13 @@ class RunControl {
 // memory, or any other failure.
 std::string stopped_outcome(const std::exception_ptr& failure);
 
+// What a dialog run tells the person in a message box (message_box.hpp), in plain words naming what
+// to change. failed_run_message: the text for a run that ended with `outcome` ("stopped: ..."), or ""
+// when there is nothing to say (it succeeded, or the person cancelled it).
+std::string failed_run_message(const std::string& outcome);
+std::string already_running_message();
+std::string unreadable_range_message(const std::string& range_text);
+
 // The report's sheet names: each base name, else "base 2", "base 3", ... so that none is `taken` in
 // the workbook or repeats another.
 std::vector<std::string> unique_sheet_names(const std::vector<std::string>& bases,

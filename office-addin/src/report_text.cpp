@@ -58,13 +58,31 @@ const char* missing_words(const std::string& m) {
 }
 const char* score_method_words(const std::string& m) {
   if (m == "bartlett") return "Bartlett (1937)";
-  if (m == "tenberge") return "correlation-preserving (ten Berge, Krijnen, Wansbeek and Shapiro 1999)";
+  if (m == "correlation_preserving") return "correlation-preserving (ten Berge, Krijnen, Wansbeek and Shapiro 1999)";
   return "regression (Thurstone 1935)";
 }
 const char* score_method_short(const std::string& m) {
   if (m == "bartlett") return "Bartlett";
-  if (m == "tenberge") return "correlation-preserving";
+  if (m == "correlation_preserving") return "correlation-preserving";
   return "regression";
+}
+
+const char* extraction_words(const std::string& m) {
+  if (m == "paf") return "principal axis factoring";
+  if (m == "minres") return "least squares on the residual correlations (minimum residual)";
+  return "maximum likelihood";
+}
+
+std::string rotation_words(const std::string& rotation, double parameter, const std::string& used) {
+  if (used != rotation) return used;  // not applied, with the reason
+  if (rotation == "oblimin")
+    return "direct oblimin with gamma " + fmt_num(parameter, 2) + " (Jennrich and Sampson 1966; gamma 0 is common practice)";
+  if (rotation == "promax")
+    return "promax with power " + fmt_num(parameter > 0 ? parameter : 4.0, 0) +
+           " (Hendrickson and White 1964, who used 4)";
+  if (rotation == "varimax") return "varimax (Kaiser 1958)";
+  if (rotation == "none") return "none: the loadings as extracted";
+  return used;
 }
 
 std::string reliability_words(double v) {
@@ -79,6 +97,31 @@ std::string fmt_whole(double d) {
   char buf[64];
   std::snprintf(buf, sizeof buf, "%.0f", d);
   return buf;
+}
+
+std::string with_decimal_separator(const std::string& text, char separator) {
+  std::string out = text;
+  const auto digit = [&](std::size_t i) { return i < text.size() && std::isdigit(static_cast<unsigned char>(text[i])); };
+  for (std::size_t i = 1; i + 1 < text.size(); ++i) {
+    if (text[i] != '.' || !digit(i - 1) || !digit(i + 1)) continue;
+    std::size_t b = i - 1;  // the start of the digits before the point
+    while (b > 0 && digit(b - 1)) --b;
+    if (b > 0 && (std::isalpha(static_cast<unsigned char>(text[b - 1])) || text[b - 1] == '_' || text[b - 1] == '.'))
+      continue;  // part of a name or of a version
+    std::size_t e = i + 1;  // past the digits after the point
+    while (digit(e)) ++e;
+    if (e < text.size() && (text[e] == '.' && digit(e + 1))) continue;  // a version such as 0.1.0
+    if (e < text.size() && (std::isalpha(static_cast<unsigned char>(text[e])) || text[e] == '_')) continue;
+    out[i] = separator;
+  }
+  return out;
+}
+
+void localise_decimals(Sheet& sheet, char separator) {
+  for (auto& row : sheet.rows)
+    for (Cell& c : row)
+      if (c.kind == Cell::Kind::text && c.style != styles::label && c.style != styles::heading && c.style != styles::title)
+        c.text = with_decimal_separator(c.text, separator);
 }
 
 std::string trimmed(const std::string& s) {

@@ -22,6 +22,10 @@ const char* correlation_words(const std::string& kind);
 const char* missing_words(const std::string& missing);
 const char* score_method_words(const std::string& method);
 const char* score_method_short(const std::string& method);
+// The extraction and the rotation in a reader's words with their sources (never the option codes);
+// `used` is the rotation applied (model.rotation_used), which may say why none was.
+const char* extraction_words(const std::string& method);
+std::string rotation_words(const std::string& rotation, double parameter, const std::string& used);
 
 // Common-practice reading of alpha or omega (often traced to Nunnally 1978; README, "Reading the results").
 std::string reliability_words(double v);
@@ -30,6 +34,14 @@ std::string reliability_words(double v);
 std::string fmt_whole(double d);
 // The text without the white space around it: option words are trimmed, as the C ABI's name lookups do.
 std::string trimmed(const std::string& s);
+
+// The decimal numbers written inside `text` ("0.50", "-1.5") with `separator` instead of the point;
+// a point inside a word or name ("q1.2"), a version ("0.1.0") or an address ("$Sheet.$A$1") stays.
+std::string with_decimal_separator(const std::string& text, char separator);
+struct Sheet;
+// The same over the sentences of a sheet: its text cells except labels, headings and titles (which
+// hold item names and column headings).
+void localise_decimals(Sheet& sheet, char separator);
 // A sheet name as Calc writes it in an absolute reference: $Name, or $'Name' when it needs quotes.
 std::string sheet_ref(const std::string& name);
 // A range typed as "$Sheet.$A$1:$B$9", "'My sheet'.A1:B9" or "A1:B9" split into its sheet name

@@ -3,6 +3,7 @@
 // failure or a cancellation removes what it wrote (sheets and the cell styles it added) and restores
 // the document's modified state.
 #include "report_uno.hpp"
+#include "message_box.hpp"
 #include "uno_text.hpp"
 #include "option_table.hpp"
 
@@ -26,7 +27,10 @@
 #include <com/sun/star/container/XIndexAccess.hpp>
 #include <com/sun/star/container/XNameContainer.hpp>
 #include <com/sun/star/document/XEmbeddedObjectSupplier.hpp>
+#include <com/sun/star/frame/XController.hpp>
+#include <com/sun/star/frame/XFrame.hpp>
 #include <com/sun/star/frame/XModel.hpp>
+#include <com/sun/star/i18n/LocaleData2.hpp>
 #include <com/sun/star/lang/IllegalArgumentException.hpp>
 #include <com/sun/star/lang/Locale.hpp>
 #include <com/sun/star/lang/XMultiServiceFactory.hpp>
@@ -361,6 +365,8 @@ class Writer {
 
 class AnalysisReport : public cppu::WeakImplHelper2<org::lode::calc::XAnalysisReport, css::lang::XServiceInfo> {
  public:
+  explicit AnalysisReport(Reference<css::uno::XComponentContext> ctx) : ctx_(std::move(ctx)) {}
+
   OUString SAL_CALL run(const Reference<css::sheet::XSpreadsheetDocument>& doc, const css::table::CellRangeAddress& source,
                         const Sequence<css::beans::PropertyValue>& options) override {
     control_.begin_call();
@@ -378,8 +384,11 @@ class AnalysisReport : public cppu::WeakImplHelper2<org::lode::calc::XAnalysisRe
     rtl::Reference<AnalysisReport> self(this);
     std::thread([self, doc, source, options, indicator]() {
       std::string outcome;
-      self->execute(doc, source, options, indicator, outcome);
+      const bool ok = self->execute(doc, source, options, indicator, outcome);
       self->control_.end_background(outcome);
+      // a run with a status indicator is the dialog's: a failure is shown to the person, not only kept
+      const std::string message = ok || !indicator.is() ? std::string() : failed_run_message(outcome);
+      if (!message.empty()) show_message(self->ctx_, frame_of(doc), true, "Lode: the analysis stopped", message);
     }).detach();  // it holds a reference to this service; nothing waits for it
     return true;
   }
@@ -428,6 +437,7 @@ class AnalysisReport : public cppu::WeakImplHelper2<org::lode::calc::XAnalysisRe
     try {
       if (indicator.is()) indicator->start("Lode: starting the analysis", 100);
       Options opts = options_from(props);
+      opts.decimal_separator = decimal_separator_of(doc);
       SourceTable src = read_source(doc, source);
       Progress progress = [&](const std::string& phase, double share) {
         say(phase, 0.8 * share);
@@ -502,13 +512,36 @@ class AnalysisReport : public cppu::WeakImplHelper2<org::lode::calc::XAnalysisRe
     }
   }
 
+  // The decimal separator of the document's locale (its cells show numbers with it), '.' when unknown.
+  char decimal_separator_of(const Reference<css::sheet::XSpreadsheetDocument>& doc) const noexcept {
+    try {
+      css::lang::Locale locale;
+      Reference<css::beans::XPropertySet>(doc, UNO_QUERY_THROW)->getPropertyValue("CharLocale") >>= locale;
+      if (locale.Language.isEmpty() || !ctx_.is()) return '.';
+      const OUString sep = css::i18n::LocaleData2::create(ctx_)->getLocaleItem(locale).decimalSeparator;
+      if (sep.getLength() == 1 && sep[0] < 0x80) return static_cast<char>(sep[0]);
+    } catch (...) {
+    }
+    return '.';
+  }
+
+  static Reference<css::frame::XFrame> frame_of(const Reference<css::sheet::XSpreadsheetDocument>& doc) noexcept {
+    try {
+      Reference<css::frame::XModel> model(doc, UNO_QUERY);
+      if (model.is() && model->getCurrentController().is()) return model->getCurrentController()->getFrame();
+    } catch (...) {
+    }
+    return {};
+  }
+
+  Reference<css::uno::XComponentContext> ctx_;
   RunControl control_;
 };
 
 }  // namespace
 
-Reference<css::uno::XInterface> SAL_CALL create_analysis_report(const Reference<css::uno::XComponentContext>&) {
-  return static_cast<cppu::OWeakObject*>(new AnalysisReport);
+Reference<css::uno::XInterface> SAL_CALL create_analysis_report(const Reference<css::uno::XComponentContext>& ctx) {
+  return static_cast<cppu::OWeakObject*>(new AnalysisReport(ctx));
 }
 OUString SAL_CALL analysis_report_implementation_name() { return OUString(kImplementationName); }
 Sequence<OUString> SAL_CALL analysis_report_service_names() { return AnalysisReport::supported(); }

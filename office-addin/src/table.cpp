@@ -12,7 +12,7 @@ namespace {
 // Argument help shared by several rows.
 constexpr std::string_view kFactorsHelp =
     "Number of factors; left out or 0: the count parallel analysis suggests (factor eigenvalues against the 95th "
-    "percentile of 500 random data sets, as LODE.NFACTORS)";
+    "percentile of 500 random data sets, as LODE.FACTORCOUNT)";
 constexpr std::string_view kMethodHelp =
     "Extraction: \"ml\" maximum likelihood (default), \"paf\" principal axis, \"minres\" minimum residual";
 constexpr std::string_view kRotationHelp =
@@ -69,6 +69,15 @@ std::vector<ArgSpec> with_arg(std::vector<ArgSpec> args, ArgSpec extra) {
   args.push_back(extra);
   return args;
 }
+// The arguments of LODE.FACTORCOUNT (and of its former name, LODE.NFACTORS).
+const std::vector<ArgSpec> kCountArgs = {
+    {"data", ArgKind::range, kDataHelp},
+    {"rule", ArgKind::value,
+     "\"parallel\" (default: parallel analysis of the reduced-matrix factor eigenvalues against the 95th percentile "
+     "of 500 random data sets, the count every Lode function uses when factors is left out), \"map\" (Velicer's "
+     "minimum average partial), \"kaiser\" (eigenvalues above one), \"ekc\" (empirical Kaiser criterion)"},
+    {"seed", ArgKind::value, kSeedHelp}};
+constexpr std::string_view kCountErrors = "#NUM!: matrix not positive definite (map)";
 
 const std::vector<FunctionSpec> kTable = {
     {"version", "LODE.VERSION", "The version of Lode and of its C library, as text.", {},
@@ -111,25 +120,27 @@ const std::vector<FunctionSpec> kTable = {
     {"parallel",
      "LODE.PARALLEL",
      "Parallel analysis: per position, the observed eigenvalue of the correlation matrix, the mean and a percentile "
-     "of eigenvalues of random data of the same size (component eigenvalues; the suggested count, LODE.NFACTORS, "
-     "compares the reduced-matrix factor eigenvalues instead).",
+     "of eigenvalues of random data of the same size (component eigenvalues; the suggested count, LODE.FACTORCOUNT, "
+     "compares the reduced-matrix factor eigenvalues instead, shown by LODE.EIGEN with `reduced` TRUE).",
      {{"data", ArgKind::range, kDataHelp},
       {"replicates", ArgKind::value, "Number of random data sets, 10 to 10000 (default 500)"},
       {"percentile", ArgKind::value, "Percentile of the random eigenvalues, between 0 and 100 (default 95)"},
       {"seed", ArgKind::value, kSeedHelp}},
      "items x 3: observed, random mean, random percentile", "Err:502: a correlation matrix without `n_obs` cannot be "
      "simulated", fn_parallel},
+    {"factorcount",
+     "LODE.FACTORCOUNT",
+     "The suggested number of factors by one rule.",
+     kCountArgs,
+     "one number", kCountErrors, fn_factorcount},
+    // The former name of LODE.FACTORCOUNT: saved workbooks store the method name "nfactors" and
+    // people may type the old display name, so the row stays, computing the same (README, "Former names").
     {"nfactors",
      "LODE.NFACTORS",
-     "The suggested number of factors by one rule.",
-     {{"data", ArgKind::range, kDataHelp},
-      {"rule", ArgKind::value,
-       "\"parallel\" (default: parallel analysis of the reduced-matrix factor eigenvalues against the 95th "
-       "percentile of 500 random data sets, the count every Lode function uses when factors is left out), \"map\" "
-       "(Velicer's minimum average partial), \"kaiser\" (eigenvalues above one), \"ekc\" (empirical Kaiser "
-       "criterion)"},
-      {"seed", ArgKind::value, kSeedHelp}},
-     "one number", "#NUM!: matrix not positive definite (map)", fn_nfactors},
+     "Former name of LODE.FACTORCOUNT, kept so saved workbooks still compute: the suggested number of factors by "
+     "one rule.",
+     kCountArgs,
+     "one number (former name of `LODE.FACTORCOUNT`)", kCountErrors, fn_factorcount},
     {"loadings",
      "LODE.LOADINGS",
      "The factor loadings (pattern matrix), items x factors.",
@@ -203,8 +214,8 @@ const std::vector<FunctionSpec> kTable = {
      {{"loadings", ArgKind::range, "Loadings: items in rows, factors in columns, every cell a number"},
       {"rotation", ArgKind::value, kRotationHelp},
       {"parameter", ArgKind::value,
-       "The rotation's parameter: oblimin gamma (default 0), promax power (default 4), geomin epsilon (default "
-       "0.01); ignored by the others"}},
+       "The rotation's parameter: oblimin gamma (default 0, Jennrich 1979), promax power (default 4, Hendrickson "
+       "and White 1964), geomin epsilon (default 0.01, Browne 2001); ignored by the others"}},
      "items x factors", "Err:523: no convergence", fn_rotate},
     {"scores",
      "LODE.SCORES",
@@ -220,9 +231,10 @@ const std::vector<FunctionSpec> kTable = {
       {"method", ArgKind::value, kMethodHelp},
       {"rotation", ArgKind::value, kRotationHelp},
       {"score_method", ArgKind::value,
-       "\"regression\" (default, Thurstone 1935), \"bartlett\" (Bartlett 1937) or \"tenberge\" (correlation-"
-       "preserving, ten Berge et al. 1999). A respondent who skipped items is scored from the items answered when "
-       "at least half were answered; otherwise the row shows #NUM!"}},
+       "\"regression\" (default, Thurstone 1935), \"bartlett\" (Bartlett 1937) or \"correlation_preserving\" "
+       "(ten Berge et al. 1999; the former word \"tenberge\" is still read). A respondent who skipped items is scored "
+       "from the items answered when at least half were answered (a rule of common practice); otherwise the row "
+       "shows #NUM!"}},
      "rows x factors, one row per respondent", "#NUM! in a row: fewer than half of its items answered, not scored; "
      "Err:502: a correlation matrix as `data`; Err:523: no convergence", fn_scores},
     {"alpha",
@@ -337,6 +349,19 @@ const std::vector<FunctionSpec> kTable = {
      "flagged x 5: group, item, factor, group loading, pooled loading; one text cell when none", kGroupErrors,
      fn_groupshifts},
     // --- end of the general factor and groups ---
+    {"reason",
+     "LODE.REASON",
+     "Why a Lode formula fails: give the function's name and then the same arguments as the failing formula; "
+     "returns its message as text (or says it computes).",
+     {{"function", ArgKind::value, "The name of the Lode function, as text: \"LODE.LOADINGS\" or \"LOADINGS\""},
+      {"argument1", ArgKind::value, "The failing formula's first argument (e.g. its data range)"},
+      {"argument2", ArgKind::value, "Its second argument, if it has one"},
+      {"argument3", ArgKind::value, "Its third argument, if it has one"},
+      {"argument4", ArgKind::value, "Its fourth argument, if it has one"},
+      {"argument5", ArgKind::value, "Its fifth argument, if it has one"},
+      {"argument6", ArgKind::value, "Its sixth argument, if it has one"}},
+     "text: the cell's error and the reason, e.g. `Err:502: 'method' must be one of \"ml\", \"paf\", \"minres\"`",
+     "none: every failure, its own included, is the text it returns", fn_reason},
 };
 
 bool iequal(std::string_view a, std::string_view b) {

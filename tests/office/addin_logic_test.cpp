@@ -349,5 +349,82 @@ TEST(AddinFunctions, CongruenceRefusesBlocksOfDifferentShapes) {
   }
 }
 
+
+Arg number_arg(double v) {
+  Arg a;
+  a.kind = Arg::Kind::number;
+  a.number = v;
+  return a;
+}
+
+// What the function itself throws for these arguments, as LODE.REASON words it.
+std::string thrown(ComputeFn fn, const std::vector<Arg>& args, ResultCache& cache) {
+  try {
+    fn(Call{args, cache, Deadline{}});
+  } catch (const CellError& e) {
+    return reason_text(e.failure(), e.what());
+  }
+  return "no failure";
+}
+
+// LODE.REASON(function; the same arguments...) answers with the message of the failing formula:
+// a typo in an option, too many factors and a constant item each give their own reason, word for
+// word the one the function raised.
+TEST(AddinReason, GivesTheReasonOfAFailingFormula) {
+  ResultCache cache;
+  auto reason = [&](const char* function, std::vector<Arg> rest) {
+    std::vector<Arg> args{text_arg(function)};
+    for (Arg& a : rest) args.push_back(std::move(a));
+    args.resize(7);  // LODE.REASON's function and six arguments, the rest left out
+    const Output out = fn_reason(Call{args, cache, Deadline{}});
+    EXPECT_TRUE(out.scalar && out.cells.size() == 1 && out.cells[0].is_text);
+    return out.cells[0].text;
+  };
+  const Arg data = two_factor_answers(200);
+  // a typo in the extraction
+  std::vector<Arg> typo{data, Arg{}, text_arg("minress")};
+  typo.resize(5);
+  const std::string why_typo = reason("LODE.LOADINGS", typo);
+  EXPECT_EQ(why_typo.rfind("Err:502: 'method' must be one of \"ml\"", 0), 0u) << why_typo;
+  EXPECT_EQ(why_typo, thrown(fn_loadings, typo, cache));
+  // more factors than six items identify
+  std::vector<Arg> many{data, number_arg(5)};
+  many.resize(5);
+  const std::string why_many = reason("loadings", many);  // the LODE. prefix may be left out
+  EXPECT_EQ(why_many.rfind("Err:502: ", 0), 0u) << why_many;
+  EXPECT_NE(why_many.find("factor"), std::string::npos) << why_many;
+  EXPECT_EQ(why_many, thrown(fn_loadings, many, cache));
+  // a constant item
+  std::vector<double> v = data.grid.values;
+  for (std::size_t r = 0; r < data.grid.rows; ++r) v[r * 6 + 2] = 4.0;
+  std::vector<Arg> constant{block(data.grid.rows, 6, v)};
+  constant.resize(5);
+  const std::string why_constant = reason("LODE.LOADINGS", constant);
+  EXPECT_NE(why_constant.find("constant"), std::string::npos) << why_constant;
+  EXPECT_EQ(why_constant, thrown(fn_loadings, constant, cache));
+  // a formula that computes says so; an unknown function is named
+  std::vector<Arg> good{data, number_arg(2)};
+  good.resize(5);
+  EXPECT_EQ(reason("LODE.LOADINGS", good), "no failure: LODE.LOADINGS computes with these arguments");
+  try {
+    reason("LODE.NOSUCH", {});
+    ADD_FAILURE() << "an unknown function was accepted";
+  } catch (const CellError& e) {
+    EXPECT_STREQ(e.what(), "'function': Lode has no function LODE.NOSUCH");
+  }
+}
+
+// LODE.NFACTORS, the former name of LODE.FACTORCOUNT, stays in the table and computes the same.
+TEST(AddinTable, FormerNamesComputeAsTheirNewNames) {
+  const FunctionSpec* now = find_by_display("LODE.FACTORCOUNT");
+  const FunctionSpec* former = find_by_display("LODE.NFACTORS");
+  ASSERT_NE(now, nullptr);
+  ASSERT_NE(former, nullptr);
+  EXPECT_EQ(former->method, "nfactors");  // stored in saved workbooks: never renamed
+  EXPECT_EQ(former->compute, now->compute);
+  EXPECT_EQ(former->args.size(), now->args.size());
+  EXPECT_EQ(former->description.rfind("Former name of LODE.FACTORCOUNT", 0), 0u);
+}
+
 }  // namespace
 }  // namespace lode::addin

@@ -158,17 +158,9 @@ def find_dialog(office, timeout=60):
     return None
 
 
-def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
-    path = os.path.join(windowed.dir, "survey.ods")
-    shutil.copy(os.path.join(SHEETS, "volunteer-survey.ods"), path)
-    os.chmod(path, 0o666)
-    with windowed.watchdog(120):
-        doc = windowed.desktop.loadComponentFromURL(uno.systemPathToFileUrl(path), "_blank", 0, ())
-        ctrl = doc.getCurrentController()
-        sheet = doc.Sheets.getByName("Responses")
-        ctrl.setActiveSheet(sheet)
-        ctrl.select(sheet.getCellRangeByName("C5"))  # one cell: the dialog takes the block around it
-    frame = ctrl.getFrame()
+def open_dialog(windowed, frame):
+    """Sends the menu entry's URL to `frame` on a thread of its own (the dialog is modal) and finds the
+    dialog; returns the thread, the exceptions the dispatch raised (it must raise none) and the dialog."""
     helper = windowed.smgr.createInstanceWithContext("com.sun.star.frame.DispatchHelper", windowed.ctx)
     errors = []
 
@@ -182,11 +174,39 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
     t.start()
     with windowed.watchdog(120):
         dialog = find_dialog(windowed)
-        assert dialog is not None, f"the dialog did not appear ({errors})"
+    assert dialog is not None, f"the dialog did not appear ({errors})"
+    return t, errors, dialog
+
+
+def press_run(windowed, dialog, t, errors):
+    """Presses Run through its accessible action (as a screen reader would); the dispatch then returns
+    (the run goes on in the background) without an exception."""
+    with windowed.watchdog(60):
+        run = find_accessible(dialog, "Run")
+        assert run is not None, "no Run button"
+        run.getAccessibleContext().doAccessibleAction(0)
+        t.join(30)
+    assert not t.is_alive() and not errors, errors
+
+
+def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
+    path = os.path.join(windowed.dir, "survey.ods")
+    shutil.copy(os.path.join(SHEETS, "volunteer-survey.ods"), path)
+    os.chmod(path, 0o666)
+    with windowed.watchdog(120):
+        doc = windowed.desktop.loadComponentFromURL(uno.systemPathToFileUrl(path), "_blank", 0, ())
+        ctrl = doc.getCurrentController()
+        sheet = doc.Sheets.getByName("Responses")
+        ctrl.setActiveSheet(sheet)
+        ctrl.select(sheet.getCellRangeByName("C5"))  # one cell: the dialog takes the block around it
+    t, errors, dialog = open_dialog(windowed, ctrl.getFrame())
+    with windowed.watchdog(120):
         # Ask for factor scores (regression, beside the data) and bootstrap intervals (500 resamples,
         # the field's default): the options this run must pass on.
         offered = choose(dialog, "Factor scores", "Regression")
         assert offered == ["None", "Regression", "Bartlett", "Correlation-preserving"], offered
+        assert choose(dialog, "Extraction", "Maximum likelihood (fit tests)") == [
+            "Maximum likelihood (fit tests)", "Principal axis", "Least squares residuals"]
         assert choose(dialog, "Put the scores", "Beside the data, if empty")[1] == "On a sheet of their own"
         # the group comparison offers every column of the range after "No comparison" (kept: no groups)
         groups = choose(dialog, "Compare groups by", "No comparison")
@@ -203,7 +223,7 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
         names = accessible_names(dialog)
     shot = screenshot("lode-dialog.png")
     for want in ["Range", "First row holds the item names", "Items to analyse (all with numbers are chosen)",
-                 "Correlations", "Missing answers", "Number of factors", "Suggest from the data", "Extraction",
+                 "Correlations", "Missing answers", "Factors to keep", "0: as the evidence suggests", "Extraction",
                  "Rotation", "Factor scores", "Bootstrap intervals", "Strong loading from", "Random seed",
                  "Hold out respondents for a confirmatory check", "Share held out", "Replicate in random halves", "Splits",
                  "Compare groups by", "Smallest group", "Run", "Cancel"]:
@@ -213,12 +233,7 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
     assert sage > 20000, f"only {sage} pixels of the dialog's background colour on screen"
     # Press Run (through its accessible action, as a screen reader would): the handler starts the
     # report in the background with the frame's status indicator and shows the overview when done.
-    with windowed.watchdog(60):
-        run = find_accessible(dialog, "Run")
-        assert run is not None, "no Run button"
-        run.getAccessibleContext().doAccessibleAction(0)
-        t.join(30)
-    assert not t.is_alive() and not errors, errors
+    press_run(windowed, dialog, t, errors)
     deadline = time.monotonic() + 240
     with windowed.watchdog(300):
         while time.monotonic() < deadline:
@@ -235,8 +250,8 @@ def test_dialog_opens_from_the_menu_url_with_its_controls(windowed):
         rec = {rr.getCellByPosition(0, r).String: rr.getCellByPosition(1, r).String for r in range(40)}
         assert rec["Source range"] == "$Responses.$A$1:$AE$421" and rec["First row holds item names"] == "yes"
         assert rec["Items"].split(", ")[0] == "ROL1" and len(rec["Items"].split(", ")) == 30
-        assert rec["Correlations"] == "pearson" and rec["Random seed"] == "20260101"
-        assert rec["Factor scores"] == "regression" and rec["Factor scores placed"] == "beside"
+        assert rec["Correlations"] == "Pearson" and rec["Random seed"] == "20260101"
+        assert rec["Factor scores"] == "Regression" and rec["Factor scores placed"] == "Beside the data, if empty"
         assert rec["Factor scores written to"].endswith("of Responses, beside the data")
         assert rec["Bootstrap resamples"] == "500" and rec["Bootstrap seed"].startswith("20260101 ")
         assert rec["Random splits into halves"] == "100" and rec["Share held out (confirmatory check)"] == "0.5"

@@ -103,6 +103,10 @@ def read_sheet(sheet):
     return out
 
 
+# The loadings table's columns between the item and its loadings.
+LD_LEAD = ["Belongs to", "Explained by the factors (communality)", "Left to the item (uniqueness)"]
+
+
 def find_row(rows, label):
     hits = [r for r in rows if r and r[0] == label]
     assert len(hits) == 1, f"{label!r} found {len(hits)} times"
@@ -182,18 +186,24 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
     assert abs(find_row(ov, "Share of answers missing")[1] - ref.missing_fraction) < TOL
     assert abs(ref.missing_fraction - np.isnan(x).mean()) < 1e-15  # numpy: the share of NaN cells
     assert find_row(ov, "Correlation matrix positive definite")[1] == ("yes" if ref.positive_definite else "no")
-    start = [i for i, r in enumerate(ov) if r[:2] == ["Factor", "Eigenvalue"]][0] + 1
-    eig = np.array([ov[start + k][1] for k in range(p)])
-    share = np.array([ov[start + k][2] for k in range(p)])
+    start = [i for i, r in enumerate(ov) if r[:2] == ["Factor", "Reduced-matrix eigenvalue"]][0] + 1
+    eig = np.array([ov[start + k][3] for k in range(p)])
+    share = np.array([ov[start + k][4] for k in range(p)])
+    reduced = np.array([ov[start + k][1] for k in range(p)])
+    # numpy: the reduced matrix is R with the squared multiple correlations 1 - 1/diag(R^-1) on its diagonal
+    rr = ref.matrix.copy()
+    np.fill_diagonal(rr, 1 - 1 / np.diag(np.linalg.inv(ref.matrix)))
+    assert np.max(np.abs(reduced - np.sort(np.linalg.eigvalsh(rr))[::-1])) < 1e-10
     assert [ov[start + k][0] for k in range(p)] == list(range(1, p + 1))
     assert np.max(np.abs(eig - ref.eigenvalues)) < TOL
     # numpy.linalg.eigvalsh of the C library's matrix: the eigenvalues themselves
     assert np.max(np.abs(eig - np.sort(np.linalg.eigvalsh(ref.matrix))[::-1])) < 1e-10
     assert np.max(np.abs(share - ref.eigenvalues / ref.eigenvalues.sum())) < TOL
-    random_col = [ov[start + k][3] for k in range(p)]
+    random_col = [ov[start + k][2] for k in range(p)]
     # the C ABI's factor count: parallel analysis with the run's seed
-    cnt = lode.n_factors(x, replicates=500, seed=4242, correlation="pearson", missing="pairwise", item_names=names)
-    assert np.max(np.abs(np.array(random_col) - cnt.parallel["random_pc_percentile"])) < TOL
+    cnt = lode.count_factors(x, replicates=500, seed=4242, correlation="pearson", missing="pairwise", item_names=names)
+    assert np.max(np.abs(np.array(random_col) - cnt.parallel["random_factor_percentile"])) < TOL
+    assert np.max(np.abs(reduced - cnt.parallel["observed_factor"])) < TOL
     decision = find_row(ov, "Decision")
     assert decision[1] == cnt.suggested and decision[2] == cnt.reason
     rules_at = [i for i, r in enumerate(ov) if r[:2] == ["Rule", "Factors"]][0] + 1
@@ -210,10 +220,15 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
     off = ~np.eye(p, dtype=bool)
     kmo_np = (R[off] ** 2).sum() / ((R[off] ** 2).sum() + (partial[off] ** 2).sum())
     assert abs(kmo_row[1] - kmo_np) < 1e-10
-    chi = find_row(ov, "Bartlett's test: chi-square")[1]
-    df = find_row(ov, "Bartlett's test: degrees of freedom")[1]
-    pv = find_row(ov, "Bartlett's test: p-value")[1]
-    assert abs(chi - fa.bartlett["chi_square"]) < TOL and df == fa.bartlett["df"] and pv == fa.bartlett["p_value"]
+    # the verdict first, then the figures: Bartlett's p (as "< 0.001" when it is), then chi-square and df
+    verdict_at = [i for i, r in enumerate(ov) if r[:1] == ["Verdict"]][0]
+    assert ov[verdict_at - 1][0] == "Can these items be factored?"
+    assert find_row(ov, "Verdict")[1].startswith("yes" if fa.kmo >= 0.5 and fa.bartlett["p_value"] < 0.05 else "doubtful")
+    _, chi, df = find_row(ov, "Bartlett's chi-square, degrees of freedom")[:3]
+    pv = find_row(ov, "Are the items unrelated? Bartlett's p")[1]
+    assert pv == ("< 0.001" if fa.bartlett["p_value"] < 0.001 else fa.bartlett["p_value"])
+    pv = fa.bartlett["p_value"]
+    assert abs(chi - fa.bartlett["chi_square"]) < TOL and df == fa.bartlett["df"]
     n = fa.bartlett["n_obs"]
     assert n == ref.n_obs
     chi_np = -(n - 1 - (2 * p + 5) / 6) * np.linalg.slogdet(R)[1]
@@ -255,10 +270,13 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
 
     sc_sheet = survey.Sheets.getByName("Lode scree")
     sc = read_sheet(sc_sheet)
-    top = [i for i, r in enumerate(sc) if r[:2] == ["Factor", "Observed eigenvalue"]][0]
-    assert np.max(np.abs(np.array([sc[top + 1 + k][1] for k in range(p)]) - ref.eigenvalues)) < TOL
-    lines = 3  # the random-data line beside the observed one
-    assert np.max(np.abs(np.array([sc[top + 1 + k][2] for k in range(p)]) - cnt.parallel["random_pc_percentile"])) < TOL
+    top = [i for i, r in enumerate(sc) if r[:2] == ["Factor", "Reduced eigenvalue"]][0]
+    # both versions, each beside its random-data line: the count's reduced-matrix eigenvalues first
+    assert np.max(np.abs(np.array([sc[top + 1 + k][1] for k in range(p)]) - reduced)) < TOL
+    assert np.max(np.abs(np.array([sc[top + 1 + k][2] for k in range(p)]) - cnt.parallel["random_factor_percentile"])) < TOL
+    assert np.max(np.abs(np.array([sc[top + 1 + k][3] for k in range(p)]) - ref.eigenvalues)) < TOL
+    lines = 5
+    assert np.max(np.abs(np.array([sc[top + 1 + k][4] for k in range(p)]) - cnt.parallel["random_pc_percentile"])) < TOL
     charts = sc_sheet.getCharts()
     assert charts.getCount() == 1
     chart = charts.getByIndex(0)
@@ -266,7 +284,10 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
     assert (rng.StartColumn, rng.StartRow, rng.EndColumn, rng.EndRow) == (0, top, lines - 1, top + p)
     cdoc = chart.getEmbeddedObject()
     assert cdoc.getDiagram().getDiagramType() == "com.sun.star.chart.LineDiagram"
-    assert cdoc.getData().getData()[0][0] == pytest.approx(ref.eigenvalues[0], abs=TOL)
+    # the chart's four lines: reduced-matrix eigenvalues and their random line, then the correlations' own
+    first = cdoc.getData().getData()[0]
+    assert list(first) == pytest.approx([reduced[0], cnt.parallel["random_factor_percentile"][0], ref.eigenvalues[0],
+                                         cnt.parallel["random_pc_percentile"][0]], abs=TOL)
 
     rr = read_sheet(survey.Sheets.getByName("Lode run record"))
     rec = {r[0]: r[1] for r in rr if r and len(r) > 1 and r[1] is not None}
@@ -274,9 +295,11 @@ def test_report_matches_the_c_library_and_touches_nothing_else(office, survey, s
     assert rec["Source range"] == "$Responses.$A$1:$AE$421"
     assert rec["Items"] == ", ".join(names)
     assert rec["Values hash (FNV-1a 64)"] == fnv1a64(x, names)
-    assert rec["Correlations"] == "pearson" and rec["Missing answers"] == "pairwise"
+    # options in the dialog's words, never the option codes
+    assert rec["Correlations"] == "Pearson" and rec["Missing answers"] == "Pairwise: all who answered both"
     assert rec["Random seed"] == "4242" and rec["Strong loading from"] == 0.35
-    assert rec["Number of factors"] == "suggest" and rec["Rotation"] == "oblimin" and rec["Extraction"] == "minres"
+    assert rec["Number of factors"] == "suggest" and rec["Rotation"] == "Oblimin (factors may correlate)" \
+        and rec["Extraction"] == "Least squares residuals"
     assert time.strftime("%Y-%m-%d", time.gmtime()) in rec["Written"]
 
 
@@ -286,8 +309,11 @@ def check_model(doc, ov, ld, x, names, k, salient, seed):
     m = lode.fit(x, factors=k, method="minres", rotation="oblimin", seed=seed, missing="pairwise",
                  correlation="pearson", item_names=names, gamma=0.0)
     p = len(names)
-    hdr = [i for i, r in enumerate(ld) if r[:2] == ["Item", "Factor 1"]][0]
-    assert ld[hdr][1:k + 3] == [f"Factor {f + 1}" for f in range(k)] + ["Communality", "Uniqueness"]
+    hdr = [i for i, r in enumerate(ld) if r[:2] == ["Item", "Belongs to"]][0]
+    assert ld[hdr][1:k + 4] == LD_LEAD + [f"Factor {f + 1}" for f in range(k)]
+    # the band above the factors: the share of all the items' variance each explains (numpy)
+    assert ld[hdr - 1][0] == "Share of all the items' variance"
+    assert np.max(np.abs(np.array(ld[hdr - 1][4:4 + k]) - (m.loadings ** 2).sum(axis=0) / p)) < 1e-12
     rows = ld[hdr + 1:hdr + 1 + p]
     L = m.loadings
     home = np.argmax(np.abs(L), axis=1)
@@ -295,10 +321,13 @@ def check_model(doc, ov, ld, x, names, k, salient, seed):
     assert [r[0] for r in rows] == [names[j] for j in order]
     sheet = doc.Sheets.getByName("Lode loadings")
     for i, j in enumerate(order):
-        assert np.max(np.abs(np.array(rows[i][1:k + 1]) - L[j])) < 1e-12
-        assert abs(rows[i][k + 1] - m.communalities[j]) < 1e-12 and abs(rows[i][k + 2] - m.uniquenesses[j]) < 1e-12
+        assert np.max(np.abs(np.array(rows[i][4:4 + k]) - L[j])) < 1e-12
+        assert abs(rows[i][2] - m.communalities[j]) < 1e-12 and abs(rows[i][3] - m.uniquenesses[j]) < 1e-12
+        strong = [str(f + 1) for f in range(k) if abs(L[j, f]) >= salient]
+        assert rows[i][1] == ("none clearly" if not strong else
+                              ("factor " if len(strong) == 1 else "factors ") + " and ".join(strong))
         for f in range(k):
-            style = sheet.getCellByPosition(1 + f, hdr + 1 + i).CellStyle
+            style = sheet.getCellByPosition(4 + f, hdr + 1 + i).CellStyle
             assert style == ("Lode strong loading" if abs(L[j, f]) >= salient else "Lode faint loading")
     assert abs(find_row(ov, "Root mean square residual (RMSR)")[1] - m.statistics["rmsr"]) < 1e-12
     assert abs(find_row(ov, "RMSEA")[1] - m.statistics["rmsea"]) < 1e-12
@@ -310,8 +339,13 @@ def check_model(doc, ov, ld, x, names, k, salient, seed):
         at = [i for i, r in enumerate(fs) if r[:1] == ["Factor correlations"]][0] + 2
         phi = np.array([fs[at + a][1:1 + k] for a in range(k)])
         assert np.max(np.abs(phi - m.factor_correlations)) < 1e-12
-    at = [i for i, r in enumerate(fs) if isinstance(r[0], str) and r[0].startswith("Residual correlations")][0] + 2
-    res = np.array([fs[at + i][1:1 + p] for i in range(p)])
+    # the residuals in the loadings sheet's item order
+    at = [i for i, r in enumerate(fs) if isinstance(r[0], str) and r[0].startswith("Residual correlations")][0] + 3
+    assert [fs[at + i][0] for i in range(p)] == [names[j] for j in order]
+    res = np.empty((p, p))
+    for a, i in enumerate(order):
+        for b, j in enumerate(order):
+            res[i, j] = fs[at + a][1 + b]
     assert np.max(np.abs(res - m.residuals)) < 1e-12
     # numpy: the residuals are the observed minus the model's correlations (L Phi L' + uniquenesses)
     implied = m.loadings @ m.factor_correlations @ m.loadings.T
@@ -397,7 +431,7 @@ def test_background_run_finishes_and_reports(office, survey, service):
     (dict(Items=["ROL1", "NOPE"]), "NOPE"),
     (dict(Items=["respondent", "ROL1", "ROL2"]), "no numbers"),
     (dict(Colour="green"), "unknown option Colour"),
-    (dict(Scores="anderson"), "tenberge"),
+    (dict(Scores="anderson"), "correlation_preserving"),
     (dict(ScoresPlace="below"), "ScoresPlace"),
     (dict(Bootstrap=-5), "Bootstrap"),
 ])
@@ -512,12 +546,12 @@ def test_reliability_per_scale_matches_the_c_library_and_numpy(office, survey, s
     assert "Reverse-scored for these figures, because they load negatively on their factor: " + \
         ", ".join(rev_names) in text
 
-    at = [i for i, r in enumerate(fc) if r[:3] == ["Scale", "Items", "Alpha"]][0] + 1
+    at = [i for i, r in enumerate(fc) if r[:3] == ["Scale", "Reading (omega total)", "Omega total"]][0] + 1
     order = sorted(range(p), key=lambda j: (home[j], -abs(L[j, home[j]])))
     for f in range(K_FIXED):
         row = fc[at + f]
         items = [j for j in order if home[j] == f]
-        assert row[0] == f"Factor {f + 1}" and row[1] == len(items)
+        assert row[0] == f"Factor {f + 1}" and row[7] == len(items)
         # Omega (McDonald 1999) with numpy, over the model-implied variance of the scale's sum
         # 1' Sigma_SS 1, Sigma = L Phi L' + Psi, reverse-scored items entering with their rows of
         # loadings reversed: omega total = 1' (L Phi L')_SS 1 / 1' Sigma_SS 1, the factor's share =
@@ -526,13 +560,13 @@ def test_reliability_per_scale_matches_the_c_library_and_numpy(office, survey, s
         common = (Lr @ m.factor_correlations @ Lr.T)[np.ix_(items, items)].sum()
         var = common + psi[items].sum()
         omega_np, share_np = common / var, Lr[items, f].sum() ** 2 / var
-        assert fc[at - 1][4] == "Omega total" and fc[at - 1][5] == "Omega, factor's share"
+        assert fc[at - 1][2] == "Omega total" and fc[at - 1][3] == "Omega, factor's own share"
         if reversed_[items].any():  # from the refit to the reversed correlations: equal up to the fit's tolerance
-            assert abs(row[4] - omega_np) < 1e-6, (f, row[4], omega_np)
-            assert abs(row[5] - share_np) < 1e-6, (f, row[5], share_np)
+            assert abs(row[2] - omega_np) < 1e-6, (f, row[2], omega_np)
+            assert abs(row[3] - share_np) < 1e-6, (f, row[3], share_np)
         else:  # the C library's omega of this model, exactly
-            assert abs(row[4] - om.omega[f]) < 1e-12 and abs(row[4] - omega_np) < 1e-10
-            assert abs(row[5] - om.factor_share[f]) < 1e-12 and abs(row[5] - share_np) < 1e-10
+            assert abs(row[2] - om.omega[f]) < 1e-12 and abs(row[2] - omega_np) < 1e-10
+            assert abs(row[3] - om.factor_share[f]) < 1e-12 and abs(row[3] - share_np) < 1e-10
         # Alpha on the scale's items, reverse-scored ones as (lowest + highest answer) - answer.
         xs = x[:, items].copy()
         for c, j in enumerate(items):
@@ -541,15 +575,16 @@ def test_reliability_per_scale_matches_the_c_library_and_numpy(office, survey, s
         a = lode.alpha(xs, item_names=[names[j] for j in items])  # the C library
         complete = xs[~np.isnan(xs).any(axis=1)]
         raw, std, rbar = numpy_alpha(complete)
-        assert abs(row[2] - a.alpha) < 1e-12 and abs(row[2] - raw) < 1e-10
-        assert abs(row[3] - a.alpha_standardized) < 1e-12 and abs(row[3] - std) < 1e-10
-        assert abs(row[6] - rbar) < 1e-10 and row[7] == complete.shape[0] == a.rows_used
+        assert abs(row[4] - a.alpha) < 1e-12 and abs(row[4] - raw) < 1e-10
+        assert abs(row[6] - a.alpha_standardized) < 1e-12 and abs(row[6] - std) < 1e-10
+        assert abs(row[5] - rbar) < 1e-10 and row[8] == complete.shape[0] == a.rows_used
         # The items of the scale: loading, reverse-scoring, corrected item-total correlation, alpha if
         # deleted (numpy: alpha of the other items; the item against the sum of the others).
-        top = [i for i, r in enumerate(fc) if r[:1] == [f"Items of factor {f + 1}'s scale"]][0] + 2
+        top = [i for i, r in enumerate(fc) if r[:1] == [f"Items of factor {f + 1}'s scale"]][0] + 3
+        assert fc[top - 1][:4] == ["Item", "Reverse-scored", "Loading", "Correlation with the sum of the others"]
         for c, j in enumerate(items):
             r = fc[top + c]
-            assert r[0] == names[j] and abs(r[1] - L[j, f]) < 1e-12 and r[2] == ("yes" if reversed_[j] else "no")
+            assert r[0] == names[j] and abs(r[2] - L[j, f]) < 1e-12 and r[1] == ("yes" if reversed_[j] else "no")
             rest = np.delete(complete, c, axis=1)
             itc = np.corrcoef(complete[:, c], rest.sum(axis=1))[0, 1]
             assert abs(r[3] - a.item_total_correlation[c]) < 1e-12 and abs(r[3] - itc) < 1e-10
@@ -619,7 +654,7 @@ def test_scores_beside_the_data_when_the_columns_are_empty(office, service):
             assert abs(ov[det + f][1] - s.determinacy[f]) < 1e-12 and abs(ov[det + f][2] - s.validity[f]) < 1e-12
         rr = read_sheet(doc.Sheets.getByName("Lode run record"))
         rec = {r[0]: r[1] for r in rr if r and len(r) > 1 and r[1] is not None}
-        assert rec["Factor scores"] == "regression" and rec["Factor scores placed"] == "beside"
+        assert rec["Factor scores"] == "Regression" and rec["Factor scores placed"] == "Beside the data, if empty"
         assert rec["Factor scores written to"] == "columns AF to AJ of Answers, beside the data"
 
         # A second run asking for scores beside the data finds those columns filled: its scores go to a
@@ -645,6 +680,7 @@ def test_scores_never_overwrite_a_filled_column(office, service):
         before = snapshot(doc)
         with office.watchdog(300):
             said = service.run(doc, range_of(doc, "Answers", cols, n),
+                               # "tenberge": the former word for correlation_preserving, still read
                                props(Factors=K_FIXED, Scores="tenberge", ScoresPlace="beside", Missing="listwise", Extraction="minres",
                                      Seed=9))
         assert snapshot(doc)["Answers"] == before["Answers"]  # nothing written beside the data
@@ -655,7 +691,7 @@ def test_scores_never_overwrite_a_filled_column(office, service):
         sc = read_sheet(doc.Sheets.getByName("Lode scores"))
         m = lode.fit(x, factors=K_FIXED, method="minres", rotation="oblimin", seed=9, missing="listwise",
                      correlation="pearson", item_names=names, gamma=0.0)
-        s = lode.scores(x, m, "tenberge", missing="leave_missing")  # listwise: any skipped item, no scores
+        s = lode.scores(x, m, "correlation_preserving", missing="leave_missing")  # listwise: any skipped item, no scores
         assert s.rows_missing == int(np.isnan(x).any(axis=1).sum())  # numpy: the incomplete rows
         text = " ".join(str(v) for r in sc[:6] for v in r if isinstance(v, str))
         assert s.cautions in text and "skipped any item" in text and "not all empty" in text
@@ -684,14 +720,14 @@ def test_ml_varimax_regression_scores_match_r_factanal(office, service):
         hdr = [i for i, r in enumerate(sc) if r[:1] == ["Row in Answers"]][0]
         got = np.array([r[1:1 + K_FIXED] for r in sc[hdr + 1:hdr + 1 + xc.shape[0]]], dtype=float)
         ld = read_sheet(doc.Sheets.getByName("Lode loadings"))
-        lh = [i for i, r in enumerate(ld) if r[:2] == ["Item", "Factor 1"]][0]
-        lrows = {r[0]: r[1:1 + K_FIXED] for r in ld[lh + 1:lh + 1 + len(names)]}
+        lh = [i for i, r in enumerate(ld) if r[:2] == ["Item", "Belongs to"]][0]
+        lrows = {r[0]: r[4:4 + K_FIXED] for r in ld[lh + 1:lh + 1 + len(names)]}
         L = np.array([lrows[nm] for nm in names], dtype=float)
         # Correlation-preserving scores of an oblique solution on the same complete data: ten Berge,
         # Krijnen, Wansbeek and Shapiro (1999) make them correlate exactly as the factors (numpy).
         with office.watchdog(300):
             service.run(doc, range_of(doc, "Answers", len(names), len(rows)),
-                        props(Factors=K_FIXED, Rotation="oblimin", Scores="tenberge", ScoresPlace="sheet"))
+                        props(Factors=K_FIXED, Rotation="oblimin", Scores="correlation_preserving", ScoresPlace="sheet"))
         sc2 = read_sheet(doc.Sheets.getByName("Lode scores 2"))
         h2 = [i for i, r in enumerate(sc2) if r[:1] == ["Row in Answers"]][0]
         tb = np.array([r[1:1 + K_FIXED] for r in sc2[h2 + 1:h2 + 1 + xc.shape[0]]], dtype=float)
@@ -763,15 +799,15 @@ def test_bootstrap_intervals_beside_the_loadings(office, survey, service):
     # numpy: percentile intervals are the type-7 quantiles (numpy's default) of the aligned resamples
     lo, hi = np.percentile(b.replicate_loadings, [2.5, 97.5], axis=0)
     assert np.max(np.abs(lo - b.loadings_lower)) < 1e-12 and np.max(np.abs(hi - b.loadings_upper)) < 1e-12
-    hdr = [i for i, r in enumerate(ld) if r[:2] == ["Item", "Factor 1"]][0]
-    want = [f"Factor {f + 1}" for f in range(K_FIXED)] + ["Communality", "Uniqueness"]
+    hdr = [i for i, r in enumerate(ld) if r[:2] == ["Item", "Belongs to"]][0]
+    want = LD_LEAD + [f"Factor {f + 1}" for f in range(K_FIXED)]
     for f in range(K_FIXED):
         want += [f"Factor {f + 1} 95% from", f"Factor {f + 1} 95% to"]
     assert ld[hdr][1:] == want
     for r in ld[hdr + 1:hdr + 1 + p]:
         j = names.index(r[0])
-        assert np.max(np.abs(np.array(r[1:1 + K_FIXED]) - m.loadings[j])) < 1e-12
-        got = np.array(r[3 + K_FIXED:3 + 3 * K_FIXED]).reshape(K_FIXED, 2)
+        assert np.max(np.abs(np.array(r[4:4 + K_FIXED]) - m.loadings[j])) < 1e-12
+        got = np.array(r[4 + K_FIXED:4 + 3 * K_FIXED]).reshape(K_FIXED, 2)
         assert np.max(np.abs(got[:, 0] - b.loadings_lower[j])) < 1e-12
         assert np.max(np.abs(got[:, 1] - b.loadings_upper[j])) < 1e-12
         assert np.all(got[:, 0] <= got[:, 1])
@@ -917,10 +953,11 @@ def test_same_loadings_on_every_surface(office):
         ld = read_sheet(doc.Sheets.getByName("Lode loadings"))
         rr = read_sheet(doc.Sheets.getByName("Lode run record"))
         rec = {row[0]: row[1] for row in rr if len(row) > 1}
-        assert rec["Extraction"] == "ml" and rec["Rotation"] == "oblimin" and rec["Strong loading from"] == 0.40
-        hdr = [i for i, row in enumerate(ld) if row[:2] == ["Item", "Factor 1"]][0]
-        assert ld[hdr][1:6] == ["Factor 1", "Factor 2", "Factor 3", "Factor 4", "Communality"]
-        report = {row[0]: row[1:5] for row in ld[hdr + 1:hdr + 25]}
+        assert rec["Extraction"] == "Maximum likelihood (fit tests)" and rec["Rotation"] == "Oblimin (factors may correlate)" \
+            and rec["Strong loading from"] == 0.40
+        hdr = [i for i, row in enumerate(ld) if row[:2] == ["Item", "Belongs to"]][0]
+        assert ld[hdr][4:8] == ["Factor 1", "Factor 2", "Factor 3", "Factor 4"]
+        report = {row[0]: row[4:8] for row in ld[hdr + 1:hdr + 25]}
         sheet = doc.Sheets.getByName("Answers")
         with office.watchdog(300):
             array_formula(sheet, 30, 0, 4, 24, "=LODE.LOADINGS($Answers.$A$1:$X$146)")

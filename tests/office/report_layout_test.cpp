@@ -165,11 +165,37 @@ TEST_F(ReportLayout, OverviewShowsTheDataFactorabilityAndDecision) {
   const Handle<lode_factorability, lode_factorability_free> fact(f);
   EXPECT_EQ(num(s, find_row(s, "KMO sampling adequacy"), 1),
             read_value(fact.get(), LODE_FACTORABILITY_KMO, lode_factorability_value, "KMO"));
-  // the eigenvalue table: one row per item, factor number then eigenvalue
+  // the verdict comes first in its block, then the figures; Bartlett's p first, then chi-square and df
+  const long verdict = find_row(s, "Verdict");
+  ASSERT_GE(verdict, 0);
+  EXPECT_EQ(verdict, find_row(s, "Can these items be factored?") + 1);
+  EXPECT_EQ(s.rows[static_cast<std::size_t>(verdict)][1].text, "yes: the items share enough to be factored");
+  const long chi = find_row(s, "Bartlett's chi-square, degrees of freedom");
+  EXPECT_EQ(num(s, chi, 1), read_value(fact.get(), LODE_FACTORABILITY_BARTLETT_CHI_SQUARE, lode_factorability_value, "chi"));
+  EXPECT_EQ(num(s, chi, 2), read_value(fact.get(), LODE_FACTORABILITY_BARTLETT_DF, lode_factorability_value, "df"));
+  const double bp = read_value(fact.get(), LODE_FACTORABILITY_BARTLETT_P_VALUE, lode_factorability_value, "p");
+  const Cell& pc = s.rows.at(static_cast<std::size_t>(find_row(s, "Are the items unrelated? Bartlett's p")))[1];
+  if (bp < 0.001) EXPECT_EQ(pc.text, "< 0.001");
+  else EXPECT_EQ(pc.number, bp);
+  // the eigenvalue table: one row per item; the reduced-matrix eigenvalues and their random-data
+  // percentile the count compares first, then the eigenvalues of the correlations
+  ASSERT_TRUE(a().count.available) << a().count.reason;
   const long top = find_row(s, "Factor", static_cast<std::size_t>(find_row(s, "How many factors")));
+  EXPECT_EQ(s.rows[static_cast<std::size_t>(top)][1].text, "Reduced-matrix eigenvalue");
+  lode_factor_count_options co;
+  lode_factor_count_options_init(&co, sizeof co);
+  co.seed = a().options.seed;
+  lode_factor_count* cnt = nullptr;
+  check(lode_factor_count_compute(ref.corr.get(), &co, &cnt), "count");
+  const Handle<lode_factor_count, lode_factor_count_free> count(cnt);
+  const Matrix reduced = read_matrix(count.get(), LODE_FACTOR_COUNT_OBSERVED_FACTOR, lode_factor_count_matrix, "reduced");
+  const Matrix random = read_matrix(count.get(), LODE_FACTOR_COUNT_RANDOM_FACTOR_PERCENTILE, lode_factor_count_matrix, "r");
   for (std::size_t j = 0; j < 7; ++j) {
     EXPECT_EQ(num(s, top + 1 + static_cast<long>(j), 0), static_cast<double>(j + 1));
-    EXPECT_EQ(num(s, top + 1 + static_cast<long>(j), 1), ref.eig.values[j]);
+    EXPECT_EQ(num(s, top + 1 + static_cast<long>(j), 1), reduced.values[j]);
+    // replicate i always draws from stream i of the seed: the thread count does not change it
+    EXPECT_EQ(num(s, top + 1 + static_cast<long>(j), 2), random.values[j]);
+    EXPECT_EQ(num(s, top + 1 + static_cast<long>(j), 3), ref.eig.values[j]);
   }
   EXPECT_EQ(num(s, find_row(s, "Root mean square residual (RMSR)"), 1),
             read_value(ref.model.get(), LODE_MODEL_RMSR, lode_model_value, "RMSR"));
@@ -179,26 +205,47 @@ TEST_F(ReportLayout, LoadingsAreGroupedAndMatchTheModel) {
   const Sheet s = layout_loadings(a());
   const Reference ref = reference(a());
   const long hdr = find_row(s, "Item");
-  ASSERT_GE(hdr, 0);
+  ASSERT_GE(hdr, 1);
   const auto& h = s.rows[static_cast<std::size_t>(hdr)];
-  ASSERT_EQ(h.size(), 1u + 2 + 2 + 4);  // item, 2 factors, communality, uniqueness, 2 intervals of 2 ends
-  EXPECT_EQ(h[1].text, "Factor 1");
-  EXPECT_EQ(h[3].text, "Communality");
-  EXPECT_EQ(h[5].text, "Factor 1 95% from");
+  // item, where it belongs, communality, uniqueness, 2 factors, 2 intervals of 2 ends
+  ASSERT_EQ(h.size(), 1u + 3 + 2 + 4);
+  EXPECT_EQ(h[1].text, "Belongs to");
+  EXPECT_EQ(h[2].text, "Explained by the factors (communality)");
+  EXPECT_EQ(h[4].text, "Factor 1");
+  EXPECT_EQ(h[6].text, "Factor 1 95% from");
+  // the band above the factors: each factor's squared loadings over the number of items
+  const auto& band = s.rows[static_cast<std::size_t>(hdr) - 1];
+  EXPECT_EQ(band[0].text, "Share of all the items' variance");
+  for (std::size_t f = 0; f < 2; ++f) {
+    double ss = 0.0;
+    for (std::size_t j = 0; j < 7; ++j) {
+      const double l = ref.L.at(static_cast<std::int64_t>(j), static_cast<std::int64_t>(f));
+      ss += l * l;
+    }
+    EXPECT_NEAR(band[4 + f].number, ss / 7.0, 1e-12);  // 7 products of numbers under 1: rounding only
+  }
   const std::vector<std::size_t> order = loading_order(ref.L.values, 7, 2);
   for (std::size_t r = 0; r < 7; ++r) {
     const auto& row = s.rows[static_cast<std::size_t>(hdr) + 1 + r];
     const std::size_t j = order[r];
     EXPECT_EQ(row[0].text, kNames[j]);
+    std::string belongs;
     for (std::size_t f = 0; f < 2; ++f) {
-      EXPECT_NEAR(row[1 + f].number, ref.L.at(static_cast<std::int64_t>(j), static_cast<std::int64_t>(f)), kSame);
-      EXPECT_EQ(row[1 + f].style, std::fabs(row[1 + f].number) >= a().options.salient ? styles::salient : styles::faint);
+      const double l = ref.L.at(static_cast<std::int64_t>(j), static_cast<std::int64_t>(f));
+      EXPECT_NEAR(row[4 + f].number, l, kSame);
+      EXPECT_EQ(row[4 + f].style, std::fabs(row[4 + f].number) >= a().options.salient ? styles::salient : styles::faint);
+      if (std::fabs(l) >= a().options.salient) belongs += (belongs.empty() ? "" : " and ") + std::to_string(f + 1);
     }
-    EXPECT_NEAR(row[3].number, ref.communalities.values[j], kSame);
-    EXPECT_NEAR(row[4].number, ref.uniquenesses.values[j], kSame);
-    EXPECT_LE(row[5].number, row[6].number);  // an interval's ends in order
+    EXPECT_EQ(row[1].text, belongs.empty() ? "none clearly"
+                                           : (belongs.size() > 1 ? "factors " : "factor ") + belongs);
+    EXPECT_NEAR(row[2].number, ref.communalities.values[j], kSame);
+    EXPECT_NEAR(row[3].number, ref.uniquenesses.values[j], kSame);
+    EXPECT_LE(row[6].number, row[7].number);  // an interval's ends in order
   }
-  EXPECT_EQ(s.rows[static_cast<std::size_t>(hdr) + 8][0].text, "Sum of squared loadings");
+  for (const auto& row : s.rows)  // no row of sums of squares below the items
+    if (!row.empty()) {
+      EXPECT_EQ(row[0].text.find("Sum of squared"), std::string::npos);
+    }
   const long smc = find_row(s, "Item", static_cast<std::size_t>(hdr) + 1);
   ASSERT_GE(smc, 0);
   for (std::size_t j = 0; j < 7; ++j) EXPECT_EQ(num(s, smc + 1 + static_cast<long>(j), 1), ref.smc.values[j]);
@@ -212,9 +259,17 @@ TEST_F(ReportLayout, FactorsSheetMatchesCorrelationsResidualsAndKeyedOmega) {
   EXPECT_NEAR(num(s, phi + 3, 1), ref.phi.at(1, 0), kSame);
   const long res = find_row(s, "Residual correlations (observed minus model); above 0.10 in size is flagged (common practice)");
   ASSERT_GE(res, 0);
-  for (std::size_t i = 0; i < 7; ++i)
+  // in the loadings sheet's item order, after a line that says so
+  const std::vector<std::size_t> order = loading_order(ref.L.values, 7, 2);
+  for (std::size_t i = 0; i < 7; ++i) {
+    EXPECT_EQ(s.rows[static_cast<std::size_t>(res) + 3 + i][0].text, kNames[order[i]]);
     for (std::size_t j = 0; j < 7; ++j)
-      EXPECT_NEAR(num(s, res + 2 + static_cast<long>(i), 1 + j), ref.residuals.values[i * 7 + j], kSame);
+      EXPECT_NEAR(num(s, res + 3 + static_cast<long>(i), 1 + j), ref.residuals.values[order[i] * 7 + order[j]], kSame);
+  }
+  const long structure = find_row(s, "Structure: correlations of items with factors");
+  ASSERT_GE(structure, 0);
+  for (std::size_t i = 0; i < 7; ++i)
+    EXPECT_EQ(s.rows[static_cast<std::size_t>(structure) + 2 + i][0].text, kNames[order[i]]);
   // omega from the C ABI's keyed omega of the same model (reverse-keying items loading negatively)
   lode_reliability_options ro;
   lode_reliability_options_init(&ro, sizeof ro);
@@ -228,13 +283,14 @@ TEST_F(ReportLayout, FactorsSheetMatchesCorrelationsResidualsAndKeyedOmega) {
   ASSERT_GE(scales, 0);
   for (std::size_t f = 0; f < 2; ++f) {
     EXPECT_EQ(s.rows[static_cast<std::size_t>(scales) + 1 + f][0].text, "Factor " + std::to_string(f + 1));
-    EXPECT_NEAR(num(s, scales + 1 + static_cast<long>(f), 4), omega.values[f], kSame);
-    EXPECT_NEAR(num(s, scales + 1 + static_cast<long>(f), 5), share.values[f], kSame);
+    EXPECT_NEAR(num(s, scales + 1 + static_cast<long>(f), 2), omega.values[f], kSame);
+    EXPECT_NEAR(num(s, scales + 1 + static_cast<long>(f), 3), share.values[f], kSame);
+    EXPECT_EQ(s.rows[static_cast<std::size_t>(scales) + 1 + f][1].text, reliability_words(omega.values[f]));
   }
   // the reverse-scored item is marked in its scale's item table
   bool marked = false;
   for (const auto& row : s.rows)
-    if (row.size() > 2 && row[0].text == "complaints" && row[2].kind == Cell::Kind::text) marked = row[2].text == "yes";
+    if (row.size() > 2 && row[0].text == "complaints" && row[1].kind == Cell::Kind::text) marked = row[1].text == "yes";
   EXPECT_TRUE(marked);
   const long used = find_row(s, "Item correlations used");
   ASSERT_GE(used, 0);
@@ -248,16 +304,21 @@ TEST_F(ReportLayout, ScreeTableAndChartCoverTheEigenvalues) {
   ASSERT_EQ(s.charts.size(), 1u);
   const Chart& ch = s.charts[0];
   EXPECT_EQ(ch.rows, 8u);
-  EXPECT_EQ(ch.cols, a().count.available ? 3u : 2u);
+  ASSERT_TRUE(a().count.available);
+  EXPECT_EQ(ch.cols, 5u);  // both versions: the count's reduced-matrix lines and the correlations' lines
   EXPECT_EQ(s.rows[ch.top][0].text, "Factor");
-  for (std::size_t j = 0; j < 7; ++j) EXPECT_EQ(s.rows[ch.top + 1 + j][1].number, ref.eig.values[j]);
+  EXPECT_EQ(s.rows[ch.top][1].text, "Reduced eigenvalue");
+  for (std::size_t j = 0; j < 7; ++j) {
+    EXPECT_EQ(s.rows[ch.top + 1 + j][1].number, a().count.observed_factor[j]);
+    EXPECT_EQ(s.rows[ch.top + 1 + j][3].number, ref.eig.values[j]);
+  }
 }
 
 TEST_F(ReportLayout, RunRecordStatesTheOptionsAndHash) {
   const Sheet s = layout_record(a());
   auto value = [&](const char* key) { return s.rows.at(static_cast<std::size_t>(find_row(s, key)))[1]; };
-  EXPECT_EQ(value("Extraction").text, "ml");
-  EXPECT_EQ(value("Rotation").text, "oblimin");
+  EXPECT_EQ(value("Extraction").text, "Maximum likelihood (fit tests)");
+  EXPECT_EQ(value("Rotation").text, "Oblimin (factors may correlate)");
   EXPECT_EQ(value("Number of factors").number, 2.0);
   EXPECT_EQ(value("Bootstrap resamples").number, 40.0);
   char hash[32];
@@ -306,6 +367,22 @@ TEST_F(ReportLayout, BuildReportWritesEverySheetInOrder) {
                                              names::record, names::scores}));
   EXPECT_FALSE(rep.beside.has_value());
   EXPECT_EQ(rep.summary, "Lode analysed 7 items of 30 respondents");
+  // a document whose cells show a decimal comma: the thresholds in the notes follow it
+  Options comma = run_options();
+  comma.decimal_separator = ',';
+  comma.bootstrap = 0;
+  const Report local = build_report(*source_, comma, "t", {});
+  const Sheet& ld = local.sheets[1];
+  bool seen = false;
+  for (const auto& row : ld.rows)
+    for (const Cell& c : row) {
+      if (c.style == styles::note && c.text.find("(at least 0,40") != std::string::npos) seen = true;
+      if (c.style == styles::note) {
+        EXPECT_EQ(c.text.find("0.40"), std::string::npos) << c.text;
+      }
+    }
+  EXPECT_TRUE(seen);
+  EXPECT_EQ(local.sheets[4].base_name, names::record);  // the run record keeps its words as written
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -575,7 +652,7 @@ TEST(ReportOptions, TableDrivesDefaultsAndValidation) {
   for (const WordOption& w : word_options()) {
     const long r = find_row(rec, w.record);
     ASSERT_GE(r, 0) << w.record;
-    EXPECT_EQ(rec.rows[static_cast<std::size_t>(r)][1].text, o.*(w.field));
+    EXPECT_EQ(rec.rows[static_cast<std::size_t>(r)][1].text, w.words[word_index(w, o.*(w.field))].label);
   }
 }
 
@@ -584,6 +661,18 @@ TEST(ReportOptions, TableDrivesDefaultsAndValidation) {
 
 namespace lode::addin::report {
 namespace {
+
+TEST(ReportText, DecimalsInSentencesFollowTheDocumentsSeparator) {
+  EXPECT_EQ(with_decimal_separator("under 0.50 (Kaiser 1974); -1.5 or 12.25.", ','), "under 0,50 (Kaiser 1974); -1,5 or 12,25.");
+  // names, versions and addresses keep their points
+  EXPECT_EQ(with_decimal_separator("q1.2 and Lode 0.1.0 at $Sheet1.$A$1, 3.5x", ','), "q1.2 and Lode 0.1.0 at $Sheet1.$A$1, 3.5x");
+  EXPECT_EQ(with_decimal_separator("0.05 or less", '.'), "0.05 or less");
+  Sheet s;
+  s.line({Cell::txt("item.3.5", styles::label), Cell::txt("under 0.50", styles::note), Cell::num(0.5)});
+  localise_decimals(s, ',');
+  EXPECT_EQ(s.rows[0][0].text, "item.3.5");  // a label (item names) is left alone
+  EXPECT_EQ(s.rows[0][1].text, "under 0,50");
+}
 
 TEST(ReportText, RangeAddressesRoundTrip) {
   EXPECT_EQ(range_address("Ratings", 0, 0, 7, 30), "$Ratings.$A$1:$H$31");
@@ -615,6 +704,19 @@ TEST(ReportRun, CancelStopsOnlyARunInProgressAndNamesAreUnique) {
   EXPECT_EQ(stopped_outcome(std::make_exception_ptr(std::invalid_argument("option X"))), "stopped: option X");
   EXPECT_EQ(stopped_outcome(std::make_exception_ptr(Cancelled{})),
             "stopped: the analysis was cancelled; the workbook is as it was");
+  // what a dialog run shows in a message box: the reason and what to do; nothing for a cancel or a success
+  const std::string failed = failed_run_message(stopped_outcome(std::make_exception_ptr(std::invalid_argument(
+      "only 2 columns with numbers in $Answers.$A$1:$B$9; a factor analysis needs at least 3 items"))));
+  EXPECT_EQ(failed.rfind("The analysis stopped: only 2 columns with numbers in $Answers.$A$1:$B$9; a factor analysis "
+                         "needs at least 3 items.",
+                         0),
+            0u)
+      << failed;
+  EXPECT_NE(failed.find("the workbook is as it was"), std::string::npos);
+  EXPECT_EQ(failed_run_message(stopped_outcome(std::make_exception_ptr(Cancelled{}))), "");
+  EXPECT_EQ(failed_run_message("Lode analysed 7 items of 30 respondents; the report is on the sheets X."), "");
+  EXPECT_NE(already_running_message().find("Stop the running analysis"), std::string::npos);
+  EXPECT_NE(unreadable_range_message("Shet1.A1:B").find("\"Shet1.A1:B\""), std::string::npos);
   const std::vector<std::string> names = unique_sheet_names(
       {"Lode overview", "Lode loadings", "Lode overview"}, [](const std::string& n) { return n == "Lode overview"; });
   EXPECT_EQ(names, (std::vector<std::string>{"Lode overview 2", "Lode loadings", "Lode overview 3"}));

@@ -123,21 +123,23 @@ def test_parallel(book, functions, attitude):
     assert np.array_equal(again, cells)  # same seed, same cells
 
 
-def test_nfactors(book, functions, attitude, harman):
-    _need(functions, "LODE.NFACTORS")
+def test_factorcount(book, functions, attitude, harman):
+    _need(functions, "LODE.FACTORCOUNT", "LODE.NFACTORS")
     # a correlation matrix carries no sample size: nothing can be simulated or tested (Err:502)
-    assert book.value(f"=LODE.NFACTORS({harman[1]})") == ("error", 502)
+    assert book.value(f"=LODE.FACTORCOUNT({harman[1]})") == ("error", 502)
     x, rng = attitude
     r = np.corrcoef(x, rowvar=False)
     eig = np.sort(np.linalg.eigvalsh(r))[::-1]
     # Kaiser's rule: eigenvalues above one (numpy)
-    assert book.value(f'=LODE.NFACTORS({rng};"kaiser")') == float(np.sum(eig > 1))
-    nf = lode.n_factors(x, replicates=500, seed=3)  # the C library with the cells' replicates and seed
+    assert book.value(f'=LODE.FACTORCOUNT({rng};"kaiser")') == float(np.sum(eig > 1))
+    nf = lode.count_factors(x, replicates=500, seed=3)  # the C library with the cells' replicates and seed
     # "parallel" is the one count rule of every surface: the suggested count (reduced-matrix eigenvalues)
     assert nf.suggested == nf.parallel["suggested_factor"]
     expected = {"parallel": nf.suggested, "map": nf.map["suggested_squared"], "kaiser": nf.kaiser,
                 "ekc": nf.empirical_kaiser}
     for rule, count in expected.items():
+        assert book.value(f'=LODE.FACTORCOUNT({rng};"{rule}";3)') == float(count), rule
+        # the former name still computes the same, so saved workbooks keep working
         assert book.value(f'=LODE.NFACTORS({rng};"{rule}";3)') == float(count), rule
 
 
@@ -261,9 +263,9 @@ def test_fit_shows_its_error_as_text(book, functions, harman):
 
 
 def test_factors_left_out_uses_parallel_analysis(book, functions, attitude):
-    _need(functions, "LODE.LOADINGS", "LODE.NFACTORS")
+    _need(functions, "LODE.LOADINGS", "LODE.FACTORCOUNT")
     x, rng = attitude
-    k = int(book.value(f"=LODE.NFACTORS({rng})"))
+    k = int(book.value(f"=LODE.FACTORCOUNT({rng})"))
     assert k >= 1
     cells = book.numbers(f"=LODE.LOADINGS({rng})", x.shape[1], k)
     # the defaults: maximum likelihood, oblimin, the count parallel analysis suggests (the C library)
@@ -303,7 +305,8 @@ def test_function_wizard_states_what_the_fit_statistics_and_the_count_are(office
         found[props["Name"]] = props
     fit = found["LODE.FIT"]["Description"]
     assert "not a likelihood-ratio test" in fit and '"minres"' in fit and '"paf"' in fit
-    rule = {a.Name: a.Description for a in found["LODE.NFACTORS"]["Arguments"]}["rule"]
+    rule = {a.Name: a.Description for a in found["LODE.FACTORCOUNT"]["Arguments"]}["rule"]
+    assert found["LODE.NFACTORS"]["Description"].startswith("Former name of LODE.FACTORCOUNT")
     assert "reduced-matrix factor eigenvalues" in rule and "95th percentile" in rule and "500" in rule
     factors = {a.Name: a.Description for a in found["LODE.LOADINGS"]["Arguments"]}["factors"]
     assert "factor eigenvalues" in factors and "95th" in factors and "500" in factors

@@ -75,7 +75,7 @@ def test_function_wizard_shows_the_score_cautions(office):
     assert cautions in found["LODE.SCORES"]["Description"]
     args = {a.Name: a.Description for a in found["LODE.SCORES"]["Arguments"]}
     assert list(args) == ["data", "factors", "method", "rotation", "score_method"]
-    assert "tenberge" in args["score_method"] and "bartlett" in args["score_method"]
+    assert "correlation_preserving" in args["score_method"] and "bartlett" in args["score_method"]
 
 
 @pytest.mark.parametrize("k", [2, 3])
@@ -112,20 +112,22 @@ def test_scores_regression_and_bartlett_match_factanal(book, mtcars, k):
     assert np.max(np.abs(bart - lode.scores(None, m, "bartlett").values)) < TOL
 
 
-def test_tenberge_scores_reproduce_the_factor_correlations(book, attitude):
+def test_correlation_preserving_scores_reproduce_the_factor_correlations(book, attitude):
     """ten Berge, Krijnen, Wansbeek & Shapiro (1999): correlation-preserving scores of complete data
     correlate in the sample exactly as the factors do (numpy.corrcoef against LODE.FACTORCORR), with
     unit standard deviation (numpy.std, ddof = 1)."""
     names, x, rng = attitude
     n, k = x.shape[0], 2
     args = f'{rng};{k};"minres";"oblimin"'
-    s = book.numbers(f'=LODE.SCORES({args};"tenberge")', n, k)
+    s = book.numbers(f'=LODE.SCORES({args};"correlation_preserving")', n, k)
+    # the former word is still read, to the same scores
+    assert np.array_equal(book.numbers(f'=LODE.SCORES({args};"tenberge")', n, k), s)
     phi = book.numbers(f"=LODE.FACTORCORR({args})", k, k)
     assert abs(phi[0, 1]) > 0.05  # the solution really is oblique
     assert np.max(np.abs(np.corrcoef(s, rowvar=False) - phi)) < 1e-8
     assert np.max(np.abs(s.std(axis=0, ddof=1) - 1)) < 1e-8
     m = lode.fit(x, factors=k, method="minres", rotation="oblimin")
-    assert np.max(np.abs(s - lode.scores(None, m, "tenberge").values)) < TOL
+    assert np.max(np.abs(s - lode.scores(None, m, "correlation_preserving").values)) < TOL
 
 
 def test_scores_with_missing_answers_follow_the_c_rule(book, judges):
@@ -170,7 +172,7 @@ def test_scores_refuse_a_correlation_matrix_and_bad_options(book, attitude):
 
 def test_scores_left_out_factors_use_parallel_analysis(book, judges):
     names, x, rng = judges
-    k = int(book.value(f"=LODE.NFACTORS({rng})"))
+    k = int(book.value(f"=LODE.FACTORCOUNT({rng})"))
     assert k >= 1
     cells = book.numbers(f"=LODE.SCORES({rng})", x.shape[0], k)
     m = lode.fit(x, factors=k, method="ml", rotation="oblimin")  # the defaults

@@ -1,4 +1,4 @@
-"""lode.n_factors, lode.parallel_analysis and lode.map_test: known structure in simulated data, and the MAP
+"""lode.count_factors, lode.parallel_analysis and lode.map_test: known structure in simulated data, and the MAP
 statistic against an independent numpy implementation (Velicer 1976; Velicer, Eaton & Fava 2000)."""
 
 import numpy as np
@@ -28,12 +28,12 @@ def map_reference(r):
     return np.array(sq), np.array(fo)
 
 
-def test_n_factors_known_structure_and_map():
+def test_count_factors_known_structure_and_map():
     x = survey(500, 12, seed=13, factors=3, loading=0.7)
-    c = lode.n_factors(x, replicates=300, seed=9)
+    c = lode.count_factors(x, replicates=300, seed=9)
     assert c.suggested == 3
     assert c.parallel["suggested_factor"] == 3 and c.map["suggested_squared"] == 3
-    assert isinstance(c.by_rule, dict) and len(c.by_rule) >= 4 and all(isinstance(v, int) for v in c.by_rule.values())
+    assert isinstance(c.counts, dict) and len(c.counts) >= 4 and all(isinstance(v, int) for v in c.counts.values())
     sq, fo = map_reference(np.corrcoef(x, rowvar=False))
     n = len(sq)
     assert np.max(np.abs(c.map["average_squared"][:n] - sq)) < 1e-10
@@ -43,11 +43,22 @@ def test_n_factors_known_structure_and_map():
     assert lode.map_test(x)["suggested_squared"] == 3
 
 
-def test_n_factors_progress_and_cancel():
+def test_former_names_still_work_and_say_so():
+    # n_factors and by_rule were renamed (count_factors, counts); scripts using them still run
+    x = survey(300, 10, seed=15, factors=2, loading=0.7)
+    with pytest.warns(DeprecationWarning, match="count_factors"):
+        old = lode.n_factors(x, replicates=50, seed=3)
+    new = lode.count_factors(x, replicates=50, seed=3)
+    with pytest.warns(DeprecationWarning, match="counts"):
+        assert old.by_rule == new.counts
+    assert old.suggested == new.suggested
+
+
+def test_count_factors_progress_and_cancel():
     x = survey(300, 10, seed=14)
     seen = []
-    lode.n_factors(x, replicates=2000, seed=1, progress=lambda d, t: seen.append((d, t)) or True)
+    lode.count_factors(x, replicates=2000, seed=1, progress=lambda d, t: seen.append((d, t)) or True)
     assert seen and seen[-1][0] == seen[-1][1] == 2000
     with pytest.raises(lode.LodeError, match="cancel") as e:
-        lode.n_factors(x, replicates=200000, seed=1, progress=lambda d, t: False)
+        lode.count_factors(x, replicates=200000, seed=1, progress=lambda d, t: False)
     assert e.value.status_name == "cancelled"

@@ -160,7 +160,7 @@ def test_integers_too_wide_for_the_library_are_refused_by_name():
         (lambda: lode.bootstrap(g, factors=2 ** 32 + 1, replicates=10), "factors"),
         (lambda: lode.fit(corr=r, n_obs=2 ** 64, factors=1), "n_obs"),
         (lambda: lode.bootstrap(g, factors=2, replicates=2 ** 64), "replicates"),
-        (lambda: lode.n_factors(g, replicates=2 ** 63), "replicates"),
+        (lambda: lode.count_factors(g, replicates=2 ** 63), "replicates"),
         (lambda: lode.fit(g, factors=2, seed=2 ** 64), "seed"),
         (lambda: lode.fit(g, factors=2, seed=-1), "seed"),
         (lambda: lode.fit(g, factors=2, max_iterations=2 ** 31), "max_iterations"),

@@ -43,10 +43,12 @@ def test_regression_and_bartlett_scores_match_factanal():
     assert np.allclose(lode.scores(x, m, "bartlett").values, lode.scores(None, m, "bartlett").values, atol=1e-12)
 
 
-def test_tenberge_scores_and_determinacy():
+def test_correlation_preserving_scores_and_determinacy():
     x = survey(400, 8, seed=34, factors=2, loading=0.7)
     m = lode.fit(x, factors=2, method="ml", rotation="oblimin", seed=2)
-    s = lode.scores(x, m, "tenberge")
+    s = lode.scores(x, m, "correlation_preserving")
+    # the former word for the method is still read, to the same scores
+    assert np.array_equal(lode.scores(x, m, "tenberge").values, s.values)
     # ten Berge, Krijnen, Wansbeek & Shapiro (1999): the scores correlate exactly as the factors (Phi).
     assert np.max(np.abs(np.corrcoef(s.values, rowvar=False) - m.factor_correlations)) < 1e-8
     # Determinacy (Guttman 1955; Grice 2001): sqrt(diag(S' R^-1 S)), S = Lambda Phi, with numpy.
@@ -73,11 +75,11 @@ def test_listwise_model_scores_standardise_with_the_complete_rows():
     # Regression scores Z R^-1 Lambda Phi (Thurstone 1935), computed here with numpy
     assert np.max(np.abs(reg.values[complete] - z @ np.linalg.solve(r, st))) < 1e-10
     # ten Berge, Krijnen, Wansbeek & Shapiro (1999): on the rows behind R the scores correlate as Phi
-    tb = lode.scores(None, m, "tenberge")
+    tb = lode.scores(None, m, "correlation_preserving")
     assert np.max(np.abs(np.corrcoef(tb.values[complete], rowvar=False) - m.factor_correlations)) < 1e-8
     # The same respondents passed again score the same, and so does any subset of them: every batch is
     # standardised with the fit's means and SDs (here those of the complete rows).
-    assert np.array_equal(lode.scores(x.copy(), m, "tenberge").values, tb.values, equal_nan=True)
+    assert np.array_equal(lode.scores(x.copy(), m, "correlation_preserving").values, tb.values, equal_nan=True)
     other = lode.scores(x[:300], m, "regression").values[complete[:300]]
     z_other = (x[:300][complete[:300]] - xc.mean(axis=0)) / xc.std(axis=0, ddof=1)
     assert np.max(np.abs(other - z_other @ np.linalg.solve(r, st))) < 1e-10

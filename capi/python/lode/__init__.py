@@ -7,6 +7,7 @@ answer. Every error of the library is raised as :class:`LodeError` with the libr
 """
 
 import ctypes
+import warnings
 
 import numpy as np
 
@@ -17,7 +18,7 @@ from .summary_sql import summary_from_sql
 from ._checks import ArgumentError
 
 __all__ = ["LodeError", "ArgumentError", "version", "correlation", "Correlation", "factorability", "Factorability",
-           "n_factors", "parallel_analysis", "map_test", "FactorCount", "rotate", "Rotation", "fit", "Model",
+           "count_factors", "n_factors", "parallel_analysis", "map_test", "FactorCount", "rotate", "Rotation", "fit", "Model",
            "scores", "Scores", "alpha", "Alpha", "omega", "Omega", "congruence", "Comparison", "item_flags",
            "ItemFlags", "bootstrap", "Bootstrap", "Summary", "summary_from_sql", "schmid_leiman", "SchmidLeiman",
            "compare_groups", "GroupComparison", "fit_pattern", "RestrictedFit", "replicate", "Replication",
@@ -301,8 +302,8 @@ _THRESHOLDS = {"percentile": _abi.LODE_THRESHOLD_PERCENTILE, "mean": _abi.LODE_T
 class FactorCount(_native.Handle):
     """How many factors: every rule side by side.
 
-    Attributes: ``suggested`` (int) and ``reason``; ``by_rule`` (dict from rule name to its
-    count); ``table`` (list of dicts: ``rule``, ``factors``, ``primary``, ``basis``); ``parallel``
+    Attributes: ``suggested`` (int) and ``reason``; ``counts`` (dict from rule name to the count it
+    gives; ``by_rule`` is its former, deprecated name); ``table`` (list of dicts: ``rule``, ``factors``, ``primary``, ``basis``); ``parallel``
     (dict: ``observed_pc``, ``observed_factor``, ``random_pc_mean``, ``random_pc_percentile``,
     ``random_factor_mean``, ``random_factor_percentile``, ``suggested_pc``, ``suggested_factor``,
     ``replicates``, ``percentile``); ``map`` (dict: ``average_squared``, ``average_fourth``,
@@ -323,7 +324,7 @@ class FactorCount(_native.Handle):
         for line in _lines(txt(_abi.LODE_FACTOR_COUNT_TABLE)):
             rule, count, primary, basis = line.split("\t", 3)
             self.table.append({"rule": rule, "factors": int(count), "primary": primary == "1", "basis": basis})
-        self.by_rule = {row["rule"]: row["factors"] for row in self.table}
+        self.counts = {row["rule"]: row["factors"] for row in self.table}
         self.parallel = {
             "observed_pc": col(_abi.LODE_FACTOR_COUNT_OBSERVED_PC),
             "observed_factor": col(_abi.LODE_FACTOR_COUNT_OBSERVED_FACTOR),
@@ -344,6 +345,12 @@ class FactorCount(_native.Handle):
         self.ekc_reference = col(_abi.LODE_FACTOR_COUNT_EKC_REFERENCE)
         self.n_obs = int(num(_abi.LODE_FACTOR_COUNT_N_OBS))
 
+    @property
+    def by_rule(self):
+        """Former name of ``counts`` (deprecated; kept so existing scripts run)."""
+        warnings.warn("FactorCount.by_rule is now FactorCount.counts", DeprecationWarning, stacklevel=2)
+        return self.counts
+
     def __repr__(self):
         return f"<lode.FactorCount suggested={self.suggested}>"
 
@@ -363,7 +370,7 @@ def _count_options(replicates, seed, percentile, threshold, source, threads, pro
 
 
 @accepts_summary
-def n_factors(X=None, *, corr=None, cov=None, n_obs=None, replicates=None, seed=None, percentile=95.0,
+def count_factors(X=None, *, corr=None, cov=None, n_obs=None, replicates=None, seed=None, percentile=95.0,
               threshold="percentile", source="normal", correlation="pearson", missing="pairwise", smooth=False,
               threads=0, progress=None, item_names=None):
     """How many factors to extract: parallel analysis (Horn 1965; ``replicates`` random data sets,
@@ -381,13 +388,19 @@ def n_factors(X=None, *, corr=None, cov=None, n_obs=None, replicates=None, seed=
     return FactorCount(ptr.value)
 
 
+def n_factors(*args, **kwargs):
+    """Former name of :func:`count_factors` (deprecated; kept so existing scripts run)."""
+    warnings.warn("lode.n_factors is now lode.count_factors", DeprecationWarning, stacklevel=2)
+    return count_factors(*args, **kwargs)
+
+
 @accepts_summary
 def parallel_analysis(X=None, *, corr=None, cov=None, n_obs=None, replicates=None, seed=None, percentile=95.0,
                       threshold="percentile", source="normal", **kwargs):
     """Parallel analysis (Horn 1965) alone: a dict with the observed component and factor
     (reduced-matrix) eigenvalues, the random-data means and percentiles by position, and the
-    suggested counts ``suggested_pc`` and ``suggested_factor``. Arguments as :func:`n_factors`."""
-    return n_factors(X, corr=corr, cov=cov, n_obs=n_obs, replicates=replicates, seed=seed, percentile=percentile,
+    suggested counts ``suggested_pc`` and ``suggested_factor``. Arguments as :func:`count_factors`."""
+    return count_factors(X, corr=corr, cov=cov, n_obs=n_obs, replicates=replicates, seed=seed, percentile=percentile,
                      threshold=threshold, source=source, **kwargs).parallel
 
 
@@ -397,7 +410,7 @@ def map_test(X=None, *, corr=None, cov=None, n_obs=None, **kwargs):
     Fava 2000): a dict with ``average_squared`` and ``average_fourth`` (entry m: after removing m
     components) and the suggested counts ``suggested_squared`` and ``suggested_fourth``."""
     kwargs.setdefault("replicates", 1)
-    return n_factors(X, corr=corr, cov=cov, n_obs=n_obs, **kwargs).map
+    return count_factors(X, corr=corr, cov=cov, n_obs=n_obs, **kwargs).map
 
 
 # ---- rotation --------------------------------------------------------------------------------------

@@ -13,7 +13,12 @@ from .summary import accepts_summary
 # ---- scores, reliability, comparison ----------------------------------------------------------------
 
 _SCORE_METHODS = {"regression": _abi.LODE_ESTIMATOR_REGRESSION, "bartlett": _abi.LODE_ESTIMATOR_BARTLETT,
-                  "tenberge": _abi.LODE_ESTIMATOR_CORRELATION_PRESERVING}
+                  "correlation_preserving": _abi.LODE_ESTIMATOR_CORRELATION_PRESERVING}
+_FORMER_SCORE_METHODS = {"tenberge": "correlation_preserving"}  # former words, still read
+
+
+def _current_score_method(method):
+    return _FORMER_SCORE_METHODS.get(method, method) if isinstance(method, str) else method
 _SCORE_MISSING = {"from_answered": _abi.LODE_GAPS_FROM_ANSWERED, "leave_missing": _abi.LODE_GAPS_LEAVE_MISSING}
 
 
@@ -56,12 +61,13 @@ class Scores(_native.Handle):
 def scores(X, model, method="regression", *, missing="from_answered", min_answered_share=0.5, low_determinacy=0.80):
     """Factor scores of the respondents in ``X`` (rows; the model's items in its order; NaN missing)
     on the factors of ``model`` (a :class:`Model` from :func:`fit`). ``X`` None scores the data the
-    model was fitted to. ``method``: "regression" (Thurstone), "bartlett" or "tenberge"
-    (correlation-preserving). ``missing``: "from_answered" (weights from the answered items, when at
-    least ``min_answered_share`` were answered) or "leave_missing". Returns :class:`Scores`; read its
+    model was fitted to. ``method``: "regression" (Thurstone), "bartlett" or "correlation_preserving"
+    (ten Berge et al. 1999; the former word "tenberge" is still read). ``missing``: "from_answered"
+    (weights from the answered items, when at least ``min_answered_share`` were answered) or
+    "leave_missing". Returns :class:`Scores`; read its
     ``cautions`` before using scores to make decisions about people."""
     o = _native.options("lode_scores_options",
-                        method=_choice(method, _SCORE_METHODS, "score method"),
+                        method=_choice(_current_score_method(method), _SCORE_METHODS, "score method"),
                         missing=_choice(missing, _SCORE_MISSING, "missing-item rule"),
                         min_answered_share=min_answered_share, low_determinacy=low_determinacy)
     _checks.instance(model, Model, "model", "a fitted model (lode.fit)")
