@@ -64,12 +64,12 @@ Output fn_reason(const Call& call) {
   for (std::size_t i = f->args.size(); i < given; ++i)
     if (call.args[1 + i].kind != Arg::Kind::missing)
       return text(std::string(f->display) + " takes " + std::to_string(f->args.size()) + " arguments; more were given");
-  if (f->args.size() > given)
-    return text("LODE.REASON passes on " + std::to_string(given) + " arguments; " + std::string(f->display) + " has " +
-                std::to_string(f->args.size()));
+  // A function with more arguments than LODE.REASON passes on gets the rest left out (a required one
+  // among them is named below); the table's widest function has as many as LODE.REASON passes on.
+  const Arg left_out{};
   std::vector<Arg> args;
   for (std::size_t i = 0; i < f->args.size(); ++i) {
-    const Arg& a = call.args[1 + i];
+    const Arg& a = i < given ? call.args[1 + i] : left_out;
     if (f->args[i].kind == ArgKind::range && a.kind == Arg::Kind::missing)
       return text(std::string(f->display) + " needs its argument '" + std::string(f->args[i].name) + "'");
     args.push_back(f->args[i].kind == ArgKind::range ? as_range(a) : a);

@@ -359,7 +359,8 @@ const std::vector<FunctionSpec> kTable = {
       {"argument3", ArgKind::value, "Its third argument, if it has one"},
       {"argument4", ArgKind::value, "Its fourth argument, if it has one"},
       {"argument5", ArgKind::value, "Its fifth argument, if it has one"},
-      {"argument6", ArgKind::value, "Its sixth argument, if it has one"}},
+      {"argument6", ArgKind::value, "Its sixth argument, if it has one"},
+      {"argument7", ArgKind::value, "Its seventh argument, if it has one"}},
      "text: the cell's error and the reason, e.g. `Err:502: 'method' must be one of \"ml\", \"paf\", \"minres\"`",
      "none: every failure, its own included, is the text it returns", fn_reason},
 };

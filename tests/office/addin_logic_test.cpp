@@ -375,7 +375,7 @@ TEST(AddinReason, GivesTheReasonOfAFailingFormula) {
   auto reason = [&](const char* function, std::vector<Arg> rest) {
     std::vector<Arg> args{text_arg(function)};
     for (Arg& a : rest) args.push_back(std::move(a));
-    args.resize(7);  // LODE.REASON's function and six arguments, the rest left out
+    args.resize(find_by_display("LODE.REASON")->args.size());  // the function and its arguments, the rest left out
     const Output out = fn_reason(Call{args, cache, Deadline{}});
     EXPECT_TRUE(out.scalar && out.cells.size() == 1 && out.cells[0].is_text);
     return out.cells[0].text;
@@ -412,6 +412,15 @@ TEST(AddinReason, GivesTheReasonOfAFailingFormula) {
   } catch (const CellError& e) {
     EXPECT_STREQ(e.what(), "'function': Lode has no function LODE.NOSUCH");
   }
+}
+
+// LODE.REASON passes on as many arguments as the widest Lode function takes, so every formula's
+// reason can be read.
+TEST(AddinReason, PassesOnEveryArgumentOfTheWidestFunction) {
+  const FunctionSpec* reason = find_by_display("LODE.REASON");
+  ASSERT_NE(reason, nullptr);
+  for (const FunctionSpec& f : function_table())
+    if (&f != reason) EXPECT_LE(f.args.size() + 1, reason->args.size()) << f.display;
 }
 
 // LODE.NFACTORS, the former name of LODE.FACTORCOUNT, stays in the table and computes the same.
