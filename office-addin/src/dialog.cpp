@@ -267,6 +267,66 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
     }
   }
 
+  // The right half of the dialog: the analysis's options, the checks of the structure, the groups,
+  // and the buttons. `items` are the range's columns (the group column is chosen among them).
+  static void analysis_controls(DialogBuilder& b, const std::vector<std::string>& items) {
+    const sal_Int32 L = 166, F = 250, W = 136;
+    b.heading("AnalysisHeading", "The analysis", L, 4, 220);
+    b.dropdown(*find_word_option("Correlation"), L, F, 18, W);
+    b.dropdown(*find_word_option("Missing"), L, F, 33, W);
+    // The factor count: one field, 0 letting the evidence decide (parallel analysis), so a number
+    // typed there is always the one used.
+    b.label("FactorsLabel", "Factors to keep", L, 52, 82);
+    b.number("FactorCount", 0, 0, 100, 0, F, 52, 30);
+    b.label("FactorsHint", "0: as the evidence suggests", F + 34, 53, W - 34);
+    b.dropdown(*find_word_option("Extraction"), L, F, 74, W);
+    b.dropdown(*find_word_option("Rotation"), L, F, 89, W);
+    b.label("RotationParameterLabel", "Rotation setting (0: usual)", L, 104, 82);
+    b.number("RotationParameter", 0, -10, 10, 2, F, 104, W);
+
+    b.heading("ExtrasHeading", "Extras", L, 120, 220);
+    b.dropdown(*find_word_option("Scores"), L, F, 134, W);
+    b.dropdown(*find_word_option("ScoresPlace"), L, F, 149, W);
+    b.add("com.sun.star.awt.UnoControlCheckBoxModel", "Bootstrap", L, 165, 82, 10,
+          {{"Label", Any(A("Bootstrap intervals"))}, {"State", Any(sal_Int16(0))}});
+    b.label("ReplicatesLabel", "Resamples", F, 164, 40);
+    b.number("Replicates", 500, 50, 100000, 0, F + 42, 164, W - 42);
+    b.label("SalientLabel", "Strong loading from", L, 180, 82);
+    b.number("Salient", defaults::salient, 0.05, 0.95, 2, F, 180, W);
+    b.label("SeedLabel", "Random seed", L, 195, 82);
+    b.number("Seed", 20260101, 0, 9007199254740991.0, 0, F, 195, W);
+
+    // The checks with a sheet of their own (option_table.cpp): a check box, then its number.
+    b.heading("ChecksHeading", "Does the structure hold up?", L, 210, 220);
+    sal_Int32 y = 224;
+    for (const CheckOption& c : check_options()) {
+      b.add("com.sun.star.awt.UnoControlCheckBoxModel", c.property, L, y, 220, 10,
+            {{"Label", Any(A(c.label))}, {"State", Any(sal_Int16(0))}, {"HelpText", Any(ustr(c.help))}});
+      const std::string field = std::string(c.property) + "Value";
+      b.label((field + "Label").c_str(), c.number_label, L + 12, y + 13, F - L - 14);
+      b.number(field.c_str(), c.on_value, c.lo, c.hi, c.decimals, F, y + 13, W);
+      y += 28;
+    }
+
+    b.heading("GroupsHeading", "Groups", L, y + 2, 220);
+    std::vector<std::string> group_choices{"No comparison"};
+    group_choices.insert(group_choices.end(), items.begin(), items.end());
+    const sal_Int16 no_group = 0;
+    b.label("GroupColumnLabel", kGroupColumnOption.label, L, y + 16, 82);
+    b.add("com.sun.star.awt.UnoControlListBoxModel", kGroupColumnOption.property, F, y + 16, W, 12,
+          {{"Dropdown", Any(true)}, {"StringItemList", Any(strings(group_choices))},
+           {"SelectedItems", Any(Sequence<sal_Int16>(&no_group, 1))}, {"LineCount", Any(sal_Int16(8))},
+           {"HelpText", Any(A(kGroupColumnOption.help))}});
+    b.label("MinGroupLabel", kMinGroupOption.label, L, y + 31, 82);
+    b.number(kMinGroupOption.property, report::kDefaultMinGroup, 2, report::kMaxMinGroup, 0, F, y + 31, W);
+    b.get(kMinGroupOption.property)->setPropertyValue("HelpText", Any(A(kMinGroupOption.help)));
+
+    b.add("com.sun.star.awt.UnoControlButtonModel", "Run", 276, 334, 54, 14,
+          {{"Label", Any(A("Run"))}, {"PushButtonType", Any(sal_Int16(1))}, {"DefaultButton", Any(true)}});
+    b.add("com.sun.star.awt.UnoControlButtonModel", "Cancel", 332, 334, 54, 14,
+          {{"Label", Any(A("Cancel"))}, {"PushButtonType", Any(sal_Int16(2))}});
+  }
+
   void analyse() {
     if (!frame_.is()) return;
     Reference<css::frame::XController> controller = frame_->getController();
@@ -323,62 +383,7 @@ class DialogHandler : public cppu::WeakImplHelper4<css::frame::XDispatchProvider
            {"Label", Any(A("The report goes into new sheets; nothing in the workbook is overwritten. "
                            "Progress shows in the status bar; Lode > Stop the running analysis ends a run."))}});
 
-    // Right: the analysis.
-    const sal_Int32 L = 166, F = 250, W = 136;
-    b.heading("AnalysisHeading", "The analysis", L, 4, 220);
-    b.dropdown(*find_word_option("Correlation"), L, F, 18, W);
-    b.dropdown(*find_word_option("Missing"), L, F, 33, W);
-    // The factor count: one field, 0 letting the evidence decide (parallel analysis), so a number
-    // typed there is always the one used.
-    b.label("FactorsLabel", "Factors to keep", L, 52, 82);
-    b.number("FactorCount", 0, 0, 100, 0, F, 52, 30);
-    b.label("FactorsHint", "0: as the evidence suggests", F + 34, 53, W - 34);
-    b.dropdown(*find_word_option("Extraction"), L, F, 74, W);
-    b.dropdown(*find_word_option("Rotation"), L, F, 89, W);
-    b.label("RotationParameterLabel", "Rotation setting (0: usual)", L, 104, 82);
-    b.number("RotationParameter", 0, -10, 10, 2, F, 104, W);
-
-    b.heading("ExtrasHeading", "Extras", L, 120, 220);
-    b.dropdown(*find_word_option("Scores"), L, F, 134, W);
-    b.dropdown(*find_word_option("ScoresPlace"), L, F, 149, W);
-    b.add("com.sun.star.awt.UnoControlCheckBoxModel", "Bootstrap", L, 165, 82, 10,
-          {{"Label", Any(A("Bootstrap intervals"))}, {"State", Any(sal_Int16(0))}});
-    b.label("ReplicatesLabel", "Resamples", F, 164, 40);
-    b.number("Replicates", 500, 50, 100000, 0, F + 42, 164, W - 42);
-    b.label("SalientLabel", "Strong loading from", L, 180, 82);
-    b.number("Salient", defaults::salient, 0.05, 0.95, 2, F, 180, W);
-    b.label("SeedLabel", "Random seed", L, 195, 82);
-    b.number("Seed", 20260101, 0, 9007199254740991.0, 0, F, 195, W);
-
-    // The checks with a sheet of their own (option_table.cpp): a check box, then its number.
-    b.heading("ChecksHeading", "Does the structure hold up?", L, 210, 220);
-    sal_Int32 y = 224;
-    for (const CheckOption& c : check_options()) {
-      b.add("com.sun.star.awt.UnoControlCheckBoxModel", c.property, L, y, 220, 10,
-            {{"Label", Any(A(c.label))}, {"State", Any(sal_Int16(0))}, {"HelpText", Any(ustr(c.help))}});
-      const std::string field = std::string(c.property) + "Value";
-      b.label((field + "Label").c_str(), c.number_label, L + 12, y + 13, F - L - 14);
-      b.number(field.c_str(), c.on_value, c.lo, c.hi, c.decimals, F, y + 13, W);
-      y += 28;
-    }
-
-    b.heading("GroupsHeading", "Groups", L, y + 2, 220);
-    std::vector<std::string> group_choices{"No comparison"};
-    group_choices.insert(group_choices.end(), items.begin(), items.end());
-    const sal_Int16 no_group = 0;
-    b.label("GroupColumnLabel", kGroupColumnOption.label, L, y + 16, 82);
-    b.add("com.sun.star.awt.UnoControlListBoxModel", kGroupColumnOption.property, F, y + 16, W, 12,
-          {{"Dropdown", Any(true)}, {"StringItemList", Any(strings(group_choices))},
-           {"SelectedItems", Any(Sequence<sal_Int16>(&no_group, 1))}, {"LineCount", Any(sal_Int16(8))},
-           {"HelpText", Any(A(kGroupColumnOption.help))}});
-    b.label("MinGroupLabel", kMinGroupOption.label, L, y + 31, 82);
-    b.number(kMinGroupOption.property, report::kDefaultMinGroup, 2, report::kMaxMinGroup, 0, F, y + 31, W);
-    b.get(kMinGroupOption.property)->setPropertyValue("HelpText", Any(A(kMinGroupOption.help)));
-
-    b.add("com.sun.star.awt.UnoControlButtonModel", "Run", 276, 334, 54, 14,
-          {{"Label", Any(A("Run"))}, {"PushButtonType", Any(sal_Int16(1))}, {"DefaultButton", Any(true)}});
-    b.add("com.sun.star.awt.UnoControlButtonModel", "Cancel", 332, 334, 54, 14,
-          {{"Label", Any(A("Cancel"))}, {"PushButtonType", Any(sal_Int16(2))}});
+    analysis_controls(b, items);
 
     Reference<css::awt::XWindowPeer> parent(frame_->getContainerWindow(), UNO_QUERY);
     if (b.execute(parent) != 1) return;

@@ -109,7 +109,7 @@ def test_em_rule_for_missing_answers_reaches_the_report(office, service):  # noq
         # rounding carried through iterations that contract towards one fixed point
         assert np.max(np.abs(m - ref.matrix)) < 1e-10
         record = rows_by_label(read_sheet(doc.Sheets.getByName([n for n in new if n.startswith("Lode run record")][0])))
-        assert record["Missing answers"][1] == "em"
+        assert record["Missing answers"][1].startswith("EM: ")  # the option in the dialog's words
         assert record["EM iterations"][1] == ref.em["iterations"]
         assert record["EM met its criterion"][1] == ("yes" if ref.em["converged"] else "no: the estimate may be off")
     finally:
