@@ -420,7 +420,9 @@ TEST(AddinReason, PassesOnEveryArgumentOfTheWidestFunction) {
   const FunctionSpec* reason = find_by_display("LODE.REASON");
   ASSERT_NE(reason, nullptr);
   for (const FunctionSpec& f : function_table())
-    if (&f != reason) EXPECT_LE(f.args.size() + 1, reason->args.size()) << f.display;
+    if (&f != reason) {
+      EXPECT_LE(f.args.size() + 1, reason->args.size()) << f.display;
+    }
 }
 
 // LODE.NFACTORS, the former name of LODE.FACTORCOUNT, stays in the table and computes the same.

@@ -41,7 +41,9 @@ def main():
     # -static: the programs' own C/C++ runtime linked in (a fresh wine prefix has no mingw DLLs); the
     # import library is named by its path so that -static does not look for a liblode.a instead.
     c_exe = os.path.join(run_dir, "capi_test.exe")
-    c_sources = [os.path.join(tests, "capi_test.c")] + sorted(glob.glob(os.path.join(tests, "capi_*_test.c")))
+    # capi_check.c: the check macros' counters and reporting, shared by every C test program
+    c_sources = [os.path.join(tests, "capi_test.c"), os.path.join(tests, "capi_check.c")] + sorted(
+        glob.glob(os.path.join(tests, "capi_*_test.c")))
     run([CC, "-std=c99", "-pedantic", "-Werror", "-Wall", "-Wextra", "-D__USE_MINGW_ANSI_STDIO=1", "-I", inc,
          *c_sources, "-o", c_exe, implib, "-static"])
     cxx_exe = os.path.join(run_dir, "header_cxx_test.exe")
