@@ -290,10 +290,12 @@ RestrictedFitResult fit_restricted(const Matrix& r_in, const Matrix& pattern, co
   const Matrix r = correlation_from_matrix(r_in, 0).matrix;
   const Index p = r.rows(), k = pattern.cols();
   check_pattern(pattern, p, options.item_names);
-  if (options.n_obs < 2)
+  // The Wishart likelihood of p items needs more than p respondents (the sample covariance matrix of
+  // n <= p respondents is singular), as the hold-out check's parts do.
+  if (options.n_obs <= p)
     throw Error(ErrorCode::insufficient_data,
-                fmt::format("the restricted fit needs the number of respondents behind the matrix (at least 2); got {}",
-                            options.n_obs));
+                fmt::format("the restricted fit of {} items needs more than {} respondents behind the matrix; got {}", p,
+                            p, options.n_obs));
   if (options.max_iterations < 1 || !(options.tolerance > 0.0) || !(options.min_uniqueness >= 0.0) ||
       !(options.interval_level > 0.0 && options.interval_level < 1.0))
     throw Error(ErrorCode::invalid_argument,

@@ -111,13 +111,6 @@ std::shared_ptr<const PatternFitOutputs> pattern_fit(const Call& call) {
   const Source src = read_source(call, 2);
   const std::size_t items = src.input.grid->cols;
   const Pattern pattern = read_pattern(call.args[1], items);
-  // The likelihood of the fit needs more respondents than items (as the hold-out check's parts do).
-  const std::size_t n = src.input.is_correlation ? static_cast<std::size_t>(src.spec.n_obs) : src.input.grid->rows;
-  if (n > 0 && n <= items)
-    throw CellError(Failure::bad_argument, "the restricted fit of " + std::to_string(items) + " items needs more than " +
-                                               std::to_string(items) + " respondents; " +
-                                               (src.input.is_correlation ? "'n_obs' is " : "the data have ") +
-                                               std::to_string(n));
   auto corr = correlation(call, src.input, src.spec);
   KeyBuilder k("patternfit");
   k.add(source_key(src)).add(static_cast<std::uint64_t>(pattern.factors)).add(pattern.values.data(), pattern.values.size());

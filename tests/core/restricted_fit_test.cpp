@@ -207,7 +207,16 @@ TEST(RestrictedFit, RefusesPatternsThatDoNotIdentifyTheModel) {
             std::string::npos);
   EXPECT_EQ(code, ErrorCode::too_many_factors);
   o.n_obs = 0;
-  EXPECT_NE(error_message([&] { fit_restricted(r, pattern, o); }).find("number of respondents"), std::string::npos);
+  EXPECT_EQ(error_message([&] { fit_restricted(r, pattern, o); }, &code),
+            "the restricted fit of 9 items needs more than 9 respondents behind the matrix; got 0");
+  EXPECT_EQ(code, ErrorCode::insufficient_data);
+  // n <= p respondents have a singular sample covariance matrix, so the Wishart likelihood is not
+  // defined (common practice): 9 respondents for 9 items are refused, 10 are taken.
+  o.n_obs = 9;
+  EXPECT_EQ(error_message([&] { fit_restricted(r, pattern, o); }, &code),
+            "the restricted fit of 9 items needs more than 9 respondents behind the matrix; got 9");
+  o.n_obs = 10;
+  EXPECT_TRUE(fit_restricted(r, pattern, o).convergence.converged);
 }
 
 TEST(RestrictedFit, SimpleStructureTakesTheLargestSalientLoading) {

@@ -96,22 +96,23 @@ Reference reference(const Analysis& a) {
   return ref;
 }
 
-class ReportLayout : public ::testing::Test {
+// One analysis of R's attitude per suite, with the options `make` gives, shared by the suite's tests.
+template <Options (*make)()>
+class AttitudeAnalysis : public ::testing::Test {
  protected:
   static void SetUpTestSuite() {
     source_ = new SourceTable(attitude_table());
-    analysis_ = new Analysis(analyse(*source_, run_options(), "2026-01-02 03:04", {}));
+    analysis_ = new Analysis(analyse(*source_, make(), "2026-01-02 03:04", {}));
   }
   static void TearDownTestSuite() {
     delete analysis_;
     delete source_;
   }
   static const Analysis& a() { return *analysis_; }
-  static SourceTable* source_;
-  static Analysis* analysis_;
+  static inline SourceTable* source_ = nullptr;
+  static inline Analysis* analysis_ = nullptr;
 };
-SourceTable* ReportLayout::source_ = nullptr;
-Analysis* ReportLayout::analysis_ = nullptr;
+using ReportLayout = AttitudeAnalysis<run_options>;
 
 // The first row whose first cell reads `text` (at or after row `from`); -1 when none.
 long find_row(const Sheet& s, const std::string& text, std::size_t from = 0) {
@@ -422,22 +423,7 @@ CorrelationHandle attitude_correlation(const Analysis& a, DataHandle& data) {
   return CorrelationHandle(c);
 }
 
-class ConfirmSheets : public ::testing::Test {
- protected:
-  static void SetUpTestSuite() {
-    source_ = new SourceTable(attitude_table());
-    analysis_ = new Analysis(analyse(*source_, confirm_options(), "t", {}));
-  }
-  static void TearDownTestSuite() {
-    delete analysis_;
-    delete source_;
-  }
-  static const Analysis& a() { return *analysis_; }
-  static SourceTable* source_;
-  static Analysis* analysis_;
-};
-SourceTable* ConfirmSheets::source_ = nullptr;
-Analysis* ConfirmSheets::analysis_ = nullptr;
+using ConfirmSheets = AttitudeAnalysis<confirm_options>;
 
 bool sheet_has_text(const Sheet& s, const std::string& text) {
   for (const auto& row : s.rows)

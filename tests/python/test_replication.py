@@ -180,6 +180,10 @@ def test_bad_patterns_are_refused_with_the_reason():
         lode.fit_pattern(corr=r, n_obs=112, pattern=ABILITY_PATTERN[:5])
     with pytest.raises(lode.LodeError, match="n_obs"):
         lode.fit_pattern(corr=r, pattern=ABILITY_PATTERN)
+    # 6 respondents for 6 items: a singular sample covariance matrix, refused by the library itself
+    with pytest.raises(lode.LodeError, match="needs more than 6 respondents behind the matrix; got 6"):
+        lode.fit_pattern(corr=r, n_obs=6, pattern=ABILITY_PATTERN)
+    assert lode.fit_pattern(corr=r, n_obs=7, pattern=ABILITY_PATTERN).loadings.shape == (6, 2)
     with pytest.raises(lode.ArgumentError):
         lode.fit_pattern(corr=r, n_obs=112, pattern="F1")
 

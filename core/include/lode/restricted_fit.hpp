@@ -66,7 +66,8 @@ struct RestrictedFitResult {
 void check_pattern(const Matrix& pattern, Index items, const std::vector<std::string>& item_names = {});
 
 // Fits the restricted model to correlation matrix `r` (square, symmetric, unit diagonal, positive
-// definite). Errors: a pattern that does not identify the model (check_pattern); n_obs not above 1
+// definite). Errors: a pattern that does not identify the model (check_pattern); n_obs not above the
+// number of items
 // (insufficient_data); r not positive definite (not_positive_definite). Non-convergence and Heywood
 // cases are reported in the result, not thrown.
 RestrictedFitResult fit_restricted(const Matrix& r, const Matrix& pattern, const RestrictedFitOptions& options);
