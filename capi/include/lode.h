@@ -1106,7 +1106,8 @@ typedef struct lode_restricted_fit lode_restricted_fit;
 /* Fits the restricted factor model whose free loadings are the 1s of `pattern` (items x factors of 0
  * and 1, strides as for input matrices; every other loading is fixed at 0) to `corr`'s matrix by
  * maximum likelihood (Joreskog 1969): factor variances fixed at 1, factor correlations and
- * uniquenesses free. Needs corr's number of observations. A pattern with an item on no factor or a
+ * uniquenesses free. Needs corr's number of observations, more than the items (else
+ * LODE_E_INSUFFICIENT_DATA: the sample covariance of n <= p respondents is singular). A pattern with an item on no factor or a
  * factor with fewer than two items is LODE_E_INVALID_ARGUMENT naming it; one leaving negative degrees
  * of freedom LODE_E_TOO_MANY_FACTORS. Non-convergence and Heywood cases are reported (keys below),
  * not errors. Chi-square = (N - 1) F (no Bartlett correction); CFI (Bentler 1990), TLI, RMSEA with
